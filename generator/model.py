@@ -1,0 +1,300 @@
+"""Typed data passed between the pipeline stages.
+
+load (``loader``) -> ``Entry`` + ``Spacetime``
+compute (``geometry``) -> ``Geometry``
+classify & verify (``classify``, ``verify``) -> ``Classification``, ``Verdict``s
+render (``render``) <- ``EntryReport``
+
+Everything here is a frozen dataclass holding plain values or SymPy objects, so results can be
+pickled between processes and cached.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Literal
+
+import sympy
+
+from .errors import Diagnostic, SourcePos
+
+# ---------------------------------------------------------------------------- entry (as written)
+
+
+@dataclass(frozen=True)
+class MathText:
+    """A math string from the YAML file with the position of its first character.
+
+    ``offsets`` maps each character of ``text`` to its (line, column) in the file, so a parse
+    error at character k can be reported exactly even inside folded block scalars.
+    """
+
+    text: str
+    pos: SourcePos
+    offsets: tuple[tuple[int, int], ...] = ()
+
+    def pos_at(self, offset: int) -> SourcePos:
+        """Position of character ``offset`` of the string (clamped to the string)."""
+        if not self.offsets:
+            return SourcePos(self.pos.file, self.pos.line, self.pos.column + max(offset, 0))
+        k = min(max(offset, 0), len(self.offsets) - 1)
+        line, column = self.offsets[k]
+        return SourcePos(self.pos.file, line, column)
+
+
+@dataclass(frozen=True)
+class Parameter:
+    name: str
+    assume: str  # positive | negative | nonnegative | nonzero | real | integer | ...
+    meaning: str
+    pos: SourcePos
+
+
+@dataclass(frozen=True)
+class FreeFunction:
+    name: str
+    of: tuple[str, ...]
+    assume: str | None
+    meaning: str
+    pos: SourcePos
+
+
+@dataclass(frozen=True)
+class Claim:
+    """One claimed scalar value, with where it was taken from."""
+
+    name: str  # e.g. "kretschmann"
+    value: MathText
+    source: str | None  # a reference role, or "computed-here"
+    locator: str | None
+    pos: SourcePos
+
+
+@dataclass(frozen=True)
+class Matter:
+    kind: str
+    cosmological_constant: MathText | None = None
+    potential: tuple[tuple[str, MathText], ...] = ()  # A_a, lower index, by coordinate name
+    density: MathText | None = None
+    pressure: MathText | None = None
+    velocity: tuple[tuple[str, MathText], ...] = ()  # u^a, upper index
+    null_direction: tuple[tuple[str, MathText], ...] = ()  # k^a, upper index
+    pos: SourcePos | None = None
+
+
+@dataclass(frozen=True)
+class VectorClaim:
+    """A claimed Killing vector, contravariant components by coordinate name."""
+
+    components: tuple[tuple[str, MathText], ...]
+    pos: SourcePos
+
+
+@dataclass(frozen=True)
+class Claims:
+    scalars: tuple[Claim, ...] = ()  # ricci_scalar, kretschmann, ricci_squared, weyl_squared
+    petrov_type: str | None = None
+    petrov_pos: SourcePos | None = None
+    hawking_ellis_type: str | None = None
+    energy_conditions: tuple[tuple[str, str], ...] = ()  # (condition, holds|violated|undecided)
+    killing_vectors: tuple[VectorClaim, ...] = ()
+    pos: SourcePos | None = None
+
+
+@dataclass(frozen=True)
+class Reference:
+    role: str  # original | claims | textbook | review | erratum
+    authors: tuple[str, ...]
+    title: str
+    venue: str
+    year: int
+    doi: str | None
+    arxiv: str | None
+    isbn: str | None
+    locator: str | None
+    unconfirmed: tuple[str, ...]  # names of fields recalled but not confirmed
+    pos: SourcePos
+
+
+@dataclass(frozen=True)
+class RelatedChart:
+    entry: str
+    map: tuple[tuple[str, MathText], ...]  # this entry's coordinates in the other's coordinates
+    pos: SourcePos
+
+
+@dataclass(frozen=True)
+class Curation:
+    added: str  # ISO date
+    by: str
+
+
+@dataclass(frozen=True)
+class Entry:
+    """One catalog entry exactly as written (strings kept, with positions)."""
+
+    id: str
+    file: str  # path as given to the tool, used in diagnostics
+    family: str  # name of the folder under catalog/
+    title: str
+    chart: str
+    summary: str
+    notes: str
+    tags: tuple[str, ...]
+    coordinates: tuple[str, ...]
+    signature: str
+    parameters: tuple[Parameter, ...]
+    functions: tuple[FreeFunction, ...]
+    domain: tuple[MathText, ...]
+    line_element: MathText | None
+    components: tuple[tuple[tuple[str, str], MathText], ...]
+    matter: Matter
+    claims: Claims
+    references: tuple[Reference, ...]
+    curation: Curation
+    related: tuple[RelatedChart, ...]
+    positions: dict[str, SourcePos] = field(default_factory=dict, compare=False, hash=False)
+    source_text: str = field(default="", compare=False, hash=False, repr=False)
+
+    def pos(self, key: str) -> SourcePos:
+        """Position of a dotted key path (e.g. ``claims.kretschmann``), else of the file start."""
+        while key:
+            if key in self.positions:
+                return self.positions[key]
+            key = key.rpartition(".")[0]
+        return SourcePos(self.file, 1, 1)
+
+
+# ---------------------------------------------------------------------------- mathematics
+
+
+@dataclass(frozen=True)
+class Spacetime:
+    """The mathematics of an entry in SymPy, built by the loader from the whitelisted parser.
+
+    ``metric`` is in the entry's declared signature. ``sign`` is +1 for "-+++"-type entries and
+    -1 when the tool flipped a "+---" entry to the catalog convention (``metric`` is then
+    already flipped and ``sign`` records it, so pages can say so).
+    """
+
+    coordinates: tuple[sympy.Symbol, ...]
+    parameters: tuple[sympy.Symbol, ...]
+    functions: tuple[sympy.Expr, ...]  # applied undefined functions, e.g. a(t), H(u, x, y)
+    metric: sympy.ImmutableMatrix
+    signature: str  # as declared
+    sign: int
+    domain: tuple[sympy.Basic, ...]  # relationals over coordinates and parameters
+    symbols: dict[str, sympy.Basic] = field(compare=False, hash=False, default_factory=dict)
+
+    @property
+    def dimension(self) -> int:
+        return len(self.coordinates)
+
+    @property
+    def lorentzian(self) -> bool:
+        return self.signature.count("-") in (1, len(self.signature) - 1) and len(
+            self.signature
+        ) > 1 and "+" in self.signature
+
+
+Index = tuple[int, ...]
+
+
+@dataclass(frozen=True)
+class Geometry:
+    """Curvature of a spacetime, every component in the engine's canonical form.
+
+    Index conventions (catalog-wide): R^a_bcd = d_c G^a_db - d_d G^a_cb + ...; R_bd = R^a_bad.
+    Dicts hold nonzero components only. ``riemann`` holds R_abcd (all indices down) for a<b,
+    c<d, (a,b)<=(c,d); other components follow from the symmetries.
+    """
+
+    dimension: int
+    metric: sympy.ImmutableMatrix
+    inverse_metric: sympy.ImmutableMatrix
+    christoffel: dict[Index, sympy.Expr]  # (a, b, c) -> Gamma^a_bc, b <= c
+    riemann: dict[Index, sympy.Expr]  # (a, b, c, d) -> R_abcd, independent ones
+    ricci: sympy.ImmutableMatrix  # R_ab
+    ricci_scalar: sympy.Expr
+    einstein: sympy.ImmutableMatrix  # G_ab
+    einstein_mixed: sympy.ImmutableMatrix  # G^a_b
+    weyl: dict[Index, sympy.Expr] | None  # C_abcd independent ones; None below 4 dimensions
+    kretschmann: sympy.Expr
+    ricci_squared: sympy.Expr
+    weyl_squared: sympy.Expr | None  # None below 4 dimensions
+    engine: str  # which path computed it: "rational-function" or "sympy"
+    seconds: float = 0.0
+
+
+Method = Literal["exact", "sampled", "failed"]
+
+
+@dataclass(frozen=True)
+class Decision:
+    """Outcome of an equality/zero test. ``equal`` None means it could not be decided."""
+
+    equal: bool | None
+    method: Method
+    detail: str = ""
+    witness: dict[str, str] | None = None  # a sample point where the two sides differ
+
+
+@dataclass(frozen=True)
+class Verdict:
+    """Result of verifying one claim or one structural fact of an entry."""
+
+    subject: str  # dotted key of the claim, e.g. "claims.kretschmann", "matter.kind"
+    ok: bool
+    method: Method
+    detail: str
+    claimed: str = ""
+    computed: str = ""
+
+
+EnergyStatus = Literal["holds", "violated", "undecided", "not-applicable"]
+
+
+@dataclass(frozen=True)
+class EnergyCondition:
+    name: str  # null | weak | strong | dominant
+    status: EnergyStatus
+    how: str  # "proved symbolically", "witness at r=3, M=1", "sampled only", reason if n/a
+    witness: dict[str, str] | None = None
+
+
+@dataclass(frozen=True)
+class Classification:
+    """Physics derived from the geometry. A None field carries its reason in ``reasons``."""
+
+    matter_kind: str  # vacuum | lambda-vacuum | electrovacuum | perfect-fluid | null-dust | ...
+    cosmological_constant: sympy.Expr | None
+    stress_energy_mixed: sympy.ImmutableMatrix | None  # T^a_b = (G^a_b + Lambda d^a_b)/8pi
+    hawking_ellis_type: str | None
+    energy_density: sympy.Expr | None
+    principal_pressures: tuple[sympy.Expr, ...] | None
+    energy_conditions: tuple[EnergyCondition, ...]
+    petrov_type: str | None
+    weyl_scalars: dict[str, sympy.Expr] | None  # Psi0..Psi4 in the tool's tetrad
+    killing_vectors_checked: tuple[Verdict, ...]
+    related_checked: tuple[Verdict, ...]
+    geodesic_equations: tuple[sympy.Expr, ...]  # d2x^a/ds2 + Gamma^a_bc dx^b dx^c = 0 left sides
+    reasons: dict[str, str] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class EntryReport:
+    """Everything the tool knows about one entry after checking it: what the site renders."""
+
+    entry: Entry | None
+    file: str
+    spacetime: Spacetime | None
+    geometry: Geometry | None
+    classification: Classification | None
+    verdicts: tuple[Verdict, ...]
+    diagnostics: tuple[Diagnostic, ...]
+    content_hash: str = ""
+    seconds: float = 0.0
+
+    @property
+    def ok(self) -> bool:
+        return not any(d.severity == "error" for d in self.diagnostics)
