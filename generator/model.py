@@ -298,3 +298,43 @@ class EntryReport:
     @property
     def ok(self) -> bool:
         return not any(d.severity == "error" for d in self.diagnostics)
+
+
+# ---------------------------------------------------------------------------- catalog as a whole
+
+
+@dataclass(frozen=True)
+class Family:
+    name: str  # folder name under catalog/
+    title: str
+    about: str
+
+
+@dataclass(frozen=True)
+class Tag:
+    name: str
+    meaning: str
+
+
+@dataclass(frozen=True)
+class Revision:
+    """One commit that changed the mathematics of an entry (from git history)."""
+
+    commit: str  # full git commit id
+    date: str  # ISO date of the commit
+    content_hash: str  # the entry's content hash at that commit
+    summary: str  # one line: what changed
+
+
+@dataclass(frozen=True)
+class CatalogMeta:
+    """Catalog-wide data the site needs besides the entries (loaded once per build)."""
+
+    version: str  # catalog release version (= project version in pyproject.toml)
+    generator_version: str
+    sympy_version: str
+    families: tuple[Family, ...]
+    tags: tuple[Tag, ...]
+    contributing_markdown: str  # DEVELOPERS.md, rendered as the contributing page
+    base_url: str  # permanent URL prefix used in citations
+    revisions: dict[str, tuple[Revision, ...]] = field(default_factory=dict)
