@@ -1,0 +1,510 @@
+"""Citations: how a reader cites a verified entry, and the entry's content hash.
+
+A citation must pin down *which mathematics* the reader relied on, not just which page: the
+entry id is stable but its metric may be corrected later. So every citation carries the catalog
+version and the entry's content hash, a sha256 over a canonical JSON form of the entry's
+mathematics (``content_hash``). The hash ignores how the YAML is laid out (whitespace, key
+order, comments, quoting) but changes whenever a formula, an assumption or a claim changes, so
+``python -m generator cite --hash H`` can find the exact revision a paper used.
+
+The access date is left to the user on purpose: output must be deterministic (same catalog,
+same bytes), and only the reader knows when they looked.
+"""
+
+from __future__ import annotations
+
+import argparse
+import hashlib
+import json
+import re
+import sys
+import unicodedata
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import TypeVar
+
+from .model import (
+    CatalogMeta,
+    Claims,
+    Entry,
+    EntryReport,
+    FreeFunction,
+    MathText,
+    Matter,
+    Parameter,
+    Reference,
+)
+
+FORMATS = ("bibtex", "csl-json", "text")
+HASH_SCHEME = "metric-almanac-content-v1"
+SHORT_HASH_LENGTH = 12
+CATALOG_NAME = "Metric Almanac"
+CATALOG_AUTHOR = "Metric Almanac contributors"
+DEFAULT_BASE_URL = "https://metric-almanac.example.org/"
+ACCESS_DATE_PLACEHOLDER = "<date>"
+
+_T = TypeVar("_T")
+
+# ---------------------------------------------------------------------------- content hash
+
+
+def content_hash(entry: Entry) -> str:
+    """Full sha256 (64 hex digits) of the entry's mathematics in canonical form.
+
+    Prose (title, summary, notes, meanings, references, curation) is left out: fixing a typo in
+    a sentence is not a new revision of the mathematics that anyone could have cited.
+    """
+    payload = json.dumps(
+        canonical_form(entry), sort_keys=True, ensure_ascii=False, separators=(",", ":")
+    )
+    return hashlib.sha256(payload.encode("utf-8")).hexdigest()
+
+
+def short_hash(full: str) -> str:
+    """The 12-hex-digit form shown on pages and in citations (48 bits: collisions negligible)."""
+    return full[:SHORT_HASH_LENGTH]
+
+
+def canonical_form(entry: Entry) -> dict[str, object]:
+    """The mathematics of an entry as plain JSON data, independent of YAML layout.
+
+    Mappings become sorted dicts; lists whose order carries meaning (coordinates, Killing
+    vectors) keep it; the domain is a set of inequalities, so it is sorted.
+    """
+    return {
+        "scheme": HASH_SCHEME,
+        "coordinates": list(entry.coordinates),
+        "signature": entry.signature,
+        "parameters": {p.name: _parameter(p) for p in entry.parameters},
+        "functions": {f.name: _function(f) for f in entry.functions},
+        "domain": sorted(_math(d) for d in entry.domain),
+        "metric": _metric(entry),
+        "matter": _matter(entry.matter),
+        "claims": _claims(entry.claims),
+    }
+
+
+def _math(text: MathText | None) -> str | None:
+    """Whitespace carries no meaning in the math grammar, so it is removed entirely.
+
+    Algebraically equal rewrites (``2*M/r`` vs ``M*2/r``) still change the hash: the hash names
+    the text a reader saw, and deciding equality is the verifier's job, not the hash's.
+    """
+    if text is None:
+        return None
+    return re.sub(r"\s+", "", text.text)
+
+
+def _parameter(p: Parameter) -> dict[str, object]:
+    return {"assume": p.assume}
+
+
+def _function(f: FreeFunction) -> dict[str, object]:
+    return {"of": list(f.of), "assume": f.assume}
+
+
+def _metric(entry: Entry) -> dict[str, object]:
+    if entry.line_element is not None:
+        return {"line_element": _math(entry.line_element)}
+    order = {name: k for k, name in enumerate(entry.coordinates)}
+    components: dict[str, str | None] = {}
+    for (a, b), value in entry.components:
+        first, second = sorted((a, b), key=lambda name: (order.get(name, len(order)), name))
+        components[f"{first} {second}"] = _math(value)
+    return {"components": components}
+
+
+def _matter(matter: Matter) -> dict[str, object]:
+    """Every field of ``Matter`` except its position, so new matter fields are hashed too."""
+    out: dict[str, object] = {}
+    for name, value in vars(matter).items():
+        if name == "pos" or value is None or value == ():
+            continue
+        out[name] = _plain(value)
+    return out
+
+
+def _claims(claims: Claims) -> dict[str, object]:
+    """Claimed values only; where a value was taken from (source, locator) is provenance."""
+    out: dict[str, object] = {c.name: _math(c.value) for c in claims.scalars}
+    if claims.petrov_type is not None:
+        out["petrov_type"] = claims.petrov_type
+    if claims.hawking_ellis_type is not None:
+        out["hawking_ellis_type"] = claims.hawking_ellis_type
+    if claims.energy_conditions:
+        out["energy_conditions"] = dict(claims.energy_conditions)
+    if claims.killing_vectors:
+        out["killing_vectors"] = [_plain(v.components) for v in claims.killing_vectors]
+    return out
+
+
+def _plain(value: object) -> object:
+    """MathText -> normalised text; tuples of (name, value) pairs -> dicts; else as is."""
+    if isinstance(value, MathText):
+        return _math(value)
+    if isinstance(value, tuple):
+        if all(isinstance(v, tuple) and len(v) == 2 and isinstance(v[0], str) for v in value):
+            return {k: _plain(v) for k, v in value}
+        return [_plain(v) for v in value]
+    return value
+
+
+# ---------------------------------------------------------------------------- escaping
+
+_BIBTEX_SPECIALS = {
+    "\\": r"\textbackslash{}",
+    "{": r"\{",
+    "}": r"\}",
+    "&": r"\&",
+    "%": r"\%",
+    "$": r"\$",
+    "#": r"\#",
+    "_": r"\_",
+    "~": r"\textasciitilde{}",
+    "^": r"\textasciicircum{}",
+}
+
+
+def bibtex_escape(text: str) -> str:
+    """Escape LaTeX specials so any title or name is a balanced, literal BibTeX value."""
+    text = " ".join(text.split())
+    return "".join(_BIBTEX_SPECIALS.get(ch, ch) for ch in text)
+
+
+def bibtex_verbatim(text: str) -> str:
+    """For url/doi/eprint fields (read verbatim by biblatex): keep the text, but braces and
+    backslashes could unbalance the entry, so they are percent-encoded."""
+    text = "".join(text.split())
+    return text.replace("\\", "%5C").replace("{", "%7B").replace("}", "%7D")
+
+
+def bibtex_key(*parts: str) -> str:
+    """A key of ASCII letters, digits and hyphens only: safe in every BibTeX dialect."""
+    ascii_text = unicodedata.normalize("NFKD", "-".join(parts)).encode("ascii", "ignore")
+    key = re.sub(r"[^a-z0-9]+", "-", ascii_text.decode("ascii").lower()).strip("-")
+    return key or "entry"
+
+
+def _bibtex_record(kind: str, key: str, fields: Sequence[tuple[str, str]]) -> str:
+    lines = [f"@{kind}{{{key},"]
+    lines += [f"  {name} = {{{value}}}," for name, value in fields if value]
+    lines.append("}")
+    return "\n".join(lines) + "\n"
+
+
+# ---------------------------------------------------------------------------- citing an entry
+
+
+@dataclass(frozen=True)
+class EntryCitation:
+    """What every format of an entry citation says (one place, so formats cannot disagree)."""
+
+    key: str
+    title: str
+    catalog: str
+    version: str
+    entry_id: str
+    content_hash: str  # short form
+    url: str
+    year: str | None  # year of the latest revision, when history is known
+
+
+def entry_url(meta: CatalogMeta, entry_id: str) -> str:
+    """Permanent URL of an entry page: ``<base_url>entries/<id>/``."""
+    base = meta.base_url if meta.base_url.endswith("/") else meta.base_url + "/"
+    return f"{base}entries/{entry_id}/"
+
+
+def describe_entry(report: EntryReport, meta: CatalogMeta) -> EntryCitation:
+    entry = _require_entry(report)
+    revisions = meta.revisions.get(entry.id, ())
+    year = max((r.date[:4] for r in revisions), default=None)
+    return EntryCitation(
+        key=bibtex_key("almanac", entry.id),
+        title=f"{entry.title} ({entry.chart})",
+        catalog=CATALOG_NAME,
+        version=meta.version,
+        entry_id=entry.id,
+        content_hash=short_hash(report.content_hash),
+        url=entry_url(meta, entry.id),
+        year=year,
+    )
+
+
+def cite_entry(report: EntryReport, meta: CatalogMeta, fmt: str) -> str:
+    """Citation of a verified entry in ``fmt``: bibtex | csl-json | text."""
+    citation = describe_entry(report, meta)
+    return _dispatch(fmt, _entry_bibtex, _entry_csl, _entry_text)(citation)
+
+
+def _require_entry(report: EntryReport) -> Entry:
+    if report.entry is None:
+        raise ValueError(f"{report.file}: the entry could not be loaded, so it cannot be cited")
+    if not report.content_hash:
+        raise ValueError(f"{report.file}: the report carries no content hash")
+    return report.entry
+
+
+def _entry_note(c: EntryCitation) -> str:
+    return f"{c.catalog} entry {c.entry_id}, version {c.version}, content hash {c.content_hash}"
+
+
+def _entry_bibtex(c: EntryCitation) -> str:
+    fields = [
+        ("author", "{" + bibtex_escape(CATALOG_AUTHOR) + "}"),
+        ("title", "{" + bibtex_escape(c.title) + "}"),
+        ("howpublished", bibtex_escape(c.catalog)),
+        ("organization", bibtex_escape(c.catalog)),
+        ("version", bibtex_escape(c.version)),
+        ("year", c.year or ""),
+        ("url", bibtex_verbatim(c.url)),
+        ("note", bibtex_escape(_entry_note(c))),
+    ]
+    header = f"% Add urldate = {{YYYY-MM-DD}} with the day you accessed {c.entry_id}.\n"
+    return header + _bibtex_record("misc", c.key, fields)
+
+
+def _entry_csl(c: EntryCitation) -> str:
+    item: dict[str, object] = {
+        "id": c.key,
+        "type": "entry-encyclopedia",
+        "title": c.title,
+        "author": [{"literal": CATALOG_AUTHOR}],
+        "container-title": c.catalog,
+        "publisher": c.catalog,
+        "version": c.version,
+        "URL": c.url,
+        "note": _entry_note(c),
+    }
+    if c.year:
+        item["issued"] = {"date-parts": [[int(c.year)]]}
+    return _json([item])
+
+
+def _entry_text(c: EntryCitation) -> str:
+    year = f" ({c.year})" if c.year else ""
+    return (
+        f"{CATALOG_AUTHOR}{year}. {c.title}. {c.catalog}, version {c.version}, "
+        f"entry {c.entry_id}, content hash {c.content_hash}. {c.url} "
+        f"(accessed {ACCESS_DATE_PLACEHOLDER}).\n"
+    )
+
+
+def _json(data: object) -> str:
+    return json.dumps(data, ensure_ascii=False, indent=2, sort_keys=True) + "\n"
+
+
+def _dispatch(fmt: str, *writers: Callable[[_T], str]) -> Callable[[_T], str]:
+    """Pick the writer for ``fmt`` (writers are given in the order of ``FORMATS``)."""
+    if fmt not in FORMATS:
+        raise ValueError(f"unknown citation format {fmt!r}; expected one of {', '.join(FORMATS)}")
+    return writers[FORMATS.index(fmt)]
+
+
+# ---------------------------------------------------------------------------- the original source
+
+
+def original_reference(entry: Entry) -> Reference:
+    for reference in entry.references:
+        if reference.role == "original":
+            return reference
+    raise ValueError(f"{entry.file}: entry {entry.id} has no reference with role 'original'")
+
+
+def cite_original(entry: Entry, fmt: str) -> str:
+    """Citation of the publication the entry's metric comes from (role ``original``)."""
+    reference = original_reference(entry)
+    return _dispatch(fmt, _reference_bibtex, _reference_csl, _reference_text)(reference)
+
+
+_VENUE_PATTERN = re.compile(r"^(?P<journal>.*?\D)\s+(?P<volume>\d+)\s*,\s*(?P<pages>[\w.-]+)$")
+
+
+def split_venue(venue: str, year: int | None = None) -> tuple[str, str, str]:
+    """``"Phys. Rev. Lett. 11, 237"`` -> (journal, volume, pages) when it has that shape;
+    otherwise the whole venue is the journal (never guess more than the text says). A number
+    equal to the year is a year-as-volume convention (``Sitzungsber. ... 1916, 189``), kept whole.
+    """
+    match = _VENUE_PATTERN.match(venue.strip())
+    if not match or match["volume"] == str(year):
+        return venue.strip(), "", ""
+    return match["journal"].strip(), match["volume"], match["pages"]
+
+
+def split_name(author: str) -> tuple[str, str]:
+    """``"R. P. Kerr"`` -> ("R. P.", "Kerr"); ``"Kerr, R. P."`` -> ("R. P.", "Kerr")."""
+    if "," in author:
+        family, given = (part.strip() for part in author.split(",", 1))
+        return given, family
+    given, _, family = author.strip().rpartition(" ")
+    return given, family
+
+
+def reference_key(reference: Reference) -> str:
+    family = split_name(reference.authors[0])[1] if reference.authors else "anonymous"
+    words = re.findall(r"[^\W\d_]{4,}", reference.title)
+    return bibtex_key(family, str(reference.year), words[0] if words else "")
+
+
+def _is_book(reference: Reference) -> bool:
+    return bool(reference.isbn) and not reference.doi
+
+
+def _reference_bibtex(r: Reference) -> str:
+    journal, volume, pages = split_venue(r.venue, r.year)
+    book = _is_book(r)
+    fields = [
+        ("author", " and ".join(bibtex_escape(a) for a in r.authors)),
+        ("title", "{" + bibtex_escape(r.title) + "}"),
+        ("publisher" if book else "journal", bibtex_escape(r.venue if book else journal)),
+        ("volume", "" if book else volume),
+        ("pages", "" if book else pages.replace("-", "--")),
+        ("year", str(r.year)),
+        ("doi", bibtex_verbatim(r.doi or "")),
+        ("isbn", bibtex_verbatim(r.isbn or "")),
+        ("eprint", bibtex_verbatim(r.arxiv or "")),
+        ("archiveprefix", "arXiv" if r.arxiv else ""),
+        ("note", bibtex_escape(_unconfirmed_note(r))),
+    ]
+    return _bibtex_record("book" if book else "article", reference_key(r), fields)
+
+
+def _unconfirmed_note(r: Reference) -> str:
+    if not r.unconfirmed:
+        return ""
+    return "Not confirmed against the publication: " + ", ".join(r.unconfirmed)
+
+
+def _reference_csl(r: Reference) -> str:
+    journal, volume, pages = split_venue(r.venue, r.year)
+    book = _is_book(r)
+    item: dict[str, object] = {
+        "id": reference_key(r),
+        "type": "book" if book else "article-journal",
+        "title": r.title,
+        "author": [_csl_name(a) for a in r.authors],
+        "issued": {"date-parts": [[r.year]]},
+    }
+    if book:
+        item["publisher"] = r.venue
+    else:
+        item["container-title"] = journal
+        item.update({k: v for k, v in (("volume", volume), ("page", pages)) if v})
+    optional = {
+        "DOI": r.doi,
+        "ISBN": r.isbn,
+        "URL": _arxiv_url(r.arxiv),
+        "note": _unconfirmed_note(r),
+    }
+    item.update({k: v for k, v in optional.items() if v})
+    return _json([item])
+
+
+def _csl_name(author: str) -> dict[str, str]:
+    given, family = split_name(author)
+    return {"family": family, "given": given} if given else {"literal": family}
+
+
+def _arxiv_url(arxiv: str | None) -> str | None:
+    return f"https://arxiv.org/abs/{arxiv}" if arxiv else None
+
+
+def _reference_text(r: Reference) -> str:
+    authors = ", ".join(r.authors)
+    identifiers = [f"doi:{r.doi}" if r.doi else "", f"arXiv:{r.arxiv}" if r.arxiv else ""]
+    identifiers.append(f"ISBN {r.isbn}" if r.isbn else "")
+    tail = "".join(f" {i}." for i in identifiers if i)
+    note = f" [{_unconfirmed_note(r)}]" if r.unconfirmed else ""
+    return f"{authors} ({r.year}). {r.title}. {r.venue}.{tail}{note}\n"
+
+
+# ---------------------------------------------------------------------------- command line
+
+
+def cite_main(argv: list[str]) -> int:
+    """``python -m generator cite ID [--format F] [--original]`` or ``cite --hash H``.
+
+    Exit status: 0 printed, 2 bad usage or no such entry/hash (the CLI convention).
+    """
+    args = _parser().parse_args(argv)
+    catalog = Path(args.catalog)
+    if args.hash:
+        from .history import lookup_main  # history imports this module; import late
+
+        return lookup_main(Path(args.repo), catalog, args.hash, sys.stdout)
+    if not args.id:
+        print("error: give an entry id, or --hash H", file=sys.stderr)
+        return 2
+    return _print_citation(catalog, args)
+
+
+def _parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="python -m generator cite",
+        description="Print a citation for a catalog entry, or find which entry a hash belongs to.",
+    )
+    parser.add_argument("id", nargs="?", help="entry id, e.g. schwarzschild-curvature")
+    parser.add_argument("--format", choices=FORMATS, default="bibtex")
+    parser.add_argument(
+        "--original", action="store_true", help="cite the publication the metric comes from"
+    )
+    parser.add_argument("--hash", metavar="H", help="find the entry and commit of a content hash")
+    parser.add_argument("--catalog", default="catalog", help="catalog folder (default: catalog)")
+    parser.add_argument("--repo", default=".", help="git repository holding the catalog")
+    parser.add_argument("--base-url", default=DEFAULT_BASE_URL, help="site URL used in citations")
+    return parser
+
+
+def find_entry_file(catalog: Path, entry_id: str) -> Path | None:
+    """The file ``catalog/<family>/<id>.yaml`` if exactly one exists."""
+    matches = sorted(catalog.glob(f"*/{entry_id}.yaml"))
+    return matches[0] if len(matches) == 1 else None
+
+
+def _print_citation(catalog: Path, args: argparse.Namespace) -> int:
+    from .loader import load_entry
+
+    path = find_entry_file(catalog, args.id)
+    if path is None:
+        print(f"error: no entry with id {args.id!r} under {catalog}/", file=sys.stderr)
+        return 2
+    result = load_entry(path)
+    if result.entry is None:
+        for diagnostic in result.diagnostics:
+            print(diagnostic.format_text(), file=sys.stderr)
+        return 2
+    if args.original:
+        sys.stdout.write(cite_original(result.entry, args.format))
+        return 0
+    report = standalone_report(result.entry, str(path), result.diagnostics)
+    sys.stdout.write(cite_entry(report, standalone_meta(args.base_url), args.format))
+    return 0
+
+
+def standalone_report(entry: Entry, file: str, diagnostics: Sequence[object] = ()) -> EntryReport:
+    """A report carrying only what a citation needs (no geometry: citing must be instant)."""
+    return EntryReport(
+        entry=entry,
+        file=file,
+        spacetime=None,
+        geometry=None,
+        classification=None,
+        verdicts=(),
+        diagnostics=tuple(diagnostics),  # type: ignore[arg-type]
+        content_hash=content_hash(entry),
+    )
+
+
+def standalone_meta(base_url: str) -> CatalogMeta:
+    from . import __version__
+
+    return CatalogMeta(
+        version=__version__,
+        generator_version=__version__,
+        sympy_version="",
+        families=(),
+        tags=(),
+        contributing_markdown="",
+        base_url=base_url,
+    )
