@@ -1,0 +1,349 @@
+"""Citations and content hashes (generator/cite.py).
+
+External references: BibTeX output is parsed with bibtexparser 2.1.0 (a general-purpose
+reader); CSL-JSON output is validated with jsonschema against tests/data/csl-data.schema.json,
+a subset of the Citation Style Language input-data schema (csl-data.json), written from memory.
+"""
+
+from __future__ import annotations
+
+import json
+from dataclasses import replace
+from pathlib import Path
+
+import bibtexparser
+import jsonschema
+import pytest
+from _entry_builders import SCHWARZSCHILD_ORIGINAL, math, pos, schwarzschild
+
+from generator.cite import (
+    FORMATS,
+    bibtex_escape,
+    bibtex_key,
+    cite_entry,
+    cite_original,
+    content_hash,
+    short_hash,
+    split_name,
+    split_venue,
+    standalone_report,
+)
+from generator.model import CatalogMeta, Claim, Claims, Matter, Parameter, Reference, Revision
+
+CSL_SCHEMA = json.loads((Path(__file__).parent / "data" / "csl-data.schema.json").read_text())
+BASE_URL = "https://almanac.test/"  # invented for the tests
+
+
+def meta(**overrides: object) -> CatalogMeta:
+    data: dict[str, object] = {
+        "version": "0.3.1",
+        "generator_version": "0.3.1",
+        "sympy_version": "1.14.0",
+        "families": (),
+        "tags": (),
+        "contributing_markdown": "",
+        "base_url": BASE_URL,
+        "revisions": {
+            "schwarzschild-test": (
+                Revision("c1" * 20, "2026-11-20", "ab" * 32, "Add entry"),
+                Revision("c2" * 20, "2027-01-05", "cd" * 32, "Fix kretschmann"),
+            )
+        },
+    }
+    data.update(overrides)
+    return CatalogMeta(**data)  # type: ignore[arg-type]
+
+
+def parse_bibtex(text: str) -> bibtexparser.Library:
+    library = bibtexparser.parse_string(text)
+    assert library.failed_blocks == []
+    return library
+
+
+# ---------------------------------------------------------------------------- content hash
+
+
+def test_hash_is_sha256_hex_and_short_form_is_12_digits() -> None:
+    full = content_hash(schwarzschild())
+    assert len(full) == 64 and int(full, 16) >= 0
+    assert short_hash(full) == full[:12]
+
+
+@pytest.mark.parametrize(
+    "layout_change",
+    [
+        {"title": "A different title", "summary": "Reworded.", "notes": "More prose."},
+        {"tags": ("vacuum",)},
+        {"file": "catalog/elsewhere/schwarzschild-test.yaml"},
+        {"references": ()},
+        {"domain": (math("0 < theta < pi", 40), math("r > 2*M", 41))},  # order of a set
+        {"domain": (math("r>2*M"), math(" 0 <  theta\n< pi "))},  # whitespace, line folding
+        {
+            "line_element": math(
+                "-(1-2*M/r)*dt**2+dr**2/(1-2*M/r)\n + r**2*(dtheta**2 + sin(theta)**2*dphi**2)"
+            )
+        },
+        {"parameters": (Parameter("M", "positive", "the mass, reworded", pos(99)),)},
+    ],
+)
+def test_hash_ignores_layout_and_prose(layout_change: dict[str, object]) -> None:
+    assert content_hash(schwarzschild(**layout_change)) == content_hash(schwarzschild())
+
+
+def test_hash_ignores_claim_provenance_and_order() -> None:
+    base = schwarzschild()
+    reordered = Claims(
+        scalars=(
+            Claim("kretschmann", math("48 * M**2 / r**6"), "original", "eq. (1)", pos(3)),
+            Claim("ricci_scalar", math("0"), None, None, pos(4)),
+        ),
+        petrov_type="D",
+    )
+    assert content_hash(replace(base, claims=reordered)) == content_hash(base)
+
+
+def test_hash_ignores_component_key_order_and_pair_order() -> None:
+    one = schwarzschild(
+        line_element=None,
+        components=((("t", "t"), math("-1")), (("t", "phi"), math("a")), (("r", "r"), math("1"))),
+    )
+    two = schwarzschild(
+        line_element=None,
+        components=((("r", "r"), math("1")), (("phi", "t"), math(" a ")), (("t", "t"), math("-1"))),
+    )
+    assert content_hash(one) == content_hash(two)
+
+
+@pytest.mark.parametrize(
+    "math_change",
+    [
+        {"signature": "+---"},
+        {"coordinates": ("t", "r", "phi", "theta")},
+        {"domain": (math("r > 3*M"), math("0 < theta < pi"))},
+        {"parameters": (Parameter("M", "real", "mass", pos(8)),)},
+        {
+            "line_element": math(
+                "-(1 - 2*M/r)*dt**2 + dr**2/(1 - 2*M/r) + r**2*(dtheta**2 + sin(theta)*dphi**2)"
+            )
+        },
+        {"matter": Matter(kind="lambda-vacuum", cosmological_constant=math("Lambda"))},
+        {
+            "claims": Claims(
+                scalars=(Claim("kretschmann", math("48*M**2/r**5"), None, None, pos(1)),),
+                petrov_type="D",
+            )
+        },
+        {"claims": Claims(scalars=(), petrov_type="I")},
+    ],
+)
+def test_hash_changes_with_the_mathematics(math_change: dict[str, object]) -> None:
+    assert content_hash(schwarzschild(**math_change)) != content_hash(schwarzschild())
+
+
+def test_components_and_line_element_are_different_texts() -> None:
+    as_components = schwarzschild(line_element=None, components=((("t", "t"), math("-1")),))
+    assert content_hash(as_components) != content_hash(schwarzschild())
+
+
+# ---------------------------------------------------------------------------- entry citations
+
+
+def test_bibtex_entry_citation_parses_and_carries_version_hash_and_url() -> None:
+    entry = schwarzschild()
+    report = standalone_report(entry, entry.file)
+    library = parse_bibtex(cite_entry(report, meta(), "bibtex"))
+    (record,) = library.entries
+    fields = {name: field.value for name, field in record.fields_dict.items()}
+    assert record.key == "almanac-schwarzschild-test"
+    assert record.entry_type == "misc"
+    assert fields["title"] == "{Schwarzschild black hole (Schwarzschild coordinates)}"
+    assert fields["version"] == "0.3.1"
+    assert fields["url"] == "https://almanac.test/entries/schwarzschild-test/"
+    assert fields["year"] == "2027"  # latest revision
+    assert short_hash(content_hash(entry)) in fields["note"]
+    assert "urldate" not in fields  # the reader adds the access date
+
+
+def test_entry_citation_without_history_has_no_year() -> None:
+    entry = schwarzschild()
+    text = cite_entry(standalone_report(entry, entry.file), meta(revisions={}), "bibtex")
+    (record,) = parse_bibtex(text).entries
+    assert "year" not in record.fields_dict
+
+
+def test_base_url_without_trailing_slash_still_gives_a_clean_url() -> None:
+    entry = schwarzschild()
+    report = standalone_report(entry, entry.file)
+    text = cite_entry(report, meta(base_url="https://almanac.test/catalog"), "text")
+    assert "https://almanac.test/catalog/entries/schwarzschild-test/ " in text
+
+
+def test_bibtex_escapes_every_latex_special() -> None:
+    title = r"Flux & 50% of $M_1$ {#2} ~x^2 \o"
+    entry = schwarzschild(title=title, id="odd-title")
+    library = parse_bibtex(cite_entry(standalone_report(entry, entry.file), meta(), "bibtex"))
+    (record,) = library.entries
+    expected = (
+        r"{Flux \& 50\% of \$M\_1\$ \{\#2\} \textasciitilde{}x\textasciicircum{}2 "
+        r"\textbackslash{}o (Schwarzschild coordinates)}"
+    )
+    assert record.fields_dict["title"].value == expected
+
+
+def test_bibtex_escape_collapses_newlines() -> None:
+    assert bibtex_escape("two\n  lines") == "two lines"
+
+
+@pytest.mark.parametrize(
+    ("parts", "key"),
+    [
+        (("almanac", "kerr-newman"), "almanac-kerr-newman"),
+        (("Schwarzschild", "1916", "Über"), "schwarzschild-1916-uber"),
+        (("Gödel", "1949", "{evil},key"), "godel-1949-evil-key"),
+        (("%", "@"), "entry"),
+    ],
+)
+def test_bibtex_keys_are_safe_and_deterministic(parts: tuple[str, ...], key: str) -> None:
+    assert bibtex_key(*parts) == key
+
+
+def test_csl_json_entry_citation_validates_against_the_csl_schema() -> None:
+    entry = schwarzschild()
+    data = json.loads(cite_entry(standalone_report(entry, entry.file), meta(), "csl-json"))
+    jsonschema.validate(data, CSL_SCHEMA)
+    (item,) = data
+    assert item["version"] == "0.3.1"
+    assert item["URL"] == "https://almanac.test/entries/schwarzschild-test/"
+    assert "accessed" not in item
+
+
+def test_csl_schema_fixture_rejects_a_malformed_item() -> None:
+    """The fixture must be able to fail: an unknown key and a bad type are both refused."""
+    with pytest.raises(jsonschema.ValidationError):
+        jsonschema.validate([{"id": "x", "type": "web-page"}], CSL_SCHEMA)
+    with pytest.raises(jsonschema.ValidationError):
+        jsonschema.validate([{"id": "x", "type": "webpage", "hash": "1"}], CSL_SCHEMA)
+
+
+def test_text_entry_citation_leaves_the_access_date_to_the_reader() -> None:
+    entry = schwarzschild()
+    text = cite_entry(standalone_report(entry, entry.file), meta(), "text")
+    assert text == (
+        "Metric Almanac contributors (2027). Schwarzschild black hole (Schwarzschild "
+        "coordinates). Metric Almanac, version 0.3.1, entry schwarzschild-test, content hash "
+        f"{short_hash(content_hash(entry))}. https://almanac.test/entries/schwarzschild-test/ "
+        "(accessed <date>).\n"
+    )
+
+
+@pytest.mark.parametrize("fmt", FORMATS)
+def test_entry_citation_is_deterministic(fmt: str) -> None:
+    entry = schwarzschild()
+    report = standalone_report(entry, entry.file)
+    assert cite_entry(report, meta(), fmt) == cite_entry(report, meta(), fmt)
+
+
+def test_unknown_format_and_unloaded_entry_are_refused() -> None:
+    entry = schwarzschild()
+    report = standalone_report(entry, entry.file)
+    with pytest.raises(ValueError, match="unknown citation format"):
+        cite_entry(report, meta(), "ris")
+    with pytest.raises(ValueError, match="could not be loaded"):
+        cite_entry(replace(report, entry=None), meta(), "text")
+
+
+# ---------------------------------------------------------------------------- original source
+
+# R. P. Kerr, "Gravitational field of a spinning mass as an example of algebraically special
+# metrics", Phys. Rev. Lett. 11, 237 (1963), doi:10.1103/PhysRevLett.11.237 (common practice).
+KERR = Reference(
+    role="original",
+    authors=("R. P. Kerr",),
+    title="Gravitational field of a spinning mass as an example of algebraically special metrics",
+    venue="Phys. Rev. Lett. 11, 237",
+    year=1963,
+    doi="10.1103/PhysRevLett.11.237",
+    arxiv=None,
+    isbn=None,
+    locator="eq. (1)",
+    unconfirmed=(),
+    pos=pos(30),
+)
+
+
+def test_original_bibtex_splits_a_journal_venue() -> None:
+    entry = schwarzschild(references=(KERR,))
+    (record,) = parse_bibtex(cite_original(entry, "bibtex")).entries
+    fields = {name: field.value for name, field in record.fields_dict.items()}
+    assert (record.entry_type, record.key) == ("article", "kerr-1963-gravitational")
+    assert fields["journal"] == "Phys. Rev. Lett."
+    assert (fields["volume"], fields["pages"], fields["year"]) == ("11", "237", "1963")
+    assert fields["doi"] == "10.1103/PhysRevLett.11.237"
+    assert fields["author"] == "R. P. Kerr"
+
+
+def test_original_keeps_a_year_as_volume_venue_whole_and_flags_unconfirmed_fields() -> None:
+    (record,) = parse_bibtex(cite_original(schwarzschild(), "bibtex")).entries
+    fields = {name: field.value for name, field in record.fields_dict.items()}
+    assert fields["journal"] == "Sitzungsber. Preuss. Akad. Wiss. Berlin 1916, 189"
+    assert "volume" not in fields
+    assert fields["eprint"] == "physics/9905030"
+    assert fields["note"] == "Not confirmed against the publication: venue"
+
+
+def test_original_book_uses_publisher() -> None:
+    # Invented book for the test: only the shape matters here.
+    book = replace(KERR, doi=None, isbn="978-0-00-000000-2", venue="Almanac Press, Harbourtown")
+    (record,) = parse_bibtex(cite_original(schwarzschild(references=(book,)), "bibtex")).entries
+    assert record.entry_type == "book"
+    assert record.fields_dict["publisher"].value == "Almanac Press, Harbourtown"
+    assert "journal" not in record.fields_dict
+
+
+def test_original_csl_json_validates_and_splits_names() -> None:
+    data = json.loads(cite_original(schwarzschild(references=(KERR,)), "csl-json"))
+    jsonschema.validate(data, CSL_SCHEMA)
+    (item,) = data
+    assert item["author"] == [{"family": "Kerr", "given": "R. P."}]
+    assert item["DOI"] == "10.1103/PhysRevLett.11.237"
+    assert (item["container-title"], item["volume"], item["page"]) == (
+        "Phys. Rev. Lett.",
+        "11",
+        "237",
+    )
+    assert item["issued"] == {"date-parts": [[1963]]}
+
+
+def test_original_text() -> None:
+    assert cite_original(schwarzschild(references=(KERR,)), "text") == (
+        "R. P. Kerr (1963). Gravitational field of a spinning mass as an example of "
+        "algebraically special metrics. Phys. Rev. Lett. 11, 237. "
+        "doi:10.1103/PhysRevLett.11.237.\n"
+    )
+
+
+def test_entry_without_original_reference_is_refused() -> None:
+    review = replace(SCHWARZSCHILD_ORIGINAL, role="review")
+    with pytest.raises(ValueError, match="no reference with role 'original'"):
+        cite_original(schwarzschild(references=(review,)), "text")
+
+
+@pytest.mark.parametrize(
+    ("name", "split"),
+    [
+        ("R. P. Kerr", ("R. P.", "Kerr")),
+        ("Kerr, R. P.", ("R. P.", "Kerr")),
+        ("Euclid", ("", "Euclid")),
+    ],
+)
+def test_split_name(name: str, split: tuple[str, str]) -> None:
+    assert split_name(name) == split
+
+
+def test_split_venue_never_guesses() -> None:
+    assert split_venue("Ann. Phys. (Leipzig) 355, 106-120") == (
+        "Ann. Phys. (Leipzig)",
+        "355",
+        "106-120",
+    )
+    assert split_venue("Lecture notes") == ("Lecture notes", "", "")
