@@ -80,6 +80,7 @@ class Matter:
     velocity: tuple[tuple[str, MathText], ...] = ()  # u^a, upper index
     null_direction: tuple[tuple[str, MathText], ...] = ()  # k^a, upper index
     pos: SourcePos | None = None
+    principal_pressures: tuple[tuple[str, MathText], ...] = ()  # anisotropic fluid: T^i_i
 
 
 @dataclass(frozen=True)
@@ -99,6 +100,8 @@ class Claims:
     energy_conditions: tuple[tuple[str, str], ...] = ()  # (condition, holds|violated|undecided)
     killing_vectors: tuple[VectorClaim, ...] = ()
     pos: SourcePos | None = None
+    # (claim name, source, locator) for petrov_type and hawking_ellis_type
+    label_sources: tuple[tuple[str, str | None, str | None], ...] = ()
 
 
 @dataclass(frozen=True)

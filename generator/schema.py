@@ -1,0 +1,327 @@
+"""The entry format, declared once.
+
+Every key of a catalog entry is declared here with a one-line explanation. The loader validates
+YAML against these declarations, `jsonschema_export` turns them into the JSON Schema that
+editors use, and the contributor documentation lists them from the same place, so the three can
+never disagree.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Literal
+
+Kind = Literal[
+    "text",  # a non-empty string
+    "line",  # a non-empty one-line string
+    "markdown",  # Markdown text (sanitised when rendered)
+    "integer",
+    "date",  # YYYY-MM-DD
+    "math",  # a math string (or a bare number) in the whitelisted grammar
+    "choice",  # one of `choices`
+    "list",  # a sequence of `item`
+    "record",  # a mapping with the fixed keys `fields`
+    "dict",  # a mapping from free keys matching `key_pattern` to `item`
+    "claim",  # a `math` value, or a record {value, source, locator}
+    "label-claim",  # a `choice` value, or a record {value, source, locator}
+]
+
+
+@dataclass(frozen=True)
+class Field:
+    """One key of the entry format (or the shape of a list item / dict value)."""
+
+    name: str
+    doc: str
+    kind: Kind
+    required: bool = False
+    pattern: str | None = None
+    choices: tuple[str, ...] = ()
+    fields: tuple[Field, ...] = ()
+    item: Field | None = None
+    key_pattern: str | None = None
+    min_items: int = 0
+
+    def field(self, name: str) -> Field | None:
+        return next((f for f in self.fields if f.name == name), None)
+
+
+ID_PATTERN = r"^[a-z0-9]+(-[a-z0-9]+)*$"
+NAME_PATTERN = r"^[A-Za-z][A-Za-z0-9_]*$"
+DOI_PATTERN = r"^10\.\d{4,9}/\S+$"
+ARXIV_PATTERN = r"^(\d{4}\.\d{4,5}|[a-z][a-z-]*(\.[A-Z]{2})?/\d{7})(v\d+)?$"
+ISBN_PATTERN = r"^(97[89][- ]?)?\d{1,5}[- ]?\d{1,7}[- ]?\d{1,7}[- ]?[\dX]$"
+SIGNATURE_PATTERN = r"^[+-]{2,11}$"
+
+ASSUMPTIONS = ("positive", "negative", "nonnegative", "nonpositive", "nonzero", "real")
+MATTER_KINDS = (
+    "vacuum",
+    "lambda-vacuum",
+    "electrovacuum",
+    "perfect-fluid",
+    "null-dust",
+    "anisotropic-fluid",
+    "unspecified",
+)
+PETROV_TYPES = ("I", "II", "III", "D", "N", "O")
+HAWKING_ELLIS_TYPES = ("I", "II", "III", "IV")
+CONDITION_STATES = ("holds", "violated", "undecided")
+ENERGY_CONDITIONS = ("null", "weak", "strong", "dominant")
+REFERENCE_ROLES = ("original", "claims", "textbook", "review", "erratum")
+REFERENCE_FIELDS = ("authors", "title", "venue", "year", "doi", "arxiv", "isbn", "locator")
+SCALAR_CLAIMS = ("ricci_scalar", "kretschmann", "ricci_squared", "weyl_squared")
+COMPUTED_HERE = "computed-here"
+
+
+def _vector(name: str, doc: str) -> Field:
+    return Field(
+        name, doc, "dict", key_pattern=NAME_PATTERN, item=Field("component", "", "math")
+    )
+
+
+def _claim_record(value: Field) -> tuple[Field, ...]:
+    return (
+        value,
+        Field(
+            "source",
+            "Role of the reference this value was taken from, or computed-here.",
+            "line",
+        ),
+        Field("locator", "Where in that reference (equation, page).", "line"),
+    )
+
+
+def _scalar_claim(name: str, doc: str) -> Field:
+    value = Field("value", "The claimed expression.", "math", required=True)
+    return Field(name, doc, "claim", fields=_claim_record(value))
+
+
+PARAMETER = Field(
+    "parameter",
+    "A constant of the solution.",
+    "record",
+    fields=(
+        Field(
+            "assume",
+            "What is known about it; used to simplify and to pick sample points.",
+            "choice",
+            required=True,
+            choices=ASSUMPTIONS,
+        ),
+        Field("meaning", "What it stands for physically.", "line", required=True),
+    ),
+)
+
+FUNCTION = Field(
+    "function",
+    "A free function of some coordinates, written e.g. a(t) in math strings.",
+    "record",
+    fields=(
+        Field(
+            "of",
+            "The coordinates it depends on.",
+            "list",
+            required=True,
+            item=Field("coordinate", "", "line", pattern=NAME_PATTERN),
+            min_items=1,
+        ),
+        Field("assume", "What is known about its values.", "choice", choices=ASSUMPTIONS),
+        Field("meaning", "What it stands for physically.", "line", required=True),
+    ),
+)
+
+METRIC = Field(
+    "metric",
+    "The metric: exactly one of line_element or components.",
+    "record",
+    required=True,
+    fields=(
+        Field(
+            "line_element",
+            "ds² as a quadratic form in the coordinate differentials (dt, dr, ...).",
+            "math",
+        ),
+        Field(
+            "components",
+            "Lower-index components g_ab keyed 'a b' (coordinate names); each pair once.",
+            "dict",
+            key_pattern=r"^[A-Za-z][A-Za-z0-9_]* [A-Za-z][A-Za-z0-9_]*$",
+            item=Field("component", "", "math"),
+        ),
+    ),
+)
+
+MATTER = Field(
+    "matter",
+    "What the entry claims supports the geometry; verified against the field equations.",
+    "record",
+    required=True,
+    fields=(
+        Field("kind", "The kind of source.", "choice", required=True, choices=MATTER_KINDS),
+        Field("cosmological_constant", "Λ in G_ab + Λ g_ab = 8π T_ab.", "math"),
+        _vector("potential", "Electrovacuum: the potential A_a, lower index, by coordinate."),
+        Field("density", "Perfect fluid, null dust, anisotropic fluid: the energy density.", "math"),
+        Field("pressure", "Perfect fluid: the isotropic pressure.", "math"),
+        _vector("velocity", "Perfect fluid: the four-velocity u^a, upper index, by coordinate."),
+        _vector("null_direction", "Null dust: the null vector k^a, upper index, by coordinate."),
+        _vector(
+            "principal_pressures",
+            "Anisotropic fluid: T^i_i by coordinate, for T^a_b diagonal in this chart.",
+        ),
+    ),
+)
+
+CLAIMS = Field(
+    "claims",
+    "Values stated in the literature; every one is verified.",
+    "record",
+    fields=(
+        _scalar_claim("ricci_scalar", "The Ricci scalar R."),
+        _scalar_claim("kretschmann", "The Kretschmann scalar R_abcd R^abcd."),
+        _scalar_claim("ricci_squared", "The square of the Ricci tensor R_ab R^ab."),
+        _scalar_claim("weyl_squared", "The square of the Weyl tensor C_abcd C^abcd."),
+        Field(
+            "petrov_type",
+            "The Petrov type (4D Lorentzian only).",
+            "label-claim",
+            choices=PETROV_TYPES,
+            fields=_claim_record(
+                Field("value", "The claimed type.", "choice", required=True, choices=PETROV_TYPES)
+            ),
+        ),
+        Field(
+            "hawking_ellis_type",
+            "The Hawking–Ellis (Segre) type of T^a_b (non-vacuum only).",
+            "label-claim",
+            choices=HAWKING_ELLIS_TYPES,
+            fields=_claim_record(
+                Field(
+                    "value",
+                    "The claimed type.",
+                    "choice",
+                    required=True,
+                    choices=HAWKING_ELLIS_TYPES,
+                )
+            ),
+        ),
+        Field(
+            "energy_conditions",
+            "Each of null, weak, strong, dominant: holds, violated or undecided.",
+            "record",
+            fields=tuple(
+                Field(name, f"The {name} energy condition.", "choice", choices=CONDITION_STATES)
+                for name in ENERGY_CONDITIONS
+            ),
+        ),
+        Field(
+            "killing_vectors",
+            "Killing vectors, contravariant components by coordinate.",
+            "list",
+            item=_vector("vector", "A Killing vector."),
+        ),
+    ),
+)
+
+REFERENCE = Field(
+    "reference",
+    "A publication.",
+    "record",
+    fields=(
+        Field("role", "Why it is cited.", "choice", required=True, choices=REFERENCE_ROLES),
+        Field(
+            "authors",
+            "Authors as printed.",
+            "list",
+            required=True,
+            item=Field("author", "", "line"),
+            min_items=1,
+        ),
+        Field("title", "Title of the work.", "line", required=True),
+        Field("venue", "Journal with volume and page, or publisher.", "line", required=True),
+        Field("year", "Year of publication.", "integer", required=True),
+        Field("doi", "Digital Object Identifier, e.g. 10.1103/PhysRevLett.11.237.", "line",
+              pattern=DOI_PATTERN),
+        Field("arxiv", "arXiv identifier, e.g. gr-qc/0506126 or 1104.0001.", "line",
+              pattern=ARXIV_PATTERN),
+        Field("isbn", "ISBN of a book.", "line", pattern=ISBN_PATTERN),
+        Field("locator", "Where in the work (equation, section, page).", "line"),
+        Field(
+            "unconfirmed",
+            "Fields recalled but not confirmed against the publication; shown as such.",
+            "list",
+            item=Field("field", "", "choice", choices=REFERENCE_FIELDS),
+        ),
+    ),
+)
+
+ENTRY = Field(
+    "entry",
+    "One catalog entry: catalog/<family>/<id>.yaml.",
+    "record",
+    fields=(
+        Field("id", "Stable identifier; equals the file stem; never reused.", "line",
+              required=True, pattern=ID_PATTERN),
+        Field("title", "Name of the spacetime.", "line", required=True),
+        Field("chart", "Which coordinate chart this entry is written in.", "line", required=True),
+        Field("summary", "One line saying what it is.", "line", required=True),
+        Field("notes", "Physical interpretation, ranges, caveats (Markdown).", "markdown"),
+        Field("tags", "Tags from catalog/tags.yaml.", "list", item=Field("tag", "", "line",
+              pattern=ID_PATTERN)),
+        Field("coordinates", "Coordinate names in index order.", "list", required=True,
+              item=Field("coordinate", "", "line", pattern=NAME_PATTERN), min_items=2),
+        Field("signature", 'Signature, e.g. "-+++"; checked at sample points.', "line",
+              required=True, pattern=SIGNATURE_PATTERN),
+        Field("parameters", "Constants of the solution.", "dict", key_pattern=NAME_PATTERN,
+              item=PARAMETER),
+        Field("functions", "Free functions of coordinates.", "dict", key_pattern=NAME_PATTERN,
+              item=FUNCTION),
+        Field("domain", "Inequalities that pick the region where sample points are taken.",
+              "list", item=Field("inequality", "", "math")),
+        METRIC,
+        MATTER,
+        CLAIMS,
+        Field("references", "Publications; one with role 'original' is required.", "list",
+              required=True, item=REFERENCE, min_items=1),
+        Field(
+            "curation",
+            "Who added the entry and when.",
+            "record",
+            required=True,
+            fields=(
+                Field("added", "Date the entry was added (YYYY-MM-DD).", "date", required=True),
+                Field("by", "Who added it.", "line", required=True),
+            ),
+        ),
+        Field(
+            "related",
+            "Other entries for the same spacetime (charts, limits), with a verified map.",
+            "list",
+            item=Field(
+                "related chart",
+                "",
+                "record",
+                fields=(
+                    Field("entry", "Id of the other entry.", "line", required=True,
+                          pattern=ID_PATTERN),
+                    _vector(
+                        "map",
+                        "This entry's coordinates as functions of the other entry's.",
+                    ),
+                ),
+            ),
+        ),
+    ),
+)
+
+
+def walk(field: Field, prefix: str = "") -> list[tuple[str, Field]]:
+    """All declared keys as (dotted path, field) pairs, for documentation and tests."""
+    out: list[tuple[str, Field]] = []
+    for child in field.fields:
+        path = f"{prefix}{child.name}"
+        out.append((path, child))
+        if child.kind == "record":
+            out.extend(walk(child, path + "."))
+        elif child.item is not None and child.item.kind == "record":
+            out.extend(walk(child.item, path + "[]."))
+    return out
