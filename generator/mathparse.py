@@ -317,7 +317,7 @@ def _number(token: Token) -> sympy.Expr:
             f"number literal has {digits} digits (limit {MAX_DIGITS})", token.offset
         )
     if "e" in token.text.lower():
-        mantissa, _, exponent = token.text.lower().partition("e")
+        exponent = token.text.lower().partition("e")[2]
         if abs(int(exponent)) > MAX_DIGITS:
             raise MathSyntaxError("number exponent too large", token.offset)
     value = Fraction(token.text)  # exact: 0.1 is 1/10, never a float

@@ -160,7 +160,7 @@ MATTER = Field(
         Field("kind", "The kind of source.", "choice", required=True, choices=MATTER_KINDS),
         Field("cosmological_constant", "Λ in G_ab + Λ g_ab = 8π T_ab.", "math"),
         _vector("potential", "Electrovacuum: the potential A_a, lower index, by coordinate."),
-        Field("density", "Perfect fluid, null dust, anisotropic fluid: the energy density.", "math"),
+        Field("density", "Fluids and null dust: the energy density.", "math"),
         Field("pressure", "Perfect fluid: the isotropic pressure.", "math"),
         _vector("velocity", "Perfect fluid: the four-velocity u^a, upper index, by coordinate."),
         _vector("null_direction", "Null dust: the null vector k^a, upper index, by coordinate."),
