@@ -1,0 +1,462 @@
+"""Stage "compute geometry": curvature of a spacetime in exact arithmetic.
+
+The main path works in the rational-function field of ``algebra`` (python-flint polynomials with
+gcd-reduced fractions), which is several hundred times faster than simplifying SymPy trees and
+decides zero components exactly. Metrics that do not fit the field (floating-point numbers,
+free functions of non-coordinates, ...) go through the same formulas in SymPy arithmetic, with
+``cancel`` while summing; ``Geometry.engine`` records which path ran.
+
+Conventions (catalog-wide): R^a_bcd = d_c G^a_db - d_d G^a_cb + G^a_ce G^e_db - G^a_de G^e_cb,
+R_bd = R^a_bad. With Gamma_abc = g_ad G^d_bc this is
+R_abcd = d_c Gamma_abd - d_d Gamma_abc + Gamma_fad G^f_bc - Gamma_fac G^f_bd,
+which needs no lowering of the Riemann tensor.
+"""
+
+from __future__ import annotations
+
+import time
+from collections.abc import Callable
+from dataclasses import dataclass
+from typing import Any, Protocol
+
+import sympy
+
+from .algebra import Frac, FieldRequest, NotInField, RationalField, build_field, pairs
+from .errors import BudgetExceeded
+from .model import Geometry, Index, Spacetime
+
+
+@dataclass(frozen=True)
+class Limits:
+    """Per-entry budget; exceeding it raises errors.BudgetExceeded(stage, limit)."""
+
+    seconds: float = 120.0
+    max_terms: int = 200_000  # size bound on any intermediate numerator
+
+
+class Arithmetic(Protocol):
+    """The operations the curvature formulas need; one implementation per engine."""
+
+    def zero(self) -> Any: ...
+    def one(self) -> Any: ...
+    def sum(self, terms: list[Any]) -> Any: ...
+    def product(self, x: Any, y: Any) -> Any: ...
+    def scale(self, x: Any, q: sympy.Rational) -> Any: ...
+    def inv(self, x: Any) -> Any: ...
+    def diff(self, x: Any, i: int) -> Any: ...
+    def is_zero(self, x: Any) -> bool: ...
+    def size(self, x: Any) -> int: ...
+    def display(self, x: Any) -> sympy.Expr: ...
+
+
+class FieldArithmetic:
+    """Arithmetic in the flint rational-function field."""
+
+    def __init__(self, field: RationalField) -> None:
+        self.field = field
+
+    def zero(self) -> Frac:
+        return self.field.zero()
+
+    def one(self) -> Frac:
+        return self.field.one()
+
+    def sum(self, terms: list[Frac]) -> Frac:
+        return self.field.sum(terms)
+
+    def product(self, x: Frac, y: Frac) -> Frac:
+        """Unnormalised product: ``sum`` normalises once for all its terms."""
+        if x.is_zero() or y.is_zero():
+            return self.field.zero()
+        return Frac(x.num * y.num, x.den * y.den)
+
+    def scale(self, x: Frac, q: sympy.Rational) -> Frac:
+        return self.field.scale(x, q)
+
+    def inv(self, x: Frac) -> Frac:
+        return self.field.inv(x)
+
+    def diff(self, x: Frac, i: int) -> Frac:
+        return self.field.diff(x, i)
+
+    def is_zero(self, x: Frac) -> bool:
+        return x.is_zero()
+
+    def size(self, x: Frac) -> int:
+        return x.size()
+
+    def display(self, x: Frac) -> sympy.Expr:
+        return self.field.display(x)
+
+
+class SympyArithmetic:
+    """Careful SymPy arithmetic (cancel while summing) for metrics outside the field."""
+
+    def __init__(self, spacetime: Spacetime, zero_test: Callable[[sympy.Expr], bool]) -> None:
+        self.coordinates = spacetime.coordinates
+        self.zero_test = zero_test
+
+    def zero(self) -> sympy.Expr:
+        return sympy.Integer(0)
+
+    def one(self) -> sympy.Expr:
+        return sympy.Integer(1)
+
+    def sum(self, terms: list[sympy.Expr]) -> sympy.Expr:
+        value = sympy.cancel(sympy.together(sympy.Add(*terms)))
+        if value != 0 and self.zero_test(value):
+            return sympy.Integer(0)
+        return value
+
+    def product(self, x: sympy.Expr, y: sympy.Expr) -> sympy.Expr:
+        return x * y
+
+    def scale(self, x: sympy.Expr, q: sympy.Rational) -> sympy.Expr:
+        return x * q
+
+    def inv(self, x: sympy.Expr) -> sympy.Expr:
+        return sympy.cancel(1 / x)
+
+    def diff(self, x: sympy.Expr, i: int) -> sympy.Expr:
+        return sympy.cancel(sympy.diff(x, self.coordinates[i]))
+
+    def is_zero(self, x: sympy.Expr) -> bool:
+        return x == 0
+
+    def size(self, x: sympy.Expr) -> int:
+        return sympy.count_ops(x)
+
+    def display(self, x: sympy.Expr) -> sympy.Expr:
+        return sympy.factor(x)
+
+
+# ====================================================================== budget
+
+
+@dataclass(frozen=True)
+class Budget:
+    """Deadline and size cap for one entry, checked between components."""
+
+    deadline: float
+    limits: Limits
+
+    @classmethod
+    def start(cls, limits: Limits) -> Budget:
+        return cls(time.monotonic() + limits.seconds, limits)
+
+    def check(self, stage: str, arithmetic: Arithmetic, values: list[Any] = ()) -> None:
+        if time.monotonic() > self.deadline:
+            raise BudgetExceeded(stage, f"time limit of {self.limits.seconds:g} s exceeded")
+        for v in values:
+            if arithmetic.size(v) > self.limits.max_terms:
+                raise BudgetExceeded(
+                    stage, f"an intermediate expression exceeded {self.limits.max_terms} terms"
+                )
+
+
+# ====================================================================== entry point
+
+
+def compute_geometry(spacetime: Spacetime, limits: Limits | None = None) -> Geometry:
+    """Curvature of ``spacetime``: exact rational-function engine, SymPy when it cannot."""
+    started = time.monotonic()
+    budget = Budget.start(limits or Limits())
+    try:
+        arithmetic, metric = field_setup(spacetime, derivative_depth=2)
+        engine = "rational-function"
+    except NotInField:
+        arithmetic, metric = sympy_setup(spacetime)
+        engine = "sympy"
+    try:
+        tensors = curvature(arithmetic, metric, budget)
+    except NotInField:
+        arithmetic, metric = sympy_setup(spacetime)
+        engine = "sympy"
+        tensors = curvature(arithmetic, metric, budget)
+    budget.check("display forms", arithmetic)
+    return to_geometry(spacetime, tensors, arithmetic, engine, time.monotonic() - started)
+
+
+def field_setup(spacetime: Spacetime, derivative_depth: int) -> tuple[FieldArithmetic, list]:
+    """Build the field of the metric components, closed under ``derivative_depth`` derivatives."""
+    n = spacetime.dimension
+    entries = tuple(spacetime.metric[a, b] for a in range(n) for b in range(n))
+    request = FieldRequest(
+        spacetime.coordinates, spacetime.parameters, spacetime.functions, entries, derivative_depth
+    )
+    field, values = build_field(request)
+    return FieldArithmetic(field), [values[a * n : (a + 1) * n] for a in range(n)]
+
+
+def sympy_setup(spacetime: Spacetime) -> tuple[SympyArithmetic, list]:
+    from .equality import sampled_zero  # equality builds on this module's field; import late
+
+    def zero_test(expr: sympy.Expr) -> bool:
+        return sampled_zero(expr, spacetime)
+
+    n = spacetime.dimension
+    metric = [[sympy.cancel(spacetime.metric[a, b]) for b in range(n)] for a in range(n)]
+    return SympyArithmetic(spacetime, zero_test), metric
+
+
+# ====================================================================== the formulas
+
+
+@dataclass(frozen=True)
+class Tensors:
+    """Engine-level results (Frac or SymPy values), before conversion to display forms."""
+
+    inverse: list[list[Any]]
+    christoffel: dict[Index, Any]
+    riemann: dict[Index, Any]
+    ricci: list[list[Any]]
+    ricci_scalar: Any
+    einstein: list[list[Any]]
+    einstein_mixed: list[list[Any]]
+    weyl: dict[Index, Any] | None
+    kretschmann: Any
+    ricci_squared: Any
+    weyl_squared: Any
+
+
+def curvature(ar: Arithmetic, g: list[list[Any]], budget: Budget) -> Tensors:
+    """All curvature quantities, stage by stage, checking the budget between components."""
+    n = len(g)
+    ginv = inverse_matrix(ar, g, budget)
+    first, second = christoffel_symbols(ar, g, ginv, budget)
+    riemann = riemann_lower(ar, first, second, n, budget)
+    ricci, mixed, scalar = ricci_parts(ar, riemann, ginv, n, budget)
+    half_r = ar.scale(scalar, sympy.Rational(1, 2))
+    einstein = _einstein(ar, ricci, g, half_r, n)
+    einstein_mixed = _einstein_mixed(ar, mixed, half_r, n)
+    budget.check("invariants", ar)
+    ricci_squared = ar.sum([ar.product(mixed[a][b], mixed[b][a]) for a in range(n) for b in range(n)])
+    bivector = bivector_inverse(ar, ginv, n)
+    kretschmann = pair_square(ar, riemann, bivector, n)
+    budget.check("invariants", ar, [kretschmann, ricci_squared])
+    weyl = weyl_squared = None
+    if n >= 4:
+        weyl = weyl_lower(ar, riemann, ricci, scalar, g, n, budget)
+        weyl_squared = pair_square(ar, weyl, bivector, n)
+        budget.check("Weyl tensor", ar, [weyl_squared])
+    christoffel = {
+        (a, b, c): second[a][b][c]
+        for a in range(n)
+        for b in range(n)
+        for c in range(b, n)
+        if not ar.is_zero(second[a][b][c])
+    }
+    return Tensors(ginv, christoffel, riemann, ricci, scalar, einstein, einstein_mixed, weyl,
+                   kretschmann, ricci_squared, weyl_squared)
+
+
+def _einstein(ar: Arithmetic, ricci: list, g: list, half_r: Any, n: int) -> list[list[Any]]:
+    minus_half_r = ar.scale(half_r, sympy.Integer(-1))
+    return [[ar.sum([ricci[a][b], ar.product(minus_half_r, g[a][b])]) for b in range(n)]
+            for a in range(n)]
+
+
+def _einstein_mixed(ar: Arithmetic, mixed: list, half_r: Any, n: int) -> list[list[Any]]:
+    minus_half_r = ar.scale(half_r, sympy.Integer(-1))
+    return [[ar.sum([mixed[a][b], minus_half_r]) if a == b else mixed[a][b] for b in range(n)]
+            for a in range(n)]
+
+
+def inverse_matrix(ar: Arithmetic, g: list[list[Any]], budget: Budget) -> list[list[Any]]:
+    """Gauss-Jordan over the field (metrics are sparse, so this stays small)."""
+    n = len(g)
+    rows = [list(g[a]) + [ar.one() if a == b else ar.zero() for b in range(n)] for a in range(n)]
+    for col in range(n):
+        pivot = next((r for r in range(col, n) if not ar.is_zero(rows[r][col])), None)
+        if pivot is None:
+            raise BudgetExceeded("inverse metric", "the metric is degenerate (determinant 0)")
+        rows[col], rows[pivot] = rows[pivot], rows[col]
+        inv_p = ar.inv(rows[col][col])
+        rows[col] = [ar.sum([ar.product(inv_p, x)]) for x in rows[col]]
+        for r in range(n):
+            if r != col and not ar.is_zero(rows[r][col]):
+                factor = ar.scale(rows[r][col], sympy.Integer(-1))
+                rows[r] = [
+                    ar.sum([x, ar.product(factor, y)]) for x, y in zip(rows[r], rows[col], strict=True)
+                ]
+        budget.check("inverse metric", ar, rows[col])
+    return [row[n:] for row in rows]
+
+
+def christoffel_symbols(
+    ar: Arithmetic, g: list[list[Any]], ginv: list[list[Any]], budget: Budget
+) -> tuple[list, list]:
+    """First kind Gamma_abc = (d_b g_ac + d_c g_ab - d_a g_bc)/2 and second kind G^a_bc."""
+    n = len(g)
+    dg = [[[ar.diff(g[a][b], c) for b in range(n)] for a in range(n)] for c in range(n)]
+    half = sympy.Rational(1, 2)
+    first = [[[None] * n for _ in range(n)] for _ in range(n)]
+    for a in range(n):
+        for b in range(n):
+            for c in range(b, n):
+                value = ar.scale(
+                    ar.sum([dg[b][a][c], dg[c][a][b], ar.scale(dg[a][b][c], sympy.Integer(-1))]),
+                    half,
+                )
+                first[a][b][c] = first[a][c][b] = value
+    budget.check("Christoffel symbols", ar)
+    second = [[[None] * n for _ in range(n)] for _ in range(n)]
+    for a in range(n):
+        for b in range(n):
+            for c in range(b, n):
+                value = ar.sum([ar.product(ginv[a][d], first[d][b][c]) for d in range(n)])
+                second[a][b][c] = second[a][c][b] = value
+        budget.check("Christoffel symbols", ar, [second[a][b][c] for b in range(n) for c in range(n)])
+    return first, second
+
+
+def riemann_lower(ar: Arithmetic, first: list, second: list, n: int, budget: Budget) -> dict:
+    """Independent R_abcd (a<b, c<d, (a,b)<=(c,d)); zero ones are dropped."""
+    cache: dict[tuple[int, int, int, int], Any] = {}
+
+    def d_first(c: int, a: int, b: int, d: int) -> Any:
+        key = (c, a, min(b, d), max(b, d))
+        if key not in cache:
+            cache[key] = ar.diff(first[a][b][d], c)
+        return cache[key]
+
+    riemann = {}
+    slots = pairs(n)
+    for i, (a, b) in enumerate(slots):
+        for c, d in slots[i:]:
+            terms = [d_first(c, a, b, d), ar.scale(d_first(d, a, b, c), sympy.Integer(-1))]
+            for f in range(n):
+                terms.append(ar.product(first[f][a][d], second[f][b][c]))
+                terms.append(ar.scale(ar.product(first[f][a][c], second[f][b][d]), -1))
+            value = ar.sum(terms)
+            budget.check("Riemann tensor", ar, [value])
+            if not ar.is_zero(value):
+                riemann[(a, b, c, d)] = value
+    return riemann
+
+
+def component(ar: Arithmetic, table: dict, a: int, b: int, c: int, d: int) -> Any:
+    """R_abcd from the independent components, by the pair symmetries."""
+    if a == b or c == d:
+        return ar.zero()
+    sign = 1
+    if a > b:
+        a, b, sign = b, a, -sign
+    if c > d:
+        c, d, sign = d, c, -sign
+    if (a, b) > (c, d):
+        a, b, c, d = c, d, a, b
+    value = table.get((a, b, c, d))
+    if value is None:
+        return ar.zero()
+    return value if sign == 1 else ar.scale(value, sympy.Integer(-1))
+
+
+def ricci_parts(ar: Arithmetic, riemann: dict, ginv: list, n: int, budget: Budget) -> tuple:
+    """R_bd = g^ac R_cbad, the mixed R^a_b and the scalar."""
+    ricci = [[None] * n for _ in range(n)]
+    for b in range(n):
+        for d in range(b, n):
+            terms = [
+                ar.product(ginv[a][c], component(ar, riemann, c, b, a, d))
+                for a in range(n)
+                for c in range(n)
+                if not ar.is_zero(ginv[a][c])
+            ]
+            ricci[b][d] = ricci[d][b] = ar.sum(terms)
+        budget.check("Ricci tensor", ar, ricci[b])
+    mixed = [[ar.sum([ar.product(ginv[a][c], ricci[c][b]) for c in range(n)]) for b in range(n)]
+             for a in range(n)]
+    scalar = ar.sum([mixed[a][a] for a in range(n)])
+    return ricci, mixed, scalar
+
+
+def bivector_inverse(ar: Arithmetic, ginv: list, n: int) -> list[list[Any]]:
+    """G^{PQ} = g^ac g^bd - g^ad g^bc over index pairs P=(a,b), Q=(c,d) with a<b, c<d."""
+    slots = pairs(n)
+    return [
+        [
+            ar.sum([ar.product(ginv[a][c], ginv[b][d]),
+                    ar.scale(ar.product(ginv[a][d], ginv[b][c]), sympy.Integer(-1))])
+            for c, d in slots
+        ]
+        for a, b in slots
+    ]
+
+
+def pair_square(ar: Arithmetic, table: dict, bivector: list, n: int) -> Any:
+    """X_abcd X^abcd = 4 tr(X G X G) with X and G as matrices over index pairs."""
+    slots = pairs(n)
+    x = [[component(ar, table, a, b, c, d) for c, d in slots] for a, b in slots]
+    size = len(slots)
+    m = [
+        [ar.sum([ar.product(bivector[p][r], x[r][q]) for r in range(size)
+                 if not ar.is_zero(bivector[p][r]) and not ar.is_zero(x[r][q])])
+         for q in range(size)]
+        for p in range(size)
+    ]
+    total = ar.sum([ar.product(m[p][q], m[q][p]) for p in range(size) for q in range(size)
+                    if not ar.is_zero(m[p][q]) and not ar.is_zero(m[q][p])])
+    return ar.scale(total, sympy.Integer(4))
+
+
+def weyl_lower(ar: Arithmetic, riemann: dict, ricci: list, scalar: Any, g: list, n: int,
+               budget: Budget) -> dict:
+    """C_abcd = R_abcd - (g_ac R_bd - g_ad R_bc - g_bc R_ad + g_bd R_ac)/(n-2)
+    + R (g_ac g_bd - g_ad g_bc)/((n-1)(n-2))."""
+    k1 = sympy.Rational(-1, n - 2)
+    k2 = sympy.Rational(1, (n - 1) * (n - 2))
+    weyl = {}
+    slots = pairs(n)
+    for i, (a, b) in enumerate(slots):
+        for c, d in slots[i:]:
+            ricci_part = [
+                ar.product(g[a][c], ricci[b][d]),
+                ar.scale(ar.product(g[a][d], ricci[b][c]), -1),
+                ar.scale(ar.product(g[b][c], ricci[a][d]), -1),
+                ar.product(g[b][d], ricci[a][c]),
+            ]
+            metric_part = ar.sum([ar.product(g[a][c], g[b][d]),
+                                  ar.scale(ar.product(g[a][d], g[b][c]), -1)])
+            value = ar.sum([
+                component(ar, riemann, a, b, c, d),
+                ar.scale(ar.sum(ricci_part), k1),
+                ar.scale(ar.product(scalar, metric_part), k2),
+            ])
+            if not ar.is_zero(value):
+                weyl[(a, b, c, d)] = value
+        budget.check("Weyl tensor", ar, list(weyl.values())[-1:])
+    return weyl
+
+
+# ====================================================================== to the data model
+
+
+def to_geometry(
+    spacetime: Spacetime, t: Tensors, ar: Arithmetic, engine: str, seconds: float
+) -> Geometry:
+    n = spacetime.dimension
+
+    def show(x: Any) -> sympy.Expr:
+        return ar.display(x)
+
+    def matrix(rows: list[list[Any]]) -> sympy.ImmutableMatrix:
+        return sympy.ImmutableMatrix(n, n, lambda a, b: show(rows[a][b]))
+
+    return Geometry(
+        dimension=n,
+        metric=spacetime.metric,
+        inverse_metric=matrix(t.inverse),
+        christoffel={k: show(v) for k, v in t.christoffel.items()},
+        riemann={k: show(v) for k, v in t.riemann.items()},
+        ricci=matrix(t.ricci),
+        ricci_scalar=show(t.ricci_scalar),
+        einstein=matrix(t.einstein),
+        einstein_mixed=matrix(t.einstein_mixed),
+        weyl=None if t.weyl is None else {k: show(v) for k, v in t.weyl.items()},
+        kretschmann=show(t.kretschmann),
+        ricci_squared=show(t.ricci_squared),
+        weyl_squared=None if t.weyl_squared is None else show(t.weyl_squared),
+        engine=engine,
+        seconds=seconds,
+    )
