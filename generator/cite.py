@@ -432,7 +432,7 @@ def cite_main(argv: list[str]) -> int:
     if args.hash:
         from .history import lookup_main  # history imports this module; import late
 
-        return lookup_main(Path(args.repo), catalog, args.hash, sys.stdout)
+        return lookup_main(Path(args.repo), catalog, args.hash, sys.stdout, sys.stderr)
     if not args.id:
         print("error: give an entry id, or --hash H", file=sys.stderr)
         return 2
