@@ -404,9 +404,10 @@ def _finalise(field: RationalField, depth_of: dict, request: FieldRequest) -> Ra
     heads = {f.func: f for f in request.functions}
     rules = []
     for s in field.specs:
-        row = []
-        for x in request.coordinates:
-            row.append(_rule(field, s, x, heads))
+        if depth_of.get(s.key, 0) < request.derivative_depth:
+            row = [_rule(field, s, x, heads) for x in request.coordinates]
+        else:
+            row = [_MISSING if s.meaning.has(x) else None for x in request.coordinates]
         rules.append(tuple(row))
     return RationalField(
         field.ctx, field.specs, field.coordinates, field.relations, tuple(rules), field.index

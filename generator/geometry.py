@@ -95,6 +95,7 @@ class SympyArithmetic:
     def __init__(self, spacetime: Spacetime, zero_test: Callable[[sympy.Expr], bool]) -> None:
         self.coordinates = spacetime.coordinates
         self.zero_test = zero_test
+        self.zero_cache: dict[sympy.Expr, bool] = {}
 
     def zero(self) -> sympy.Expr:
         return sympy.Integer(0)
@@ -103,10 +104,7 @@ class SympyArithmetic:
         return sympy.Integer(1)
 
     def sum(self, terms: list[sympy.Expr]) -> sympy.Expr:
-        value = sympy.cancel(sympy.together(sympy.Add(*terms)))
-        if value != 0 and self.zero_test(value):
-            return sympy.Integer(0)
-        return value
+        return sympy.cancel(sympy.together(sympy.Add(*terms)))
 
     def product(self, x: sympy.Expr, y: sympy.Expr) -> sympy.Expr:
         return x * y
@@ -121,13 +119,34 @@ class SympyArithmetic:
         return sympy.cancel(sympy.diff(x, self.coordinates[i]))
 
     def is_zero(self, x: sympy.Expr) -> bool:
-        return x == 0
+        """``cancel`` is canonical for rational functions of symbols and free functions; with
+        other functions in play (sin, sqrt, ...) a non-zero form may still vanish, so ask the
+        project's zero test (cached: the same component is asked about repeatedly)."""
+        if x == 0:
+            return True
+        if _is_rational_function(x):
+            return False
+        if x not in self.zero_cache:
+            self.zero_cache[x] = self.zero_test(x)
+        return self.zero_cache[x]
 
     def size(self, x: sympy.Expr) -> int:
         return sympy.count_ops(x)
 
     def display(self, x: sympy.Expr) -> sympy.Expr:
         return sympy.factor(x)
+
+
+def _is_rational_function(x: sympy.Expr) -> bool:
+    """Built from symbols, numbers, free functions and derivatives with integer powers only."""
+    for node in sympy.preorder_traversal(x):
+        if isinstance(node, sympy.Pow) and not node.exp.is_Integer:
+            return False
+        if isinstance(node, sympy.Function) and not isinstance(node, sympy.core.function.AppliedUndef):
+            return False
+        if node.is_Float or node.is_number and not node.is_Rational and not node.is_Atom:
+            return False
+    return True
 
 
 # ====================================================================== budget
@@ -159,22 +178,31 @@ class Budget:
 
 def compute_geometry(spacetime: Spacetime, limits: Limits | None = None) -> Geometry:
     """Curvature of ``spacetime``: exact rational-function engine, SymPy when it cannot."""
+    return compute_geometry_with(spacetime, limits, engine="auto")
+
+
+def compute_geometry_with(
+    spacetime: Spacetime, limits: Limits | None, engine: str
+) -> Geometry:
+    """``engine``: "auto" (field, SymPy as fallback), "rational-function" or "sympy"; the
+    forced engines exist so tests and the benchmark can compare the two paths."""
     started = time.monotonic()
     budget = Budget.start(limits or Limits())
-    try:
-        arithmetic, metric = field_setup(spacetime, derivative_depth=2)
-        engine = "rational-function"
-    except NotInField:
+    if engine != "sympy":
+        try:
+            arithmetic, metric = field_setup(spacetime, derivative_depth=2)
+            tensors = curvature(arithmetic, metric, budget)
+            used = "rational-function"
+        except NotInField:
+            if engine == "rational-function":
+                raise
+            engine = "sympy"
+    if engine == "sympy":
         arithmetic, metric = sympy_setup(spacetime)
-        engine = "sympy"
-    try:
         tensors = curvature(arithmetic, metric, budget)
-    except NotInField:
-        arithmetic, metric = sympy_setup(spacetime)
-        engine = "sympy"
-        tensors = curvature(arithmetic, metric, budget)
+        used = "sympy"
     budget.check("display forms", arithmetic)
-    return to_geometry(spacetime, tensors, arithmetic, engine, time.monotonic() - started)
+    return to_geometry(spacetime, tensors, arithmetic, used, time.monotonic() - started)
 
 
 def field_setup(spacetime: Spacetime, derivative_depth: int) -> tuple[FieldArithmetic, list]:

@@ -1,0 +1,161 @@
+"""Deciding whether an expression vanishes (or two expressions agree) on an entry's spacetime.
+
+Exact first: the expression is converted into the rational-function field of ``algebra``, whose
+normal form is zero exactly when the expression is. Every outcome is then confirmed
+independently by substituting exact random points of the domain (Schwartz–Zippel): a zero must
+vanish there too, and a non-zero normal form must show a witness point. Expressions outside the
+field are decided on sample points alone (exact rational arithmetic where possible, else 30
+digits with a 1e-20 tolerance), and the decision says so. Strings are never compared and
+``simplify`` is never trusted to decide.
+"""
+
+from __future__ import annotations
+
+import sympy
+
+from .algebra import FieldRequest, Frac, NotInField, RationalField, build_field
+from .model import Decision, Spacetime
+from .sampling import Point, angle_coordinates, sample_points, substitute
+
+CONFIRM_POINTS = 3
+SAMPLED_POINTS = 8
+MINIMUM_SAMPLED = 5
+DIGITS = 30
+TOLERANCE = sympy.Float("1e-20", DIGITS)
+SEED = 20261201
+
+
+def decide_zero(expr: sympy.Expr, spacetime: Spacetime) -> Decision:
+    """Is ``expr`` identically zero on the spacetime's domain?"""
+    return _decide(sympy.sympify(expr), sympy.Integer(0), spacetime)
+
+
+def decide_equal(claimed: sympy.Expr, computed: sympy.Expr, spacetime: Spacetime) -> Decision:
+    """Is ``claimed`` equal to ``computed`` everywhere on the domain?"""
+    return _decide(sympy.sympify(claimed), sympy.sympify(computed), spacetime)
+
+
+def sampled_zero(expr: sympy.Expr, spacetime: Spacetime) -> bool:
+    """True when ``expr`` is decided to vanish (used by the SymPy fallback engine)."""
+    return decide_zero(expr, spacetime).equal is True
+
+
+def canonical(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr:
+    """Display form: reduced fraction, factored (flint, display only), functions restored.
+
+    Deterministic: the same expression always gives the same tree. Expressions outside the
+    field get SymPy's ``factor(cancel(...))``, which is deterministic as well.
+    """
+    expr = sympy.sympify(expr)
+    try:
+        field, (value,) = _field_of((expr,), spacetime)
+    except (NotInField, ZeroDivisionError):
+        return sympy.factor(sympy.cancel(expr))
+    return field.display(value)
+
+
+def _field_of(
+    exprs: tuple[sympy.Expr, ...], spacetime: Spacetime
+) -> tuple[RationalField, list[Frac]]:
+    request = FieldRequest(
+        spacetime.coordinates, spacetime.parameters, spacetime.functions, exprs, 0
+    )
+    return build_field(request)
+
+
+# ====================================================================== the decision
+
+
+def _decide(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decision:
+    try:
+        field, (a, b) = _field_of((left, right), spacetime)
+        normal_zero: bool | None = field.equal(a, b)
+    except (NotInField, ZeroDivisionError):
+        normal_zero = None
+    if normal_zero is None:
+        return _decide_sampled(left, right, spacetime)
+    points = _points(spacetime, CONFIRM_POINTS if normal_zero else SAMPLED_POINTS)
+    for point in points:
+        differs = _differs_at(left, right, point, spacetime)
+        if differs:
+            how = "exact" if not normal_zero else "sampled"
+            detail = "normal forms differ; witness point found"
+            if normal_zero:
+                detail = "normal form is zero but a sample point disagrees (branch of a root?)"
+            return Decision(False, how, detail, _witness(point, spacetime))
+    if normal_zero:
+        return Decision(True, "exact", f"normal form is zero; confirmed at {len(points)} points")
+    return _nonzero_without_witness(left, right, spacetime, len(points))
+
+
+def _nonzero_without_witness(
+    left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime, tried: int
+) -> Decision:
+    """The normal form was not canonical (e.g. two radicals of related bases): sample more."""
+    decision = _decide_sampled(left, right, spacetime)
+    if decision.equal:
+        detail = f"normal form not canonical here; {decision.detail}"
+        return Decision(True, "sampled", detail)
+    return decision
+
+
+def _decide_sampled(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decision:
+    points = _points(spacetime, SAMPLED_POINTS)
+    used = 0
+    for point in points:
+        differs = _differs_at(left, right, point, spacetime)
+        if differs is None:
+            continue
+        used += 1
+        if differs:
+            return Decision(False, "sampled", "differs at a sample point", _witness(point, spacetime))
+    if used < MINIMUM_SAMPLED:
+        return Decision(None, "failed", f"only {used} usable sample points in the domain")
+    return Decision(
+        True,
+        "sampled",
+        f"equal at {used} exact random points of the domain (tolerance 1e-20 at {DIGITS} digits "
+        "where a value was not rational)",
+    )
+
+
+def _points(spacetime: Spacetime, count: int) -> list[Point]:
+    return sample_points(spacetime, count, SEED)
+
+
+def _differs_at(
+    left: sympy.Expr, right: sympy.Expr, point: Point, spacetime: Spacetime
+) -> bool | None:
+    """True/False when the two sides differ/agree at the point, None if undefined there."""
+    angles = angle_coordinates(spacetime)
+    try:
+        a = substitute(left, point, angles)
+        b = substitute(right, point, angles)
+    except (ZeroDivisionError, ValueError):
+        return None
+    if any(v.has(sympy.zoo, sympy.nan, sympy.oo, -sympy.oo) for v in (a, b)):
+        return None
+    if a.is_Rational and b.is_Rational:
+        return a != b
+    return _numerically_differ(a, b)
+
+
+def _numerically_differ(a: sympy.Expr, b: sympy.Expr) -> bool | None:
+    try:
+        x, y = complex(a.evalf(DIGITS)), complex(b.evalf(DIGITS))
+    except (TypeError, ValueError):
+        return None
+    scale = max(1.0, abs(x), abs(y))
+    difference = (a - b).evalf(DIGITS + 20)
+    try:
+        return abs(complex(difference)) > float(TOLERANCE) * scale
+    except (TypeError, ValueError):
+        return None
+
+
+def _witness(point: Point, spacetime: Spacetime) -> dict[str, str]:
+    """The point as readable strings: coordinates, parameters and free-function values."""
+    keys = list(spacetime.parameters) + list(spacetime.coordinates)
+    keys += [k for k in point if isinstance(k, (sympy.Function, sympy.Derivative))
+             and not isinstance(k, (sympy.sin, sympy.cos))]
+    return {str(k): str(point[k]) for k in keys if k in point}

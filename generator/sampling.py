@@ -1,0 +1,207 @@
+"""Exact rational sample points inside an entry's domain, for zero tests and witnesses.
+
+A point gives every coordinate and parameter an exact rational value (respecting the SymPy
+assumptions of each parameter and the entry's domain inequalities) and every free function and
+each of its derivatives an independent random rational: at a single point these values are
+unconstrained, which is what makes a vanishing at random points a meaningful (Schwartz–Zippel)
+test of an identity in the free functions.
+
+Angles that appear inside sin/cos/tan... of the metric are taken at rational points of the unit
+circle, theta = 2*atan(q), so that sin(theta) = 2q/(1+q**2) and cos(theta) = (1-q**2)/(1+q**2)
+stay rational. The returned point therefore also holds the keys sin(theta) and cos(theta);
+``substitute`` uses them so that trigonometric expressions evaluate exactly.
+"""
+
+from __future__ import annotations
+
+import itertools
+import random
+
+import sympy
+
+from .model import Spacetime
+
+FUNCTION_DERIVATIVE_ORDER = 4
+ATTEMPTS_PER_POINT = 400
+SCALES = (10, 3, 30, 1, 100)
+CIRCULAR = (sympy.sin, sympy.cos, sympy.tan, sympy.cot, sympy.sec, sympy.csc)
+
+Point = dict[sympy.Basic, sympy.Expr]
+
+
+def sample_points(spacetime: Spacetime, count: int, seed: int) -> list[Point]:
+    """``count`` distinct exact points inside the domain (fewer if the domain is too thin to
+    hit by rejection sampling); deterministic for a given seed."""
+    rng = random.Random(seed)
+    angles = angle_coordinates(spacetime)
+    points: list[Point] = []
+    seen: set[tuple] = set()
+    for attempt in range(count * ATTEMPTS_PER_POINT):
+        if len(points) >= count:
+            break
+        scale = SCALES[(attempt // 50) % len(SCALES)]
+        point = random_point(spacetime, angles, rng, scale)
+        key = tuple(sorted((str(k), str(v)) for k, v in point.items()))
+        if key in seen or not inside_domain(spacetime, point) or not regular_at(spacetime, point):
+            continue
+        seen.add(key)
+        points.append(point)
+    return points
+
+
+def angle_coordinates(spacetime: Spacetime) -> tuple[sympy.Symbol, ...]:
+    """Coordinates that occur as the argument of a circular function in the metric."""
+    found = set()
+    for f in spacetime.metric.atoms(*CIRCULAR):
+        for x in spacetime.coordinates:
+            coeff, unit = f.args[0].as_coeff_Mul()
+            if unit == x and coeff.is_Rational:
+                found.add(x)
+    return tuple(x for x in spacetime.coordinates if x in found)
+
+
+def random_rational(rng: random.Random, scale: int, sign: str = "any") -> sympy.Rational:
+    """A random rational of modest height; ``sign`` is any, positive, nonnegative, negative."""
+    denominator = rng.randint(1, 12)
+    numerator = rng.randint(1, max(1, scale * denominator))
+    value = sympy.Rational(numerator, denominator)
+    if sign == "nonnegative" and rng.random() < 0.05:
+        return sympy.Integer(0)
+    if sign == "negative" or (sign == "any" and rng.random() < 0.5):
+        return -value
+    return value
+
+
+def parameter_value(symbol: sympy.Symbol, rng: random.Random, scale: int) -> sympy.Rational:
+    if symbol.is_integer:
+        magnitude = sympy.Integer(rng.randint(1, max(2, scale)))
+        if symbol.is_positive or symbol.is_nonnegative:
+            return magnitude
+        return -magnitude if symbol.is_negative or rng.random() < 0.5 else magnitude
+    if symbol.is_positive:
+        return random_rational(rng, scale, "positive")
+    if symbol.is_negative:
+        return random_rational(rng, scale, "negative")
+    if symbol.is_nonnegative:
+        return random_rational(rng, scale, "nonnegative")
+    if symbol.is_nonpositive:
+        return -random_rational(rng, scale, "nonnegative")
+    return random_rational(rng, scale)
+
+
+def random_point(
+    spacetime: Spacetime, angles: tuple[sympy.Symbol, ...], rng: random.Random, scale: int
+) -> Point:
+    point: Point = {}
+    for p in spacetime.parameters:
+        point[p] = parameter_value(p, rng, scale)
+    for x in spacetime.coordinates:
+        if x in angles:
+            q = random_rational(rng, 3)
+            point[sympy.sin(x)] = 2 * q / (1 + q**2)
+            point[sympy.cos(x)] = (1 - q**2) / (1 + q**2)
+            point[x] = 2 * sympy.atan(q)
+        else:
+            point[x] = parameter_value(x, rng, scale)
+    for f in spacetime.functions:
+        point.update(function_values(f, rng, scale))
+    return point
+
+
+def function_values(f: sympy.Expr, rng: random.Random, scale: int) -> Point:
+    """Independent values for f and its partial derivatives up to a fixed order."""
+    values: Point = {}
+    positive = bool(f.is_positive)
+    values[f] = random_rational(rng, scale, "positive" if positive else "any")
+    variables = f.args
+    for order in range(1, FUNCTION_DERIVATIVE_ORDER + 1):
+        for combo in itertools.combinations_with_replacement(variables, order):
+            values[sympy.Derivative(f, *combo)] = random_rational(rng, scale)
+    return values
+
+
+def substitute(expr: sympy.Expr, point: Point, angles: tuple[sympy.Symbol, ...] = ()) -> sympy.Expr:
+    """The value of ``expr`` at ``point``: exact wherever SymPy's arithmetic is exact.
+
+    Circular functions of angle coordinates are first written through sin and cos of the
+    angle itself (tan, sec, integer multiples), so that the rational sin/cos values apply.
+    """
+    if angles:
+        expr = _through_sin_cos(expr, angles)
+    return expr.xreplace(point)
+
+
+def _through_sin_cos(expr: sympy.Expr, angles: tuple[sympy.Symbol, ...]) -> sympy.Expr:
+    replacements = {}
+    for f in expr.atoms(*CIRCULAR):
+        coeff, unit = f.args[0].as_coeff_Mul()
+        if unit in angles and coeff.is_Integer:
+            replacements[f] = _sin_cos_only(f.func, int(coeff), unit)
+    return expr.xreplace(replacements) if replacements else expr
+
+
+def _sin_cos_only(func: type, k: int, x: sympy.Symbol) -> sympy.Expr:
+    """func(k*x) through sin(x) and cos(x) only (multiple-angle formulas)."""
+    s, c = sympy.sin(x), sympy.cos(x)
+    sin_k, cos_k = _multiple_angle(k, s, c)
+    table = {
+        sympy.sin: sin_k,
+        sympy.cos: cos_k,
+        sympy.tan: sin_k / cos_k,
+        sympy.cot: cos_k / sin_k,
+        sympy.sec: 1 / cos_k,
+        sympy.csc: 1 / sin_k,
+    }
+    return table[func]
+
+
+def _multiple_angle(k: int, s: sympy.Expr, c: sympy.Expr) -> tuple[sympy.Expr, sympy.Expr]:
+    """(sin(kx), cos(kx)) as polynomials in s = sin x and c = cos x, by repeated addition."""
+    sin_k, cos_k = sympy.Integer(0), sympy.Integer(1)
+    for _ in range(abs(k)):
+        sin_k, cos_k = sin_k * c + cos_k * s, cos_k * c - sin_k * s
+    if k < 0:
+        sin_k = -sin_k
+    return sympy.expand(sin_k), sympy.expand(cos_k)
+
+
+def inside_domain(spacetime: Spacetime, point: Point) -> bool:
+    """Every domain inequality holds at the point (decided exactly or at 30 digits)."""
+    angles = angle_coordinates(spacetime)
+    for relation in spacetime.domain:
+        value = substitute(relation, point, angles)
+        if value is sympy.true:
+            continue
+        if value is sympy.false:
+            return False
+        if not _numeric_truth(value):
+            return False
+    return True
+
+
+def _numeric_truth(relation: sympy.Basic) -> bool:
+    if not isinstance(relation, sympy.core.relational.Relational):
+        return False
+    difference = (relation.lhs - relation.rhs).evalf(30)
+    if not difference.is_number or not difference.is_real:
+        return False
+    strict = {">": lambda d: d > 0, "<": lambda d: d < 0, ">=": lambda d: d >= 0,
+              "<=": lambda d: d <= 0}
+    check = strict.get(relation.rel_op)
+    return bool(check(difference)) if check else False
+
+
+def regular_at(spacetime: Spacetime, point: Point) -> bool:
+    """The metric is finite, real and non-degenerate at the point."""
+    angles = angle_coordinates(spacetime)
+    try:
+        values = spacetime.metric.applyfunc(lambda e: substitute(e, point, angles))
+    except (ZeroDivisionError, ValueError):
+        return False
+    if any(v.has(sympy.zoo, sympy.nan, sympy.oo, -sympy.oo) for v in values):
+        return False
+    numeric = values.evalf(30)
+    if any(not v.is_real for v in numeric):
+        return False
+    determinant = numeric.det()
+    return bool(abs(determinant) > sympy.Float("1e-25", 30))
