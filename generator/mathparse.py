@@ -4,7 +4,8 @@ Entries come from strangers, so math text is never handed to ``eval``, ``sympify
 ``parse_expr``. This module tokenises the text itself and builds SymPy objects directly from a
 small grammar: numbers, declared names, ``pi``/``E``/``I``, ``+ - * / **``, parentheses, a fixed
 list of functions, declared free functions, coordinate differentials (line elements only) and
-chained inequalities (domains only). Anything else is a `MathSyntaxError` with the offset of the
+chained inequalities (domains only), and ``diff(f, x[, n])`` for derivatives of free
+functions. Anything else is a `MathSyntaxError` with the offset of the
 offending character. Size limits stop inputs such as ``9**9**9`` before SymPy evaluates them.
 """
 
@@ -24,7 +25,8 @@ MAX_LENGTH = 20_000
 MAX_DEPTH = 100
 MAX_DIGITS = 40
 MAX_EXPONENT = 100  # numerator and denominator bound of a numeric exponent
-MAX_POWER_BITS = 4096  # bound on the size of a number raised to a number
+MAX_POWER_BITS = 4096
+MAX_DERIVATIVE_ORDER = 4  # bound on the size of a number raised to a number
 
 KNOWN_FUNCTIONS: dict[str, Callable[..., sympy.Expr]] = {
     "sin": sympy.sin,
@@ -55,7 +57,7 @@ KNOWN_FUNCTIONS: dict[str, Callable[..., sympy.Expr]] = {
     "LambertW": sympy.LambertW,
 }
 CONSTANTS: dict[str, sympy.Expr] = {"pi": sympy.pi, "E": sympy.E, "I": sympy.I}
-RESERVED = frozenset(KNOWN_FUNCTIONS) | frozenset(CONSTANTS)
+RESERVED = frozenset(KNOWN_FUNCTIONS) | frozenset(CONSTANTS) | {"diff"}
 
 _TOKEN = re.compile(
     r"""
@@ -256,6 +258,8 @@ class _Parser:
             raise MathSyntaxError(
                 f"{name!r} is not allowed in math", token.offset, "only math names are allowed"
             )
+        if name == "diff":
+            return self.call_diff(token)
         if name in KNOWN_FUNCTIONS:
             return self.call_known(name, token)
         if name in self.table.functions:
@@ -291,6 +295,28 @@ class _Parser:
         if name == "LambertW" and len(args) == 2 and args[1] not in (0, -1):
             raise MathSyntaxError("LambertW's branch must be 0 or -1", token.offset)
         return KNOWN_FUNCTIONS[name](*args)
+
+    def call_diff(self, token: Token) -> sympy.Expr:
+        """``diff(f, x)``, ``diff(f, x, 2)``, ``diff(f, x, y)``: derivatives by coordinates."""
+        if self.current.text != "(":
+            raise MathSyntaxError("diff needs arguments: diff(a(t), t)", token.offset)
+        start = self.current.offset
+        args = self.arguments()
+        if len(args) < 2:
+            raise MathSyntaxError("diff needs an expression and a coordinate", start,
+                                  "e.g. diff(a(t), t) or diff(a(t), t, 2)")
+        variables: list[sympy.Expr] = []
+        for arg in args[1:]:
+            if arg.is_Integer and variables and 1 <= int(arg) <= MAX_DERIVATIVE_ORDER:
+                variables += [variables[-1]] * (int(arg) - 1)
+            elif isinstance(arg, sympy.Symbol) and arg in self.table.symbols.values():
+                variables.append(arg)
+            else:
+                raise MathSyntaxError(f"cannot differentiate with respect to {arg}", start,
+                                      "use declared coordinates and small whole orders")
+        if len(variables) > MAX_DERIVATIVE_ORDER:
+            raise MathSyntaxError(f"derivative order above {MAX_DERIVATIVE_ORDER}", start)
+        return sympy.diff(args[0], *variables)
 
     def call_free(self, name: str, token: Token) -> sympy.Expr:
         head, default_args = self.table.functions[name]

@@ -1,0 +1,114 @@
+"""A content-addressed cache of computed entry reports.
+
+The key is a hash of everything the result depends on: the exact bytes of the entry and of the
+entries it links to (exact bytes rather than a canonical form, because diagnostics carry line
+and column numbers), the budget, and the versions of the generator and of the libraries that
+compute. Reports are stored as pickles signed with HMAC-SHA256; a file whose signature does not
+verify (corrupt, truncated, written by another machine or version, or planted) is ignored and
+recomputed, never unpickled. The signing secret lives outside the cache folder: the
+ALMANAC_CACHE_SECRET environment variable (set it in CI to keep a cache between runs) or a
+per-user key file created on first use.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import hmac
+import os
+import pickle
+import secrets
+import tempfile
+from importlib import metadata
+from pathlib import Path
+from typing import Any
+
+from . import __version__
+from .model import EntryReport
+
+FORMAT = b"almanac-cache-1\n"
+SECRET_ENV = "ALMANAC_CACHE_SECRET"
+
+
+def library_versions() -> str:
+    names = ("sympy", "python-flint", "mpmath")
+    return ";".join(f"{n}={_version(n)}" for n in names)
+
+
+def _version(name: str) -> str:
+    try:
+        return metadata.version(name)
+    except metadata.PackageNotFoundError:
+        return "absent"
+
+
+def cache_key(task: Any) -> str:
+    """Hash of a pipeline task's inputs (entry bytes, related entries, budget, versions)."""
+    digest = hashlib.sha256()
+    digest.update(f"{__version__}|{library_versions()}|{task.seconds}|{task.display}".encode())
+    for path in (task.file, *task.related_files):
+        digest.update(b"\0" + str(Path(path).name).encode() + b"\0")
+        try:
+            digest.update(Path(path).read_bytes())
+        except OSError:
+            digest.update(b"<unreadable>")
+    return digest.hexdigest()
+
+
+def _secret() -> bytes:
+    from_env = os.environ.get(SECRET_ENV)
+    if from_env:
+        return from_env.encode()
+    home = Path(os.environ.get("XDG_CONFIG_HOME", Path.home() / ".config"))
+    key_file = home / "metric-almanac" / "cache-key"
+    try:
+        return key_file.read_bytes()
+    except OSError:
+        key_file.parent.mkdir(parents=True, exist_ok=True)
+        key = secrets.token_hex(32).encode()
+        fd = os.open(key_file, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o600)
+        with os.fdopen(fd, "wb") as handle:
+            handle.write(key)
+        return key
+
+
+class ResultCache:
+    """A folder of signed result files named by their key."""
+
+    def __init__(self, folder: Path) -> None:
+        self.folder = folder
+        self.secret = _secret()
+
+    def _path(self, key: str) -> Path:
+        return self.folder / key[:2] / f"{key}.bin"
+
+    def get(self, key: str) -> EntryReport | None:
+        try:
+            blob = self._path(key).read_bytes()
+        except OSError:
+            return None
+        if not blob.startswith(FORMAT) or len(blob) < len(FORMAT) + 32:
+            return None
+        signature, payload = blob[len(FORMAT):len(FORMAT) + 32], blob[len(FORMAT) + 32:]
+        expected = hmac.new(self.secret, key.encode() + payload, hashlib.sha256).digest()
+        if not hmac.compare_digest(signature, expected):
+            return None
+        try:
+            report = pickle.loads(payload)
+        except Exception:  # signed by us but unreadable (e.g. a class moved): recompute
+            return None
+        return report if isinstance(report, EntryReport) else None
+
+    def put(self, key: str, report: EntryReport) -> None:
+        """Write atomically, so an interrupted build never leaves a half-written file."""
+        payload = pickle.dumps(report, protocol=pickle.HIGHEST_PROTOCOL)
+        signature = hmac.new(self.secret, key.encode() + payload, hashlib.sha256).digest()
+        path = self._path(key)
+        path.parent.mkdir(parents=True, exist_ok=True)
+        fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=".tmp-")
+        try:
+            with os.fdopen(fd, "wb") as handle:
+                handle.write(FORMAT + signature + payload)
+            os.replace(tmp, path)
+        except BaseException:
+            Path(tmp).unlink(missing_ok=True)
+            raise

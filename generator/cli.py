@@ -1,0 +1,199 @@
+"""Command line: ``python -m generator <command>`` (also installed as ``almanac``).
+
+Exit status of ``check``: 0 every entry verified, 1 some entry failed a check, 2 bad usage or
+unreadable input.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from collections.abc import Sequence
+from pathlib import Path
+
+from .errors import AlmanacError, UsageError
+
+EXIT_OK, EXIT_FAILED, EXIT_USAGE = 0, 1, 2
+DEFAULT_CACHE = Path(".almanac-cache")
+
+
+def _add_run_options(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("--jobs", type=int, default=0,
+                        help="worker processes (default: all cores)")
+    parser.add_argument("--seconds", type=float, default=300.0,
+                        help="time budget per entry in seconds (default 300)")
+    parser.add_argument("--cache-dir", type=Path, default=DEFAULT_CACHE,
+                        help="folder of cached results (default .almanac-cache)")
+    parser.add_argument("--no-cache", action="store_true", help="recompute everything")
+    parser.add_argument("--scheduler", metavar="ADDRESS",
+                        help="spread entries over a Dask distributed scheduler (tcp://host:port)")
+    parser.add_argument("--progress", action="store_true", help="show a progress bar")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(prog="almanac", description="Metric Almanac: verify and "
+                                     "publish a catalog of spacetime metrics.")
+    commands = parser.add_subparsers(dest="command", required=True)
+
+    check = commands.add_parser("check", help="verify entries and explain every mistake")
+    check.add_argument("paths", nargs="*", type=Path, help="entry files or folders")
+    check.add_argument("--json", action="store_true", help="print the JSON report")
+    check.add_argument("--format", choices=("text", "github", "json"), default="text",
+                       help="diagnostic format (github: workflow annotations)")
+    check.add_argument("--show-computed", action="store_true",
+                       help="print what was computed, as YAML to compare with the paper")
+    check.add_argument("--changed-since", metavar="REF",
+                       help="check only entries changed since this git ref")
+    _add_run_options(check)
+
+    build = commands.add_parser("build", help="check the catalog and write the site")
+    build.add_argument("--catalog", type=Path, default=Path("catalog"))
+    build.add_argument("--out", type=Path, default=Path("site"))
+    _add_run_options(build)
+
+    serve = commands.add_parser("serve", help="preview the site on 127.0.0.1, rebuilding on "
+                                "change")
+    serve.add_argument("--catalog", type=Path, default=Path("catalog"))
+    serve.add_argument("--out", type=Path, default=Path("site"))
+    serve.add_argument("--port", type=int, default=8000)
+
+    commands.add_parser("new", help="scaffold a new entry", add_help=False)
+    commands.add_parser("cite", help="print a citation of an entry", add_help=False)
+    schema = commands.add_parser("schema", help="write the JSON Schema of the entry format")
+    schema.add_argument("--out", type=Path, default=Path("schema/entry.schema.json"))
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    args_list = list(sys.argv[1:] if argv is None else argv)
+    if args_list[:1] == ["new"]:
+        from .scaffold import new_main
+
+        return new_main(args_list[1:])
+    if args_list[:1] == ["cite"]:
+        from .cite import cite_main
+
+        return cite_main(args_list[1:])
+    parser = build_parser()
+    try:
+        args = parser.parse_args(args_list)
+    except SystemExit as exc:
+        return EXIT_USAGE if exc.code else EXIT_OK
+    try:
+        return _dispatch(args)
+    except UsageError as exc:
+        print(f"almanac: error: {exc}", file=sys.stderr)
+        return EXIT_USAGE
+    except KeyboardInterrupt:
+        print("almanac: interrupted", file=sys.stderr)
+        return 130
+    except AlmanacError as exc:
+        print(f"almanac: error: {exc}", file=sys.stderr)
+        return EXIT_USAGE
+
+
+def _dispatch(args: argparse.Namespace) -> int:
+    if args.command == "check":
+        return run_check(args)
+    if args.command == "build":
+        from .build import build_site
+
+        result = build_site(args.catalog, args.out, _options(args))
+        return EXIT_OK if result.ok else EXIT_FAILED
+    if args.command == "serve":
+        from .build import serve_site
+
+        serve_site(args.catalog, args.out, args.port)
+        return EXIT_OK
+    if args.command == "schema":
+        from .jsonschema_export import write_schema
+
+        write_schema(args.out)
+        return EXIT_OK
+    raise UsageError(f"unknown command {args.command}")
+
+
+def _options(args: argparse.Namespace):
+    from .pipeline import RunOptions
+
+    return RunOptions(
+        jobs=args.jobs,
+        seconds_per_entry=args.seconds,
+        cache_dir=None if args.no_cache else args.cache_dir,
+        progress=args.progress,
+        scheduler=args.scheduler,
+    )
+
+
+def run_check(args: argparse.Namespace) -> int:
+    from .catalog import entry_files, find_catalog_root
+    from .pipeline import check_files
+
+    base = Path.cwd()
+    paths = list(args.paths) or [Path("catalog")]
+    files = entry_files(paths)
+    root = find_catalog_root(paths[0].resolve() if paths[0].is_dir() else
+                             paths[0].resolve().parent)
+    if args.changed_since:
+        from .history import changed_entries
+
+        changed = {p.resolve() for p in changed_entries(base, args.changed_since,
+                                                       root or Path("catalog"))}
+        files = [f for f in files if f.resolve() in changed]
+    reports = check_files(files, root, base, _options(args), _progress_printer(args, len(files)))
+    fmt = "json" if args.json else args.format
+    _print_reports(reports, fmt, args.show_computed)
+    if any(not r.ok for r in reports):
+        unreadable = any(d.code.startswith("file.") for r in reports for d in r.diagnostics)
+        return EXIT_USAGE if unreadable else EXIT_FAILED
+    return EXIT_OK
+
+
+def _progress_printer(args: argparse.Namespace, total: int):
+    if not args.progress:
+        return None
+    from tqdm import tqdm
+
+    bar = tqdm(total=total, unit="entry", file=sys.stderr)
+
+    def advance(report) -> None:
+        bar.set_postfix_str(report.entry.id if report.entry else report.file)
+        bar.update(1)
+
+    return advance
+
+
+def _print_reports(reports, fmt: str, show_computed: bool) -> None:
+    from .export import check_document
+
+    if fmt == "json":
+        print(json.dumps(check_document(reports), indent=2, sort_keys=False))
+        return
+    for report in reports:
+        for diagnostic in report.diagnostics:
+            text = (diagnostic.format_github() if fmt == "github"
+                    else diagnostic.format_text())
+            print(text, file=sys.stdout if fmt == "github" else sys.stderr)
+        if show_computed:
+            print(_computed_yaml(report))
+    failed = sum(not r.ok for r in reports)
+    errors = sum(d.severity == "error" for r in reports for d in r.diagnostics)
+    summary = (f"{len(reports)} entries checked: {len(reports) - failed} verified, "
+               f"{failed} failed ({errors} errors)")
+    print(summary, file=sys.stderr)
+
+
+def _computed_yaml(report) -> str:
+    import yaml
+
+    from .export import report_json
+
+    data = report_json(report)
+    shown = {"id": data["id"], "file": data["file"], "computed": data["computed"]}
+    return "# computed by the tool; compare with the paper before writing claims\n" + \
+        yaml.safe_dump(shown, sort_keys=False, allow_unicode=True, width=100)
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

@@ -1,0 +1,154 @@
+"""Running load → compute → classify & verify over many entries.
+
+Entries are independent, so they run in separate processes (all cores by default), each with
+its own time budget; a content-addressed cache skips entries whose inputs have not changed.
+Workers receive file paths, not objects, and reload what they need: loading is cheap and this
+keeps what crosses process boundaries small and plain.
+"""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Callable, Sequence
+from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
+from dataclasses import dataclass
+from pathlib import Path
+
+from .cache import ResultCache, cache_key
+from .catalog import cross_entry_diagnostics, display_path, entry_files, load_all
+from .errors import Diagnostic
+from .geometry import Limits
+from .loader import LoadResult
+from .model import EntryReport
+from .verify import check_loaded
+
+
+@dataclass(frozen=True)
+class RunOptions:
+    """How to run the checks: parallelism, budget and cache."""
+
+    jobs: int = 0  # 0 = all cores
+    seconds_per_entry: float = 300.0
+    cache_dir: Path | None = None
+    progress: bool = False
+    scheduler: str | None = None  # address of a Dask distributed scheduler
+
+
+@dataclass(frozen=True)
+class Task:
+    """One entry to check, with the files of the entries it links to."""
+
+    file: Path
+    display: str
+    root: Path | None
+    base: Path
+    related_files: tuple[Path, ...]
+    seconds: float
+
+
+def run_task(task: Task) -> EntryReport:
+    """Check one entry (runs inside a worker process)."""
+    loads = load_all([task.file, *task.related_files], task.root, task.base)
+    own, related = loads[0], loads[1:]
+    by_id = {r.entry.id: r for r in related if r.entry is not None}
+    return check_loaded(own, by_id, Limits(seconds=task.seconds))
+
+
+def check_files(
+    selected: Sequence[Path],
+    root: Path | None,
+    base: Path,
+    options: RunOptions,
+    on_done: Callable[[EntryReport], None] | None = None,
+) -> list[EntryReport]:
+    """Check the selected entry files; the rest of the catalog is loaded for cross-references."""
+    catalog_files = entry_files([root]) if root is not None else []
+    every = {p.resolve() for p in catalog_files} | {p.resolve() for p in selected}
+    all_loads = load_all(sorted(every), root, base)
+    by_file = {load.file: load for load in all_loads}
+    by_id = {load.entry.id: load for load in all_loads if load.entry is not None}
+    selected_loads = [by_file[display_path(p, base)] for p in selected]
+    cross = cross_entry_diagnostics(all_loads, set(by_id))
+    tasks = [_task(load, by_id, root, base, options) for load in selected_loads]
+    reports = _run(tasks, selected_loads, options, on_done)
+    return [_with_extra(report, cross.get(report.file, [])) for report in reports]
+
+
+def _task(load: LoadResult, by_id: dict[str, LoadResult], root: Path | None, base: Path,
+          options: RunOptions) -> Task:
+    related = []
+    if load.entry is not None:
+        for item in load.entry.related:
+            other = by_id.get(item.entry)
+            if other is not None:
+                related.append(base / other.file if not Path(other.file).is_absolute()
+                               else Path(other.file))
+    return Task(base / load.file if not Path(load.file).is_absolute() else Path(load.file),
+                load.file, root, base, tuple(related), options.seconds_per_entry)
+
+
+def _with_extra(report: EntryReport, extra: list[Diagnostic]) -> EntryReport:
+    if not extra:
+        return report
+    from dataclasses import replace
+
+    return replace(report, diagnostics=report.diagnostics + tuple(extra))
+
+
+def _run(tasks: list[Task], loads: list[LoadResult], options: RunOptions,
+         on_done: Callable[[EntryReport], None] | None) -> list[EntryReport]:
+    cache = ResultCache(options.cache_dir) if options.cache_dir else None
+    keys = [cache_key(task) for task in tasks]
+    results: dict[int, EntryReport] = {}
+    pending: list[int] = []
+    for i, key in enumerate(keys):
+        hit = cache.get(key) if cache else None
+        if hit is not None:
+            results[i] = hit
+            if on_done:
+                on_done(hit)
+        else:
+            pending.append(i)
+    for i, report in _compute(tasks, pending, options, on_done):
+        results[i] = report
+        if cache and _cacheable(report):
+            cache.put(keys[i], report)
+    return [results[i] for i in range(len(tasks))]
+
+
+def _cacheable(report: EntryReport) -> bool:
+    """Budget failures depend on the machine's speed; never cache them."""
+    return not any(d.code == "budget.exceeded" for d in report.diagnostics)
+
+
+def _compute(tasks: list[Task], pending: list[int], options: RunOptions,
+             on_done: Callable[[EntryReport], None] | None):
+    if options.scheduler:
+        from .distributed import run_on_scheduler
+
+        yield from run_on_scheduler(options.scheduler, tasks, pending, on_done)
+        return
+    jobs = options.jobs or os.cpu_count() or 1
+    if jobs == 1 or len(pending) <= 1:
+        for i in pending:
+            report = run_task(tasks[i])
+            if on_done:
+                on_done(report)
+            yield i, report
+        return
+    yield from _compute_in_processes(tasks, pending, jobs, on_done)
+
+
+def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
+                          on_done: Callable[[EntryReport], None] | None):
+    # Longest-first scheduling would need costs; the catalog order is good enough for now.
+    with ProcessPoolExecutor(max_workers=jobs, max_tasks_per_child=8) as pool:
+        futures: dict[Future, int] = {pool.submit(run_task, tasks[i]): i for i in pending}
+        remaining = set(futures)
+        while remaining:
+            done, remaining = wait(remaining, return_when=FIRST_COMPLETED)
+            for future in sorted(done, key=lambda f: futures[f]):
+                report = future.result()
+                if on_done:
+                    on_done(report)
+                yield futures[future], report

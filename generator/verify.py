@@ -1,0 +1,219 @@
+"""Stage 3: verify an entry's claims against what the engine computed.
+
+Takes a loaded entry, runs the geometry engine under the entry's budget, asks `classify` for the
+physics, and turns every comparison into a `Verdict` (what was checked and how it was decided)
+plus a positioned diagnostic for each failure. A claim passes only when equality was decided;
+"could not decide" is a failure too, because the catalog publishes nothing it has not verified.
+"""
+
+from __future__ import annotations
+
+import time
+from collections.abc import Mapping
+
+import mpmath
+import sympy
+
+from . import classify as classify_stage
+from .equality import decide_equal
+from .errors import BudgetExceeded, Diagnostic
+from .geometry import Limits, compute_geometry
+from .loader import LoadResult, parse_at, symbol_table
+from .model import Classification, Entry, EntryReport, Geometry, Spacetime, Verdict
+from .sampling import sample_points
+
+SIGNATURE_POINTS = 3
+
+# How each scalar changes when a "+---" entry is flipped to "-+++": R flips, squares do not.
+_FLIP_POWER = {"ricci_scalar": 1, "kretschmann": 0, "ricci_squared": 0, "weyl_squared": 0}
+
+
+def check_loaded(
+    load: LoadResult,
+    related: Mapping[str, LoadResult],
+    limits: Limits | None = None,
+) -> EntryReport:
+    """Run geometry, classification and claim checks for one loaded entry."""
+    started = time.perf_counter()
+    entry, spacetime = load.entry, load.spacetime
+    diagnostics = list(load.diagnostics)
+    if entry is None or spacetime is None or not load.ok:
+        return EntryReport(entry, load.file, spacetime, None, None, (), tuple(diagnostics),
+                           _hash(entry))
+    diagnostics += check_signature(entry, spacetime)
+    if any(d.severity == "error" for d in diagnostics):
+        return EntryReport(entry, load.file, spacetime, None, None, (), tuple(diagnostics),
+                           _hash(entry))
+    try:
+        geometry = compute_geometry(spacetime, limits)
+    except BudgetExceeded as exc:
+        diagnostics.append(_budget_diagnostic(entry, exc))
+        return EntryReport(entry, load.file, spacetime, None, None, (), tuple(diagnostics),
+                           _hash(entry), time.perf_counter() - started)
+    verdicts, claim_problems = check_scalar_claims(entry, spacetime, geometry)
+    diagnostics += claim_problems
+    classification = None
+    try:
+        classification, problems = classify_stage.classify(
+            entry, spacetime, geometry, _related_pairs(entry, related))
+        diagnostics += problems
+        verdicts += label_verdicts(entry, classification, problems)
+    except BudgetExceeded as exc:
+        diagnostics.append(_budget_diagnostic(entry, exc))
+    return EntryReport(entry, load.file, spacetime, geometry, classification, tuple(verdicts),
+                       tuple(diagnostics), _hash(entry), time.perf_counter() - started)
+
+
+def _hash(entry: Entry | None) -> str:
+    if entry is None:
+        return ""
+    from .cite import content_hash
+
+    return content_hash(entry)
+
+
+def _related_pairs(entry: Entry, related: Mapping[str, LoadResult]
+                   ) -> dict[str, tuple[Entry, Spacetime]]:
+    pairs = {}
+    for item in entry.related:
+        other = related.get(item.entry)
+        if other is not None and other.entry is not None and other.spacetime is not None:
+            pairs[item.entry] = (other.entry, other.spacetime)
+    return pairs
+
+
+def _budget_diagnostic(entry: Entry, exc: BudgetExceeded) -> Diagnostic:
+    return Diagnostic.at(entry.pos("metric"), "error",
+                         f"computation ran out of its budget in stage '{exc.stage}' ({exc.limit})",
+                         "budget.exceeded",
+                         "simplify the metric (e.g. fewer nested roots) or split the entry")
+
+
+# ---------------------------------------------------------------------------- signature
+
+
+def check_signature(entry: Entry, spacetime: Spacetime) -> list[Diagnostic]:
+    """Check that the metric is non-degenerate with the declared signature at sample points."""
+    points = sample_points(spacetime, SIGNATURE_POINTS, seed=7)
+    if not points:
+        return [Diagnostic.at(entry.pos("domain"), "error", "no sample point satisfies the "
+                              "domain and the parameter assumptions", "domain.empty",
+                              "check the inequalities under 'domain' for contradictions")]
+    expected = sorted(entry.signature if spacetime.sign == 1 else _flip(entry.signature))
+    for point in points:
+        signs = _inertia(spacetime.metric, point)
+        where = _describe(point)
+        if signs is None:
+            return [Diagnostic.at(entry.pos("metric"), "error", f"the metric is degenerate "
+                                  f"(det g = 0) at {where}", "metric.degenerate",
+                                  "check the metric components, or narrow the domain")]
+        if sorted(signs) != expected:
+            return [Diagnostic.at(entry.pos("signature"), "error", f"declared signature "
+                                  f"'{entry.signature}' but the metric has signs "
+                                  f"'{''.join(sorted(signs))}' at {where}",
+                                  "metric.signature", "check signs of the components, or the "
+                                  "domain (e.g. inside a horizon t and r swap roles)")]
+    return []
+
+
+def _flip(signature: str) -> str:
+    return signature.translate(str.maketrans("+-", "-+"))
+
+
+def _inertia(metric: sympy.ImmutableMatrix, point: dict[sympy.Basic, sympy.Expr]
+             ) -> list[str] | None:
+    """Signs of the eigenvalues at a point (30 digits), or None if the metric is degenerate."""
+    values = metric.subs(point)
+    if values.det() == 0:
+        return None
+    with mpmath.workdps(30):
+        numeric = mpmath.matrix([[mpmath.mpf(sympy.N(v, 30)) for v in row]
+                                 for row in values.tolist()])
+        eigenvalues = mpmath.eigsy(numeric)[0]
+        scale = max(abs(e) for e in eigenvalues)
+        if any(abs(e) < scale * mpmath.mpf(10) ** -20 for e in eigenvalues):
+            return None
+        return ["-" if e < 0 else "+" for e in eigenvalues]
+
+
+def _describe(point: dict[sympy.Basic, sympy.Expr]) -> str:
+    parts = sorted(f"{k} = {v}" for k, v in point.items() if isinstance(k, sympy.Symbol))
+    return ", ".join(parts)
+
+
+# ---------------------------------------------------------------------------- scalar claims
+
+
+def computed_scalar(name: str, geometry: Geometry) -> sympy.Expr | None:
+    return getattr(geometry, name)
+
+
+def check_scalar_claims(entry: Entry, spacetime: Spacetime, geometry: Geometry
+                        ) -> tuple[list[Verdict], list[Diagnostic]]:
+    """Compare each claimed invariant with the computed one (in the entry's own signature)."""
+    table, _ = symbol_table(entry)
+    verdicts: list[Verdict] = []
+    diagnostics: list[Diagnostic] = []
+    for claim in entry.claims.scalars:
+        subject = f"claims.{claim.name}"
+        computed = computed_scalar(claim.name, geometry)
+        if computed is None:
+            verdicts.append(Verdict(subject, False, "failed", "not defined below four "
+                                    "dimensions", claim.value.text, "null"))
+            continue
+        computed = computed * spacetime.sign ** _FLIP_POWER[claim.name]
+        claimed, problem = parse_at(claim.value, table)
+        if problem is not None or claimed is None:
+            diagnostics.extend([problem] if problem else [])
+            verdicts.append(Verdict(subject, False, "failed", "the claim does not parse",
+                                    claim.value.text, str(computed)))
+            continue
+        decision = decide_equal(claimed, computed, spacetime)
+        verdicts.append(Verdict(subject, decision.equal is True, decision.method,
+                                decision.detail, claim.value.text, str(computed)))
+        if decision.equal is not True:
+            diagnostics.append(_verdict_diagnostic(entry, verdicts[-1], decision.equal is None))
+    return verdicts, diagnostics
+
+
+def _verdict_diagnostic(entry: Entry, verdict: Verdict, undecided: bool) -> Diagnostic:
+    name = verdict.subject.split(".", 1)[1]
+    label = name.replace("_", " ")
+    if undecided:
+        return Diagnostic.at(entry.pos(verdict.subject), "error",
+                             f"claimed {label} could not be verified: {verdict.detail}",
+                             f"claim.{name}", f"computed: {verdict.computed}")
+    return Diagnostic.at(entry.pos(verdict.subject), "error",
+                         f"claimed {label} does not match the computed value ({verdict.detail})",
+                         f"claim.{name}", f"computed: {verdict.computed}")
+
+
+# ---------------------------------------------------------------------------- label claims
+
+
+def label_verdicts(entry: Entry, classification: Classification,
+                   problems: list[Diagnostic]) -> list[Verdict]:
+    """Verdicts for the non-scalar claims, for the page's record of what was verified.
+
+    `classify` already reported each disagreement as a diagnostic; this only records the
+    outcome per claim so readers see what was checked.
+    """
+    failed_lines = {(d.line, d.column) for d in problems if d.severity == "error"}
+    out: list[Verdict] = []
+    claims = entry.claims
+    pairs = [("matter.kind", entry.matter.kind, classification.matter_kind)]
+    if claims.petrov_type:
+        pairs.append(("claims.petrov_type", claims.petrov_type, classification.petrov_type))
+    if claims.hawking_ellis_type:
+        pairs.append(("claims.hawking_ellis_type", claims.hawking_ellis_type,
+                      classification.hawking_ellis_type))
+    computed_conditions = {c.name: c.status for c in classification.energy_conditions}
+    for name, state in claims.energy_conditions:
+        pairs.append((f"claims.energy_conditions.{name}", state, computed_conditions.get(name)))
+    for subject, claimed, computed in pairs:
+        pos = entry.pos(subject)
+        ok = (pos.line, pos.column) not in failed_lines and (
+            claimed == computed or subject == "matter.kind")
+        out.append(Verdict(subject, ok, "exact", "", str(claimed), str(computed)))
+    out += list(classification.killing_vectors_checked) + list(classification.related_checked)
+    return out
