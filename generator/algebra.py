@@ -527,7 +527,10 @@ def _convert_atom(field: RationalField, e: sympy.Basic, heads: dict) -> Frac:
     if isinstance(e, sympy.Function) and not isinstance(e, sympy.Derivative):
         if e.func.__name__ in ("sign", "Heaviside", "DiracDelta", "re", "im", "arg", "floor"):
             raise NotInField(f"{e.func.__name__} is not differentiable in the field")
-        _need(GeneratorSpec(e, e, "other"))
+        canon = e.func(*(sympy.cancel(arg) for arg in e.args))
+        if canon in field.index:
+            return field.var(field.index[canon])
+        _need(GeneratorSpec(canon, canon, "other"))
     raise NotInField(f"cannot represent {type(e).__name__}")
 
 
@@ -549,6 +552,11 @@ def _convert_exp(field: RationalField, arg: sympy.Expr, heads: dict) -> Frac:
         coeff, unit = term.as_coeff_Mul()
         if not coeff.is_Integer:
             coeff, unit = sympy.Integer(1), term
+        if unit == 1 or isinstance(unit, sympy.LambertW):
+            # exp(1) is the constant E; exp(W(u)) = u/W(u) keeps Lambert-W charts rational.
+            inner = sympy.E if unit == 1 else unit.args[0] / unit
+            result = field.mul(result, field.power(_convert(field, inner, heads), int(coeff)))
+            continue
         key = sympy.exp(unit, evaluate=False)
         if key not in field.index:
             _need(GeneratorSpec(key, sympy.exp(unit), "other"))
