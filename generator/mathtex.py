@@ -123,6 +123,25 @@ class TextbookLatexPrinter(LatexPrinter):
         args = ", ".join(self._print(arg) for arg in expr.args)
         return rf"{name}\left({args}\right)"
 
+    def _print_Derivative(self, expr: sympy.Expr) -> str:
+        """Time derivatives of one-variable free functions as dots (``\\dot{a}``), other
+        ordinary derivatives as primes; partial derivatives keep SymPy's notation."""
+        function, variables = expr.expr, expr.variable_count
+        if (
+            isinstance(function, AppliedUndef)
+            and len(function.args) == 1
+            and len(variables) == 1
+            and variables[0][0] == function.args[0]
+            and 1 <= variables[0][1] <= 3
+        ):
+            order = int(variables[0][1])
+            name = self._hprint_Function(function.func.__name__)
+            if str(function.args[0]) in TIME_NAMES:
+                accent = ("dot", "ddot", "dddot")[order - 1]
+                return rf"\{accent}{{{name}}}"
+            return name + "'" * order
+        return super()._print_Derivative(expr)
+
 
 def to_latex(expr: sympy.Expr, coordinates: Sequence[sympy.Symbol] = ()) -> str:
     """LaTeX for a single expression, sums in textbook order."""

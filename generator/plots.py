@@ -1,0 +1,282 @@
+"""Plots for entry pages, drawn with matplotlib at build time as SVG.
+
+Two figures where they carry the physics: the curvature invariants along the radial-type
+coordinate (where singularities and asymptotic falloff are seen at a glance), and the metric
+functions -g_tt and g_rr (horizons are where they vanish or blow up). Parameters are set to
+stated sample values that satisfy the entry's domain, and every figure says which.
+
+SVG output is made deterministic: a fixed ``svg.hashsalt``, no date in the metadata, text kept
+as text (``svg.fonttype = none``), and matplotlib's global state is only touched inside an
+``rc_context``.
+"""
+
+from __future__ import annotations
+
+import io
+from dataclasses import dataclass
+
+import matplotlib
+import numpy
+import sympy
+from matplotlib.figure import Figure
+
+from .mathtex import ANGLE_NAMES, TIME_NAMES, radial_coordinate
+from .model import EntryReport, Spacetime
+
+SAMPLE_COUNT = 241
+SVG_SETTINGS = {
+    "svg.hashsalt": "metric-almanac",
+    "svg.fonttype": "none",
+    "font.family": "sans-serif",
+    "font.size": 9.0,
+    "axes.grid": True,
+    "grid.alpha": 0.3,
+    "path.simplify": False,
+}
+INVARIANT_LABELS = (
+    ("ricci_scalar", "Ricci scalar R"),
+    ("kretschmann", "Kretschmann R_abcd R^abcd"),
+    ("ricci_squared", "Ricci square R_ab R^ab"),
+    ("weyl_squared", "Weyl square C_abcd C^abcd"),
+)
+SAMPLE_BY_ASSUMPTION = {
+    "positive": sympy.Integer(1),
+    "nonnegative": sympy.Rational(1, 2),
+    "negative": sympy.Integer(-1),
+    "nonzero": sympy.Integer(1),
+    "real": sympy.Rational(1, 2),
+}
+
+
+@dataclass(frozen=True)
+class Plot:
+    """One finished figure: SVG text, file name, alt text and a caption naming the values."""
+
+    file_name: str
+    svg: str
+    alt: str
+    caption: str
+
+
+def entry_plots(report: EntryReport) -> tuple[Plot, ...]:
+    """The figures for one entry (none when there is no radial coordinate to plot along)."""
+    st, entry = report.spacetime, report.entry
+    if st is None or entry is None or report.geometry is None:
+        return ()
+    radial_name = radial_coordinate([str(c) for c in st.coordinates])
+    if radial_name is None:
+        return ()
+    setting = plot_setting(report, radial_name)
+    with matplotlib.rc_context(SVG_SETTINGS):
+        figures = [invariants_plot(report, setting), metric_functions_plot(report, setting)]
+    return tuple(f for f in figures if f is not None)
+
+
+@dataclass(frozen=True)
+class PlotSetting:
+    """Where a plot samples: radial symbol and range, values of everything else."""
+
+    radial: sympy.Symbol
+    values: dict[sympy.Symbol, sympy.Expr]  # parameters and other coordinates
+    low: float
+    high: float
+    assumption_text: str
+
+
+def parameter_values(report: EntryReport) -> dict[sympy.Symbol, sympy.Expr]:
+    """Simple exact sample values from each parameter's assumption, nudged into the domain."""
+    st, entry = report.spacetime, report.entry
+    assert st is not None and entry is not None
+    by_name = {p.name: p.assume for p in entry.parameters}
+    values = {s: SAMPLE_BY_ASSUMPTION.get(by_name.get(str(s), "real"), sympy.Rational(1, 2))
+              for s in st.parameters}
+    if domain_holds_for_parameters(st, values):
+        return values
+    for scale in (sympy.Rational(1, 4), sympy.Rational(1, 10)):
+        trial = {s: (v * scale if by_name.get(str(s)) not in ("positive", "negative") else v)
+                 for s, v in values.items()}
+        if domain_holds_for_parameters(st, trial):
+            return trial
+    return values
+
+
+def _relations(st: Spacetime) -> list[sympy.Basic]:
+    out: list[sympy.Basic] = []
+    for relation in st.domain:
+        out.extend(relation.args if isinstance(relation, sympy.And) else (relation,))
+    return out
+
+
+def domain_holds_for_parameters(st: Spacetime, values: dict[sympy.Symbol, sympy.Expr]) -> bool:
+    """True when every domain inequality that involves only parameters holds."""
+    coords = set(st.coordinates)
+    for relation in _relations(st):
+        if relation.free_symbols & coords:
+            continue
+        if relation.subs(values) is not sympy.true:
+            return False
+    return True
+
+
+def plot_setting(report: EntryReport, radial_name: str) -> PlotSetting:
+    st = report.spacetime
+    assert st is not None
+    radial = next(c for c in st.coordinates if str(c) == radial_name)
+    values = parameter_values(report)
+    for c in st.coordinates:
+        if c != radial:
+            values[c] = fixed_coordinate_value(str(c))
+    scale = max([abs(float(v)) for s, v in values.items() if s in st.parameters] or [1.0])
+    low, high = 0.0, 10.0 * max(scale, 1.0)
+    parts = [f"{s} = {v}" for s, v in sorted(values.items(), key=lambda kv: str(kv[0]))]
+    return PlotSetting(radial, values, low, high, ", ".join(parts))
+
+
+def fixed_coordinate_value(name: str) -> sympy.Expr:
+    """Where other coordinates sit: theta on the equator, angles and times at zero."""
+    if name in ("theta", "vartheta"):
+        return sympy.pi / 2
+    if name in ANGLE_NAMES or name in TIME_NAMES:
+        return sympy.Integer(0)
+    return sympy.Integer(1)
+
+
+def sample(expr: sympy.Expr, setting: PlotSetting, st: Spacetime) -> numpy.ndarray | None:
+    """Values of ``expr`` along the radial range, NaN outside the domain; None if not numeric."""
+    reduced = sympy.sympify(expr).subs(setting.values)
+    if reduced.free_symbols - {setting.radial} or reduced.atoms(sympy.Function) - \
+            reduced.atoms(*_KNOWN_FUNCTIONS):
+        return None
+    radius = numpy.linspace(setting.low, setting.high, SAMPLE_COUNT)[1:]
+    function = sympy.lambdify(setting.radial, reduced, modules="numpy")
+    with numpy.errstate(all="ignore"):
+        values = numpy.asarray(function(radius), dtype=complex) * numpy.ones_like(radius)
+        values = numpy.where(numpy.abs(values.imag) < 1e-12, values.real, numpy.nan)
+    inside = domain_mask(st, setting, radius)
+    return numpy.where(inside, values, numpy.nan).astype(float)
+
+
+_KNOWN_FUNCTIONS = (
+    sympy.sin, sympy.cos, sympy.tan, sympy.sec, sympy.csc, sympy.cot, sympy.sinh, sympy.cosh,
+    sympy.tanh, sympy.exp, sympy.log, sympy.asin, sympy.acos, sympy.atan, sympy.asinh,
+    sympy.acosh, sympy.atanh, sympy.Abs, sympy.LambertW,
+)
+
+
+def domain_mask(st: Spacetime, setting: PlotSetting, radius: numpy.ndarray) -> numpy.ndarray:
+    """Which radial samples satisfy the entry's domain inequalities."""
+    mask = numpy.ones_like(radius, dtype=bool)
+    for relation in _relations(st):
+        if setting.radial not in relation.free_symbols:
+            continue
+        reduced = relation.subs(setting.values)
+        if reduced.free_symbols - {setting.radial}:
+            continue
+        test = sympy.lambdify(setting.radial, reduced.lhs - reduced.rhs, modules="numpy")
+        with numpy.errstate(all="ignore"):
+            difference = numpy.asarray(test(radius), dtype=float) * numpy.ones_like(radius)
+        op = reduced.rel_op
+        keep = {"<": difference < 0, "<=": difference <= 0, ">": difference > 0,
+                ">=": difference >= 0}.get(op, numpy.ones_like(mask))
+        mask &= keep
+    return mask
+
+
+def invariants_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:
+    st, g, entry = report.spacetime, report.geometry, report.entry
+    assert st is not None and g is not None and entry is not None
+    series = []
+    for key, label in INVARIANT_LABELS:
+        expr = getattr(g, key)
+        if expr is None or sympy.sympify(expr).is_constant():
+            continue
+        values = sample(expr, setting, st)
+        if values is not None and numpy.isfinite(values).sum() >= 2:
+            series.append((label, values))
+    if not series:
+        return None
+    r = str(setting.radial)
+    radius = numpy.linspace(setting.low, setting.high, SAMPLE_COUNT)[1:]
+    figure = _figure(len(series))
+    for axis, (label, values) in zip(figure.axes, series, strict=True):
+        _draw(axis, radius, values, label, log=_wants_log(values))
+    figure.axes[-1].set_xlabel(f"{r}  (G = c = 1)")
+    figure.suptitle(f"Curvature invariants along {r}; {setting.assumption_text}")
+    names = ", ".join(label for label, _ in series)
+    return Plot(
+        file_name="invariants.svg",
+        svg=_svg(figure),
+        alt=f"{names} of {entry.title} plotted against {r} for {setting.assumption_text}.",
+        caption=f"Curvature invariants against {r}, units G = c = 1, with "
+                f"{setting.assumption_text}. Points outside the entry's domain are left out.",
+    )
+
+
+def metric_functions_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:
+    """-g_tt (the squared lapse for static charts) and g_rr, when both depend on r."""
+    st, entry = report.spacetime, report.entry
+    assert st is not None and entry is not None
+    names = [str(c) for c in st.coordinates]
+    time = next((c for c in st.coordinates if str(c) in TIME_NAMES), None)
+    r_index = names.index(str(setting.radial))
+    wanted: list[tuple[str, sympy.Expr]] = []
+    if time is not None:
+        t_index = names.index(str(time))
+        wanted.append((f"-g_{time}{time}", -st.metric[t_index, t_index]))
+    wanted.append((f"g_{setting.radial}{setting.radial}", st.metric[r_index, r_index]))
+    series = []
+    for label, expr in wanted:
+        expr = sympy.sympify(expr)
+        if expr == 0 or setting.radial not in expr.free_symbols:
+            continue
+        values = sample(expr, setting, st)
+        if values is not None and numpy.isfinite(values).sum() >= 2:
+            series.append((label, numpy.clip(values, -20.0, 20.0)))
+    if not series:
+        return None
+    r = str(setting.radial)
+    radius = numpy.linspace(setting.low, setting.high, SAMPLE_COUNT)[1:]
+    figure = _figure(1)
+    axis = figure.axes[0]
+    for label, values in series:
+        axis.plot(radius, values, label=label, linewidth=1.4)
+    axis.axhline(0.0, color="0.5", linewidth=0.6)
+    axis.legend(loc="best", frameon=False)
+    axis.set_xlabel(f"{r}  (G = c = 1)")
+    axis.set_ylabel("metric component (clipped to ±20)")
+    figure.suptitle(f"Metric functions along {r}; {setting.assumption_text}")
+    labels = " and ".join(label for label, _ in series)
+    return Plot(
+        file_name="metric-functions.svg",
+        svg=_svg(figure),
+        alt=f"{labels} of {entry.title} against {r} for {setting.assumption_text}; "
+            "horizons show where -g_tt crosses zero.",
+        caption=f"Metric functions against {r}, units G = c = 1, with "
+                f"{setting.assumption_text}; values clipped to ±20.",
+    )
+
+
+def _wants_log(values: numpy.ndarray) -> bool:
+    finite = values[numpy.isfinite(values)]
+    if finite.size == 0 or (finite <= 0).any():
+        return False
+    return bool(finite.max() / max(finite.min(), 1e-300) > 1e3)
+
+
+def _figure(rows: int) -> Figure:
+    figure = Figure(figsize=(6.4, 1.9 * rows + 1.0), layout="constrained")
+    figure.subplots(rows, 1, sharex=True, squeeze=False)
+    return figure
+
+
+def _draw(axis: object, x: numpy.ndarray, y: numpy.ndarray, label: str, log: bool) -> None:
+    axis.plot(x, y, linewidth=1.4)  # type: ignore[attr-defined]
+    axis.set_ylabel(label, fontsize=8)  # type: ignore[attr-defined]
+    if log:
+        axis.set_yscale("log")  # type: ignore[attr-defined]
+
+
+def _svg(figure: Figure) -> str:
+    buffer = io.StringIO()
+    figure.savefig(buffer, format="svg", metadata={"Date": None, "Creator": None})
+    return buffer.getvalue()
