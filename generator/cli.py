@@ -50,6 +50,9 @@ def build_parser() -> argparse.ArgumentParser:
     build = commands.add_parser("build", help="check the catalog and write the site")
     build.add_argument("--catalog", type=Path, default=Path("catalog"))
     build.add_argument("--out", type=Path, default=Path("site"))
+    build.add_argument("--publish-verified-only", action="store_true",
+                       help="write the site with the verified entries even if others failed "
+                       "(the exit status still reports the failures)")
     _add_run_options(build)
 
     serve = commands.add_parser("serve", help="preview the site on 127.0.0.1, rebuilding on "
@@ -60,8 +63,9 @@ def build_parser() -> argparse.ArgumentParser:
 
     commands.add_parser("new", help="scaffold a new entry", add_help=False)
     commands.add_parser("cite", help="print a citation of an entry", add_help=False)
-    schema = commands.add_parser("schema", help="write the JSON Schema of the entry format")
-    schema.add_argument("--out", type=Path, default=Path("schema/entry.schema.json"))
+    schema = commands.add_parser("schema", help="write schema/entry.schema.json from the "
+                                 "declared entry format")
+    schema.add_argument("--root", type=Path, default=Path("."), help="project folder")
     return parser
 
 
@@ -99,7 +103,7 @@ def _dispatch(args: argparse.Namespace) -> int:
     if args.command == "build":
         from .build import build_site
 
-        result = build_site(args.catalog, args.out, _options(args))
+        result = build_site(args.catalog, args.out, _options(args), args.publish_verified_only)
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "serve":
         from .build import serve_site
@@ -109,7 +113,7 @@ def _dispatch(args: argparse.Namespace) -> int:
     if args.command == "schema":
         from .jsonschema_export import write_schema
 
-        write_schema(args.out)
+        print(write_schema(args.root))
         return EXIT_OK
     raise UsageError(f"unknown command {args.command}")
 

@@ -1,0 +1,143 @@
+"""The whole build, top-down: load → compute → classify & verify → render.
+
+Reading this file should be enough to know what `python -m generator build` does.
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+import sys
+import tempfile
+import tomllib
+from dataclasses import dataclass
+from importlib import metadata
+from pathlib import Path
+
+from . import __version__
+from .catalog import entry_files, read_families, read_tags
+from .errors import UsageError
+from .model import CatalogMeta, EntryReport
+from .pipeline import RunOptions, check_files
+
+DEFAULT_BASE_URL = "https://metric-almanac.org/"
+
+
+@dataclass(frozen=True)
+class BuildResult:
+    ok: bool
+    reports: tuple[EntryReport, ...]
+    refused: tuple[str, ...]  # files of entries that failed their checks
+
+
+def build_site(catalog: Path, out: Path, options: RunOptions,
+               publish_verified_only: bool = False) -> BuildResult:
+    """Check every entry, then render the site into ``out`` atomically.
+
+    Any failed entry fails the build and leaves the previous site untouched, unless
+    ``publish_verified_only`` is set: then the site is written with the verified entries only.
+    """
+    if not (catalog / "tags.yaml").is_file():
+        raise UsageError(f"{catalog} is not a catalog folder (no tags.yaml)")
+    base = Path.cwd()
+    reports = check_files(entry_files([catalog]), catalog.resolve(), base, options)
+    refused = tuple(r.file for r in reports if not r.ok)
+    report_problems(reports)
+    if refused and not publish_verified_only:
+        print(f"build failed: {len(refused)} entries did not verify; site/ left unchanged",
+              file=sys.stderr)
+        return BuildResult(False, tuple(reports), refused)
+    meta = catalog_meta(catalog)
+    render_atomically(reports, meta, out)
+    print(f"site written to {out}/ ({len(reports) - len(refused)} entries)", file=sys.stderr)
+    return BuildResult(not refused, tuple(reports), refused)
+
+
+def report_problems(reports: list[EntryReport]) -> None:
+    for report in reports:
+        for diagnostic in report.diagnostics:
+            print(diagnostic.format_text(), file=sys.stderr)
+    failed = sum(not r.ok for r in reports)
+    print(f"{len(reports)} entries checked: {len(reports) - failed} verified, {failed} failed",
+          file=sys.stderr)
+
+
+def catalog_meta(catalog: Path) -> CatalogMeta:
+    """Catalog-wide data: versions, vocabularies, the contributor guide, git revisions."""
+    project = catalog.resolve().parent
+    settings = _project_settings(project)
+    guide = project / "DEVELOPERS.md"
+    return CatalogMeta(
+        version=settings.get("version", __version__),
+        generator_version=__version__,
+        sympy_version=metadata.version("sympy"),
+        families=read_families(catalog),
+        tags=read_tags(catalog),
+        contributing_markdown=guide.read_text(encoding="utf-8") if guide.is_file() else "",
+        base_url=settings.get("base_url", DEFAULT_BASE_URL),
+        revisions=_revisions(project, catalog),
+    )
+
+
+def _project_settings(project: Path) -> dict[str, str]:
+    path = project / "pyproject.toml"
+    if not path.is_file():
+        return {}
+    data = tomllib.loads(path.read_text(encoding="utf-8"))
+    settings = dict(data.get("tool", {}).get("almanac", {}))
+    settings.setdefault("version", data.get("project", {}).get("version", __version__))
+    return {k: str(v) for k, v in settings.items()}
+
+
+def _revisions(project: Path, catalog: Path) -> dict:
+    from .history import GitError, catalog_revisions, repo_root
+
+    if repo_root(project) is None:
+        return {}
+    try:
+        return catalog_revisions(project, catalog)
+    except (GitError, UsageError):
+        return {}
+
+
+def render_atomically(reports: list[EntryReport], meta: CatalogMeta, out: Path) -> None:
+    """Render into a fresh sibling folder, then swap it in, so readers never see half a site."""
+    from .render import render_site
+
+    out = out.resolve()
+    out.parent.mkdir(parents=True, exist_ok=True)
+    old = out.parent / f".{out.name}.previous"
+    recover_interrupted_swap(out, old)
+    staging = Path(tempfile.mkdtemp(prefix=f".{out.name}.building-", dir=out.parent))
+    try:
+        render_site(reports, meta, staging)
+    except BaseException:
+        shutil.rmtree(staging, ignore_errors=True)
+        raise
+    shutil.rmtree(old, ignore_errors=True)
+    if out.exists():
+        os.replace(out, old)
+    os.replace(staging, out)
+    os.chmod(out, 0o755)
+    shutil.rmtree(old, ignore_errors=True)
+
+
+def recover_interrupted_swap(out: Path, old: Path) -> None:
+    """A build killed between the two renames leaves only the previous site: put it back."""
+    if old.is_dir() and not out.exists():
+        os.replace(old, out)
+    for leftover in out.parent.glob(f".{out.name}.building-*"):
+        shutil.rmtree(leftover, ignore_errors=True)
+
+
+def serve_site(catalog: Path, out: Path, port: int) -> None:
+    """Build once, then preview on 127.0.0.1 and rebuild when the catalog or templates change."""
+    from .serve import serve
+
+    options = RunOptions(cache_dir=Path(".almanac-cache"))
+
+    def rebuild() -> None:
+        build_site(catalog, out, options, publish_verified_only=True)
+
+    rebuild()
+    serve(out, rebuild, host="127.0.0.1", port=port)
