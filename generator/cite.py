@@ -18,6 +18,7 @@ import hashlib
 import json
 import re
 import sys
+import tomllib
 import unicodedata
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
@@ -41,7 +42,7 @@ HASH_SCHEME = "metric-almanac-content-v1"
 SHORT_HASH_LENGTH = 12
 CATALOG_NAME = "Metric Almanac"
 CATALOG_AUTHOR = "Metric Almanac contributors"
-DEFAULT_BASE_URL = "https://metric-almanac.example.org/"
+DEFAULT_BASE_URL = "https://metric-almanac.org/"  # same default as build.py
 ACCESS_DATE_PLACEHOLDER = "<date>"
 
 _T = TypeVar("_T")
@@ -318,18 +319,33 @@ def cite_original(entry: Entry, fmt: str) -> str:
     return _dispatch(fmt, _reference_bibtex, _reference_csl, _reference_text)(reference)
 
 
-_VENUE_PATTERN = re.compile(r"^(?P<journal>.*?\D)\s+(?P<volume>\d+)\s*,\s*(?P<pages>[\w.-]+)$")
+_VENUE_PATTERN = re.compile(
+    r"^(?P<journal>.*?\D)\s+(?P<volume>\d+)(?:\s*\((?P<issue>[^()]+)\))?\s*,\s*"
+    r"(?P<pages>[\w.]+(?:\s*[-\u2013]+\s*[\w.]+)?)$"
+)
 
 
-def split_venue(venue: str, year: int | None = None) -> tuple[str, str, str]:
-    """``"Phys. Rev. Lett. 11, 237"`` -> (journal, volume, pages) when it has that shape;
-    otherwise the whole venue is the journal (never guess more than the text says). A number
-    equal to the year is a year-as-volume convention (``Sitzungsber. ... 1916, 189``), kept whole.
+@dataclass(frozen=True)
+class Venue:
+    """A journal venue split into its parts; empty strings where the text does not say."""
+
+    journal: str
+    volume: str = ""
+    issue: str = ""
+    pages: str = ""  # first-last with a plain hyphen
+
+
+def split_venue(venue: str, year: int | None = None) -> Venue:
+    """``"Phys. Rev. Lett. 11, 237"`` or ``"Ann. Phys. 355 (9), 106–120"`` -> parts, when the
+    venue has that shape; otherwise the whole venue is the journal (never guess more than the
+    text says). A number equal to the year is a year-as-volume convention
+    (``Sitzungsber. ... 1916, 189``) and is kept whole.
     """
     match = _VENUE_PATTERN.match(venue.strip())
     if not match or match["volume"] == str(year):
-        return venue.strip(), "", ""
-    return match["journal"].strip(), match["volume"], match["pages"]
+        return Venue(venue.strip())
+    pages = re.sub(r"\s*[-\u2013]+\s*", "-", match["pages"])
+    return Venue(match["journal"].strip(), match["volume"], match["issue"] or "", pages)
 
 
 def split_name(author: str) -> tuple[str, str]:
@@ -352,14 +368,15 @@ def _is_book(reference: Reference) -> bool:
 
 
 def _reference_bibtex(r: Reference) -> str:
-    journal, volume, pages = split_venue(r.venue, r.year)
+    venue = Venue(r.venue) if _is_book(r) else split_venue(r.venue, r.year)
     book = _is_book(r)
     fields = [
         ("author", " and ".join(bibtex_escape(a) for a in r.authors)),
         ("title", "{" + bibtex_escape(r.title) + "}"),
-        ("publisher" if book else "journal", bibtex_escape(r.venue if book else journal)),
-        ("volume", "" if book else volume),
-        ("pages", "" if book else pages.replace("-", "--")),
+        ("publisher" if book else "journal", bibtex_escape(venue.journal)),
+        ("volume", venue.volume),
+        ("number", bibtex_escape(venue.issue)),
+        ("pages", venue.pages.replace("-", "--")),
         ("year", str(r.year)),
         ("doi", bibtex_verbatim(r.doi or "")),
         ("isbn", bibtex_verbatim(r.isbn or "")),
@@ -377,7 +394,7 @@ def _unconfirmed_note(r: Reference) -> str:
 
 
 def _reference_csl(r: Reference) -> str:
-    journal, volume, pages = split_venue(r.venue, r.year)
+    venue = split_venue(r.venue, r.year)
     book = _is_book(r)
     item: dict[str, object] = {
         "id": reference_key(r),
@@ -389,8 +406,9 @@ def _reference_csl(r: Reference) -> str:
     if book:
         item["publisher"] = r.venue
     else:
-        item["container-title"] = journal
-        item.update({k: v for k, v in (("volume", volume), ("page", pages)) if v})
+        item["container-title"] = venue.journal
+        parts = (("volume", venue.volume), ("issue", venue.issue), ("page", venue.pages))
+        item.update({k: v for k, v in parts if v})
     optional = {
         "DOI": r.doi,
         "ISBN": r.isbn,
@@ -452,7 +470,7 @@ def _parser() -> argparse.ArgumentParser:
     parser.add_argument("--hash", metavar="H", help="find the entry and commit of a content hash")
     parser.add_argument("--catalog", default="catalog", help="catalog folder (default: catalog)")
     parser.add_argument("--repo", default=".", help="git repository holding the catalog")
-    parser.add_argument("--base-url", default=DEFAULT_BASE_URL, help="site URL used in citations")
+    parser.add_argument("--base-url", help="site URL (default: [tool.almanac] base_url)")
     return parser
 
 
@@ -478,7 +496,8 @@ def _print_citation(catalog: Path, args: argparse.Namespace) -> int:
         sys.stdout.write(cite_original(result.entry, args.format))
         return 0
     report = standalone_report(result.entry, str(path), result.diagnostics)
-    sys.stdout.write(cite_entry(report, standalone_meta(args.base_url), args.format))
+    meta = standalone_meta(catalog, args.base_url, path, Path(args.repo))
+    sys.stdout.write(cite_entry(report, meta, args.format))
     return 0
 
 
@@ -496,15 +515,36 @@ def standalone_report(entry: Entry, file: str, diagnostics: Sequence[object] = (
     )
 
 
-def standalone_meta(base_url: str) -> CatalogMeta:
+def standalone_meta(
+    catalog: Path, base_url: str | None, entry_path: Path, repo: Path
+) -> CatalogMeta:
+    """The part of the site's ``CatalogMeta`` a citation uses, read the same way the build
+    reads it (version and base URL from pyproject.toml, revisions from git), so the command
+    line prints exactly the citation shown on the entry's page."""
     from . import __version__
+    from .history import revisions
 
+    settings = project_settings(catalog.resolve().parent)
     return CatalogMeta(
-        version=__version__,
+        version=settings.get("version", __version__),
         generator_version=__version__,
         sympy_version="",
         families=(),
         tags=(),
         contributing_markdown="",
-        base_url=base_url,
+        base_url=base_url or settings.get("base_url", DEFAULT_BASE_URL),
+        revisions={entry_path.stem: revisions(repo, entry_path)},
     )
+
+
+def project_settings(project: Path) -> dict[str, str]:
+    """``[project].version`` and ``[tool.almanac]`` of the project's pyproject.toml."""
+    path = project / "pyproject.toml"
+    if not path.is_file():
+        return {}
+    data = tomllib.loads(path.read_text(encoding="utf-8"))
+    settings = {str(k): str(v) for k, v in data.get("tool", {}).get("almanac", {}).items()}
+    version = data.get("project", {}).get("version")
+    if version:
+        settings.setdefault("version", str(version))
+    return settings

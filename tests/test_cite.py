@@ -18,6 +18,7 @@ from _entry_builders import SCHWARZSCHILD_ORIGINAL, math, pos, schwarzschild
 
 from generator.cite import (
     FORMATS,
+    Venue,
     bibtex_escape,
     bibtex_key,
     cite_entry,
@@ -340,10 +341,39 @@ def test_split_name(name: str, split: tuple[str, str]) -> None:
     assert split_name(name) == split
 
 
-def test_split_venue_never_guesses() -> None:
-    assert split_venue("Ann. Phys. (Leipzig) 355, 106-120") == (
-        "Ann. Phys. (Leipzig)",
-        "355",
-        "106-120",
-    )
-    assert split_venue("Lecture notes") == ("Lecture notes", "", "")
+@pytest.mark.parametrize(
+    ("venue", "year", "parts"),
+    [
+        ("Phys. Rev. Lett. 11, 237", 1963, Venue("Phys. Rev. Lett.", "11", "", "237")),
+        (
+            "Ann. Phys. (Leipzig) 355, 106-120",
+            1916,
+            Venue("Ann. Phys. (Leipzig)", "355", "", "106-120"),
+        ),
+        (
+            "Annalen der Physik 355 (9), 106–120",
+            1916,
+            Venue("Annalen der Physik", "355", "9", "106-120"),
+        ),
+        ("Rev. Mod. Phys. 21, 447 – 450", 1949, Venue("Rev. Mod. Phys.", "21", "", "447-450")),
+        (
+            "Sitzungsber. Preuss. Akad. Wiss. 1916, 189",
+            1916,
+            Venue("Sitzungsber. Preuss. Akad. Wiss. 1916, 189"),
+        ),
+        ("Lecture notes", 2001, Venue("Lecture notes")),
+        ("Cambridge University Press", 2009, Venue("Cambridge University Press")),
+    ],
+)
+def test_split_venue_never_guesses(venue: str, year: int, parts: Venue) -> None:
+    assert split_venue(venue, year) == parts
+
+
+def test_issue_becomes_bibtex_number_and_csl_issue() -> None:
+    ref = replace(KERR, venue="Annalen der Physik 355 (9), 106–120", year=1916)
+    (record,) = parse_bibtex(cite_original(schwarzschild(references=(ref,)), "bibtex")).entries
+    assert record.fields_dict["number"].value == "9"
+    assert record.fields_dict["pages"].value == "106--120"
+    (item,) = json.loads(cite_original(schwarzschild(references=(ref,)), "csl-json"))
+    assert (item["issue"], item["page"]) == ("9", "106-120")
+    jsonschema.validate([item], CSL_SCHEMA)
