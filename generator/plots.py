@@ -13,6 +13,7 @@ as text (``svg.fonttype = none``), and matplotlib's global state is only touched
 from __future__ import annotations
 
 import io
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import matplotlib
@@ -90,14 +91,22 @@ def parameter_values(report: EntryReport) -> dict[sympy.Symbol, sympy.Expr]:
     by_name = {p.name: p.assume for p in entry.parameters}
     values = {s: SAMPLE_BY_ASSUMPTION.get(by_name.get(str(s), "real"), sympy.Rational(1, 2))
               for s in st.parameters}
-    if domain_holds_for_parameters(st, values):
-        return values
-    for scale in (sympy.Rational(1, 4), sympy.Rational(1, 10)):
-        trial = {s: (v * scale if by_name.get(str(s)) not in ("positive", "negative") else v)
-                 for s, v in values.items()}
+    for trial in _candidate_values(st.parameters, values):
         if domain_holds_for_parameters(st, trial):
             return trial
     return values
+
+
+def _candidate_values(
+    parameters: Sequence[sympy.Symbol], values: dict[sympy.Symbol, sympy.Expr]
+) -> list[dict[sympy.Symbol, sympy.Expr]]:
+    """The plain values first, then the later parameters made smaller than the first (the
+    first parameter is usually the mass that sets the scale: ``a < M``, ``Q**2 < M**2``)."""
+    candidates = [values]
+    for scale in (sympy.Rational(1, 2), sympy.Rational(1, 4), sympy.Rational(1, 10)):
+        candidates.append({s: v * scale if k else v for k, (s, v) in enumerate(
+            (p, values[p]) for p in parameters)})
+    return candidates
 
 
 def _relations(st: Spacetime) -> list[sympy.Basic]:

@@ -121,10 +121,23 @@ def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path
         shutil.copyfile(SCHEMA_FILE, out_dir / "schema" / "entry.schema.json")
 
 
+SLUG = re.compile(r"^[a-z0-9][a-z0-9-]*$")
+
+
+def require_slugs(published: Sequence[EntryReport], meta: CatalogMeta) -> None:
+    """Names that become file paths must be plain slugs (never ``..`` or ``/``)."""
+    names = [("entry id", r.entry.id) for r in published if r.entry is not None]
+    names += [("tag", t.name) for t in meta.tags] + [("family", f.name) for f in meta.families]
+    for kind, name in names:
+        if not SLUG.match(name):
+            raise RenderError(f"{kind} {name!r} cannot become a page name (use [a-z0-9-])")
+
+
 def published_reports(reports: Sequence[EntryReport], meta: CatalogMeta) -> list[EntryReport]:
     """The ok reports with an entry, in catalog order (family order, then id)."""
     family_order = {f.name: k for k, f in enumerate(meta.families)}
     chosen = [r for r in reports if r.ok and r.entry is not None]
+    require_slugs(chosen, meta)
     return sorted(
         chosen,
         key=lambda r: (family_order.get(r.entry.family, len(family_order)), r.entry.id),  # type: ignore[union-attr]
@@ -148,7 +161,8 @@ def site_pages(
         yield f"tags/{tag.name}.html", "tag.html", tag_context(tag.name, cards, meta)
     yield "families/index.html", "family-list.html", family_list_context(cards, meta)
     for family in meta.families:
-        yield f"families/{family.name}.html", "family.html", family_context(family.name, cards, meta)
+        yield (f"families/{family.name}.html", "family.html",
+               family_context(family.name, cards, meta))
     for report in published:
         entry_id = report.entry.id  # type: ignore[union-attr]
         yield f"entries/{entry_id}/index.html", "entry.html", entry_context(views[entry_id], meta)

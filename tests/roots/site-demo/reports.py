@@ -2,6 +2,10 @@
 
 from __future__ import annotations
 
+import functools
+from dataclasses import replace
+from pathlib import Path
+
 import sympy
 
 from generator.errors import Diagnostic, SourcePos
@@ -24,8 +28,8 @@ from generator.model import (
     Revision,
     Spacetime,
     Tag,
-    Verdict,
     VectorClaim,
+    Verdict,
 )
 
 
@@ -86,6 +90,29 @@ def curvature(metric: sympy.Matrix, coords: tuple[sympy.Symbol, ...]) -> Geometr
     )
 
 
+@functools.cache
+def lantern_geometry() -> Geometry:
+    t, r, theta, phi = sympy.symbols("t r theta phi", real=True)
+    m, q = sympy.symbols("m q", positive=True)
+    f = 1 - 2 * m / r + q**2 / r**2
+    return curvature(sympy.diag(-f, 1 / f, r**2, r**2 * sympy.sin(theta) ** 2), (t, r, theta, phi))
+
+
+@functools.cache
+def tide_geometry() -> Geometry:
+    t, x, y, z = sympy.symbols("t x y z", real=True)
+    a = sympy.Function("a")
+    return curvature(sympy.diag(-1, a(t) ** 2, a(t) ** 2, a(t) ** 2), (t, x, y, z))
+
+
+def build_demo_site(out: Path, reports: list[EntryReport] | None = None) -> Path:
+    """Render the demo catalog (or the given reports) into ``out``."""
+    from generator.render import render_site
+
+    render_site(demo_reports() if reports is None else reports, demo_meta(), out)
+    return out
+
+
 def demo_meta() -> CatalogMeta:
     return CatalogMeta(
         version="0.0.1-demo",
@@ -118,7 +145,7 @@ def lantern_report(title: str = "Harbour lantern (demo)", **text: str) -> EntryR
     f = 1 - 2 * m / r + q**2 / r**2
     metric = sympy.diag(-f, 1 / f, r**2, r**2 * sympy.sin(theta) ** 2)
     coords = (t, r, theta, phi)
-    geometry = curvature(metric, coords)
+    geometry = lantern_geometry()
     spacetime = Spacetime(
         coordinates=coords, parameters=(m, q), functions=(),
         metric=sympy.ImmutableMatrix(metric), signature="-+++", sign=1,
@@ -161,8 +188,6 @@ def lantern_report(title: str = "Harbour lantern (demo)", **text: str) -> EntryR
         curation=Curation("2026-11-30", text.get("curator", "Demo curator")),
         related=(),
     )
-    q_t = -q / r  # not used further; documents the invented source
-    del q_t
     verdicts = (
         Verdict("claims.ricci_scalar", True, "exact", "both sides reduce to 0", "0", "0"),
         Verdict("claims.kretschmann", True, "sampled", text.get("detail", "agree at 12 points"),
@@ -194,7 +219,7 @@ def tide_report() -> EntryReport:
     a = sympy.Function("a")
     metric = sympy.diag(-1, a(t) ** 2, a(t) ** 2, a(t) ** 2)
     coords = (t, x, y, z)
-    geometry = curvature(metric, coords)
+    geometry = tide_geometry()
     spacetime = Spacetime(
         coordinates=coords, parameters=(), functions=(a(t),),
         metric=sympy.ImmutableMatrix(metric), signature="+---", sign=-1, domain=(),
@@ -231,8 +256,6 @@ def refused_report() -> EntryReport:
     base = tide_report()
     entry = base.entry
     assert entry is not None
-    from dataclasses import replace
-
     broken = replace(entry, id="demo-broken-buoy", title="Broken buoy (demo)")
     error = Diagnostic("catalog/cosmology/demo-broken-buoy.yaml", 3, 1, "error",
                        "claimed Ricci scalar disagrees", "claim-mismatch")
