@@ -108,8 +108,6 @@ def tokenize(text: str) -> list[Token]:
         kind = match.lastgroup or "bad"
         if kind == "space":
             continue
-        if kind == "bad":
-            raise MathSyntaxError(*_explain_bad_character(text, match.start()))
         tokens.append(Token(kind, match.group(), match.start()))
     tokens.append(Token("end", "", len(text)))
     return tokens
@@ -137,6 +135,7 @@ class _Parser:
     """Precedence-climbing parser; each method returns a SymPy object."""
 
     def __init__(self, text: str, table: SymbolTable, allow_relations: bool) -> None:
+        self.text = text
         self.tokens = tokenize(text)
         self.index = 0
         self.table = table
@@ -146,7 +145,11 @@ class _Parser:
     # -- token helpers
     @property
     def current(self) -> Token:
-        return self.tokens[self.index]
+        """The next token; a character outside the grammar is reported when first reached."""
+        token = self.tokens[self.index]
+        if token.kind == "bad":
+            raise MathSyntaxError(*_explain_bad_character(self.text, token.offset))
+        return token
 
     def advance(self) -> Token:
         token = self.tokens[self.index]

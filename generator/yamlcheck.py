@@ -29,7 +29,10 @@ STANDARD_TAGS = frozenset(
 
 @dataclass
 class Validated:
-    """What validation produced: plain data, positions by dotted path, and diagnostics."""
+    """What validation produced: plain data, positions by dotted path, and diagnostics.
+
+    ``positions[path]`` is where the value starts; ``positions[path + ":key"]`` where its key is.
+    """
 
     data: dict[str, Any] = field(default_factory=dict)
     positions: dict[str, SourcePos] = field(default_factory=dict)
@@ -51,7 +54,7 @@ class _Checker:
 
     # -- dispatch
     def check(self, node: yaml.Node, spec: Field, path: str) -> Any:
-        self.out.positions.setdefault(path, self.pos(node))
+        self.out.positions[path] = self.pos(node)
         handler = getattr(self, "_" + spec.kind.replace("-", "_"))
         return handler(node, spec, path)
 
@@ -177,7 +180,7 @@ class _Checker:
                            _close_match(key.value, known) or
                            f"allowed here: {', '.join(known)}")
                 continue
-            self.out.positions[f"{prefix}{key.value}"] = self.pos(key)
+            self.out.positions[f"{prefix}{key.value}:key"] = self.pos(key)
             checked = self.check(value, child, f"{prefix}{key.value}")
             if checked is not None:
                 result[key.value] = checked
@@ -206,7 +209,7 @@ class _Checker:
                            "entry.format", _pattern_hint(Field("", "", "line",
                                                                pattern=spec.key_pattern)))
                 continue
-            self.out.positions[f"{path}.{key.value}"] = self.pos(key)
+            self.out.positions[f"{path}.{key.value}:key"] = self.pos(key)
             checked = self.check(value, spec.item, f"{path}.{key.value}")
             if checked is not None:
                 result[key.value] = checked

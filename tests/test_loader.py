@@ -1,0 +1,211 @@
+"""Loading untrusted entries: every mistake is a positioned diagnostic with a hint.
+
+The fixture catalog tests/roots/demo-catalog is a demo set in our own scenario (a lighthouse
+dome modelled as a round sphere).
+"""
+
+from __future__ import annotations
+
+import shutil
+from pathlib import Path
+
+import pytest
+
+from generator.catalog import cross_entry_diagnostics, vocabulary
+from generator.loader import LoadResult, isbn_checksum_ok, load_entry
+
+DEMO = Path(__file__).parent / "roots" / "demo-catalog" / "catalog"
+DEMO_ENTRY = DEMO / "riemannian" / "lighthouse-dome.yaml"
+
+
+@pytest.fixture
+def catalog(tmp_path: Path) -> Path:
+    target = tmp_path / "catalog"
+    shutil.copytree(DEMO, target)
+    return target
+
+
+def write_variant(catalog: Path, replace: dict[str, str], name: str = "lighthouse-dome") -> Path:
+    text = DEMO_ENTRY.read_text(encoding="utf-8")
+    for old, new in replace.items():
+        assert old in text, old
+        text = text.replace(old, new)
+    path = catalog / "riemannian" / f"{name}.yaml"
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def load(path: Path) -> LoadResult:
+    return load_entry(path, path.name, vocabulary(path.parent.parent))
+
+
+def errors(result: LoadResult) -> list[tuple[int, int, str, str]]:
+    return [(d.line, d.column, d.code, d.message) for d in result.diagnostics
+            if d.severity == "error"]
+
+
+def test_demo_entry_loads_cleanly(catalog: Path) -> None:
+    result = load(catalog / "riemannian" / "lighthouse-dome.yaml")
+    assert errors(result) == []
+    assert result.spacetime is not None
+    assert result.spacetime.dimension == 2
+    assert [c.name for c in result.entry.claims.scalars] == ["ricci_scalar", "kretschmann"]
+
+
+def test_missing_required_key(catalog: Path) -> None:
+    path = write_variant(catalog, {"chart: polar angle and longitude\n": ""})
+    assert errors(load(path)) == [(4, 1, "entry.missing-key", "missing required key 'chart'")]
+
+
+def test_unknown_key_is_refused_with_a_suggestion(catalog: Path) -> None:
+    path = write_variant(catalog, {"summary:": "sumary:"})
+    result = load(path)
+    found = [d for d in result.diagnostics if d.code == "entry.unknown-key"]
+    assert [(d.line, d.column, d.message) for d in found] == [(7, 1, "unknown key 'sumary'")]
+    assert "did you mean 'summary'" in found[0].hint
+
+
+def test_id_must_equal_file_name(catalog: Path) -> None:
+    path = write_variant(catalog, {}, name="other-name")
+    assert errors(load(path)) == [(4, 5, "entry.id-mismatch",
+                                   "id 'lighthouse-dome' differs from the file name "
+                                   "'other-name.yaml'")]
+
+
+def test_duplicate_ids_across_the_catalog(catalog: Path) -> None:
+    twin = catalog / "stars" / "lighthouse-dome.yaml"
+    twin.parent.mkdir()
+    shutil.copy(DEMO_ENTRY, twin)
+    loads = [load(DEMO_ENTRY), load(twin)]
+    problems = cross_entry_diagnostics(loads, {"lighthouse-dome"})
+    assert [d.code for d in problems[twin.name]] == ["catalog.duplicate-id"]
+
+
+@pytest.mark.parametrize(
+    ("field", "value", "code"),
+    [
+        ("    year: 2026\n  - role: textbook", "    year: 2026\n    doi: doi:10.1/x\n"
+         "  - role: textbook", "entry.format"),
+        ("    year: 2026\n  - role: textbook", "    year: 2026\n    arxiv: arXiv:1234.5678\n"
+         "  - role: textbook", "entry.format"),
+        ("    year: 2026\n  - role: textbook", "    year: 2026\n    isbn: 978-0-00-000000-1\n"
+         "  - role: textbook", "entry.format"),
+    ],
+)
+def test_malformed_identifiers(catalog: Path, field: str, value: str, code: str) -> None:
+    result = load(write_variant(catalog, {field: value}))
+    assert [c for _, _, c, _ in errors(result)] == [code]
+
+
+def test_isbn_checksums() -> None:
+    # Check digits computed by hand with the ISO 2108 weights (common practice).
+    assert isbn_checksum_ok("0-306-40615-2")
+    assert isbn_checksum_ok("978-0-306-40615-7")
+    assert not isbn_checksum_ok("978-0-306-40615-8")
+
+
+def test_unknown_symbol_points_at_the_character(catalog: Path) -> None:
+    path = write_variant(catalog, {"line_element: rho**2*(dtheta**2": "line_element: "
+                                   "rho**2*(dtheta**2 + x"})
+    assert errors(load(path)) == [(18, 37, "math.syntax", "unknown name 'x'")]
+
+
+def test_position_inside_a_folded_block(catalog: Path) -> None:
+    path = write_variant(catalog, {
+        "line_element: rho**2*(dtheta**2 + sin(theta)**2*dphi**2)":
+        "line_element: >-\n    rho**2*dtheta**2\n    + rho**2*sinn(theta)**2*dphi**2"})
+    assert errors(load(path)) == [(20, 14, "math.syntax", "unknown name 'sinn'")]
+
+
+@pytest.mark.parametrize(
+    ("claim", "message"),
+    [
+        ("rho.__class__", "unexpected character '.'"),
+        ("__import__", "'__import__' is not allowed in math"),
+        ("lambda: 1", "'lambda' is not allowed in math"),
+        ("9**9**9", "exponent 387420489 is too large (limit 100)"),
+        ("cosh(rho)(1)", "unexpected '(' after a complete expression"),
+        ("eval(rho)", "'eval' is not allowed in math"),
+        ("rhoo", "unknown name 'rhoo'"),
+    ],
+)
+def test_hostile_math_is_refused(catalog: Path, claim: str, message: str) -> None:
+    path = write_variant(catalog, {"kretschmann: 4/rho**4": f"kretschmann: \"{claim}\""})
+    result = load(path)
+    # Claims are parsed when verified; the loader parses the metric and domain. Parse here the
+    # way verify does, through the entry's own symbol table.
+    from generator.loader import parse_at, symbol_table
+
+    table, _ = symbol_table(result.entry)
+    claim_text = next(c.value for c in result.entry.claims.scalars if c.name == "kretschmann")
+    value, problem = parse_at(claim_text, table)
+    assert value is None
+    assert problem is not None and problem.message == message
+    assert problem.line == 26
+
+
+def test_yaml_tags_cannot_run_code(catalog: Path, tmp_path: Path) -> None:
+    marker = tmp_path / "pwned"
+    path = write_variant(catalog, {"title: Lighthouse dome": "title: !!python/object/apply:os"
+                                   f".system [\"touch {marker}\"]"})
+    result = load(path)
+    assert not marker.exists()
+    assert [(c, m) for _, _, c, m in errors(result)] == [
+        ("yaml.tag", "YAML tag 'tag:yaml.org,2002:python/object/apply:os.system' is not "
+         "allowed")]
+
+
+def test_anchors_and_aliases_are_refused(catalog: Path) -> None:
+    path = write_variant(catalog, {"tags: [riemannian, test-case]":
+                                   "tags: &t [riemannian, test-case]\nalso: *t"})
+    codes = [c for _, _, c, _ in errors(load(path))]
+    assert codes == ["yaml.anchor", "yaml.alias"]
+
+
+def test_invalid_yaml_is_positioned(catalog: Path) -> None:
+    path = write_variant(catalog, {"signature: \"++\"": "signature: \"++"})
+    (line, _column, code, _message), = errors(load(path))
+    assert code == "yaml.syntax" and line >= 12
+
+
+def test_duplicate_key(catalog: Path) -> None:
+    path = write_variant(catalog, {"summary:": "title: Again\nsummary:"})
+    assert ("entry.duplicate-key") in [c for _, _, c, _ in errors(load(path))]
+
+
+def test_wrong_types_and_choices(catalog: Path) -> None:
+    path = write_variant(catalog, {"kind: unspecified": "kind: vacum",
+                                   "year: 2026\n  - role: textbook": "year: soon\n  - role: "
+                                   "textbook"})
+    found = errors(load(path))
+    assert (20, 9, "entry.choice", "'matter.kind' must be one of vacuum, lambda-vacuum, "
+            "electrovacuum, perfect-fluid, null-dust, anisotropic-fluid, unspecified; got "
+            "'vacum'") in found
+    assert any(code == "entry.type" and "year" in message for _, _, code, message in found)
+
+
+def test_unknown_tag_and_family(catalog: Path) -> None:
+    path = write_variant(catalog, {"tags: [riemannian, test-case]": "tags: [riemannian, "
+                                   "sparkly]"})
+    assert errors(load(path)) == [(10, 20, "entry.tag", "unknown tag 'sparkly'")]
+
+
+def test_line_element_must_be_quadratic(catalog: Path) -> None:
+    path = write_variant(catalog, {"line_element: rho**2*(dtheta**2 + sin(theta)**2*dphi**2)":
+                                   "line_element: rho**2*(dtheta**2 + dphi)"})
+    (line, _column, code, message), = errors(load(path))
+    assert (line, code) == (18, "metric.line-element")
+    assert "linear" in message
+
+
+def test_both_metric_forms_is_an_error(catalog: Path) -> None:
+    path = write_variant(catalog, {"metric:\n": "metric:\n  components: {theta theta: 1}\n"})
+    assert [c for _, _, c, _ in errors(load(path))] == ["entry.metric"]
+
+
+def test_unreadable_and_binary_files(tmp_path: Path) -> None:
+    missing = load_entry(tmp_path / "nothing.yaml")
+    assert [d.code for d in missing.diagnostics] == ["file.unreadable"]
+    binary = tmp_path / "binary.yaml"
+    binary.write_bytes(b"id: x\n\xff\xfe")
+    assert [d.code for d in load_entry(binary).diagnostics] == ["file.encoding"]
