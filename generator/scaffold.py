@@ -178,7 +178,7 @@ def _chart_data(d: Draft) -> str:
         lines += [f"  {f.name}: {_function(f)}" for f in d.functions]
     if d.domain:
         lines.append("domain:")
-        lines += [f"  - {_value(inequality)}" for inequality in d.domain]
+        lines += [f"  - {_value(inequality, math=True)}" for inequality in d.domain]
     else:
         lines.append("# domain:        (inequalities where sample points are taken, e.g. r > 2*M)")
     return "\n".join(lines) + "\n"
@@ -199,8 +199,8 @@ def _function(f: FunctionSpec) -> str:
 
 def _metric_block(d: Draft) -> str:
     if d.line_element:
-        return f"metric:\n  line_element: {_value(d.line_element)}\n"
-    body = "".join(f"    {key}: {_value(value)}\n" for key, value in d.components)
+        return f"metric:\n  line_element: {_value(d.line_element, math=True)}\n"
+    body = "".join(f"    {key}: {_value(value, math=True)}\n" for key, value in d.components)
     return "metric:\n  components:\n" + body
 
 
@@ -256,10 +256,12 @@ def _this_year() -> int:
     return dt.datetime.now(dt.UTC).year
 
 
-def _value(text: str, flow: bool = False) -> str:
-    """Plain YAML scalar when it reads back unchanged, else a double-quoted one."""
+def _value(text: str, flow: bool = False, math: bool = False) -> str:
+    """Plain YAML scalar when it reads back unchanged (or, for math, is an integer, which the
+    math grammar reads as the same number), else a double-quoted one."""
     text = " ".join(text.split())
-    if text and _reads_back(text, flow):
+    integer = math and re.fullmatch(r"-?[1-9]\d*|0", text)
+    if text and (integer or _reads_back(text, flow)):
         return text
     return json.dumps(text, ensure_ascii=False)
 
@@ -442,7 +444,10 @@ def new_main(argv: list[str], ask: Ask | None = None, out: TextIO | None = None)
     Exit status: 0 written, 1 the draft would not load (nothing written), 2 bad usage.
     """
     out = out or sys.stdout
-    args = _parser().parse_args(argv)
+    try:
+        args = _parser().parse_args(argv)
+    except SystemExit as exc:  # argparse has printed the usage error
+        return 2 if exc.code else 0
     catalog = Path(args.catalog)
     interactive = args.interactive or (ask is None and not argv and sys.stdin.isatty())
     ask = ask or input
