@@ -66,6 +66,8 @@ def build_parser() -> argparse.ArgumentParser:
     schema = commands.add_parser("schema", help="write schema/entry.schema.json from the "
                                  "declared entry format")
     schema.add_argument("--root", type=Path, default=Path("."), help="project folder")
+    schema.add_argument("--docs", action="store_true",
+                        help="also refresh the key table in DEVELOPERS.md")
     return parser
 
 
@@ -114,6 +116,13 @@ def _dispatch(args: argparse.Namespace) -> int:
         from .jsonschema_export import write_schema
 
         print(write_schema(args.root))
+        if args.docs:
+            from .schema import with_reference_table
+
+            guide = args.root / "DEVELOPERS.md"
+            guide.write_text(with_reference_table(guide.read_text(encoding="utf-8")),
+                             encoding="utf-8")
+            print(guide)
         return EXIT_OK
     raise UsageError(f"unknown command {args.command}")
 

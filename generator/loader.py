@@ -69,8 +69,10 @@ def load_entry(path: Path, display: str | None = None, vocabulary: Vocabulary | 
 
 
 def load_text(source: str, file: str, path: Path, vocabulary: Vocabulary) -> LoadResult:
+    from .scaffold import find_todos
+
     validated = validate(file, source, schema.ENTRY)
-    diagnostics = list(validated.diagnostics)
+    diagnostics = list(validated.diagnostics) + find_todos(file, source)
     if any(d.severity == "error" for d in diagnostics) and not validated.data:
         return LoadResult(file, None, None, tuple(diagnostics))
     data = validated.data

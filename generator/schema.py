@@ -323,5 +323,39 @@ def walk(field: Field, prefix: str = "") -> list[tuple[str, Field]]:
         if child.kind == "record":
             out.extend(walk(child, path + "."))
         elif child.item is not None and child.item.kind == "record":
-            out.extend(walk(child.item, path + "[]."))
+            marker = "[]." if child.kind == "list" else ".<name>."
+            out.extend(walk(child.item, path + marker))
     return out
+
+
+def _kind_label(field: Field) -> str:
+    if field.kind == "choice":
+        return " \\| ".join(field.choices)
+    if field.kind == "label-claim":
+        return " \\| ".join(field.choices) + ", or {value, source, locator}"
+    if field.kind == "claim":
+        return "math, or {value, source, locator}"
+    if field.kind == "dict" and field.item is not None:
+        return f"mapping of name → {field.item.kind}"
+    if field.kind == "list" and field.item is not None:
+        return f"list of {field.item.kind}"
+    return field.kind
+
+
+def reference_markdown() -> str:
+    """The table of every key for DEVELOPERS.md, generated from the declarations above."""
+    rows = ["| key | required | value | meaning |", "|---|---|---|---|"]
+    for path, field in walk(ENTRY):
+        required = "yes" if field.required else ""
+        rows.append(f"| `{path}` | {required} | {_kind_label(field)} | {field.doc} |")
+    return "\n".join(rows) + "\n"
+
+
+KEYS_START, KEYS_END = "<!-- keys:start -->", "<!-- keys:end -->"
+
+
+def with_reference_table(guide: str) -> str:
+    """DEVELOPERS.md with the generated key table placed between its markers."""
+    head, _, rest = guide.partition(KEYS_START)
+    _, _, tail = rest.partition(KEYS_END)
+    return f"{head}{KEYS_START}\n{reference_markdown()}{KEYS_END}{tail}"
