@@ -22,8 +22,12 @@ from typing import Any, Protocol
 import sympy
 
 from .algebra import Frac, FieldRequest, NotInField, RationalField, build_field, pairs
-from .errors import BudgetExceeded
+from .errors import AlmanacError, BudgetExceeded
 from .model import Geometry, Index, Spacetime
+
+
+class DegenerateMetric(AlmanacError):
+    """Raised by ``compute_geometry`` when the metric has no inverse (bad input, not a bug)."""
 
 
 @dataclass(frozen=True)
@@ -297,7 +301,7 @@ def inverse_matrix(ar: Arithmetic, g: list[list[Any]], budget: Budget) -> list[l
     for col in range(n):
         pivot = next((r for r in range(col, n) if not ar.is_zero(rows[r][col])), None)
         if pivot is None:
-            raise BudgetExceeded("inverse metric", "the metric is degenerate (determinant 0)")
+            raise DegenerateMetric("the metric is degenerate (its determinant is zero)")
         rows[col], rows[pivot] = rows[pivot], rows[col]
         inv_p = ar.inv(rows[col][col])
         rows[col] = [ar.sum([ar.product(inv_p, x)]) for x in rows[col]]

@@ -23,7 +23,7 @@ from .model import Spacetime
 
 FUNCTION_DERIVATIVE_ORDER = 4
 ATTEMPTS_PER_POINT = 400
-SCALES = (10, 3, 30, 1, 100)
+SCALES = (1, 10, 3)
 CIRCULAR = (sympy.sin, sympy.cos, sympy.tan, sympy.cot, sympy.sec, sympy.csc)
 
 Point = dict[sympy.Basic, sympy.Expr]
@@ -41,8 +41,12 @@ def sample_points(spacetime: Spacetime, count: int, seed: int) -> list[Point]:
             break
         scale = SCALES[(attempt // 50) % len(SCALES)]
         point = random_point(spacetime, angles, rng, scale)
-        key = tuple(sorted((str(k), str(v)) for k, v in point.items()))
-        if key in seen or not inside_domain(spacetime, point) or not regular_at(spacetime, point):
+        key = tuple(point.values())
+        if key in seen or not inside_domain(spacetime, point, angles):
+            continue
+        for f in spacetime.functions:
+            point.update(function_values(f, rng, scale))
+        if not regular_at(spacetime, point, angles):
             continue
         seen.add(key)
         points.append(point)
@@ -61,20 +65,22 @@ def angle_coordinates(spacetime: Spacetime) -> tuple[sympy.Symbol, ...]:
 
 
 def random_rational(rng: random.Random, scale: int, sign: str = "any") -> sympy.Rational:
-    """A random rational of modest height; ``sign`` is any, positive, nonnegative, negative."""
-    denominator = rng.randint(1, 12)
-    numerator = rng.randint(1, max(1, scale * denominator))
-    value = sympy.Rational(numerator, denominator)
+    """A random rational of modest height; ``sign`` is any, positive, nonnegative, negative.
+
+    The magnitude is drawn at a random decade around ``scale`` so that domains which need one
+    parameter much smaller than another (e.g. Lambda*M**2 < 1/9) are still reached."""
+    decade = sympy.Rational(10) ** rng.choice((0, 0, 0, -1, -1, -2, 1))
+    value = sympy.Rational(rng.randint(1, 99), rng.randint(1, 12)) * scale * decade / 10
     if sign == "nonnegative" and rng.random() < 0.05:
         return sympy.Integer(0)
-    if sign == "negative" or (sign == "any" and rng.random() < 0.5):
+    if sign == "negative" or (sign == "any" and rng.random() < 0.25):
         return -value
     return value
 
 
 def parameter_value(symbol: sympy.Symbol, rng: random.Random, scale: int) -> sympy.Rational:
     if symbol.is_integer:
-        magnitude = sympy.Integer(rng.randint(1, max(2, scale)))
+        magnitude = sympy.Integer(rng.randint(1, 10))
         if symbol.is_positive or symbol.is_nonnegative:
             return magnitude
         return -magnitude if symbol.is_negative or rng.random() < 0.5 else magnitude
@@ -96,16 +102,49 @@ def random_point(
     for p in spacetime.parameters:
         point[p] = parameter_value(p, rng, scale)
     for x in spacetime.coordinates:
-        if x in angles:
-            q = random_rational(rng, 3)
+        bounded = None if x in angles else _bounded_value(spacetime, x, point, rng)
+        if bounded is not None:
+            point[x] = bounded
+        elif x in angles:
+            q = random_rational(rng, 10, "positive" if rng.random() < 0.9 else "any")
             point[sympy.sin(x)] = 2 * q / (1 + q**2)
             point[sympy.cos(x)] = (1 - q**2) / (1 + q**2)
             point[x] = 2 * sympy.atan(q)
         else:
             point[x] = parameter_value(x, rng, scale)
-    for f in spacetime.functions:
-        point.update(function_values(f, rng, scale))
     return point
+
+
+def _bounded_value(
+    spacetime: Spacetime, x: sympy.Symbol, point: Point, rng: random.Random
+) -> sympy.Rational | None:
+    """A value for ``x`` between the bounds the domain sets on it directly (``r > 2*M``,
+    ``x < 1``), when those bounds are rational once the parameters are fixed. Other domain
+    conditions are left to rejection; this only makes thin domains reachable."""
+    low = high = None
+    for relation in spacetime.domain:
+        if not isinstance(relation, sympy.core.relational.Relational) or relation.rel_op not in (
+            ">", ">=", "<", "<="
+        ):
+            continue
+        lhs, rhs, op = relation.lhs, relation.rhs, relation.rel_op
+        if rhs == x and not lhs.has(x):
+            lhs, rhs, op = rhs, lhs, {">": "<", ">=": "<=", "<": ">", "<=": ">="}[op]
+        if lhs != x or rhs.has(*spacetime.coordinates):
+            continue
+        bound = rhs.xreplace(point)
+        if not bound.is_Rational:
+            continue
+        if op in (">", ">="):
+            low = bound if low is None else max(low, bound)
+        else:
+            high = bound if high is None else min(high, bound)
+    if low is None and high is None:
+        return None
+    step = random_rational(rng, 1 + abs(low if low is not None else high), "positive")
+    if low is not None and high is not None:
+        return low + (high - low) * sympy.Rational(rng.randint(1, 99), 100) if high > low else low
+    return low + step if low is not None else high - step
 
 
 def function_values(f: sympy.Expr, rng: random.Random, scale: int) -> Point:
@@ -165,9 +204,11 @@ def _multiple_angle(k: int, s: sympy.Expr, c: sympy.Expr) -> tuple[sympy.Expr, s
     return sympy.expand(sin_k), sympy.expand(cos_k)
 
 
-def inside_domain(spacetime: Spacetime, point: Point) -> bool:
+def inside_domain(
+    spacetime: Spacetime, point: Point, angles: tuple[sympy.Symbol, ...] | None = None
+) -> bool:
     """Every domain inequality holds at the point (decided exactly or at 30 digits)."""
-    angles = angle_coordinates(spacetime)
+    angles = angle_coordinates(spacetime) if angles is None else angles
     for relation in spacetime.domain:
         value = substitute(relation, point, angles)
         if value is sympy.true:
@@ -191,9 +232,11 @@ def _numeric_truth(relation: sympy.Basic) -> bool:
     return bool(check(difference)) if check else False
 
 
-def regular_at(spacetime: Spacetime, point: Point) -> bool:
+def regular_at(
+    spacetime: Spacetime, point: Point, angles: tuple[sympy.Symbol, ...] | None = None
+) -> bool:
     """The metric is finite, real and non-degenerate at the point."""
-    angles = angle_coordinates(spacetime)
+    angles = angle_coordinates(spacetime) if angles is None else angles
     try:
         values = spacetime.metric.applyfunc(lambda e: substitute(e, point, angles))
     except (ZeroDivisionError, ValueError):
