@@ -16,11 +16,14 @@ from pathlib import Path
 
 from .cache import ResultCache, cache_key
 from .catalog import cross_entry_diagnostics, display_path, entry_files, load_all
-from .errors import Diagnostic
+from .errors import BudgetExceeded, Diagnostic
 from .geometry import Limits
+from .limits import budget_failure_report, run_limited
 from .loader import LoadResult
 from .model import EntryReport
 from .verify import check_loaded
+
+MEMORY_PER_ENTRY = 2 * 1024**3  # bytes an entry may add to its worker
 
 
 @dataclass(frozen=True)
@@ -47,11 +50,19 @@ class Task:
 
 
 def run_task(task: Task) -> EntryReport:
-    """Check one entry (runs inside a worker process)."""
+    """Check one entry (runs inside a worker process) under a hard time and memory limit.
+
+    The engine also keeps a cooperative budget; the hard alarm gets some slack on top of it so
+    that the engine's own, more precise message wins when it can.
+    """
     loads = load_all([task.file, *task.related_files], task.root, task.base)
     own, related = loads[0], loads[1:]
     by_id = {r.entry.id: r for r in related if r.entry is not None}
-    return check_loaded(own, by_id, Limits(seconds=task.seconds))
+    try:
+        return run_limited(check_loaded, own, by_id, Limits(seconds=task.seconds),
+                           seconds=task.seconds * 1.25 + 5, memory_bytes=MEMORY_PER_ENTRY)
+    except BudgetExceeded as exc:
+        return budget_failure_report(own, exc)
 
 
 def check_files(

@@ -1,0 +1,116 @@
+"""`check` end to end: exit status, compiler-style text, and the JSON contract.
+
+The contract is the one in the shared entry-format document: one JSON document with an entry
+per file, `computed` holding expressions that SymPy's `parse_expr` reads back.
+"""
+
+from __future__ import annotations
+
+import json
+import shutil
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+import sympy
+from sympy.parsing.sympy_parser import parse_expr
+
+from generator.cli import main
+
+DEMO = Path(__file__).parent / "roots" / "demo-catalog" / "catalog"
+CONTRACT_KEYS = {"dimension", "signature", "ricci_scalar", "kretschmann", "ricci_squared",
+                 "weyl_squared", "einstein_mixed", "matter_kind", "cosmological_constant",
+                 "petrov_type"}
+
+
+@pytest.fixture
+def catalog(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
+    shutil.copytree(DEMO, tmp_path / "catalog")
+    monkeypatch.chdir(tmp_path)
+    return tmp_path / "catalog"
+
+
+def run(args: list[str], capsys: pytest.CaptureFixture[str]) -> tuple[int, str, str]:
+    status = main([*args, "--no-cache", "--jobs", "1"]) if args[0] == "check" else main(args)
+    out, err = capsys.readouterr()
+    return status, out, err
+
+
+def test_verified_entry_exits_zero(catalog: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    status, _, err = run(["check", "catalog/riemannian/lighthouse-dome.yaml"], capsys)
+    assert status == 0, err
+    assert "1 entries checked: 1 verified, 0 failed" in err
+
+
+def test_json_contract(catalog: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    status, out, _ = run(["check", "catalog/", "--json"], capsys)
+    document = json.loads(out)
+    (entry,) = document["entries"]
+    assert status == 0
+    assert entry["id"] == "lighthouse-dome" and entry["ok"] is True
+    assert entry["file"] == "catalog/riemannian/lighthouse-dome.yaml"
+    assert entry["diagnostics"] == []
+    computed = entry["computed"]
+    assert CONTRACT_KEYS <= computed.keys()
+    assert computed["dimension"] == 2 and computed["signature"] == "++"
+    assert computed["weyl_squared"] is None  # below four dimensions: null, never zero
+    assert computed["petrov_type"] is None
+    rho = sympy.Symbol("rho")
+    # Round sphere of radius rho: R = 2/rho**2 (common practice).
+    assert sympy.simplify(parse_expr(computed["ricci_scalar"]) - 2 / rho**2) == 0
+    assert sympy.simplify(parse_expr(computed["kretschmann"]) - 4 / rho**4) == 0
+    methods = {v["subject"]: v["method"] for v in entry["verified"]}
+    assert methods["claims.ricci_scalar"] in ("exact", "sampled")
+
+
+def test_wrong_claim_fails_with_position(catalog: Path, capsys: pytest.CaptureFixture[str]
+                                         ) -> None:
+    path = catalog / "riemannian" / "lighthouse-dome.yaml"
+    path.write_text(path.read_text().replace("kretschmann: 4/rho**4", "kretschmann: 5/rho**4"))
+    status, _, err = run(["check", str(path.relative_to(catalog.parent))], capsys)
+    assert status == 1
+    first = err.splitlines()[0]
+    assert first.startswith("catalog/riemannian/lighthouse-dome.yaml:26:16: error: claimed "
+                            "kretschmann does not match the computed value")
+    assert first.endswith("[claim.kretschmann]")
+    assert err.splitlines()[1].startswith("    hint: computed: 4/rho**4")
+
+
+def test_github_format(catalog: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    path = catalog / "riemannian" / "lighthouse-dome.yaml"
+    path.write_text(path.read_text().replace("kretschmann: 4/rho**4", "kretschmann: 5/rho**4"))
+    status, out, _ = run(["check", "catalog", "--format", "github"], capsys)
+    assert status == 1
+    assert out.startswith("::error file=catalog/riemannian/lighthouse-dome.yaml,line=26,col=16,"
+                          "title=claim.kretschmann::claimed kretschmann does not match")
+
+
+def test_show_computed_prints_yaml(catalog: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    import yaml
+
+    status, out, _ = run(["check", "catalog", "--show-computed"], capsys)
+    assert status == 0
+    shown = yaml.safe_load(out)
+    assert shown["id"] == "lighthouse-dome"
+    assert shown["computed"]["dimension"] == 2
+
+
+def test_bad_usage_and_unreadable_input(catalog: Path, capsys: pytest.CaptureFixture[str]
+                                        ) -> None:
+    assert run(["check", "no-such-folder"], capsys)[0] == 2
+    assert run(["frobnicate"], capsys)[0] == 2
+    (catalog / "riemannian" / "garbage.yaml").write_bytes(b"\xff\xfe not utf-8")
+    status, _, err = run(["check", "catalog/riemannian/garbage.yaml"], capsys)
+    assert status == 2
+    assert "catalog/riemannian/garbage.yaml:1:1: error: file is not valid UTF-8" in err
+
+
+def test_broken_yaml_never_shows_a_traceback(catalog: Path) -> None:
+    (catalog / "riemannian" / "broken.yaml").write_text("id: [unclosed\n  title: {{\n")
+    result = subprocess.run([sys.executable, "-m", "generator", "check", "catalog", "--no-cache",
+                             "--jobs", "1"], capture_output=True, text=True, cwd=catalog.parent)
+    assert result.returncode == 1
+    assert "Traceback" not in result.stderr
+    assert "catalog/riemannian/broken.yaml:" in result.stderr
+    assert "error: invalid YAML" in result.stderr
