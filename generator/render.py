@@ -809,7 +809,9 @@ def entry_json(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "sympy_version": meta.sympy_version,
         "content_hash": report.content_hash,
         "url": cite.entry_url(meta, entry.id),
-        "entry": cite.canonical_form(entry),
+        "id": entry.id,
+        "file": entry.file,
+        "mathematics": cite.canonical_form(entry),
         "family": entry.family,
         "title": entry.title,
         "chart": entry.chart,
@@ -917,6 +919,9 @@ def sympy_script(report: EntryReport, meta: CatalogMeta) -> str:
         "# Metric Almanac: SymPy script that rebuilds one entry's metric.",
         "# Conventions: signature -+++, G = c = 1. Check against the original literature.",
         "import sympy",
+        "from sympy import (E, I, Abs, Derivative, LambertW, Rational, acos, acosh, acot, asin,",
+        "                   asinh, atan, atanh, cos, cosh, cot, csc, exp, log, pi, sec, sin,",
+        "                   sinh, sqrt, tan, tanh)",
         "",
         f"ENTRY_ID = {python_literal(entry.id)}",
         f"TITLE = {python_literal(entry.title)}",
@@ -943,7 +948,8 @@ def sympy_script(report: EntryReport, meta: CatalogMeta) -> str:
         for j in range(i, n):
             if st.metric[i, j] != 0:
                 value = expr_text(st.metric[i, j])
-                lines.append(f"metric[{i}, {j}] = metric[{j}, {i}] = {value}")
+                target = f"metric[{i}, {j}]" if i == j else f"metric[{i}, {j}] = metric[{j}, {i}]"
+                lines.append(f"{target} = {value}")
     lines += ["metric = sympy.ImmutableMatrix(metric)", "",
               'if __name__ == "__main__":', "    sympy.pprint(metric)", ""]
     return "\n".join(lines)
