@@ -1,0 +1,87 @@
+"""Plots: deterministic SVG, honest labels, samples only inside the entry's domain.
+
+Reference values: the Schwarzschild Kretschmann scalar 48 M^2 / r^6 (from memory; e.g.
+Henry, Astrophys. J. 535, 350 (2000), eq. 1) evaluated independently with mpmath.
+"""
+
+from __future__ import annotations
+
+import importlib.util
+import xml.etree.ElementTree as ET
+from dataclasses import replace
+from pathlib import Path
+from types import ModuleType
+
+import mpmath
+import numpy
+import sympy
+
+from generator import plots
+
+ROOTS = Path(__file__).parent / "roots"
+
+
+def load_demo() -> ModuleType:
+    spec = importlib.util.spec_from_file_location("site_demo_reports",
+                                                  ROOTS / "site-demo" / "reports.py")
+    assert spec and spec.loader
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    return module
+
+
+demo = load_demo()
+
+
+def test_radial_entries_get_invariant_and_metric_function_plots() -> None:
+    figures = plots.entry_plots(demo.lantern_report())
+    assert [f.file_name for f in figures] == ["invariants.svg", "metric-functions.svg"]
+    for figure in figures:
+        root = ET.fromstring(figure.svg)
+        assert root.tag.endswith("svg")
+        text = "".join(root.itertext())
+        assert "G = c = 1" in text
+        assert "m = 1" in text and "q = 1/2" in text  # parameter values on the plot
+        assert "m = 1" in figure.alt and figure.caption
+
+
+def test_parameter_values_respect_the_domain() -> None:
+    report = demo.lantern_report()
+    values = plots.parameter_values(report)
+    m, q = report.spacetime.parameters
+    assert values[q] < values[m]  # domain says q < m
+
+
+def test_plots_are_byte_identical_across_runs_and_carry_no_date() -> None:
+    first = plots.entry_plots(demo.lantern_report())
+    second = plots.entry_plots(demo.lantern_report())
+    assert [f.svg for f in first] == [f.svg for f in second]
+    assert all("<dc:date>" not in f.svg for f in first)
+
+
+def test_entries_without_a_radial_coordinate_get_no_plots() -> None:
+    assert plots.entry_plots(demo.tide_report()) == ()
+
+
+def test_samples_outside_the_domain_are_dropped_and_inside_match_mpmath() -> None:
+    report = demo.lantern_report()
+    r = report.spacetime.coordinates[1]
+    m = report.spacetime.parameters[0]
+    schwarzschild_like = replace(report, spacetime=replace(
+        report.spacetime, parameters=(m,), domain=(sympy.StrictGreaterThan(r, 2 * m),)))
+    setting = plots.plot_setting(schwarzschild_like, "r")
+    values = plots.sample(48 * m**2 / r**6, setting, schwarzschild_like.spacetime)
+    assert values is not None
+    radius = numpy.linspace(setting.low, setting.high, plots.SAMPLE_COUNT)[1:]
+    outside = radius <= 2.0
+    assert numpy.isnan(values[outside]).all()
+    for x, y in zip(radius[~outside], values[~outside], strict=True):
+        expected = mpmath.mpf(48) / mpmath.mpf(float(x)) ** 6
+        assert abs(y - float(expected)) <= 1e-12 * float(expected)
+
+
+def test_expressions_with_free_functions_are_not_sampled() -> None:
+    report = demo.lantern_report()
+    setting = plots.plot_setting(report, "r")
+    unknown = sympy.Function("h")(report.spacetime.coordinates[1])
+    assert plots.sample(unknown, setting, report.spacetime) is None
