@@ -1,0 +1,99 @@
+"""Sample points: exact, inside the domain, respecting assumptions, deterministic."""
+
+from __future__ import annotations
+
+import sympy as sp
+from _known_metrics import (
+    Lam,
+    M,
+    a,
+    flrw_flat,
+    kerr,
+    kerr_de_sitter,
+    r,
+    schwarzschild,
+    spacetime,
+    t,
+    theta,
+)
+
+from generator.sampling import (
+    angle_coordinates,
+    inside_domain,
+    regular_at,
+    sample_points,
+    substitute,
+)
+
+
+def test_points_are_exact_and_inside_the_domain() -> None:
+    st = kerr()
+    points = sample_points(st, 6, seed=7)
+    assert len(points) == 6
+    for p in points:
+        assert all(p[s].is_Rational for s in (M, a, r))
+        assert p[M] > 0 and p[a] > 0
+        assert p[r] > 2 * p[M] + p[a]
+        assert inside_domain(st, p)
+
+
+def test_angles_sit_on_rational_points_of_the_unit_circle() -> None:
+    st = schwarzschild()
+    assert angle_coordinates(st) == (theta,)
+    for p in sample_points(st, 5, seed=3):
+        s, c = p[sp.sin(theta)], p[sp.cos(theta)]
+        assert s.is_Rational and c.is_Rational
+        assert s**2 + c**2 == 1
+        # the angle itself is consistent with its sine and cosine (common practice: the
+        # half-angle parametrisation of the circle)
+        assert abs(sp.sin(p[theta]).evalf(30) - s) < 1e-25
+        assert 0 < p[theta].evalf() < sp.pi.evalf()
+        exact = substitute(sp.tan(theta) + sp.sin(3 * theta), p, (theta,))
+        assert exact.is_Rational
+
+
+def test_deterministic_for_a_seed_and_different_across_seeds() -> None:
+    st = kerr_de_sitter()
+    first = sample_points(st, 4, seed=11)
+    assert first == sample_points(st, 4, seed=11)
+    assert first != sample_points(st, 4, seed=12)
+    for p in first:
+        delta_r = (p[r] ** 2 + p[a] ** 2) * (1 - p[Lam] * p[r] ** 2 / 3) - 2 * p[M] * p[r]
+        assert delta_r > 0
+
+
+def test_free_functions_and_derivatives_get_independent_values() -> None:
+    st = flrw_flat()
+    scale = st.functions[0]
+    p = sample_points(st, 1, seed=5)[0]
+    values = [p[scale], p[sp.Derivative(scale, t)], p[sp.Derivative(scale, (t, 2))]]
+    assert all(v.is_Rational for v in values)
+    assert p[scale] > 0  # declared positive
+    assert len(set(values)) == 3
+    expr = sp.Derivative(scale, (t, 2)) * scale
+    assert substitute(expr, p) == values[2] * values[0]
+
+
+def test_parameter_assumptions_are_respected() -> None:
+    n = sp.Symbol("n", integer=True, positive=True)
+    q = sp.Symbol("q", negative=True)
+    st = spacetime((t, r), (n, q), sp.diag(-1, 1), signature="-+")
+    for p in sample_points(st, 10, seed=1):
+        assert p[n].is_Integer and p[n] > 0
+        assert p[q] < 0
+
+
+def test_empty_domain_gives_no_points() -> None:
+    st = spacetime((t, r), (), sp.diag(-1, 1), domain=(sp.Gt(r, 1), sp.Lt(r, 0)), signature="-+")
+    assert sample_points(st, 3, seed=1) == []
+
+
+def test_singular_points_of_the_metric_are_avoided() -> None:
+    # g_rr = 1/(r - 1) blows up at r = 1 and the metric degenerates at r = 0: never sampled.
+    st = spacetime((t, r), (), sp.diag(-r, 1 / (r - 1)), domain=(sp.Gt(r, 0), sp.Lt(r, 2)),
+                   signature="-+")
+    assert not regular_at(st, {t: 0, r: sp.Integer(1)})
+    assert not regular_at(st, {t: 0, r: sp.Integer(0)})
+    assert regular_at(st, {t: 0, r: sp.Rational(3, 2)})
+    for p in sample_points(st, 10, seed=2):
+        assert p[r] not in (0, 1)
