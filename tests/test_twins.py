@@ -1,0 +1,215 @@
+"""Duplicate detection (generator/twins.py) on hand-built reports.
+
+Published metrics used (standard forms, common practice; from memory):
+- Schwarzschild in Schwarzschild, isotropic and ingoing Eddington–Finkelstein coordinates
+  (e.g. C. W. Misner, K. S. Thorne, J. A. Wheeler, "Gravitation", 1973, §31.2 and ex. 31.7;
+  isotropic form g = -((1 - m/2ρ)/(1 + m/2ρ))² dt² + (1 + m/2ρ)⁴ (dρ² + ρ² dΩ²)).
+- Reissner–Nordström, f = 1 - 2M/r + Q²/r² (G = c = 1, Gaussian units).
+- de Sitter in static coordinates (f = 1 - r²/ℓ², R = 12/ℓ²) and in the flat slicing
+  (-dt² + e^{2Ht} dx², R = 12 H²): the same space with ℓ = 1/H.
+The classifications (matter kind, Petrov type) are stated by hand, as known facts of the trade.
+The two "lantern" metrics are a demo pair of our own: same fingerprint, different spacetimes.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+import pytest
+import sympy as sp
+from _entry_builders import schwarzschild
+
+from generator.geometry import compute_geometry
+from generator.model import Classification, EntryReport, RelatedChart, Spacetime
+from generator.twins import find_all_twins, find_twins, fingerprint, twin_diagnostics
+
+t, r, th, ph, rho, v, x, y, z = sp.symbols("t r theta phi rho v x y z", real=True)
+M, m, ell, H = sp.symbols("M m ell H", positive=True)
+Q, c = sp.symbols("Q c", real=True)
+ANGLES = [th > 0, th < sp.pi]
+
+
+def spacetime(
+    coords: list, params: list, metric: sp.Matrix, domain: list, signature: str = "-+++"
+) -> Spacetime:
+    return Spacetime(
+        tuple(coords), tuple(params), (), sp.ImmutableMatrix(metric), signature, 1, tuple(domain)
+    )
+
+
+def report(
+    entry_id: str, s: Spacetime, kind: str, petrov: str | None = "D", lam: sp.Expr | None = None
+) -> EntryReport:
+    classification = Classification(kind, lam, None, None, None, None, (), petrov, None, (), (), ())
+    entry = schwarzschild(id=entry_id)
+    return EntryReport(entry, entry.file, s, compute_geometry(s), classification, (), ())
+
+
+def static_spherical(f: sp.Expr, params: list, domain: list) -> Spacetime:
+    return spacetime(
+        [t, r, th, ph], params, sp.diag(-f, 1 / f, r**2, r**2 * sp.sin(th) ** 2), domain
+    )
+
+
+@pytest.fixture(scope="module")
+def schwarzschild_charts() -> dict[str, EntryReport]:
+    f = 1 - 2 * M / r
+    a, b = (1 - m / (2 * rho)) / (1 + m / (2 * rho)), (1 + m / (2 * rho)) ** 4
+    ef = sp.Matrix(
+        [[-f, 1, 0, 0], [1, 0, 0, 0], [0, 0, r**2, 0], [0, 0, 0, r**2 * sp.sin(th) ** 2]]
+    )
+    g = 1 - 2 * M / r + Q**2 / r**2
+    return {
+        "schwarzschild": report(
+            "schwarzschild", static_spherical(f, [M], [r > 2 * M, *ANGLES]), "vacuum"
+        ),
+        "isotropic": report(
+            "schwarzschild-isotropic",
+            spacetime(
+                [t, rho, th, ph],
+                [m],
+                sp.diag(-(a**2), b, b * rho**2, b * rho**2 * sp.sin(th) ** 2),
+                [rho > m / 2, *ANGLES],
+            ),
+            "vacuum",
+        ),
+        "eddington": report(
+            "schwarzschild-ef", spacetime([v, r, th, ph], [M], ef, [r > 2 * M, *ANGLES]), "vacuum"
+        ),
+        "reissner": report(
+            "reissner-nordstrom",
+            static_spherical(g, [M, Q], [r > 2 * M, Q**2 < M**2, *ANGLES]),
+            "electrovacuum",
+        ),
+    }
+
+
+@pytest.mark.slow
+def test_two_charts_of_schwarzschild_are_flagged(schwarzschild_charts) -> None:
+    new = schwarzschild_charts["isotropic"]
+    others = list(schwarzschild_charts.values())
+    found = dict(find_twins(new, others))
+    assert set(found) == {"schwarzschild", "schwarzschild-ef"}
+    assert found["schwarzschild"].startswith(
+        "same kind (4D, vacuum, Petrov D, 1 independent invariant)"
+    )
+    assert "kretschmann" in found["schwarzschild"]
+
+
+@pytest.mark.slow
+def test_schwarzschild_and_reissner_nordstrom_are_not_twins(schwarzschild_charts) -> None:
+    new = schwarzschild_charts["schwarzschild"]
+    assert "reissner-nordstrom" not in dict(find_twins(new, list(schwarzschild_charts.values())))
+    assert find_twins(schwarzschild_charts["reissner"], list(schwarzschild_charts.values())) == []
+
+
+@pytest.mark.slow
+def test_related_charts_are_skipped(schwarzschild_charts) -> None:
+    new = schwarzschild_charts["isotropic"]
+    link = RelatedChart("schwarzschild", (), new.entry.pos("related"))
+    linked = replace(new, entry=replace(new.entry, related=(link,)))
+    found = dict(find_twins(linked, list(schwarzschild_charts.values())))
+    assert set(found) == {"schwarzschild-ef"}
+
+
+@pytest.mark.slow
+def test_same_fingerprint_different_spacetime_is_not_flagged() -> None:
+    """Demo pair: f = 1 - 2M/r + c/r**3 and f = 1 - 2M/r + c/r**4 share every exact
+    fingerprint part (4D, unspecified matter, no invariant vanishes, rank 1) but their
+    invariants never take the same values together."""
+    domain = [r > 2 * M, c > 0, c < M**3, *ANGLES]
+    cubic = report(
+        "lantern-cubic",
+        static_spherical(1 - 2 * M / r + c / r**3, [M, c], domain),
+        "unspecified",
+        None,
+    )
+    quartic = report(
+        "lantern-quartic",
+        static_spherical(1 - 2 * M / r + c / r**4, [M, c], domain),
+        "unspecified",
+        None,
+    )
+    assert fingerprint(cubic) == fingerprint(quartic)  # so the values decide
+    assert find_twins(cubic, [quartic]) == []
+
+
+def test_de_sitter_charts_match_with_a_rescaled_parameter() -> None:
+    """ℓ (static) against H (flat slicing): no renaming maps one to the other, only ℓ = 1/H."""
+    lam_static, lam_flat = 3 / ell**2, 3 * H**2
+    static = report(
+        "de-sitter-static",
+        static_spherical(1 - r**2 / ell**2, [ell], [r > 0, r < ell, *ANGLES]),
+        "lambda-vacuum",
+        "O",
+        lam_static,
+    )
+    e = sp.exp(2 * H * t)
+    flat = report(
+        "de-sitter-flat",
+        spacetime([t, x, y, z], [H], sp.diag(-1, e, e, e), []),
+        "lambda-vacuum",
+        "O",
+        lam_flat,
+    )
+    (pair,) = find_twins(static, [flat])
+    assert pair[0] == "de-sitter-flat"
+    assert "0 independent invariants" in pair[1]
+
+
+def test_sphere_is_not_the_hyperbolic_plane() -> None:
+    """Demo 2D Riemannian pair: curvature +2/ℓ² against -2/ℓ² (same fingerprint otherwise)."""
+    sphere = report(
+        "lantern-sphere",
+        spacetime([th, ph], [ell], sp.diag(ell**2, ell**2 * sp.sin(th) ** 2), ANGLES, "++"),
+        "unspecified",
+        None,
+    )
+    hyperbolic = report(
+        "lantern-saddle",
+        spacetime([x, y], [ell], sp.diag(ell**2 / y**2, ell**2 / y**2), [y > 0], "++"),
+        "unspecified",
+        None,
+    )
+    stereographic = report(
+        "lantern-sphere-stereo",
+        spacetime([x, y], [m], sp.diag(*(2 * [4 * m**2 / (1 + x**2 + y**2) ** 2])), [], "++"),
+        "unspecified",
+        None,
+    )
+    assert fingerprint(sphere) == fingerprint(hyperbolic)  # so the values decide
+    assert find_twins(sphere, [hyperbolic]) == []
+    assert [pair[0] for pair in find_twins(sphere, [hyperbolic, stereographic])] == [
+        "lantern-sphere-stereo"
+    ]
+
+
+def test_different_petrov_type_or_matter_is_never_a_twin() -> None:
+    sphere = spacetime([th, ph], [ell], sp.diag(ell**2, ell**2 * sp.sin(th) ** 2), ANGLES, "++")
+    a = report("lantern-a", sphere, "unspecified", None)
+    b = report("lantern-b", sphere, "vacuum", None)
+    assert find_twins(a, [b]) == []
+    assert [p[0] for p in find_twins(a, [report("lantern-c", sphere, "unspecified", None)])] == [
+        "lantern-c"
+    ]
+
+
+def test_entries_with_free_functions_or_without_geometry_are_not_compared() -> None:
+    sphere = spacetime([th, ph], [ell], sp.diag(ell**2, ell**2 * sp.sin(th) ** 2), ANGLES, "++")
+    a = report("lantern-a", sphere, "unspecified", None)
+    b = report("lantern-b", sphere, "unspecified", None)
+    with_function = replace(b, spacetime=replace(sphere, functions=(sp.Function("w")(th),)))
+    assert find_twins(a, [with_function]) == []
+    assert find_twins(a, [replace(b, geometry=None)]) == []
+    assert find_twins(replace(a, entry=None), [b]) == []
+
+
+def test_find_all_twins_and_warnings() -> None:
+    sphere = spacetime([th, ph], [ell], sp.diag(ell**2, ell**2 * sp.sin(th) ** 2), ANGLES, "++")
+    a = report("lantern-a", sphere, "unspecified", None)
+    b = report("lantern-b", sphere, "unspecified", None)
+    found = find_all_twins([a], [a, b])
+    assert list(found) == ["lantern-a"] and found["lantern-a"][0][0] == "lantern-b"
+    (warning,) = twin_diagnostics(a, found["lantern-a"])
+    assert warning.severity == "warning" and warning.code == "entry.duplicate"
+    assert warning.message.startswith("probably the same spacetime as entry 'lantern-b': same kind")
