@@ -377,3 +377,43 @@ def test_issue_becomes_bibtex_number_and_csl_issue() -> None:
     (item,) = json.loads(cite_original(schwarzschild(references=(ref,)), "csl-json"))
     assert (item["issue"], item["page"]) == ("9", "106-120")
     jsonschema.validate([item], CSL_SCHEMA)
+
+
+# ---------------------------------------------------------------------------- CITATION.cff
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def _cff() -> dict:
+    import yaml
+
+    return yaml.safe_load((ROOT / "CITATION.cff").read_text(encoding="utf-8"))
+
+
+def test_citation_cff_validates_against_the_cff_schema_subset() -> None:
+    """tests/data/citation-cff.schema.json: a subset of the Citation File Format 1.2.0 schema,
+    written from memory; it refuses unknown keys like the original."""
+    schema = json.loads((ROOT / "tests" / "data" / "citation-cff.schema.json").read_text())
+    jsonschema.validate(_cff(), schema)
+    with pytest.raises(jsonschema.ValidationError):
+        jsonschema.validate({**_cff(), "colour": "blue"}, schema)
+
+
+def test_citation_cff_agrees_with_pyproject() -> None:
+    import tomllib
+
+    project = tomllib.loads((ROOT / "pyproject.toml").read_text(encoding="utf-8"))["project"]
+    cff = _cff()
+    assert str(cff["version"]) == project["version"]
+    assert cff["title"].lower().replace(" ", "-") == project["name"]
+    assert " ".join(cff["abstract"].split()) == project["description"]
+    license = project["license"]
+    assert cff["license"] == (license if isinstance(license, str) else license["text"])
+
+
+def test_citation_cff_names_the_same_author_as_entry_citations() -> None:
+    from generator.cite import CATALOG_AUTHOR, CATALOG_NAME
+
+    cff = _cff()
+    assert cff["authors"] == [{"name": CATALOG_AUTHOR}]
+    assert cff["title"] == CATALOG_NAME
