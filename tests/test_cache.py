@@ -1,0 +1,197 @@
+"""The result cache: skip unchanged entries, recompute changed ones, never trust a foreign file.
+
+The check stage is replaced by a fake that records each call (``install_counting_engine``),
+so "not recomputed" is observed directly, without timing. The tampering tests plant a pickle
+whose unpickling would create a file; the file must never appear.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import hmac
+import pickle
+from pathlib import Path
+
+import pytest
+from _scale_helpers import (
+    ENTRY_COUNT,
+    catalog_files,
+    comparable,
+    copy_catalog,
+    install_counting_engine,
+)
+
+from generator.cache import FORMAT, SECRET_ENV, ResultCache
+from generator.pipeline import RunOptions, check_files
+
+
+class CreatesFileWhenUnpickled:
+    """A pickle payload with a visible side effect: unpickling it touches ``path``."""
+
+    def __init__(self, path: Path) -> None:
+        self.path = path
+
+    def __reduce__(self) -> tuple:
+        return (Path.touch, (self.path,))
+
+
+@pytest.fixture(autouse=True)
+def cache_secret(monkeypatch: pytest.MonkeyPatch) -> str:
+    """A fixed secret, so the tests never create a key file in the user's home."""
+    monkeypatch.setenv(SECRET_ENV, "secret-of-this-machine")
+    return "secret-of-this-machine"
+
+
+def run(root: Path, cache: Path, files: list[Path] | None = None, seconds: float = 300.0):
+    options = RunOptions(jobs=1, cache_dir=cache, seconds_per_entry=seconds)
+    return check_files(files or catalog_files(root), root, root.parent, options)
+
+
+def cache_files(cache: Path) -> list[Path]:
+    return sorted(p for p in cache.rglob("*.bin"))
+
+
+def signed(secret: str, key: str, payload: bytes) -> bytes:
+    """A cache file in the documented layout: format line, HMAC-SHA256(key + payload), payload."""
+    signature = hmac.new(secret.encode(), key.encode() + payload, hashlib.sha256).digest()
+    return FORMAT + signature + payload
+
+
+# ---------------------------------------------------------------------------- reuse
+
+
+def test_unchanged_entries_are_never_recomputed(tmp_path, monkeypatch):
+    root, cache = copy_catalog(tmp_path), tmp_path / "cache"
+    calls = install_counting_engine(monkeypatch)
+    first = run(root, cache)
+    assert len(calls) == ENTRY_COUNT
+    second = run(root, cache)
+    assert len(calls) == ENTRY_COUNT, "a second run over unchanged files computed again"
+    assert [comparable(r) for r in second] == [comparable(r) for r in first]
+
+
+def test_a_changed_entry_is_recomputed_and_only_it(tmp_path, monkeypatch):
+    root, cache = copy_catalog(tmp_path), tmp_path / "cache"
+    calls = install_counting_engine(monkeypatch)
+    run(root, cache)
+    flat = root / "maximally-symmetric" / "flat-spherical.yaml"
+    flat.write_text(flat.read_text().replace("Flat spacetime", "Empty flat spacetime"))
+    calls.clear()
+    reports = run(root, cache)
+    assert calls == ["catalog/maximally-symmetric/flat-spherical.yaml"]
+    assert "Empty flat spacetime" in reports[-1].entry.summary
+
+
+def test_changing_a_linked_entry_recomputes_the_entries_that_link_to_it(tmp_path, monkeypatch):
+    root, cache = copy_catalog(tmp_path), tmp_path / "cache"
+    calls = install_counting_engine(monkeypatch)
+    run(root, cache)
+    target = root / "black-holes" / "point-mass.yaml"
+    target.write_text(target.read_text().replace("outside a mass M", "outside a mass M."))
+    calls.clear()
+    run(root, cache)
+    assert sorted(calls) == ["catalog/black-holes/point-mass-rain.yaml",
+                             "catalog/black-holes/point-mass.yaml"]
+
+
+def test_a_different_budget_is_a_different_result(tmp_path, monkeypatch):
+    root, cache = copy_catalog(tmp_path), tmp_path / "cache"
+    files = [root / "maximally-symmetric" / "flat-spherical.yaml"]
+    calls = install_counting_engine(monkeypatch)
+    run(root, cache, files, seconds=300.0)
+    run(root, cache, files, seconds=300.0)
+    assert len(calls) == 1
+    run(root, cache, files, seconds=30.0)
+    assert len(calls) == 2
+
+
+def test_budget_failures_are_not_cached(tmp_path, monkeypatch):
+    root, cache = copy_catalog(tmp_path), tmp_path / "cache"
+    calls = install_counting_engine(monkeypatch, budget_failure_for="point-mass")
+    run(root, cache)
+    calls.clear()
+    run(root, cache)
+    assert calls == ["catalog/black-holes/point-mass.yaml"]
+    assert len(cache_files(cache)) == ENTRY_COUNT - 1
+
+
+# ---------------------------------------------------------------------------- damaged files
+
+
+def one_cached_entry(tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+                     ) -> tuple[Path, Path, list[Path], list[str], Path]:
+    """Check one entry into a fresh cache; return root, cache, files, calls and its cache file."""
+    root, cache = copy_catalog(tmp_path), tmp_path / "cache"
+    files = [root / "maximally-symmetric" / "flat-spherical.yaml"]
+    calls = install_counting_engine(monkeypatch)
+    run(root, cache, files)
+    (cached,) = cache_files(cache)
+    return root, cache, files, calls, cached
+
+
+@pytest.mark.parametrize("damage", ["truncated", "flipped-byte", "empty", "header-only"])
+def test_damaged_cache_files_are_recomputed(tmp_path, monkeypatch, damage):
+    root, cache, files, calls, cached = one_cached_entry(tmp_path, monkeypatch)
+    blob = cached.read_bytes()
+    damaged = {
+        "truncated": blob[: len(blob) // 2],
+        "flipped-byte": blob[:-10] + bytes([blob[-10] ^ 0x01]) + blob[-9:],
+        "empty": b"",
+        "header-only": FORMAT,
+    }[damage]
+    cached.write_bytes(damaged)
+    assert ResultCache(cache).get(cached.stem) is None
+    (report,) = run(root, cache, files)
+    assert len(calls) == 2
+    assert report.ok
+    assert ResultCache(cache).get(cached.stem) is not None, "the damaged file was not replaced"
+
+
+def test_the_planted_payload_really_has_a_side_effect(tmp_path, cache_secret):
+    """Control: the payload touches its file when unpickled, and a correctly signed file *is*
+    unpickled, so the tests below pass only because the signature check refuses."""
+    payload = pickle.dumps(CreatesFileWhenUnpickled(tmp_path / "plain"))
+    pickle.loads(payload)
+    assert (tmp_path / "plain").exists()
+    cache = ResultCache(tmp_path / "cache")
+    key = "ab" + "0" * 62
+    marker = tmp_path / "through-the-cache"
+    cache._path(key).parent.mkdir(parents=True)
+    cache._path(key).write_bytes(signed(cache_secret, key,
+                                        pickle.dumps(CreatesFileWhenUnpickled(marker))))
+    assert cache.get(key) is None  # not a report...
+    assert marker.exists()  # ...but it was unpickled
+
+
+@pytest.mark.parametrize("forgery", ["unsigned", "wrong-signature", "other-secret",
+                                     "signed-for-another-key"])
+def test_forged_cache_files_are_never_unpickled(tmp_path, monkeypatch, cache_secret, forgery):
+    root, cache, files, calls, cached = one_cached_entry(tmp_path, monkeypatch)
+    key = cached.stem
+    marker = tmp_path / "planted-pickle-ran"
+    payload = pickle.dumps(CreatesFileWhenUnpickled(marker), protocol=pickle.HIGHEST_PROTOCOL)
+    cached.write_bytes({
+        "unsigned": payload,
+        "wrong-signature": FORMAT + bytes(32) + payload,
+        "other-secret": signed("secret-of-another-machine", key, payload),
+        "signed-for-another-key": signed(cache_secret, "f" * 64, payload),
+    }[forgery])
+    assert ResultCache(cache).get(key) is None
+    (report,) = run(root, cache, files)
+    assert not marker.exists(), "the cache unpickled a file it did not sign"
+    assert len(calls) == 2
+    assert report.ok and report.entry.id == "flat-spherical"
+    assert ResultCache(cache).get(key) is not None
+
+
+def test_a_cache_written_under_another_secret_is_ignored(tmp_path, monkeypatch):
+    root, cache = copy_catalog(tmp_path), tmp_path / "cache"
+    files = [root / "maximally-symmetric" / "flat-spherical.yaml"]
+    calls = install_counting_engine(monkeypatch)
+    monkeypatch.setenv(SECRET_ENV, "secret-of-another-machine")
+    run(root, cache, files)
+    monkeypatch.setenv(SECRET_ENV, "secret-of-this-machine")
+    run(root, cache, files)
+    assert len(calls) == 2
+    run(root, cache, files)
+    assert len(calls) == 2, "the file rewritten under this machine's secret was not reused"
