@@ -67,6 +67,7 @@ def _field_of(
 
 
 def _decide(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decision:
+    left, right = _without_subs(left), _without_subs(right)
     try:
         field, (a, b) = _field_of((left, right), spacetime)
         normal_zero: bool | None = field.equal(a, b)
@@ -86,6 +87,14 @@ def _decide(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decisi
     if normal_zero:
         return Decision(True, "exact", f"normal form is zero; confirmed at {len(points)} points")
     return _nonzero_without_witness(left, right, spacetime, len(points))
+
+
+def _without_subs(expr: sympy.Expr) -> sympy.Expr:
+    """Evaluate ``Subs`` objects (SymPy writes derivatives of f(g(x)) with them) so both the
+    field and the sample points see plain derivatives of the free functions."""
+    if not expr.has(sympy.Subs):
+        return expr
+    return expr.replace(lambda e: isinstance(e, sympy.Subs), lambda e: e.doit())
 
 
 def _nonzero_without_witness(
