@@ -212,23 +212,24 @@ _TYPED_SCALARS = {
 
 
 def main(argv: list[str] | None = None) -> int:
-    """Write (or with ``--check`` compare) ``schema/entry.schema.json`` under the given root."""
+    """Write (or with ``--check`` compare) ``schema/entry.schema.json`` under the given root.
+
+    Exit status: 0 written or up to date, 1 out of date.
+    """
     args = sys.argv[1:] if argv is None else argv
     root = Path(next((a for a in args if not a.startswith("-")), "."))
-    if "--check" in args:
-        current = (
-            (root / SCHEMA_PATH).read_text(encoding="utf-8")
-            if (root / SCHEMA_PATH).exists()
-            else ""
-        )
-        if current != render_schema():
-            print(
-                f"{SCHEMA_PATH}: out of date; run python -m generator.jsonschema_export",
-                file=sys.stderr,
-            )
-            return 1
+    if "--check" not in args:
+        print(write_schema(root))
         return 0
-    print(write_schema(root))
+    target = root / SCHEMA_PATH
+    current = target.read_text(encoding="utf-8") if target.exists() else ""
+    if current != render_schema(root):
+        print(
+            f"{target}: out of date with generator/schema.py; "
+            "run python -m generator.jsonschema_export (or python -m generator schema)",
+            file=sys.stderr,
+        )
+        return 1
     return 0
 
 

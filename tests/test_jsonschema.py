@@ -68,11 +68,14 @@ def test_every_declared_key_is_in_the_schema_with_its_doc() -> None:
 
 
 def _descend(node: dict, part: str) -> dict:
+    """One step of a dotted path from ``schema.walk``: ``key``, ``key[]`` (list items) or
+    ``<name>`` (the values of a free-keyed mapping)."""
     if "anyOf" in node:  # long-form claims: the record alternative holds the keys
         node = next(alt for alt in node["anyOf"] if "properties" in alt)
-    if part.endswith("[]"):  # list items, or the values of a free-keyed mapping
-        container = node["properties"][part[:-2]]
-        return container.get("items") or container["additionalProperties"]
+    if part == "<name>":
+        return node["additionalProperties"]
+    if part.endswith("[]"):
+        return node["properties"][part[:-2]]["items"]
     return node["properties"][part]
 
 
