@@ -117,7 +117,9 @@ def _decide_sampled(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -
             continue
         used += 1
         if differs:
-            return Decision(False, "sampled", "differs at a sample point", _witness(point, spacetime))
+            return Decision(
+                False, "sampled", "differs at a sample point", _witness(point, spacetime)
+            )
     if used < MINIMUM_SAMPLED:
         return Decision(None, "failed", f"only {used} usable sample points in the domain")
     return Decision(
@@ -165,6 +167,10 @@ def _numerically_differ(a: sympy.Expr, b: sympy.Expr) -> bool | None:
 def _witness(point: Point, spacetime: Spacetime) -> dict[str, str]:
     """The point as readable strings: coordinates, parameters and free-function values."""
     keys = list(spacetime.parameters) + list(spacetime.coordinates)
-    keys += [k for k in point if isinstance(k, (sympy.Function, sympy.Derivative))
-             and not isinstance(k, (sympy.sin, sympy.cos))]
+    keys += [
+        k
+        for k in point
+        if isinstance(k, (sympy.Function, sympy.Derivative))
+        and not isinstance(k, (sympy.sin, sympy.cos))
+    ]
     return {str(k): str(point[k]) for k in keys if k in point}

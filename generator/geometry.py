@@ -21,7 +21,7 @@ from typing import Any, Protocol
 
 import sympy
 
-from .algebra import Frac, FieldRequest, NotInField, RationalField, build_field, pairs
+from .algebra import FieldRequest, Frac, NotInField, RationalField, build_field, pairs
 from .errors import AlmanacError, BudgetExceeded
 from .model import Geometry, Index, Spacetime
 
@@ -146,9 +146,11 @@ def _is_rational_function(x: sympy.Expr) -> bool:
     for node in sympy.preorder_traversal(x):
         if isinstance(node, sympy.Pow) and not node.exp.is_Integer:
             return False
-        if isinstance(node, sympy.Function) and not isinstance(node, sympy.core.function.AppliedUndef):
+        if isinstance(node, sympy.Function) and not isinstance(
+            node, sympy.core.function.AppliedUndef
+        ):
             return False
-        if node.is_Float or node.is_number and not node.is_Rational and not node.is_Atom:
+        if node.is_Float or (node.is_number and not node.is_Rational and not node.is_Atom):
             return False
     return True
 
@@ -185,9 +187,7 @@ def compute_geometry(spacetime: Spacetime, limits: Limits | None = None) -> Geom
     return compute_geometry_with(spacetime, limits, engine="auto")
 
 
-def compute_geometry_with(
-    spacetime: Spacetime, limits: Limits | None, engine: str
-) -> Geometry:
+def compute_geometry_with(spacetime: Spacetime, limits: Limits | None, engine: str) -> Geometry:
     """``engine``: "auto" (field, SymPy as fallback), "rational-function" or "sympy"; the
     forced engines exist so tests and the benchmark can compare the two paths."""
     started = time.monotonic()
@@ -262,7 +262,9 @@ def curvature(ar: Arithmetic, g: list[list[Any]], budget: Budget) -> Tensors:
     einstein = _einstein(ar, ricci, g, half_r, n)
     einstein_mixed = _einstein_mixed(ar, mixed, half_r, n)
     budget.check("invariants", ar)
-    ricci_squared = ar.sum([ar.product(mixed[a][b], mixed[b][a]) for a in range(n) for b in range(n)])
+    ricci_squared = ar.sum(
+        [ar.product(mixed[a][b], mixed[b][a]) for a in range(n) for b in range(n)]
+    )
     bivector = bivector_inverse(ar, ginv, n)
     kretschmann = pair_square(ar, riemann, bivector, n)
     budget.check("invariants", ar, [kretschmann, ricci_squared])
@@ -278,20 +280,35 @@ def curvature(ar: Arithmetic, g: list[list[Any]], budget: Budget) -> Tensors:
         for c in range(b, n)
         if not ar.is_zero(second[a][b][c])
     }
-    return Tensors(ginv, christoffel, riemann, ricci, scalar, einstein, einstein_mixed, weyl,
-                   kretschmann, ricci_squared, weyl_squared)
+    return Tensors(
+        ginv,
+        christoffel,
+        riemann,
+        ricci,
+        scalar,
+        einstein,
+        einstein_mixed,
+        weyl,
+        kretschmann,
+        ricci_squared,
+        weyl_squared,
+    )
 
 
 def _einstein(ar: Arithmetic, ricci: list, g: list, half_r: Any, n: int) -> list[list[Any]]:
     minus_half_r = ar.scale(half_r, sympy.Integer(-1))
-    return [[ar.sum([ricci[a][b], ar.product(minus_half_r, g[a][b])]) for b in range(n)]
-            for a in range(n)]
+    return [
+        [ar.sum([ricci[a][b], ar.product(minus_half_r, g[a][b])]) for b in range(n)]
+        for a in range(n)
+    ]
 
 
 def _einstein_mixed(ar: Arithmetic, mixed: list, half_r: Any, n: int) -> list[list[Any]]:
     minus_half_r = ar.scale(half_r, sympy.Integer(-1))
-    return [[ar.sum([mixed[a][b], minus_half_r]) if a == b else mixed[a][b] for b in range(n)]
-            for a in range(n)]
+    return [
+        [ar.sum([mixed[a][b], minus_half_r]) if a == b else mixed[a][b] for b in range(n)]
+        for a in range(n)
+    ]
 
 
 def inverse_matrix(ar: Arithmetic, g: list[list[Any]], budget: Budget) -> list[list[Any]]:
@@ -309,7 +326,8 @@ def inverse_matrix(ar: Arithmetic, g: list[list[Any]], budget: Budget) -> list[l
             if r != col and not ar.is_zero(rows[r][col]):
                 factor = ar.scale(rows[r][col], sympy.Integer(-1))
                 rows[r] = [
-                    ar.sum([x, ar.product(factor, y)]) for x, y in zip(rows[r], rows[col], strict=True)
+                    ar.sum([x, ar.product(factor, y)])
+                    for x, y in zip(rows[r], rows[col], strict=True)
                 ]
         budget.check("inverse metric", ar, rows[col])
     return [row[n:] for row in rows]
@@ -338,7 +356,9 @@ def christoffel_symbols(
             for c in range(b, n):
                 value = ar.sum([ar.product(ginv[a][d], first[d][b][c]) for d in range(n)])
                 second[a][b][c] = second[a][c][b] = value
-        budget.check("Christoffel symbols", ar, [second[a][b][c] for b in range(n) for c in range(n)])
+        budget.check(
+            "Christoffel symbols", ar, [second[a][b][c] for b in range(n) for c in range(n)]
+        )
     return first, second
 
 
@@ -397,8 +417,10 @@ def ricci_parts(ar: Arithmetic, riemann: dict, ginv: list, n: int, budget: Budge
             ]
             ricci[b][d] = ricci[d][b] = ar.sum(terms)
         budget.check("Ricci tensor", ar, ricci[b])
-    mixed = [[ar.sum([ar.product(ginv[a][c], ricci[c][b]) for c in range(n)]) for b in range(n)]
-             for a in range(n)]
+    mixed = [
+        [ar.sum([ar.product(ginv[a][c], ricci[c][b]) for c in range(n)]) for b in range(n)]
+        for a in range(n)
+    ]
     scalar = ar.sum([mixed[a][a] for a in range(n)])
     return ricci, mixed, scalar
 
@@ -408,8 +430,12 @@ def bivector_inverse(ar: Arithmetic, ginv: list, n: int) -> list[list[Any]]:
     slots = pairs(n)
     return [
         [
-            ar.sum([ar.product(ginv[a][c], ginv[b][d]),
-                    ar.scale(ar.product(ginv[a][d], ginv[b][c]), sympy.Integer(-1))])
+            ar.sum(
+                [
+                    ar.product(ginv[a][c], ginv[b][d]),
+                    ar.scale(ar.product(ginv[a][d], ginv[b][c]), sympy.Integer(-1)),
+                ]
+            )
             for c, d in slots
         ]
         for a, b in slots
@@ -422,18 +448,32 @@ def pair_square(ar: Arithmetic, table: dict, bivector: list, n: int) -> Any:
     x = [[component(ar, table, a, b, c, d) for c, d in slots] for a, b in slots]
     size = len(slots)
     m = [
-        [ar.sum([ar.product(bivector[p][r], x[r][q]) for r in range(size)
-                 if not ar.is_zero(bivector[p][r]) and not ar.is_zero(x[r][q])])
-         for q in range(size)]
+        [
+            ar.sum(
+                [
+                    ar.product(bivector[p][r], x[r][q])
+                    for r in range(size)
+                    if not ar.is_zero(bivector[p][r]) and not ar.is_zero(x[r][q])
+                ]
+            )
+            for q in range(size)
+        ]
         for p in range(size)
     ]
-    total = ar.sum([ar.product(m[p][q], m[q][p]) for p in range(size) for q in range(size)
-                    if not ar.is_zero(m[p][q]) and not ar.is_zero(m[q][p])])
+    total = ar.sum(
+        [
+            ar.product(m[p][q], m[q][p])
+            for p in range(size)
+            for q in range(size)
+            if not ar.is_zero(m[p][q]) and not ar.is_zero(m[q][p])
+        ]
+    )
     return ar.scale(total, sympy.Integer(4))
 
 
-def weyl_lower(ar: Arithmetic, riemann: dict, ricci: list, scalar: Any, g: list, n: int,
-               budget: Budget) -> dict:
+def weyl_lower(
+    ar: Arithmetic, riemann: dict, ricci: list, scalar: Any, g: list, n: int, budget: Budget
+) -> dict:
     """C_abcd = R_abcd - (g_ac R_bd - g_ad R_bc - g_bc R_ad + g_bd R_ac)/(n-2)
     + R (g_ac g_bd - g_ad g_bc)/((n-1)(n-2))."""
     k1 = sympy.Rational(-1, n - 2)
@@ -448,13 +488,16 @@ def weyl_lower(ar: Arithmetic, riemann: dict, ricci: list, scalar: Any, g: list,
                 ar.scale(ar.product(g[b][c], ricci[a][d]), -1),
                 ar.product(g[b][d], ricci[a][c]),
             ]
-            metric_part = ar.sum([ar.product(g[a][c], g[b][d]),
-                                  ar.scale(ar.product(g[a][d], g[b][c]), -1)])
-            value = ar.sum([
-                component(ar, riemann, a, b, c, d),
-                ar.scale(ar.sum(ricci_part), k1),
-                ar.scale(ar.product(scalar, metric_part), k2),
-            ])
+            metric_part = ar.sum(
+                [ar.product(g[a][c], g[b][d]), ar.scale(ar.product(g[a][d], g[b][c]), -1)]
+            )
+            value = ar.sum(
+                [
+                    component(ar, riemann, a, b, c, d),
+                    ar.scale(ar.sum(ricci_part), k1),
+                    ar.scale(ar.product(scalar, metric_part), k2),
+                ]
+            )
             if not ar.is_zero(value):
                 weyl[(a, b, c, d)] = value
         budget.check("Weyl tensor", ar, list(weyl.values())[-1:])

@@ -124,7 +124,10 @@ def _bounded_value(
     low = high = None
     for relation in spacetime.domain:
         if not isinstance(relation, sympy.core.relational.Relational) or relation.rel_op not in (
-            ">", ">=", "<", "<="
+            ">",
+            ">=",
+            "<",
+            "<=",
         ):
             continue
         lhs, rhs, op = relation.lhs, relation.rhs, relation.rel_op
@@ -226,8 +229,12 @@ def _numeric_truth(relation: sympy.Basic) -> bool:
     difference = (relation.lhs - relation.rhs).evalf(30)
     if not difference.is_number or not difference.is_real:
         return False
-    strict = {">": lambda d: d > 0, "<": lambda d: d < 0, ">=": lambda d: d >= 0,
-              "<=": lambda d: d <= 0}
+    strict = {
+        ">": lambda d: d > 0,
+        "<": lambda d: d < 0,
+        ">=": lambda d: d >= 0,
+        "<=": lambda d: d <= 0,
+    }
     check = strict.get(relation.rel_op)
     return bool(check(difference)) if check else False
 

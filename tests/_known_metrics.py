@@ -122,7 +122,7 @@ def painleve_gullstrand() -> Spacetime:
     g[1, 1] = 1
     g[2, 2] = r**2
     g[3, 3] = r**2 * sp.sin(theta) ** 2
-    return spacetime(SPHERICAL, (M,), g, (sp.Gt(r, 0),) + ANGLES_DOMAIN)
+    return spacetime(SPHERICAL, (M,), g, (sp.Gt(r, 0), *ANGLES_DOMAIN))
 
 
 def kasner() -> Spacetime:
@@ -139,7 +139,7 @@ def kruskal() -> Spacetime:
     radius = 2 * M * (1 + sp.LambertW((X**2 - T**2) / sp.E))
     conformal = 32 * M**3 / radius * sp.exp(-radius / (2 * M))
     g = sp.diag(-conformal, conformal, radius**2, radius**2 * sp.sin(theta) ** 2)
-    domain = (sp.Gt(X, sp.Abs(T)),) + ANGLES_DOMAIN
+    domain = (sp.Gt(X, sp.Abs(T)), *ANGLES_DOMAIN)
     return spacetime((T, X, theta, phi), (M,), g, domain)
 
 
@@ -148,5 +148,6 @@ def btz() -> Spacetime:
     (1992) 1849), three dimensions, AdS radius ell."""
     ell = sp.Symbol("ell", positive=True)
     f = -M + r**2 / ell**2
-    return spacetime((t, r, phi), (M, ell), sp.diag(-f, 1 / f, r**2), (sp.Gt(r**2, M * ell**2),),
-                     signature="-++")
+    return spacetime(
+        (t, r, phi), (M, ell), sp.diag(-f, 1 / f, r**2), (sp.Gt(r**2, M * ell**2),), signature="-++"
+    )

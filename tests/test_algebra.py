@@ -47,15 +47,16 @@ def test_derivatives_agree_with_sympy(expr: sp.Expr) -> None:
         mine = field.diff(value, i)
         _, (reference,) = field_with(sp.diff(expr, x), depth=0)
         back = field.to_sympy(mine)
-        f2, (a, b) = build_field(FieldRequest((t, r, theta), (M, k), (A,),
-                                              (back, sp.diff(expr, x)), 0))
+        f2, (a, b) = build_field(
+            FieldRequest((t, r, theta), (M, k), (A,), (back, sp.diff(expr, x)), 0)
+        )
         assert f2.equal(a, b), (expr, x, back)
         assert reference is not None
 
 
 def test_pythagoras_relations_reduce_to_zero() -> None:
     # sin^2 + cos^2 = 1 and cosh^2 - sinh^2 = 1 (common practice).
-    field, (trig, hyper) = field_with(
+    _field, (trig, hyper) = field_with(
         sp.sin(theta) ** 2 + sp.cos(theta) ** 2 - 1, sp.cosh(t) ** 2 - sp.sinh(t) ** 2 - 1
     )
     assert trig.is_zero() and hyper.is_zero()

@@ -27,7 +27,9 @@ from _known_metrics import (
 from generator.equality import canonical, decide_equal, decide_zero
 from generator.geometry import compute_geometry
 
-SCHWARZSCHILD_K = 48 * M**2 / r**6  # Cherubini et al., Int. J. Mod. Phys. D 11 (2002) 827 (from memory)
+SCHWARZSCHILD_K = (
+    48 * M**2 / r**6
+)  # Cherubini et al., Int. J. Mod. Phys. D 11 (2002) 827 (from memory)
 RN_K = (48 * M**2 * r**2 - 96 * M * Q**2 * r + 56 * Q**4) / r**8  # same source (from memory)
 
 
@@ -35,8 +37,9 @@ def perturbations(value: sp.Expr) -> list[sp.Expr]:
     return [value * (1 + sp.Rational(1, 1000)), value + r**-7, -value]
 
 
-@pytest.mark.parametrize(("builder", "right"), [(schwarzschild, SCHWARZSCHILD_K),
-                                                (reissner_nordstrom, RN_K)])
+@pytest.mark.parametrize(
+    ("builder", "right"), [(schwarzschild, SCHWARZSCHILD_K), (reissner_nordstrom, RN_K)]
+)
 def test_right_claim_accepted_and_perturbations_rejected(builder, right) -> None:
     st = builder()
     computed = compute_geometry(st).kretschmann
@@ -53,8 +56,11 @@ def test_right_claim_accepted_and_perturbations_rejected(builder, right) -> None
 def test_witness_really_separates_the_two_sides() -> None:
     st = schwarzschild()
     decision = decide_equal(SCHWARZSCHILD_K + r**-7, SCHWARZSCHILD_K, st)
-    point = {sp.Symbol(k, real=True) if k != "M" else M: sp.sympify(v)
-             for k, v in decision.witness.items() if k in ("M", "r")}
+    point = {
+        sp.Symbol(k, real=True) if k != "M" else M: sp.sympify(v)
+        for k, v in decision.witness.items()
+        if k in ("M", "r")
+    }
     assert (r**-7).xreplace(point) != 0
 
 
@@ -134,8 +140,12 @@ def test_kerr_claim_and_its_perturbations() -> None:
     # Kerr Kretschmann scalar (from memory; C. Cherubini et al. 2002, R. C. Henry 2000).
     st = kerr()
     c = sp.cos(theta)
-    right = (48 * M**2 * (r**6 - 15 * a**2 * r**4 * c**2 + 15 * a**4 * r**2 * c**4 - a**6 * c**6)
-             / (r**2 + a**2 * c**2) ** 6)
+    right = (
+        48
+        * M**2
+        * (r**6 - 15 * a**2 * r**4 * c**2 + 15 * a**4 * r**2 * c**4 - a**6 * c**6)
+        / (r**2 + a**2 * c**2) ** 6
+    )
     computed = compute_geometry(st).kretschmann
     assert decide_equal(right, computed, st).equal is True
     for wrong in perturbations(right):
@@ -158,7 +168,6 @@ def test_canonical_outside_the_field() -> None:
 
 
 def test_undecidable_when_the_domain_is_empty() -> None:
-    st = spacetime((t, r), (M,), sp.diag(-1, 1), domain=(sp.Gt(r, 1), sp.Lt(r, 0)),
-                   signature="-+")
+    st = spacetime((t, r), (M,), sp.diag(-1, 1), domain=(sp.Gt(r, 1), sp.Lt(r, 0)), signature="-+")
     decision = decide_equal(sp.Float("0.5") * r, r / 2, st)
     assert (decision.equal, decision.method) == (None, "failed")

@@ -277,7 +277,9 @@ def test_kerr_kretschmann_and_vacuum() -> None:
     g = compute_geometry(st)
     c = sp.cos(theta)
     expected = (
-        48 * M**2 * (r**6 - 15 * a**2 * r**4 * c**2 + 15 * a**4 * r**2 * c**4 - a**6 * c**6)
+        48
+        * M**2
+        * (r**6 - 15 * a**2 * r**4 * c**2 + 15 * a**4 * r**2 * c**4 - a**6 * c**6)
         / (r**2 + a**2 * c**2) ** 6
     )
     assert_equal(expected, g.kretschmann, st)

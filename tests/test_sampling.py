@@ -90,8 +90,9 @@ def test_empty_domain_gives_no_points() -> None:
 
 def test_singular_points_of_the_metric_are_avoided() -> None:
     # g_rr = 1/(r - 1) blows up at r = 1 and the metric degenerates at r = 0: never sampled.
-    st = spacetime((t, r), (), sp.diag(-r, 1 / (r - 1)), domain=(sp.Gt(r, 0), sp.Lt(r, 2)),
-                   signature="-+")
+    st = spacetime(
+        (t, r), (), sp.diag(-r, 1 / (r - 1)), domain=(sp.Gt(r, 0), sp.Lt(r, 2)), signature="-+"
+    )
     assert not regular_at(st, {t: 0, r: sp.Integer(1)})
     assert not regular_at(st, {t: 0, r: sp.Integer(0)})
     assert regular_at(st, {t: 0, r: sp.Rational(3, 2)})
