@@ -84,12 +84,12 @@ def test_duplicate_ids_across_the_catalog(catalog: Path) -> None:
 @pytest.mark.parametrize(
     ("field", "value", "code"),
     [
-        ("    year: 2026\n  - role: textbook", "    year: 2026\n    doi: doi:10.1/x\n"
-         "  - role: textbook", "entry.format"),
-        ("    year: 2026\n  - role: textbook", "    year: 2026\n    arxiv: arXiv:1234.5678\n"
-         "  - role: textbook", "entry.format"),
-        ("    year: 2026\n  - role: textbook", "    year: 2026\n    isbn: 978-0-00-000000-1\n"
-         "  - role: textbook", "entry.format"),
+        ("    year: 2026\n    isbn: 978-0-306-40615-7", "    year: 2026\n    doi: doi:10.1/x\n"
+         "    isbn: 978-0-306-40615-7", "entry.format"),
+        ("    year: 2026\n    isbn: 978-0-306-40615-7",
+         "    year: 2026\n    arxiv: arXiv:1234.5678\n    isbn: 978-0-306-40615-7",
+         "entry.format"),
+        ("    isbn: 978-0-306-40615-7", "    isbn: 978-0-306-40615-8", "entry.format"),
     ],
 )
 def test_malformed_identifiers(catalog: Path, field: str, value: str, code: str) -> None:
@@ -175,8 +175,7 @@ def test_duplicate_key(catalog: Path) -> None:
 
 def test_wrong_types_and_choices(catalog: Path) -> None:
     path = write_variant(catalog, {"kind: unspecified": "kind: vacum",
-                                   "year: 2026\n  - role: textbook": "year: soon\n  - role: "
-                                   "textbook"})
+                                   "year: 2026\n    isbn": "year: soon\n    isbn"})
     found = errors(load(path))
     assert (20, 9, "entry.choice", "'matter.kind' must be one of vacuum, lambda-vacuum, "
             "electrovacuum, perfect-fluid, null-dust, anisotropic-fluid, unspecified; got "
