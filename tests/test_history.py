@@ -215,3 +215,32 @@ def test_unknown_ref_and_no_git_are_usage_errors(branch: Sandbox, tmp_path: Path
     (outside / "catalog").mkdir(parents=True)
     with pytest.raises(UsageError, match="not inside a git repository"):
         changed_entries(outside, "main", outside / "catalog")
+
+
+def test_cite_command_uses_the_current_hash_and_the_latest_revision_year(history, capsys) -> None:
+    box, _, hashes = history
+    box.write(
+        "pyproject.toml",
+        '[project]\nversion = "2.5.0"\n[tool.almanac]\nbase_url = "https://almanac.test/"\n',
+    )
+    argv = [
+        "lantern",
+        "--format",
+        "text",
+        "--repo",
+        str(box.root),
+        "--catalog",
+        str(box.root / "catalog"),
+    ]
+    assert cite_main(argv) == 0
+    assert capsys.readouterr().out == (
+        "Metric Almanac contributors (2026). Lantern toy spacetime (Harbour coordinates). "
+        f"Metric Almanac, version 2.5.0, entry lantern, content hash {hashes['repair'][:12]}. "
+        "https://almanac.test/entries/lantern/ (accessed <date>).\n"
+    )
+
+
+def test_cite_command_refuses_unknown_ids(history, capsys) -> None:
+    box, _, _ = history
+    assert cite_main(["nowhere", "--catalog", str(box.root / "catalog")]) == 2
+    assert "no entry with id 'nowhere'" in capsys.readouterr().err
