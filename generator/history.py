@@ -12,13 +12,16 @@ tarball) there is simply no history.
 
 from __future__ import annotations
 
+import json
+import re
 import subprocess
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass
 from pathlib import Path
 from typing import TextIO
 
-from .cite import content_hash, short_hash
+from . import __version__
+from .cite import HASH_SCHEME, content_hash, short_hash
 from .errors import UsageError
 from .model import Revision
 
@@ -71,29 +74,86 @@ class _Commit:
     date: str
     subject: str
     path: str  # the entry's path (relative to the repository) at this commit
+    blob: str  # git object id of the file's content after this commit ("" if deleted)
+
+
+_LOG_FORMAT = "--format=%x1e%H%x1f%as%x1f%s"
+_DELETED = re.compile(r"^0+$")
+
+
+def _parse_log(out: str, fallback_path: str) -> list[_Commit]:
+    """Records of ``git log --raw --no-abbrev`` with ``_LOG_FORMAT``, oldest first."""
+    commits = []
+    for record in out.split("\x1e")[1:]:
+        header, _, raw = record.partition("\n")
+        commit, date, subject = header.split("\x1f", 2)
+        path, blob = fallback_path, ""
+        for line in raw.splitlines():
+            if line.startswith(":"):
+                fields, _, names = line.partition("\t")
+                new_blob = fields.split()[3]
+                path = names.split("\t")[-1]
+                blob = "" if _DELETED.match(new_blob) else new_blob
+        commits.append(_Commit(commit, date, subject, path, blob))
+    return commits[::-1]
 
 
 def _commits_touching(root: Path, relative: str) -> list[_Commit]:
     """Commits that changed the file, oldest first, following renames between families."""
-    fmt = "%x1e%H%x1f%as%x1f%s"
-    out = _git(root, "log", "--follow", "--name-only", f"--format={fmt}", "--", relative)
-    commits = []
-    for record in out.split("\x1e")[1:]:
-        header, _, names = record.partition("\n")
-        commit, date, subject = header.split("\x1f", 2)
-        path = next((n for n in names.splitlines() if n.strip()), relative)
-        commits.append(_Commit(commit, date, subject, path))
-    return commits[::-1]
+    out = _git(root, "log", "--follow", "--raw", "--no-abbrev", _LOG_FORMAT, "--", relative)
+    return _parse_log(out, relative)
 
 
-def _source_at(root: Path, commit: str, path: str) -> str | None:
-    try:
-        return _git(root, "show", f"{commit}:{path}")
-    except GitError:  # deleted in this commit
-        return None
+class BlobHashes:
+    """Content hash per git blob: a blob's text never changes, so it is hashed only once.
+
+    With ``file`` (e.g. inside the computation cache folder) the table is kept between runs,
+    keyed also by the hash scheme and the generator version (a new loader may read a file
+    differently). Passed explicitly; there is no module-level cache.
+    """
+
+    def __init__(self, hasher: Hasher = loader_hasher, file: Path | None = None) -> None:
+        self.hasher = hasher
+        self.file = file
+        self.known: dict[str, str | None] = self._read(file)
+        self.changed = False
+
+    @staticmethod
+    def _read(file: Path | None) -> dict[str, str | None]:
+        if file is None or not file.is_file():
+            return {}
+        try:
+            data = json.loads(file.read_text(encoding="utf-8"))
+        except (OSError, ValueError):
+            return {}  # a damaged cache is only a slower run
+        return data if isinstance(data, dict) else {}
+
+    def hash_of(self, root: Path, commit: _Commit) -> str | None:
+        if not commit.blob:
+            return None
+        key = f"{HASH_SCHEME}:{__version__}:{commit.blob}"
+        if key not in self.known:
+            source = _git(root, "cat-file", "blob", commit.blob)
+            self.known[key] = self.hasher(commit.path, source)
+            self.changed = True
+        return self.known[key]
+
+    def save(self) -> None:
+        if self.file is None or not self.changed:
+            return
+        self.file.parent.mkdir(parents=True, exist_ok=True)
+        text = json.dumps(self.known, sort_keys=True, indent=0)
+        temporary = self.file.with_suffix(".tmp")
+        temporary.write_text(text, encoding="utf-8")
+        temporary.replace(self.file)
 
 
-def revisions(repo: Path, entry_path: Path, hasher: Hasher = loader_hasher) -> tuple[Revision, ...]:
+def revisions(
+    repo: Path,
+    entry_path: Path,
+    hasher: Hasher = loader_hasher,
+    hashes: BlobHashes | None = None,
+) -> tuple[Revision, ...]:
     """Commits that changed the entry's mathematics, oldest first.
 
     A commit whose version does not load is skipped (it could not have been published); the
@@ -107,14 +167,15 @@ def revisions(repo: Path, entry_path: Path, hasher: Hasher = loader_hasher) -> t
         commits = _commits_touching(root, relative)
     except GitError:
         return ()
-    return tuple(_mathematical_changes(root, commits, hasher))
+    return tuple(_mathematical_changes(root, commits, hashes or BlobHashes(hasher)))
 
 
-def _mathematical_changes(root: Path, commits: list[_Commit], hasher: Hasher) -> Iterable[Revision]:
+def _mathematical_changes(
+    root: Path, commits: list[_Commit], hashes: BlobHashes
+) -> Iterable[Revision]:
     previous: str | None = None
     for c in commits:
-        source = _source_at(root, c.commit, c.path)
-        digest = hasher(c.path, source) if source is not None else None
+        digest = hashes.hash_of(root, c)
         if digest is not None and digest != previous:
             yield Revision(commit=c.commit, date=c.date, content_hash=digest, summary=c.subject)
             previous = digest
@@ -129,10 +190,20 @@ def _relative_to(path: Path, root: Path) -> str:
 
 
 def catalog_revisions(
-    repo: Path, catalog: Path, hasher: Hasher = loader_hasher
+    repo: Path,
+    catalog: Path,
+    hasher: Hasher = loader_hasher,
+    cache_file: Path | None = None,
 ) -> dict[str, tuple[Revision, ...]]:
-    """Revisions of every entry under ``catalog``, keyed by entry id (for ``CatalogMeta``)."""
-    return {path.stem: revisions(repo, path, hasher) for path in entry_files(catalog)}
+    """Revisions of every entry under ``catalog``, keyed by entry id (for ``CatalogMeta``).
+
+    ``cache_file`` (suggested: ``.almanac-cache/content-hashes.json``) keeps blob hashes
+    between builds, so a rebuild only hashes file versions it has not seen.
+    """
+    hashes = BlobHashes(hasher, cache_file)
+    found = {path.stem: revisions(repo, path, hasher, hashes) for path in entry_files(catalog)}
+    hashes.save()
+    return found
 
 
 def entry_files(catalog: Path) -> list[Path]:
@@ -196,10 +267,11 @@ def lookup_hash(
     if root is None:
         raise UsageError(f"{repo} is not inside a git repository; looking up a hash needs git")
     inside = _relative_to(catalog, root)
+    hashes = BlobHashes(hasher)
     matches: list[HashMatch] = []
     for path in _paths_ever_in(root, inside):
         for c in _commits_touching_exact(root, path):
-            matches.extend(_match_at(root, c, prefix, hasher))
+            matches.extend(_match_at(root, c, prefix, hashes))
     return _first_of_each_revision(matches)
 
 
@@ -209,22 +281,17 @@ def _paths_ever_in(root: Path, catalog: str) -> list[str]:
 
 
 def _commits_touching_exact(root: Path, path: str) -> list[_Commit]:
-    fmt = "%x1e%H%x1f%as%x1f%s"
-    out = _git(root, "log", "--all", f"--format={fmt}", "--", path)
-    commits = []
-    for record in out.split("\x1e")[1:]:
-        commit, date, subject = record.strip("\n").split("\x1f", 2)
-        commits.append(_Commit(commit, date, subject, path))
-    return commits[::-1]
+    out = _git(root, "log", "--all", "--raw", "--no-abbrev", _LOG_FORMAT, "--", path)
+    return _parse_log(out, path)
 
 
-def _match_at(root: Path, c: _Commit, prefix: str, hasher: Hasher) -> list[HashMatch]:
-    source = _source_at(root, c.commit, c.path)
-    digest = hasher(c.path, source) if source is not None else None
+def _match_at(root: Path, c: _Commit, prefix: str, hashes: BlobHashes) -> list[HashMatch]:
+    digest = hashes.hash_of(root, c)
     if digest is None or not digest.startswith(prefix):
         return []
     revision = Revision(commit=c.commit, date=c.date, content_hash=digest, summary=c.subject)
-    return [HashMatch(Path(c.path).stem, c.path, revision, source or "")]
+    source = _git(root, "cat-file", "blob", c.blob)
+    return [HashMatch(Path(c.path).stem, c.path, revision, source)]
 
 
 def _first_of_each_revision(matches: list[HashMatch]) -> list[HashMatch]:

@@ -244,3 +244,23 @@ def test_cite_command_refuses_unknown_ids(history, capsys) -> None:
     box, _, _ = history
     assert cite_main(["nowhere", "--catalog", str(box.root / "catalog")]) == 2
     assert "no entry with id 'nowhere'" in capsys.readouterr().err
+
+
+def test_blob_hashes_are_kept_between_runs(history, tmp_path: Path) -> None:
+    box, _, _ = history
+    cache = tmp_path / "cache" / "content-hashes.json"
+    first = catalog_revisions(box.root, box.root / "catalog", cache_file=cache)
+    assert cache.is_file()
+
+    def must_not_run(file: str, source: str) -> str | None:
+        raise AssertionError(f"{file} hashed again")
+
+    again = catalog_revisions(box.root, box.root / "catalog", hasher=must_not_run, cache_file=cache)
+    assert again == first
+
+
+def test_a_damaged_hash_cache_is_ignored(history, tmp_path: Path) -> None:
+    box, _, _ = history
+    cache = tmp_path / "content-hashes.json"
+    cache.write_text("{not json")
+    assert len(catalog_revisions(box.root, box.root / "catalog", cache_file=cache)["lantern"]) == 3
