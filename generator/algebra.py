@@ -17,6 +17,7 @@ points (see ``equality``).
 
 from __future__ import annotations
 
+import functools
 import itertools
 import math
 from dataclasses import dataclass
@@ -37,7 +38,7 @@ class _NeedGenerator(Exception):
     """Raised while converting when a new generator must be added first (build-time only)."""
 
     def __init__(self, specs: list[GeneratorSpec]) -> None:
-        super().__init__(str(specs))
+        super().__init__("a new generator is needed")
         self.specs = specs
 
 
@@ -98,13 +99,26 @@ class RationalField:
         return Frac(self.ctx.constant(flint.fmpq(int(q.p), int(q.q))), self.ctx.constant(1))
 
     def zero(self) -> Frac:
-        return Frac(self.ctx.constant(0), self.ctx.constant(1))
+        return self._zero
 
     def one(self) -> Frac:
-        return Frac(self.ctx.constant(1), self.ctx.constant(1))
+        return self._one
+
+    @functools.cached_property
+    def _zero(self) -> Frac:
+        """Built once: creating flint constants costs more than most arithmetic here."""
+        return Frac(self.ctx.constant(0), self._unit)
+
+    @functools.cached_property
+    def _one(self) -> Frac:
+        return Frac(self._unit, self._unit)
+
+    @functools.cached_property
+    def _unit(self) -> flint.fmpq_mpoly:
+        return self.ctx.constant(1)
 
     def var(self, i: int) -> Frac:
-        return Frac(self.ctx.gens()[i], self.ctx.constant(1))
+        return Frac(self.ctx.gens()[i], self._unit)
 
     def reduce_poly(self, p: flint.fmpq_mpoly) -> flint.fmpq_mpoly:
         """Remainder modulo the algebraic relations (lex order: relation leads with Z**q)."""
@@ -128,8 +142,8 @@ class RationalField:
                 conj = self._conjugate(den, var)
                 num = self.reduce_poly(num * conj)
                 den = self.reduce_poly(den * conj)
-        g = num.gcd(den)
-        if not g.is_one():
+        g = den if den.is_constant() else num.gcd(den)
+        if not g.is_one() and not g.is_constant():
             num = num / g
             den = den / g
         lc = den.leading_coefficient()
@@ -154,8 +168,10 @@ class RationalField:
         return Frac(-x.num, x.den)
 
     def scale(self, x: Frac, q: sympy.Rational | int) -> Frac:
-        q = sympy.Rational(q)
-        return Frac(x.num * flint.fmpq(int(q.p), int(q.q)), x.den) if q else self.zero()
+        if not q:
+            return self.zero()
+        factor = flint.fmpq(q) if isinstance(q, int) else flint.fmpq(int(q.p), int(q.q))
+        return Frac(x.num * factor, x.den)
 
     def mul(self, x: Frac, y: Frac) -> Frac:
         if x.is_zero() or y.is_zero():
@@ -235,10 +251,15 @@ class RationalField:
     # ------------------------------------------------------------------ back to SymPy
     def poly_to_sympy(self, p: flint.fmpq_mpoly) -> sympy.Expr:
         meanings = [s.meaning for s in self.specs]
+        powers: dict[tuple[int, int], sympy.Expr] = {}
         terms = []
         for monom, coeff in p.terms():
             factors = [sympy.Rational(int(coeff.p), int(coeff.q))]
-            factors += [meanings[k] ** e for k, e in enumerate(monom) if e]
+            for k, e in enumerate(monom):
+                if e:
+                    if (k, e) not in powers:
+                        powers[k, e] = meanings[k] ** e
+                    factors.append(powers[k, e])
             terms.append(sympy.Mul(*factors))
         return sympy.Add(*terms)
 

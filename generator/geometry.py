@@ -58,6 +58,7 @@ class FieldArithmetic:
 
     def __init__(self, field: RationalField) -> None:
         self.field = field
+        self.shown: dict[tuple[str, str], sympy.Expr] = {}
 
     def zero(self) -> Frac:
         return self.field.zero()
@@ -90,7 +91,11 @@ class FieldArithmetic:
         return x.size()
 
     def display(self, x: Frac) -> sympy.Expr:
-        return self.field.display(x)
+        """Memoised: many components repeat (symmetric slots, Weyl = Riemann in vacuum)."""
+        key = (str(x.num), str(x.den))
+        if key not in self.shown:
+            self.shown[key] = self.field.display(x)
+        return self.shown[key]
 
 
 class SympyArithmetic:
@@ -296,7 +301,7 @@ def curvature(ar: Arithmetic, g: list[list[Any]], budget: Budget) -> Tensors:
 
 
 def _einstein(ar: Arithmetic, ricci: list, g: list, half_r: Any, n: int) -> list[list[Any]]:
-    minus_half_r = ar.scale(half_r, sympy.Integer(-1))
+    minus_half_r = ar.scale(half_r, -1)
     return [
         [ar.sum([ricci[a][b], ar.product(minus_half_r, g[a][b])]) for b in range(n)]
         for a in range(n)
@@ -304,7 +309,7 @@ def _einstein(ar: Arithmetic, ricci: list, g: list, half_r: Any, n: int) -> list
 
 
 def _einstein_mixed(ar: Arithmetic, mixed: list, half_r: Any, n: int) -> list[list[Any]]:
-    minus_half_r = ar.scale(half_r, sympy.Integer(-1))
+    minus_half_r = ar.scale(half_r, -1)
     return [
         [ar.sum([mixed[a][b], minus_half_r]) if a == b else mixed[a][b] for b in range(n)]
         for a in range(n)
@@ -324,7 +329,7 @@ def inverse_matrix(ar: Arithmetic, g: list[list[Any]], budget: Budget) -> list[l
         rows[col] = [ar.sum([ar.product(inv_p, x)]) for x in rows[col]]
         for r in range(n):
             if r != col and not ar.is_zero(rows[r][col]):
-                factor = ar.scale(rows[r][col], sympy.Integer(-1))
+                factor = ar.scale(rows[r][col], -1)
                 rows[r] = [
                     ar.sum([x, ar.product(factor, y)])
                     for x, y in zip(rows[r], rows[col], strict=True)
@@ -345,7 +350,7 @@ def christoffel_symbols(
         for b in range(n):
             for c in range(b, n):
                 value = ar.scale(
-                    ar.sum([dg[b][a][c], dg[c][a][b], ar.scale(dg[a][b][c], sympy.Integer(-1))]),
+                    ar.sum([dg[b][a][c], dg[c][a][b], ar.scale(dg[a][b][c], -1)]),
                     half,
                 )
                 first[a][b][c] = first[a][c][b] = value
@@ -376,7 +381,7 @@ def riemann_lower(ar: Arithmetic, first: list, second: list, n: int, budget: Bud
     slots = pairs(n)
     for i, (a, b) in enumerate(slots):
         for c, d in slots[i:]:
-            terms = [d_first(c, a, b, d), ar.scale(d_first(d, a, b, c), sympy.Integer(-1))]
+            terms = [d_first(c, a, b, d), ar.scale(d_first(d, a, b, c), -1)]
             for f in range(n):
                 terms.append(ar.product(first[f][a][d], second[f][b][c]))
                 terms.append(ar.scale(ar.product(first[f][a][c], second[f][b][d]), -1))
@@ -401,7 +406,7 @@ def component(ar: Arithmetic, table: dict, a: int, b: int, c: int, d: int) -> An
     value = table.get((a, b, c, d))
     if value is None:
         return ar.zero()
-    return value if sign == 1 else ar.scale(value, sympy.Integer(-1))
+    return value if sign == 1 else ar.scale(value, -1)
 
 
 def ricci_parts(ar: Arithmetic, riemann: dict, ginv: list, n: int, budget: Budget) -> tuple:
@@ -433,7 +438,7 @@ def bivector_inverse(ar: Arithmetic, ginv: list, n: int) -> list[list[Any]]:
             ar.sum(
                 [
                     ar.product(ginv[a][c], ginv[b][d]),
-                    ar.scale(ar.product(ginv[a][d], ginv[b][c]), sympy.Integer(-1)),
+                    ar.scale(ar.product(ginv[a][d], ginv[b][c]), -1),
                 ]
             )
             for c, d in slots

@@ -1,0 +1,221 @@
+"""Time the full geometry of five published metrics: our engine against textbook SymPy.
+
+Run from the repository root:
+
+    python bench/benchmark.py              # cap the textbook reference at 120 s per metric
+    python bench/benchmark.py --cap 900    # a longer cap, for a tighter lower bound on ratios
+
+"Full geometry" is what ``generator.geometry.compute_geometry`` returns: inverse metric,
+Christoffel symbols, Riemann, Ricci, scalar, Einstein (lower and mixed), Weyl, and the
+invariants R_abcd R^abcd, R_ab R^ab, C_abcd C^abcd, in display form. The textbook reference does
+the same with the loops of a first course and ``simplify`` on every component; it runs in a
+child process that is stopped at the cap, and is then reported as "> cap" (the ratio is a lower
+bound). No numbers are asserted anywhere: this is a measurement, see bench/README.md.
+"""
+
+from __future__ import annotations
+
+import argparse
+import multiprocessing
+import resource
+import sys
+import time
+from collections.abc import Callable
+from pathlib import Path
+
+import sympy as sp
+
+ROOT = Path(__file__).resolve().parent.parent
+sys.path.insert(0, str(ROOT / "tests"))  # the published test metrics live in one place
+sys.path.insert(0, str(ROOT))
+
+from _known_metrics import (  # noqa: E402
+    flrw_flat,
+    kerr,
+    kerr_de_sitter,
+    kerr_newman,
+    schwarzschild,
+)
+
+from generator.geometry import compute_geometry  # noqa: E402
+from generator.model import Spacetime  # noqa: E402
+
+METRICS: dict[str, Callable[[], Spacetime]] = {
+    "Schwarzschild": schwarzschild,
+    "Kerr": kerr,
+    "Kerr–Newman": kerr_newman,
+    "Kerr–de Sitter": kerr_de_sitter,
+    "flat FLRW a(t)": flrw_flat,
+}
+
+
+# ---------------------------------------------------------------------------- textbook SymPy
+
+
+def textbook_geometry(st: Spacetime) -> dict[str, object]:
+    """The first-course algorithm: every index combination, ``simplify`` on every component."""
+    n, x, g = st.dimension, st.coordinates, sp.Matrix(st.metric)
+    ginv = sp.simplify(g.inv())
+    rng = range(n)
+    gamma = [
+        [
+            [
+                sp.simplify(
+                    sum(
+                        ginv[a, d]
+                        * (sp.diff(g[d, c], x[b]) + sp.diff(g[d, b], x[c]) - sp.diff(g[b, c], x[d]))
+                        for d in rng
+                    )
+                    / 2
+                )
+                for c in rng
+            ]
+            for b in rng
+        ]
+        for a in rng
+    ]
+    riemann = [
+        [
+            [
+                [
+                    sp.simplify(
+                        sp.diff(gamma[a][d][b], x[c])
+                        - sp.diff(gamma[a][c][b], x[d])
+                        + sum(
+                            gamma[a][c][e] * gamma[e][d][b] - gamma[a][d][e] * gamma[e][c][b]
+                            for e in rng
+                        )
+                    )
+                    for d in rng
+                ]
+                for c in rng
+            ]
+            for b in rng
+        ]
+        for a in rng
+    ]
+    ricci = sp.Matrix(n, n, lambda b, d: sp.simplify(sum(riemann[a][b][a][d] for a in rng)))
+    scalar = sp.simplify(sum(ginv[b, d] * ricci[b, d] for b in rng for d in rng))
+    einstein = sp.Matrix(n, n, lambda a, b: sp.simplify(ricci[a, b] - scalar * g[a, b] / 2))
+    mixed = sp.Matrix(n, n, lambda a, b: sp.simplify(sum(ginv[a, c] * einstein[c, b] for c in rng)))
+    lower = {
+        (a, b, c, d): sp.simplify(sum(g[a, e] * riemann[e][b][c][d] for e in rng))
+        for a in rng
+        for b in rng
+        for c in rng
+        for d in rng
+    }
+    upper = raise_all(lower, ginv, n)
+    kretschmann = sp.simplify(sum(lower[k] * upper[k] for k in lower))
+    ricci_up = sp.simplify(ginv * ricci * ginv)
+    ricci_squared = sp.simplify(sum(ricci[a, b] * ricci_up[a, b] for a in rng for b in rng))
+    weyl = {}
+    for (a, b, c, d), value in lower.items():
+        weyl[a, b, c, d] = sp.simplify(
+            value
+            - (
+                g[a, c] * ricci[b, d]
+                - g[a, d] * ricci[b, c]
+                - g[b, c] * ricci[a, d]
+                + g[b, d] * ricci[a, c]
+            )
+            / (n - 2)
+            + scalar * (g[a, c] * g[b, d] - g[a, d] * g[b, c]) / ((n - 1) * (n - 2))
+        )
+    weyl_upper = raise_all(weyl, ginv, n)
+    weyl_squared = sp.simplify(sum(weyl[k] * weyl_upper[k] for k in weyl))
+    return {
+        "R": scalar,
+        "K": kretschmann,
+        "Ric2": ricci_squared,
+        "mixed": mixed,
+        "C2": weyl_squared,
+    }
+
+
+def raise_all(lower: dict, ginv: sp.Matrix, n: int) -> dict:
+    """X^abcd = g^ae g^bf g^ch g^dk X_efhk, simplified component by component."""
+    rng = range(n)
+    return {
+        (a, b, c, d): sp.simplify(
+            sum(
+                ginv[a, e] * ginv[b, f] * ginv[c, h] * ginv[d, k] * lower[e, f, h, k]
+                for e in rng
+                for f in rng
+                for h in rng
+                for k in rng
+            )
+        )
+        for a in rng
+        for b in rng
+        for c in rng
+        for d in rng
+    }
+
+
+def _textbook_child(name: str) -> None:
+    textbook_geometry(METRICS[name]())
+
+
+def time_textbook(name: str, cap: float) -> tuple[float, bool]:
+    """CPU seconds used by the reference in a child process, and whether the wall-clock cap
+    stopped it (then the seconds are a lower bound)."""
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
+    child = multiprocessing.Process(target=_textbook_child, args=(name,), daemon=True)
+    child.start()
+    child.join(cap)
+    capped = child.is_alive()
+    if capped:
+        child.terminate()
+    child.join()
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
+    return cpu, capped
+
+
+# ---------------------------------------------------------------------------- our engine
+
+
+def time_engine(name: str, repeats: int) -> tuple[float, float, str]:
+    """Best CPU and wall seconds of ``repeats`` in-process runs (a fresh Spacetime each)."""
+    best_cpu = best_wall = float("inf")
+    engine = ""
+    for _ in range(repeats):
+        st = METRICS[name]()
+        wall, cpu = time.perf_counter(), time.process_time()
+        geometry = compute_geometry(st)
+        best_cpu = min(best_cpu, time.process_time() - cpu)
+        best_wall = min(best_wall, time.perf_counter() - wall)
+        engine = geometry.engine
+    return best_cpu, best_wall, engine
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument(
+        "--cap",
+        type=float,
+        default=120.0,
+        help="seconds allowed to the textbook reference per metric",
+    )
+    parser.add_argument("--repeats", type=int, default=3, help="engine runs per metric (best)")
+    parser.add_argument("--only", nargs="*", default=None, help="metric names to run")
+    args = parser.parse_args(argv)
+    names = [n for n in METRICS if args.only is None or n in args.only]
+    compute_geometry(METRICS["Schwarzschild"]())  # warm imports and SymPy's caches once
+    print("CPU seconds (the machine may be shared; wall-clock in brackets for the engine)")
+    print(f"{'metric':<16} {'engine':>22} {'textbook SymPy':>16} {'ratio':>10}")
+    for name in names:
+        cpu, wall, _engine = time_engine(name, args.repeats)
+        reference, capped = time_textbook(name, args.cap)
+        prefix = "> " if capped else ""
+        shown = f"{prefix}{reference:.1f} s"
+        print(
+            f"{name:<16} {cpu:>7.3f} s ({wall:.3f} s) {shown:>16} {prefix}{reference / cpu:>6.0f}x",
+            flush=True,
+        )
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
