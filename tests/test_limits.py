@@ -1,0 +1,266 @@
+"""Hard per-entry limits (generator/limits.py): the alarm, the memory cap and the CPU backstop.
+
+The functions below are named like the pipeline's stages on purpose: `describe_stage` reads
+the interrupted call stack, so a busy loop inside a function called ``riemann_lower`` must be
+reported as the Riemann-tensor stage. No test asserts how long anything took.
+"""
+
+from __future__ import annotations
+
+import resource
+import signal
+import subprocess
+import sys
+import textwrap
+import threading
+from pathlib import Path
+
+import pytest
+
+from generator.errors import BudgetExceeded, SourcePos
+from generator.limits import (
+    BUDGET_CODE,
+    DEFAULT_STAGE,
+    budget_failure_report,
+    describe_stage,
+    run_limited,
+    stage_of_name,
+)
+from generator.loader import LoadResult
+
+MiB = 2**20
+
+
+def spin_forever() -> None:
+    while True:
+        sum(range(1000))
+
+
+def riemann_lower() -> None:
+    spin_forever()
+
+
+def compute_geometry() -> None:
+    riemann_lower()
+
+
+def decide_equal() -> bytes:
+    return bytes(2048 * MiB)
+
+
+def classify_swallowing_once() -> None:
+    """Like a library that catches every exception once, then keeps computing."""
+    try:
+        spin_forever()
+    except Exception:
+        swallowed = True
+    assert swallowed
+    spin_forever()
+
+
+def petrov_type() -> int:
+    return petrov_type()
+
+
+# ---------------------------------------------------------------------------- stage names
+
+
+@pytest.mark.parametrize(("name", "stage"), [
+    ("compute_geometry", "geometry"),
+    ("christoffel_symbols", "Christoffel symbols"),
+    ("christoffel", "Christoffel symbols"),
+    ("riemann_lower", "Riemann tensor"),
+    ("riemann", "Riemann tensor"),
+    ("classify", "classification"),
+    ("petrov", "Petrov type"),
+    ("decide_equal", "equality decision"),
+    ("sample_points", "sampling points"),
+    ("weyl_scalars_of_tetrad", "Weyl tensor"),
+    ("check_killing_vector_claims", "Killing vectors"),
+])
+def test_pipeline_function_names_map_to_stage_names(name: str, stage: str) -> None:
+    assert stage_of_name(name) == stage
+
+
+def test_names_outside_the_pipeline_have_no_stage() -> None:
+    assert stage_of_name("spin_forever") is None
+    assert stage_of_name("<module>") is None
+
+
+def test_innermost_named_frame_wins() -> None:
+    def christoffel_symbols() -> str:
+        def helper() -> str:
+            return describe_stage(sys._getframe())
+
+        return helper()
+
+    def compute_geometry() -> str:
+        return christoffel_symbols()
+
+    assert compute_geometry() == "Christoffel symbols"
+
+
+def test_stack_without_named_frames_gets_the_default_stage() -> None:
+    assert describe_stage(None) == DEFAULT_STAGE
+
+
+# ---------------------------------------------------------------------------- time limit
+
+
+def test_time_limit_names_the_interrupted_stage() -> None:
+    with pytest.raises(BudgetExceeded) as caught:
+        run_limited(compute_geometry, seconds=0.3, memory_bytes=0)
+    assert caught.value.stage == "Riemann tensor"
+    assert caught.value.limit == "time limit of 0.3 s"
+
+
+def test_swallowed_alarm_fires_again() -> None:
+    with pytest.raises(BudgetExceeded) as caught:
+        run_limited(classify_swallowing_once, seconds=0.2, memory_bytes=0)
+    assert caught.value.stage == "classification"
+
+
+def test_custom_stage_reader_is_used() -> None:
+    with pytest.raises(BudgetExceeded) as caught:
+        run_limited(spin_forever, seconds=0.2, memory_bytes=0, stage_of=lambda frame: "mine")
+    assert caught.value.stage == "mine"
+
+
+def test_result_is_returned_and_the_alarm_is_put_back() -> None:
+    before_handler = signal.getsignal(signal.SIGALRM)
+    assert run_limited(lambda a, b: a + b, 2, 3, seconds=5, memory_bytes=64 * MiB) == 5
+    assert signal.getsignal(signal.SIGALRM) is before_handler
+    assert signal.getitimer(signal.ITIMER_REAL) == (0.0, 0.0)
+
+
+def test_an_outer_alarm_survives_an_inner_limit() -> None:
+    fired: list[int] = []
+    previous = signal.signal(signal.SIGALRM, lambda signum, frame: fired.append(signum))
+    try:
+        signal.setitimer(signal.ITIMER_REAL, 50.0)
+        run_limited(lambda: None, seconds=1, memory_bytes=0)
+        remaining, _ = signal.getitimer(signal.ITIMER_REAL)
+        assert remaining > 0
+        assert signal.getsignal(signal.SIGALRM) is not None
+    finally:
+        signal.setitimer(signal.ITIMER_REAL, 0)
+        signal.signal(signal.SIGALRM, previous)
+
+
+# ---------------------------------------------------------------------------- memory and depth
+
+
+def test_memory_limit_names_the_stage_and_restores_the_cap() -> None:
+    before = resource.getrlimit(resource.RLIMIT_AS)
+    with pytest.raises(BudgetExceeded) as caught:
+        run_limited(decide_equal, seconds=0, memory_bytes=256 * MiB)
+    assert caught.value.stage == "equality decision"
+    assert caught.value.limit == "memory limit of 256 MiB"
+    assert resource.getrlimit(resource.RLIMIT_AS) == before
+    assert len(bytes(300 * MiB)) == 300 * MiB  # the cap is really gone again
+
+
+def test_runaway_recursion_becomes_a_budget_failure() -> None:
+    with pytest.raises(BudgetExceeded) as caught:
+        run_limited(petrov_type, seconds=5, memory_bytes=0)
+    assert caught.value.stage == "Petrov type"
+    assert "nested too deeply" in caught.value.limit
+
+
+def test_cpu_backstop_is_removed_afterwards() -> None:
+    before = resource.getrlimit(resource.RLIMIT_CPU)
+    run_limited(lambda: None, seconds=1, memory_bytes=0, hard_grace=1)
+    assert resource.getrlimit(resource.RLIMIT_CPU) == before
+
+
+def test_outside_the_main_thread_fn_still_runs() -> None:
+    results: list[int] = []
+    worker = threading.Thread(target=lambda: results.append(
+        run_limited(lambda: 7, seconds=1, memory_bytes=MiB)))
+    worker.start()
+    worker.join()
+    assert results == [7]
+
+
+# ---------------------------------------------------------------------------- worker processes
+
+
+def _run_python(code: str) -> subprocess.CompletedProcess[str]:
+    root = Path(__file__).resolve().parents[1]
+    return subprocess.run([sys.executable, "-c", textwrap.dedent(code)], cwd=root,
+                          capture_output=True, text=True, timeout=600)
+
+
+def test_limits_hold_in_a_worker_process() -> None:
+    """The way the pipeline uses it: inside a ProcessPoolExecutor worker."""
+    done = _run_python("""
+        from concurrent.futures import ProcessPoolExecutor
+        from generator.errors import BudgetExceeded
+        from generator.limits import run_limited
+
+        def riemann_lower():
+            while True:
+                pass
+
+        def christoffel_symbols():
+            return [0] * (512 * 2**20)
+
+        def task(fn):
+            try:
+                run_limited(fn, seconds=0.5, memory_bytes=128 * 2**20)
+            except BudgetExceeded as exc:
+                return f"{exc.stage}|{exc.limit}"
+            return "finished"
+
+        if __name__ == "__main__":
+            with ProcessPoolExecutor(1) as pool:
+                print(pool.submit(task, riemann_lower).result())
+                print(pool.submit(task, christoffel_symbols).result())
+    """)
+    assert done.returncode == 0, done.stderr
+    assert done.stdout.splitlines() == [
+        "Riemann tensor|time limit of 0.5 s",
+        "Christoffel symbols|memory limit of 128 MiB",
+    ]
+
+
+def test_a_call_stuck_in_c_code_ends_the_worker_instead_of_hanging() -> None:
+    """A huge FLINT power never returns to Python (like a FLINT gcd of two enormous
+    polynomials in the engine), so the alarm cannot interrupt it; the CPU backstop ends the
+    process (SIGXCPU) rather than letting the build hang."""
+    done = _run_python("""
+        import flint
+        from generator.limits import run_limited
+
+        def riemann_lower():
+            return flint.fmpz(3) ** (10**9)
+
+        run_limited(riemann_lower, seconds=0.2, memory_bytes=0, hard_grace=1)
+        print("returned")
+    """)
+    assert done.returncode == -signal.SIGXCPU
+    assert "returned" not in done.stdout
+
+
+# ---------------------------------------------------------------------------- reports
+
+
+def test_budget_failure_report_is_a_positioned_uncached_failure() -> None:
+    load = LoadResult("catalog/black-holes/x.yaml", None, None, ())
+    report = budget_failure_report(load, BudgetExceeded("Riemann tensor", "time limit of 3 s"))
+    assert not report.ok
+    (diagnostic,) = report.diagnostics
+    assert diagnostic.format_text().splitlines()[0] == (
+        "catalog/black-holes/x.yaml:1:1: error: computation ran out of its budget in stage "
+        "'Riemann tensor' (time limit of 3 s) [budget.exceeded]")
+    assert diagnostic.code == BUDGET_CODE == "budget.exceeded"  # pipeline never caches these
+
+
+def test_budget_failure_keeps_the_loaded_entry_and_points_at_its_metric() -> None:
+    from tests._entry_builders import schwarzschild
+
+    entry = schwarzschild(positions={"metric": SourcePos("f.yaml", 21, 1)})
+    load = LoadResult("f.yaml", entry, None, ())
+    report = budget_failure_report(load, BudgetExceeded("geometry", "memory limit of 1 MiB"))
+    assert report.entry is entry
+    assert (report.diagnostics[0].line, report.diagnostics[0].column) == (21, 1)
