@@ -1,0 +1,383 @@
+"""Classify & verify (2/4): Hawking–Ellis type of T^a_b and the classical energy conditions.
+
+Hawking–Ellis (Segre) types: I — diagonalisable (a timelike eigenvector), II — a double null
+eigenvector, III — a triple null eigenvector, IV — complex eigenvalues. T^a_b is split into the
+blocks its nonzero components couple; 1×1 blocks are eigenvalues, 2×2 blocks are solved in
+closed form; anything larger is typed at exact sample points only (and says so).
+
+Energy conditions for type I with energy density ρ and principal pressures p_i (n dimensions):
+null ρ + p_i ≥ 0; weak ρ ≥ 0 and null; strong null and (n−3)ρ + Σp_i ≥ 0; dominant ρ ≥ |p_i|
+(Hawking & Ellis 1973, §4.3, from memory). "holds" needs a proof (``positivity``); "violated"
+needs an exact witness point; everything else is "undecided".
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import sympy
+
+from .exactvalues import (
+    Point,
+    describe_point,
+    exact_sign,
+    point_text,
+    sign_at,
+    value_at,
+    vanishes,
+)
+from .model import EnergyCondition, Spacetime
+from .positivity import proves_sign
+
+CONDITIONS = ("null", "weak", "strong", "dominant")
+BOOSTS = ((sympy.Rational(5, 4), sympy.Rational(3, 4)), (sympy.Rational(13, 5),
+                                                         sympy.Rational(12, 5)))
+
+
+@dataclass(frozen=True)
+class Spectrum:
+    """Algebraic type of T^a_b with, for type I, the energy density and principal pressures."""
+
+    type: str  # I | II | III | IV | undecided
+    method: str  # exact | sampled | failed
+    reason: str
+    energy_density: sympy.Expr | None = None
+    pressures: tuple[sympy.Expr, ...] | None = None
+    null_dust_weight: sympy.Expr | None = None  # T_aa with T_ab = ρ k_a k_b: sign of ρ
+
+
+# ---------------------------------------------------------------------------- blocks
+
+
+def coupled_blocks(mixed: sympy.Matrix, metric: sympy.Matrix, spacetime: Spacetime
+                   ) -> list[list[int]]:
+    """Index sets that T^a_b or g_ab couple (connected components), in index order."""
+    n = mixed.rows
+    parent = list(range(n))
+
+    def root(i: int) -> int:
+        while parent[i] != i:
+            i = parent[i]
+        return i
+
+    for a in range(n):
+        for b in range(a + 1, n):
+            linked = any(vanishes(m[i, j], spacetime).equal is not True
+                         for m in (mixed, metric) for i, j in ((a, b), (b, a)))
+            if linked:
+                parent[root(a)] = root(b)
+    groups: dict[int, list[int]] = {}
+    for i in range(n):
+        groups.setdefault(root(i), []).append(i)
+    return sorted(groups.values())
+
+
+def lorentzian_block(blocks: list[list[int]], metric: sympy.Matrix, points: Sequence[Point],
+                     spacetime: Spacetime) -> int | None:
+    """Which block holds the time direction (its metric block has det < 0) at the points."""
+    found = set()
+    for point in points:
+        for k, block in enumerate(blocks):
+            if sign_at(metric.extract(block, block).det(), point, spacetime) == -1:
+                found.add(k)
+    return found.pop() if len(found) == 1 else None
+
+
+# ---------------------------------------------------------------------------- the type
+
+
+def hawking_ellis(mixed: sympy.Matrix, lower: sympy.Matrix, metric: sympy.Matrix,
+                  spacetime: Spacetime, points: Sequence[Point]) -> Spectrum:
+    """Hawking–Ellis type of T^a_b; energy density and pressures when it is type I."""
+    blocks = coupled_blocks(mixed, metric, spacetime)
+    if any(len(b) > 2 for b in blocks):
+        return pointwise_type(mixed, spacetime, points,
+                              "T^a_b couples more than two coordinates in this chart")
+    time = lorentzian_block(blocks, metric, points, spacetime)
+    if time is None:
+        return Spectrum("undecided", "failed", "could not tell which block of the metric is "
+                        "timelike at the sample points")
+    eigen: list[tuple[list[sympy.Expr], int | None]] = []  # eigenvalues, index of timelike one
+    kinds = []
+    for k, block in enumerate(blocks):
+        if len(block) == 1:
+            eigen.append(([mixed[block[0], block[0]]], 0 if k == time else None))
+            kinds.append("I")
+            continue
+        part = two_by_two(mixed.extract(block, block), metric.extract(block, block),
+                          spacetime, points, k == time)
+        if isinstance(part, Spectrum):
+            kinds.append(part.type)
+            if part.type != "I":
+                return finish_non_type_one(part, mixed, lower, blocks, block, spacetime)
+            continue
+        eigen.append(part)
+        kinds.append("I")
+    return type_one(eigen, blocks, metric, spacetime)
+
+
+def type_one(eigen: list[tuple[list[sympy.Expr], int | None]], blocks: list[list[int]],
+             metric: sympy.Matrix, spacetime: Spacetime) -> Spectrum:
+    density = None
+    pressures = []
+    for values, timelike in eigen:
+        for i, value in enumerate(values):
+            if i == timelike and density is None:
+                density = -value
+            else:
+                pressures.append(value)
+    if density is None:
+        return Spectrum("I", "exact", "no timelike eigenvector was identified")
+    return Spectrum("I", "exact", "T^a_b is diagonalisable with real eigenvalues",
+                    sympy.factor(density), tuple(sympy.factor(p) for p in pressures))
+
+
+def two_by_two(block: sympy.Matrix, gblock: sympy.Matrix, spacetime: Spacetime,
+               points: Sequence[Point], holds_time: bool
+               ) -> tuple[list[sympy.Expr], int | None] | Spectrum:
+    """Eigenvalues of a coupled pair (and which one is timelike), or a non-type-I Spectrum."""
+    A, B, C, D = block[0, 0], block[0, 1], block[1, 0], block[1, 1]
+    discriminant = sympy.factor(sympy.cancel((A - D) ** 2 / 4 + B * C))
+    if vanishes(discriminant, spacetime).equal is True:
+        if vanishes(B, spacetime).equal is True and vanishes(C, spacetime).equal is True:
+            return [A, D], (0 if holds_time else None)
+        return Spectrum("II", "exact", "a coupled pair of T^a_b has a double eigenvalue and is "
+                        "not diagonalisable (null eigenvector)")
+    sign, method = discriminant_sign(discriminant, spacetime, points)
+    if sign is None:
+        return Spectrum("undecided", "failed", "the sign of the eigenvalue discriminant "
+                        f"{discriminant} changes or could not be decided")
+    if sign < 0:
+        return Spectrum("IV", method, "a coupled pair of T^a_b has complex eigenvalues "
+                        f"(discriminant {discriminant} < 0)")
+    root = sympy.sqrt(discriminant)
+    values = [(A + D) / 2 - root, (A + D) / 2 + root]
+    if not holds_time:
+        return values, None
+    return values, timelike_eigenvalue(values, A, B, C, D, gblock, spacetime, points)
+
+
+def discriminant_sign(discriminant: sympy.Expr, spacetime: Spacetime,
+                      points: Sequence[Point]) -> tuple[int | None, str]:
+    if proves_sign(discriminant, spacetime, strict=True):
+        return 1, "exact"
+    if proves_sign(-discriminant, spacetime, strict=True):
+        return -1, "exact"
+    signs = {sign_at(discriminant, p, spacetime) for p in points}
+    signs.discard(None)
+    return (signs.pop(), "sampled") if len(signs) == 1 and 0 not in signs else (None, "failed")
+
+
+def timelike_eigenvalue(values: list[sympy.Expr], A: sympy.Expr, B: sympy.Expr,
+                        C: sympy.Expr, D: sympy.Expr, gblock: sympy.Matrix,
+                        spacetime: Spacetime, points: Sequence[Point]) -> int | None:
+    """Index of the eigenvalue whose eigenvector has negative norm at every sample point."""
+    use_first_row = vanishes(B, spacetime).equal is not True
+    found = set()
+    for i, lam in enumerate(values):
+        v = sympy.Matrix([B, lam - A]) if use_first_row else sympy.Matrix([lam - D, C])
+        norm = (v.T * gblock * v)[0, 0]
+        signs = {sign_at(norm, p, spacetime) for p in points} - {None}
+        if signs == {-1}:
+            found.add(i)
+    return found.pop() if len(found) == 1 else None
+
+
+def finish_non_type_one(part: Spectrum, mixed: sympy.Matrix, lower: sympy.Matrix,
+                        blocks: list[list[int]], block: list[int], spacetime: Spacetime
+                        ) -> Spectrum:
+    """Type II from a degenerate pair; pure null dust when nothing else is nonzero."""
+    if part.type != "II":
+        return part
+    others = [i for b in blocks for i in b if b != block]
+    pair = block
+    trace_zero = vanishes(mixed[pair[0], pair[0]] + mixed[pair[1], pair[1]], spacetime)
+    rest_zero = all(vanishes(mixed[i, i], spacetime).equal is True for i in others)
+    if trace_zero.equal is True and rest_zero:
+        weight = next((lower[i, i] for i in pair
+                       if vanishes(lower[i, i], spacetime).equal is not True), None)
+        return Spectrum("II", part.method, "T_ab = ρ k_a k_b (pure null radiation)",
+                        null_dust_weight=weight)
+    return part
+
+
+def pointwise_type(mixed: sympy.Matrix, spacetime: Spacetime, points: Sequence[Point],
+                   why: str) -> Spectrum:
+    """Type at each exact sample point (Jordan structure over Q); agreed types are reported as
+    sampled, never as proved."""
+    types = set()
+    for point in points:
+        values = [value_at(v, point, spacetime) for v in mixed]
+        if any(v is None or not v.is_Rational for v in values):
+            continue
+        types.add(type_at_point(sympy.Matrix(mixed.rows, mixed.cols, values)))
+    if len(types) == 1:
+        kind = types.pop()
+        return Spectrum(kind, "sampled", f"{why}; type {kind} at every usable exact sample "
+                        "point (not proved for the whole domain)")
+    if not types:
+        return Spectrum("undecided", "failed", f"{why}; T^a_b is not rational at the sample "
+                        "points")
+    return Spectrum("undecided", "failed", f"{why}; the type differs between sample points "
+                    f"({', '.join(sorted(types))})")
+
+
+def type_at_point(matrix: sympy.Matrix) -> str:
+    """Segre type of a rational matrix self-adjoint for a Lorentzian metric."""
+    x = sympy.Dummy("x")
+    poly = sympy.Poly(matrix.charpoly(x).as_expr(), x)
+    squarefree = sympy.Poly(sympy.sqf_part(poly.as_expr()), x)
+    if squarefree.count_roots() < squarefree.degree():
+        return "IV"
+    s_of_m = evaluate_polynomial(squarefree, matrix)
+    power = s_of_m
+    for depth in (1, 2, 3):
+        if power.is_zero_matrix:
+            return {1: "I", 2: "II", 3: "III"}[depth]
+        power = power * s_of_m
+    return "undecided"
+
+
+def evaluate_polynomial(poly: sympy.Poly, matrix: sympy.Matrix) -> sympy.Matrix:
+    result = sympy.zeros(matrix.rows, matrix.cols)
+    for coefficient in poly.all_coeffs():
+        result = result * matrix + coefficient * sympy.eye(matrix.rows)
+    return result
+
+
+# ---------------------------------------------------------------------------- energy conditions
+
+
+def inequalities(spectrum: Spectrum, dimension: int) -> dict[str, list[tuple[str, sympy.Expr]]]:
+    """For type I: each condition as a list of (label, expression that must be ≥ 0)."""
+    rho, ps = spectrum.energy_density, spectrum.pressures or ()
+    assert rho is not None
+    null = [(f"ρ + p_{i + 1}", rho + p) for i, p in enumerate(ps)]
+    return {
+        "null": null,
+        "weak": [("ρ", rho), *null],
+        "strong": [*null, ("(n−3)ρ + Σp" if dimension != 4 else "ρ + Σp",
+                           (dimension - 3) * rho + sum(ps, sympy.Integer(0)))],
+        "dominant": [("ρ", rho), *null, *((f"ρ − p_{i + 1}", rho - p)
+                                          for i, p in enumerate(ps))],
+    }
+
+
+def judge(requirements: list[tuple[str, sympy.Expr]], spacetime: Spacetime,
+          points: Sequence[Point], name: str) -> EnergyCondition:
+    """Proved for all requirements → holds; one negative at a point → violated."""
+    for label, expr in requirements:
+        for point in points:
+            if sign_at(expr, point, spacetime) == -1:
+                return EnergyCondition(name, "violated", f"{label} < 0 at {point_text(point)}",
+                                       describe_point(point))
+    unproved = [label for label, expr in requirements if not proves_sign(expr, spacetime)]
+    if not unproved:
+        return EnergyCondition(name, "holds", "proved symbolically on the whole domain")
+    return EnergyCondition(name, "undecided", f"not proved ({', '.join(unproved)} ≥ 0); no "
+                           f"violation at {len(points)} exact sample points")
+
+
+def energy_conditions(spectrum: Spectrum, lower: sympy.Matrix, metric: sympy.Matrix,
+                      spacetime: Spacetime, points: Sequence[Point]
+                      ) -> tuple[EnergyCondition, ...]:
+    if spectrum.type == "I" and spectrum.energy_density is not None:
+        table = inequalities(spectrum, spacetime.dimension)
+        return tuple(judge(table[name], spacetime, points, name) for name in CONDITIONS)
+    if spectrum.null_dust_weight is not None:
+        requirement = [("ρ (null dust)", spectrum.null_dust_weight)]
+        return tuple(judge(requirement, spacetime, points, name) for name in CONDITIONS)
+    return tuple(observer_search(name, lower, metric, spacetime, points, spectrum)
+                 for name in CONDITIONS)
+
+
+# ---------------------------------------------------------------------------- observers
+
+
+def orthogonal_frame(metric: sympy.Matrix) -> tuple[list[sympy.Matrix], list[sympy.Expr]] | None:
+    """Gram–Schmidt on exact numbers, spatial-first so the last vector is the slice normal."""
+    n = metric.rows
+    order = [*range(1, n), 0]
+    frame: list[sympy.Matrix] = []
+    norms: list[sympy.Expr] = []
+    for i in order:
+        v = sympy.zeros(n, 1)
+        v[i] = 1
+        for e, q in zip(frame, norms, strict=True):
+            v = v - ((e.T * metric * v)[0, 0] / q) * e
+        q = (v.T * metric * v)[0, 0]
+        if exact_sign(q) in (None, 0):
+            return None
+        frame.append(v)
+        norms.append(q)
+    return frame, norms
+
+
+def observer_search(name: str, lower: sympy.Matrix, metric: sympy.Matrix,
+                    spacetime: Spacetime, points: Sequence[Point], spectrum: Spectrum
+                    ) -> EnergyCondition:
+    """Look for an explicit observer (or null vector) that violates the condition."""
+    for point in points:
+        T = [value_at(v, point, spacetime) for v in lower]
+        g = [value_at(v, point, spacetime) for v in metric]
+        if any(v is None for v in T + g):
+            continue
+        Tm, gm = sympy.Matrix(lower.rows, lower.cols, T), sympy.Matrix(metric.rows,
+                                                                        metric.cols, g)
+        found = violation_at(name, Tm, gm)
+        if found:
+            return EnergyCondition(name, "violated", f"{found} at {point_text(point)}",
+                                   describe_point(point))
+    return EnergyCondition(name, "undecided", f"Hawking–Ellis type {spectrum.type}; no "
+                           f"violating observer found at {len(points)} exact sample points")
+
+
+def test_vectors(gm: sympy.Matrix) -> tuple[list[tuple[str, sympy.Matrix]], list[sympy.Matrix]]:
+    """Unit timelike test observers (the slice normal and boosts of it) and null vectors."""
+    built = orthogonal_frame(gm)
+    if built is None:
+        return [], []
+    frame, norms = built
+    timelike = [k for k, q in enumerate(norms) if exact_sign(q) == -1]
+    if len(timelike) != 1:
+        return [], []
+    t = timelike[0]
+    unit = [e / sympy.sqrt(abs(q)) for e, q in zip(frame, norms, strict=True)]
+    observers = [("slice-normal observer", unit[t])]
+    nulls = []
+    for k in range(len(unit)):
+        if k == t:
+            continue
+        nulls += [unit[t] + unit[k], unit[t] - unit[k]]
+        for c, s in BOOSTS:
+            observers += [("boosted observer", c * unit[t] + s * unit[k]),
+                          ("boosted observer", c * unit[t] - s * unit[k])]
+    return observers, nulls
+
+
+def violation_at(name: str, T: sympy.Matrix, g: sympy.Matrix) -> str:
+    """Description of a violating vector at this point, or '' if none of the tests fails."""
+    observers, nulls = test_vectors(g)
+    n = g.rows
+    ginv = g.inv()
+    trace = sum((ginv[a, b] * T[a, b] for a in range(n) for b in range(n)), sympy.Integer(0))
+
+    def quad(v: sympy.Matrix) -> sympy.Expr:
+        return (v.T * T * v)[0, 0]
+
+    if name in ("null", "weak", "strong", "dominant"):
+        for k in nulls:
+            if exact_sign(quad(k)) == -1:
+                return "T_ab k^a k^b < 0 for a null vector k"
+    for label, u in observers:
+        energy = quad(u)
+        if name in ("weak", "dominant") and exact_sign(energy) == -1:
+            return f"T_ab u^a u^b < 0 for the {label}"
+        if name == "strong" and exact_sign(energy + trace / (n - 2)) == -1:
+            return f"(T_ab − T g_ab/(n−2)) u^a u^b < 0 for the {label}"
+        if name == "dominant":
+            flux = -ginv * T * u
+            if exact_sign((flux.T * g * flux)[0, 0]) == 1:
+                return f"the energy flux seen by the {label} is spacelike"
+    return ""

@@ -1,0 +1,398 @@
+"""Classify & verify (3/4): Petrov type of the Weyl tensor (4D Lorentzian only).
+
+The decision works on the Weyl tensor as an operator on bivectors, W^[ab]_[cd] = C^ab_cd,
+restricted to self-dual bivectors by P = ½(1 − i*). That restriction is the complex symmetric
+3×3 "Weyl matrix" Q whose Segre type is the Petrov type (Stephani et al. 2003, §4.2, from
+memory); no tetrad and hence no square roots of metric components are needed. With
+t2 = tr Q² and t3 = tr Q³ (proportional to the invariants I and J of the Newman–Penrose scalars):
+
+* O: C = 0;   algebraically special ⇔ t2³ = 6 t3²  (⇔ I³ = 27 J²);   otherwise I;
+* special with t2 = 0 (so Q nilpotent): N if Q² = 0, else III;
+* special with t2 ≠ 0: eigenvalues λ, λ, −2λ with λ = −t3/t2; D if (Q − λ)(Q + 2λ) = 0,
+  i.e. t2² Q² − t2 t3 Q − 2 t3² P = 0, else II.
+
+The duality operator carries σ = √(−det g); numbers are kept as pairs (x, y) meaning x + iσy
+with x, y free of σ, so each zero test is on expressions with σ² = −det g only. Every test goes
+through ``equality.decide_zero``; an undecided test makes the type "undecided" with the reason.
+
+The Newman–Penrose scalars Ψ0..Ψ4 are computed for display in the null tetrad
+l, n = (e0 ± e1)/√2, m = (e2 + i e3)/√2 of the Gram–Schmidt frame of the chart.
+"""
+
+from __future__ import annotations
+
+import itertools
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, field
+
+import sympy
+
+from .algebra import FieldRequest, Frac, NotInField, RationalField, build_field
+from .exactvalues import Point, sign_at, vanishes
+from .model import Geometry, Index, Spacetime
+
+PAIRS = [(0, 1), (0, 2), (0, 3), (1, 2), (1, 3), (2, 3)]
+PSI_SIZE_LIMIT = 4000  # operations in a tetrad vector; beyond it the Ψ's are not shown
+
+
+@dataclass(frozen=True)
+class PetrovResult:
+    type: str | None  # I | II | III | D | N | O | undecided | None (not 4D Lorentzian)
+    reason: str
+    weyl_scalars: dict[str, sympy.Expr] | None = None
+    tests: tuple[str, ...] = field(default=())  # what was decided, in order
+
+
+Complex = tuple[sympy.Matrix, sympy.Matrix]  # x + iσy, entrywise
+
+
+class Undecided(Exception):
+    """A zero test could not be decided."""
+
+
+# ---------------------------------------------------------------------------- tensors
+
+
+def weyl_component(weyl: dict[Index, sympy.Expr]) -> Callable[[int, int, int, int], sympy.Expr]:
+    """C_abcd from the independent components (pair antisymmetry and pair exchange)."""
+
+    def get(a: int, b: int, c: int, d: int) -> sympy.Expr:
+        if a == b or c == d:
+            return sympy.Integer(0)
+        sign = 1
+        if a > b:
+            a, b, sign = b, a, -sign
+        if c > d:
+            c, d, sign = d, c, -sign
+        if (a, b) > (c, d):
+            a, b, c, d = c, d, a, b
+        return sign * weyl.get((a, b, c, d), sympy.Integer(0))
+
+    return get
+
+
+def bivector_metric(ginv: sympy.Matrix) -> sympy.Matrix:
+    """G^[ab][ef] = g^ae g^bf − g^af g^be on ordered pairs."""
+    return sympy.Matrix(6, 6, lambda A, E: ginv[PAIRS[A][0], PAIRS[E][0]] * ginv[PAIRS[A][1],
+                        PAIRS[E][1]] - ginv[PAIRS[A][0], PAIRS[E][1]] * ginv[PAIRS[A][1],
+                        PAIRS[E][0]])
+
+
+def levi_civita_pairs() -> sympy.Matrix:
+    return sympy.Matrix(6, 6, lambda E, B: sympy.LeviCivita(*PAIRS[E], *PAIRS[B]))
+
+
+def tidy(m: sympy.Matrix) -> sympy.Matrix:
+    return m.applyfunc(lambda e: sympy.cancel(sympy.together(e)))
+
+
+def operators(geometry: Geometry) -> tuple[sympy.Matrix, sympy.Matrix, sympy.Expr]:
+    """W (Weyl on bivectors), S̃ (duality without σ) and σ² = −det g."""
+    assert geometry.weyl is not None
+    C = weyl_component(geometry.weyl)
+    lower = sympy.Matrix(6, 6, lambda E, B: C(*PAIRS[E], *PAIRS[B]))
+    G2 = bivector_metric(geometry.inverse_metric)
+    W = tidy(G2 * lower)
+    dual = tidy(G2 * levi_civita_pairs())
+    return W, dual, -geometry.metric.det()
+
+
+def multiply(x: Complex, y: Complex, sigma2: sympy.Expr) -> Complex:
+    (a, b), (c, d) = x, y
+    return tidy(a * c - sigma2 * (b * d)), tidy(a * d + b * c)
+
+
+def trace(x: Complex) -> tuple[sympy.Expr, sympy.Expr]:
+    return sympy.cancel(x[0].trace()), sympy.cancel(x[1].trace())
+
+
+def scalar_times(s: tuple[sympy.Expr, sympy.Expr], x: Complex, sigma2: sympy.Expr) -> Complex:
+    return multiply((sympy.eye(6) * s[0], sympy.eye(6) * s[1]), x, sigma2)
+
+
+def number_product(s: tuple[sympy.Expr, sympy.Expr], t: tuple[sympy.Expr, sympy.Expr],
+                   sigma2: sympy.Expr) -> tuple[sympy.Expr, sympy.Expr]:
+    return (sympy.cancel(s[0] * t[0] - sigma2 * s[1] * t[1]),
+            sympy.cancel(s[0] * t[1] + s[1] * t[0]))
+
+
+# ---------------------------------------------------------------------------- zero tests
+
+
+def is_zero(values: Sequence[sympy.Expr], spacetime: Spacetime, what: str) -> bool:
+    """Every value vanishes (True), one does not (False); raise Undecided otherwise."""
+    undecided = False
+    for value in values:
+        decision = vanishes(value, spacetime)
+        if decision.equal is False:
+            return False
+        if decision.equal is None:
+            undecided = True
+    if undecided:
+        raise Undecided(f"could not decide whether {what} vanishes")
+    return True
+
+
+def entries(x: Complex) -> list[sympy.Expr]:
+    return list(x[0]) + list(x[1])
+
+
+# ---------------------------------------------------------------------------- exact field path
+
+
+class FieldAlgebra:
+    """The same complex 6×6 algebra in the flint rational-function field of ``algebra``.
+
+    Products of Weyl matrices swell quickly in SymPy trees; in the field every entry stays a
+    reduced fraction, and a zero normal form is an exact zero.
+    """
+
+    def __init__(self, field: RationalField, spacetime: Spacetime) -> None:
+        self.f = field
+        self.spacetime = spacetime
+
+    def matmul(self, x: list[list[Frac]], y: list[list[Frac]]) -> list[list[Frac]]:
+        f = self.f
+        return [[f.sum([f.mul(x[i][k], y[k][j]) for k in range(6)]) for j in range(6)]
+                for i in range(6)]
+
+    def combine(self, x: list[list[Frac]], y: list[list[Frac]], sign: int = 1
+                ) -> list[list[Frac]]:
+        f = self.f
+        return [[f.add(x[i][j], y[i][j]) if sign > 0 else f.sub(x[i][j], y[i][j])
+                 for j in range(6)] for i in range(6)]
+
+    def scale(self, s: Frac, x: list[list[Frac]]) -> list[list[Frac]]:
+        return [[self.f.mul(s, v) for v in row] for row in x]
+
+    def multiply(self, x: tuple, y: tuple, sigma2: Frac) -> tuple:
+        (a, b), (c, d) = x, y
+        real = self.combine(self.matmul(a, c), self.scale(sigma2, self.matmul(b, d)), -1)
+        return real, self.combine(self.matmul(a, d), self.matmul(b, c))
+
+    def times(self, s: tuple[Frac, Frac], x: tuple, sigma2: Frac) -> tuple:
+        f = self.f
+        (p, q), (a, b) = s, x
+        return (self.combine(self.scale(p, a), self.scale(f.mul(sigma2, q), b), -1),
+                self.combine(self.scale(p, b), self.scale(q, a)))
+
+    def number(self, s: tuple[Frac, Frac], t: tuple[Frac, Frac], sigma2: Frac
+               ) -> tuple[Frac, Frac]:
+        f = self.f
+        return (f.sub(f.mul(s[0], t[0]), f.mul(sigma2, f.mul(s[1], t[1]))),
+                f.add(f.mul(s[0], t[1]), f.mul(s[1], t[0])))
+
+    def trace(self, x: tuple) -> tuple[Frac, Frac]:
+        return self.f.sum([x[0][i][i] for i in range(6)]), self.f.sum([x[1][i][i]
+                                                                        for i in range(6)])
+
+    def is_zero(self, values: Sequence[Frac], what: str) -> bool:
+        """Zero normal forms are exact zeros; a non-zero one is confirmed by decide_zero."""
+        candidates = sorted((v for v in values if not v.is_zero()), key=lambda v: v.size())
+        if not candidates:
+            return True
+        undecided = False
+        for value in candidates[:3]:
+            decision = vanishes(self.f.to_sympy(value), self.spacetime)
+            if decision.equal is False:
+                return False
+            undecided = undecided or decision.equal is None
+        if undecided:
+            raise Undecided(f"could not decide whether {what} vanishes")
+        return is_zero([self.f.to_sympy(v) for v in candidates[3:]], self.spacetime, what)
+
+
+def field_operators(geometry: Geometry, spacetime: Spacetime
+                    ) -> tuple[FieldAlgebra, list, list, Frac, list[Frac]]:
+    """W, S̃, σ² and the Weyl components, converted into one rational-function field."""
+    assert geometry.weyl is not None
+    C = weyl_component(geometry.weyl)
+    lower = [C(*PAIRS[E], *PAIRS[B]) for E in range(6) for B in range(6)]
+    g2 = list(bivector_metric(geometry.inverse_metric))
+    request = FieldRequest(spacetime.coordinates, spacetime.parameters, spacetime.functions,
+                           (*lower, *g2, *geometry.metric), 0)
+    field, values = build_field(request)
+    algebra = FieldAlgebra(field, spacetime)
+
+    def grid(flat: list[Frac]) -> list[list[Frac]]:
+        return [flat[6 * i: 6 * i + 6] for i in range(6)]
+
+    low, G2, metric = grid(values[:36]), grid(values[36:72]), values[72:]
+    levi = [[field.const(int(sympy.LeviCivita(*PAIRS[E], *PAIRS[B]))) for B in range(6)]
+            for E in range(6)]
+    sigma2 = field.neg(determinant(field, [metric[4 * i: 4 * i + 4] for i in range(4)]))
+    return algebra, algebra.matmul(G2, low), algebra.matmul(G2, levi), sigma2, values[:36]
+
+
+def determinant(field: RationalField, m: list[list[Frac]]) -> Frac:
+    """Laplace expansion (the metric is at most 4×4 here)."""
+    if len(m) == 1:
+        return m[0][0]
+    terms = []
+    for j, entry in enumerate(m[0]):
+        if entry.is_zero():
+            continue
+        minor = [row[:j] + row[j + 1:] for row in m[1:]]
+        term = field.mul(entry, determinant(field, minor))
+        terms.append(term if j % 2 == 0 else field.neg(term))
+    return field.sum(terms)
+
+
+def decide_type_in_field(geometry: Geometry, spacetime: Spacetime) -> tuple[str, list[str]]:
+    """`decide_type` with exact field arithmetic (same criteria, same order)."""
+    algebra, W, dual, sigma2, weyl_values = field_operators(geometry, spacetime)
+    f = algebra.f
+    if algebra.is_zero(weyl_values, "the Weyl tensor"):
+        return "O", ["C_abcd = 0"]
+    tests = ["C_abcd ≠ 0"]
+    half = sympy.Rational(1, 2)
+    identity = [[f.one() if i == j else f.zero() for j in range(6)] for i in range(6)]
+
+    def scaled(x: list[list[Frac]], q: sympy.Rational) -> list[list[Frac]]:
+        return [[f.scale(v, q) for v in row] for row in x]
+
+    Q = (scaled(W, half), scaled(algebra.matmul(dual, W), -half))
+    P = (scaled(identity, half), scaled(dual, -half))
+    Q2 = algebra.multiply(Q, Q, sigma2)
+    t2 = algebra.trace(Q2)
+    t3 = algebra.trace(algebra.multiply(Q2, Q, sigma2))
+    t2_cubed = algebra.number(algebra.number(t2, t2, sigma2), t2, sigma2)
+    t3_squared = algebra.number(t3, t3, sigma2)
+    special = [f.sub(t2_cubed[k], f.scale(t3_squared[k], 6)) for k in range(2)]
+    if not algebra.is_zero(special, "I³ − 27J²"):
+        return "I", [*tests, "I³ ≠ 27 J²"]
+    tests.append("I³ = 27 J²")
+    if algebra.is_zero(list(t2), "I"):
+        tests.append("I = J = 0")
+        if algebra.is_zero([v for part in Q2 for row in part for v in row], "Q²"):
+            return "N", [*tests, "Q² = 0"]
+        return "III", [*tests, "Q² ≠ 0, Q³ = 0"]
+    tests.append("I ≠ 0")
+    a = algebra.times(algebra.number(t2, t2, sigma2), Q2, sigma2)
+    b = algebra.times(algebra.number(t2, t3, sigma2), Q, sigma2)
+    c = algebra.times(t3_squared, P, sigma2)
+    minimal = [algebra.combine(algebra.combine(a[k], b[k], -1), scaled(c[k], 2), -1)
+               for k in range(2)]
+    if algebra.is_zero([v for part in minimal for row in part for v in row],
+                       "(Q − λ)(Q + 2λ)"):
+        return "D", [*tests, "(Q − λ)(Q + 2λ) = 0"]
+    return "II", [*tests, "(Q − λ)(Q + 2λ) ≠ 0"]
+
+
+# ---------------------------------------------------------------------------- the type
+
+
+def petrov_type(geometry: Geometry, spacetime: Spacetime,
+                points: Sequence[Point] = ()) -> PetrovResult:
+    if geometry.dimension != 4 or not spacetime.lorentzian or geometry.weyl is None:
+        return PetrovResult(None, "the Petrov type is defined for 4-dimensional Lorentzian "
+                            "metrics only")
+    try:
+        try:
+            kind, tests = decide_type_in_field(geometry, spacetime)
+        except (NotInField, ZeroDivisionError):
+            kind, tests = decide_type(geometry, spacetime)
+    except Undecided as exc:
+        return PetrovResult("undecided", str(exc), weyl_scalars(geometry, spacetime, points))
+    return PetrovResult(kind, "; ".join(tests), weyl_scalars(geometry, spacetime, points),
+                        tuple(tests))
+
+
+def decide_type(geometry: Geometry, spacetime: Spacetime) -> tuple[str, list[str]]:
+    assert geometry.weyl is not None
+    tests: list[str] = []
+    if is_zero(list(geometry.weyl.values()), spacetime, "the Weyl tensor"):
+        return "O", ["C_abcd = 0"]
+    tests.append("C_abcd ≠ 0")
+    W, dual, sigma2 = operators(geometry)
+    half = sympy.Rational(1, 2)
+    Q: Complex = (W * half, -(dual * W) * half)
+    P: Complex = (sympy.eye(6) * half, -dual * half)
+    Q2 = multiply(Q, Q, sigma2)
+    t2 = trace(Q2)
+    t3 = trace(multiply(Q2, Q, sigma2))
+    t2_cubed = number_product(number_product(t2, t2, sigma2), t2, sigma2)
+    t3_squared = number_product(t3, t3, sigma2)
+    special = [t2_cubed[0] - 6 * t3_squared[0], t2_cubed[1] - 6 * t3_squared[1]]
+    if not is_zero(special, spacetime, "I³ − 27J²"):
+        return "I", [*tests, "I³ ≠ 27 J²"]
+    tests.append("I³ = 27 J²")
+    if is_zero(list(t2), spacetime, "I"):
+        tests.append("I = J = 0")
+        if is_zero(entries(Q2), spacetime, "Q²"):
+            return "N", [*tests, "Q² = 0"]
+        return "III", [*tests, "Q² ≠ 0, Q³ = 0"]
+    tests.append("I ≠ 0")
+    t2_squared = number_product(t2, t2, sigma2)
+    t2_t3 = number_product(t2, t3, sigma2)
+    a = scalar_times(t2_squared, Q2, sigma2)
+    b = scalar_times(t2_t3, Q, sigma2)
+    c = scalar_times(t3_squared, P, sigma2)
+    minimal = (tidy(a[0] - b[0] - 2 * c[0]), tidy(a[1] - b[1] - 2 * c[1]))
+    if is_zero(entries(minimal), spacetime, "(Q − λ)(Q + 2λ)"):
+        return "D", [*tests, "(Q − λ)(Q + 2λ) = 0"]
+    return "II", [*tests, "(Q − λ)(Q + 2λ) ≠ 0"]
+
+
+# ---------------------------------------------------------------------------- Ψ0..Ψ4
+
+
+def orthonormal_frame(metric: sympy.Matrix, spacetime: Spacetime, points: Sequence[Point]
+                      ) -> list[sympy.Matrix] | None:
+    """Gram–Schmidt, spatial coordinates first (e0 is then the normal of t = const)."""
+    n = metric.rows
+    frame: list[sympy.Matrix] = []
+    signs: list[int] = []
+    for i in [*range(1, n), 0]:
+        v = sympy.zeros(n, 1)
+        v[i] = 1
+        for e, s in zip(frame, signs, strict=True):
+            v = v - s * (e.T * metric * v)[0, 0] * e
+        q = sympy.cancel((v.T * metric * v)[0, 0])
+        found = {sign_at(q, p, spacetime) for p in points} - {None}
+        if len(found) != 1 or 0 in found:
+            return None
+        s = found.pop()
+        frame.append((v / sympy.sqrt(s * q)).applyfunc(sympy.radsimp))
+        signs.append(s)
+    if signs[-1] != -1:
+        return None
+    return [frame[-1], *frame[:-1]]
+
+
+def weyl_scalars(geometry: Geometry, spacetime: Spacetime, points: Sequence[Point]
+                 ) -> dict[str, sympy.Expr] | None:
+    """Ψ0..Ψ4 in the tool's tetrad; None when the frame is too large to be useful."""
+    if geometry.weyl is None or not points:
+        return None
+    frame = orthonormal_frame(geometry.metric, spacetime, points)
+    if frame is None or sum(sympy.count_ops(v) for v in frame) > PSI_SIZE_LIMIT:
+        return None
+    e0, e1, e2, e3 = frame
+    r2 = sympy.sqrt(2)
+    ell, nn = (e0 + e1) / r2, (e0 - e1) / r2
+    m, mb = (e2 + sympy.I * e3) / r2, (e2 - sympy.I * e3) / r2
+    C = weyl_component(geometry.weyl)
+    nonzero = [(k, C(*k)) for k in itertools.product(range(4), repeat=4) if C(*k) != 0]
+
+    def contract(a: sympy.Matrix, b: sympy.Matrix, c: sympy.Matrix, d: sympy.Matrix
+                 ) -> sympy.Expr:
+        total = sum((v * a[i] * b[j] * c[k] * d[q] for (i, j, k, q), v in nonzero),
+                    sympy.Integer(0))
+        return sympy.factor(sympy.expand(total))
+
+    return {
+        "Psi0": contract(ell, m, ell, m),
+        "Psi1": contract(ell, nn, ell, m),
+        "Psi2": contract(ell, m, mb, nn),
+        "Psi3": contract(ell, nn, mb, nn),
+        "Psi4": contract(nn, mb, nn, mb),
+    }
+
+
+def invariants(psi: dict[str, sympy.Expr]) -> tuple[sympy.Expr, sympy.Expr]:
+    """I = Ψ0Ψ4 − 4Ψ1Ψ3 + 3Ψ2², J = det[[Ψ4,Ψ3,Ψ2],[Ψ3,Ψ2,Ψ1],[Ψ2,Ψ1,Ψ0]]."""
+    p0, p1, p2, p3, p4 = (psi[f"Psi{k}"] for k in range(5))
+    invariant_i = p0 * p4 - 4 * p1 * p3 + 3 * p2**2
+    invariant_j = sympy.Matrix([[p4, p3, p2], [p3, p2, p1], [p2, p1, p0]]).det()
+    return invariant_i, invariant_j
