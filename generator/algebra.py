@@ -70,7 +70,7 @@ class Frac:
         self.den = den
 
     def is_zero(self) -> bool:
-        return self.num.is_zero()
+        return not self.num
 
     def size(self) -> int:
         """Number of terms, the budget's measure of expression swell."""
@@ -170,6 +170,10 @@ class RationalField:
     def scale(self, x: Frac, q: sympy.Rational | int) -> Frac:
         if not q:
             return self.zero()
+        if q == 1:
+            return x
+        if q == -1:
+            return Frac(-x.num, x.den)
         factor = flint.fmpq(q) if isinstance(q, int) else flint.fmpq(int(q.p), int(q.q))
         return Frac(x.num * factor, x.den)
 
@@ -258,7 +262,7 @@ class RationalField:
             for k, e in enumerate(monom):
                 if e:
                     if (k, e) not in powers:
-                        powers[k, e] = meanings[k] ** e
+                        powers[k, e] = meanings[k] ** int(e)
                     factors.append(powers[k, e])
             terms.append(sympy.Mul(*factors))
         return sympy.Add(*terms)
@@ -281,6 +285,8 @@ class RationalField:
         if p.is_constant():
             c = p.leading_coefficient()
             return sympy.Rational(int(c.p), int(c.q)), []
+        if len(p) == 1:
+            return self._monomial_parts(p)
         content, found = p.factor()
         scale = sympy.Rational(int(content.p), int(content.q))
         factors = [[f, e] for f, e in found]
@@ -308,6 +314,13 @@ class RationalField:
                 primitive.append((str(g), g, e))
         out += [self.poly_to_sympy(f) ** e for _s, f, e in sorted(primitive, key=lambda t: t[0])]
         return scale, out
+
+    def _monomial_parts(self, p: flint.fmpq_mpoly) -> tuple[sympy.Rational, list[sympy.Expr]]:
+        """A single term needs no factorisation (most components of simple metrics)."""
+        ((monom, coeff),) = p.terms()
+        meanings = [s.meaning for s in self.specs]
+        powers = [meanings[k] ** int(e) for k, e in enumerate(monom) if e]
+        return sympy.Rational(int(coeff.p), int(coeff.q)), powers
 
     def _primitive(self, f: flint.fmpq_mpoly) -> tuple[sympy.Rational, flint.fmpq_mpoly]:
         """f = unit * g with g integral, primitive, and its most 'coordinate-heavy' term

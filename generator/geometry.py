@@ -92,6 +92,8 @@ class FieldArithmetic:
 
     def display(self, x: Frac) -> sympy.Expr:
         """Memoised: many components repeat (symmetric slots, Weyl = Riemann in vacuum)."""
+        if x.is_zero():
+            return sympy.Integer(0)
         key = (str(x.num), str(x.den))
         if key not in self.shown:
             self.shown[key] = self.field.display(x)
