@@ -291,6 +291,17 @@ def test_kerr_kretschmann_and_vacuum() -> None:
 
 
 @pytest.mark.slow
+def test_kerr_riemann_obeys_the_first_bianchi_identity() -> None:
+    # R_a[bcd] = 0, i.e. R_0123 - R_0213 + R_0312 = 0 in our stored slots (common practice).
+    # Kerr is the simplest metric here where all three components are non-zero.
+    st = kerr()
+    g = compute_geometry(st)
+    r0123, r0213, r0312 = (g.riemann[k] for k in ((0, 1, 2, 3), (0, 2, 1, 3), (0, 3, 1, 2)))
+    assert decide_zero(r0123 - r0213 + r0312, st).equal is True
+    assert decide_zero(r0123 + r0213 + r0312, st).equal is False
+
+
+@pytest.mark.slow
 def test_kerr_newman_is_electrovacuum() -> None:
     # Kerr–Newman: R = 0 and R_ab R^ab = 4 Q^4 / (r^2 + a^2 cos^2 theta)^4 (from memory;
     # it reduces to the Reissner–Nordström value 4Q^4/r^8 at a = 0).
