@@ -105,7 +105,8 @@ class TextbookLatexPrinter(LatexPrinter):
     """SymPy's LaTeX printer with textbook term order for sums."""
 
     def __init__(self, coordinates: Sequence[sympy.Symbol] = ()) -> None:
-        super().__init__({"fold_func_brackets": True, "mul_symbol": None})
+        super().__init__({"fold_func_brackets": True, "mul_symbol": None,
+                          "inv_trig_style": "full"})
         self._coords = frozenset(coordinates)
 
     def _as_ordered_terms(self, expr: sympy.Expr, order: str | None = None) -> list:

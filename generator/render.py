@@ -26,7 +26,7 @@ import markdown
 import nh3
 import sympy
 from jinja2 import Environment, FileSystemLoader, StrictUndefined, select_autoescape
-from markupsafe import Markup
+from markupsafe import Markup, escape
 
 from . import cite, mathtex, plots
 from .errors import AlmanacError
@@ -452,9 +452,14 @@ def coordinate_symbols(report: EntryReport) -> tuple[sympy.Symbol, ...]:
 
 
 def typeset(expr: sympy.Expr | None, coords: Sequence[sympy.Symbol] = ()) -> Markup | None:
+    """MathML for an expression; if conversion fails, the plain SymPy text, escaped."""
     if expr is None:
         return None
-    return Markup(mathtex.expr_to_mathml(expr, coords))
+    try:
+        return Markup(mathtex.expr_to_mathml(expr, coords))
+    except (mathtex.UnsafeMathML, ValueError, KeyError, IndexError) as exc:
+        text = escape(sympy.sstr(expr))
+        return Markup(f'<code class="math-fallback" title="{escape(str(exc))}">{text}</code>')
 
 
 def parsed(math: MathText | None, spacetime: Spacetime | None) -> sympy.Expr | None:
@@ -639,7 +644,12 @@ def stress_energy_rows(report: EntryReport) -> list[Markup]:
 def symmetry_data(report: EntryReport, verdicts: Mapping[str, Verdict]) -> dict[str, Any]:
     entry, c = report.entry, report.classification
     assert entry is not None
-    claimed = [vector_math(v.components, report.spacetime) for v in entry.claims.killing_vectors]
+    checks = {v.subject: v for v in (c.killing_vectors_checked if c else ())}
+    claimed = []
+    for k, vector in enumerate(entry.claims.killing_vectors):
+        verdict = checks.pop(f"claims.killing_vectors.{k}", None)
+        claimed.append({**vector_math(vector.components, report.spacetime),
+                        "verdict": verdict_row(verdict) if verdict else None})
     return {
         "petrov": c.petrov_type if c else None,
         "petrov_claim": entry.claims.petrov_type,
@@ -647,7 +657,7 @@ def symmetry_data(report: EntryReport, verdicts: Mapping[str, Verdict]) -> dict[
         if "claims.petrov_type" in verdicts else None,
         "petrov_reason": (c.reasons.get("petrov_type", "") if c else ""),
         "killing_vectors": claimed,
-        "killing_checks": [verdict_row(v) for v in (c.killing_vectors_checked if c else ())],
+        "killing_checks": [verdict_row(v) for _, v in sorted(checks.items())],
     }
 
 
