@@ -114,11 +114,27 @@ class RationalField:
         return Frac(self._unit, self._unit)
 
     @functools.cached_property
+    def gens(self) -> tuple[flint.fmpq_mpoly, ...]:
+        """The generators as polynomials (flint builds a fresh tuple on every ctx.gens())."""
+        return tuple(self.ctx.gens())
+
+    @functools.cached_property
+    def _cosine_like(self) -> tuple[int, ...]:
+        """Variables of cos/cosh generators (the ones whose (c-1)(c+1) pairs display as sin)."""
+        return tuple(
+            k for k, s in enumerate(self.specs) if s.kind in ("trig", "hyperbolic") and not s.degree
+        )
+
+    @functools.cached_property
+    def _coordinate_vars(self) -> tuple[int, ...]:
+        return tuple(k for k, s in enumerate(self.specs) if s.kind == "coordinate")
+
+    @functools.cached_property
     def _unit(self) -> flint.fmpq_mpoly:
         return self.ctx.constant(1)
 
     def var(self, i: int) -> Frac:
-        return Frac(self.ctx.gens()[i], self._unit)
+        return Frac(self.gens[i], self._unit)
 
     def reduce_poly(self, p: flint.fmpq_mpoly) -> flint.fmpq_mpoly:
         """Remainder modulo the algebraic relations (lex order: relation leads with Z**q)."""
@@ -154,7 +170,7 @@ class RationalField:
 
     def _conjugate(self, p: flint.fmpq_mpoly, var: int) -> flint.fmpq_mpoly:
         """A - Z*B for p = A + Z*B (p reduced, so of degree < 2 in Z)."""
-        z = self.ctx.gens()[var]
+        z = self.gens[var]
         b, a = divmod(p, z)
         return a - z * b
 
@@ -168,14 +184,12 @@ class RationalField:
         return Frac(-x.num, x.den)
 
     def scale(self, x: Frac, q: sympy.Rational | int) -> Frac:
-        if not q:
+        num, den = (q, 1) if isinstance(q, int) else (int(q.p), int(q.q))
+        if num == 0:
             return self.zero()
-        if q == 1:
-            return x
-        if q == -1:
-            return Frac(-x.num, x.den)
-        factor = flint.fmpq(q) if isinstance(q, int) else flint.fmpq(int(q.p), int(q.q))
-        return Frac(x.num * factor, x.den)
+        if den == 1 and num in (1, -1):
+            return x if num == 1 else Frac(-x.num, x.den)
+        return Frac(x.num * flint.fmpq(num, den), x.den)
 
     def mul(self, x: Frac, y: Frac) -> Frac:
         if x.is_zero() or y.is_zero():
@@ -291,10 +305,12 @@ class RationalField:
         scale = sympy.Rational(int(content.p), int(content.q))
         factors = [[f, e] for f, e in found]
         out: list[sympy.Expr] = []
-        for spec_i, spec in enumerate(self.specs):
-            if spec.kind not in ("trig", "hyperbolic") or spec.degree:
+        degrees = p.degrees()
+        for spec_i in self._cosine_like:
+            spec = self.specs[spec_i]
+            if not degrees[spec_i]:
                 continue
-            c = self.ctx.gens()[spec_i]
+            c = self.gens[spec_i]
             minus = next((item for item in factors if item[0] == c - 1), None)
             plus = next((item for item in factors if item[0] == c + 1), None)
             k = min(minus[1], plus[1]) if minus and plus else 0
@@ -325,7 +341,7 @@ class RationalField:
     def _primitive(self, f: flint.fmpq_mpoly) -> tuple[sympy.Rational, flint.fmpq_mpoly]:
         """f = unit * g with g integral, primitive, and its most 'coordinate-heavy' term
         positive (so r - 2*M rather than 2*M - r; the choice only has to be deterministic)."""
-        coords = [k for k, s in enumerate(self.specs) if s.kind == "coordinate"]
+        coords = self._coordinate_vars
         terms = list(f.terms())
         dens = [int(c.q) for _m, c in terms]
         nums = [int(c.p) for _m, c in terms]
@@ -424,9 +440,9 @@ def _make_field(discovered: list[GeneratorSpec], coords: tuple) -> RationalField
 
 
 def _relation(field: RationalField, k: int, spec: GeneratorSpec) -> flint.fmpq_mpoly:
-    z = field.ctx.gens()[k]
+    z = field.gens[k]
     if spec.kind in ("trig", "hyperbolic"):
-        partner = field.ctx.gens()[field.index[spec.partner]]
+        partner = field.gens[field.index[spec.partner]]
         return z**2 + partner**2 - 1 if spec.kind == "trig" else z**2 - partner**2 + 1
     base = _convert(field, spec.base, {})
     # Z = D * f**(1/q) with f = N/D, so Z**q = D**(q-1) * N, a polynomial relation.

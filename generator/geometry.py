@@ -523,7 +523,7 @@ def to_geometry(
         return ar.display(x)
 
     def matrix(rows: list[list[Any]]) -> sympy.ImmutableMatrix:
-        return sympy.ImmutableMatrix(n, n, lambda a, b: show(rows[a][b]))
+        return sympy.ImmutableMatrix(n, n, [show(rows[a][b]) for a in range(n) for b in range(n)])
 
     return Geometry(
         dimension=n,
