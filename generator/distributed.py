@@ -113,7 +113,7 @@ def run_on_scheduler(
         futures = {_submit(client, tasks[i], item): i for i, item in shipped.items()}
         for i in local:
             yield _finish(i, run_task(tasks[i]), on_done)
-        yield from _collect(futures, tasks, on_done)
+        yield from _collect(client, futures, tasks, on_done)
     finally:
         client.close()
 
@@ -173,12 +173,13 @@ def _submit(client: Any, task: Task, item: ShippedTask) -> Any:
     return client.submit(check_shipped, item, key=key, pure=False)
 
 
-def _collect(futures: dict[Any, int], tasks: list[Task],
+def _collect(client: Any, futures: dict[Any, int], tasks: list[Task],
              on_done: Callable[[EntryReport], None] | None
              ) -> Iterator[tuple[int, EntryReport]]:
     from distributed import as_completed
 
-    for future in as_completed(list(futures)):
+    # This client is not the process-wide default (no global state), so name its loop.
+    for future in as_completed(list(futures), loop=client.loop):
         i = futures.pop(future)
         report = _outcome(future, tasks[i])
         future.release()
