@@ -70,23 +70,39 @@ def _decide(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decisi
     left, right = _without_subs(left), _without_subs(right)
     try:
         field, (a, b) = _field_of((left, right), spacetime)
-        normal_zero: bool | None = field.equal(a, b)
+        normal_zero = field.equal(a, b)
     except (NotInField, ZeroDivisionError):
-        normal_zero = None
-    if normal_zero is None:
-        return _decide_sampled(left, right, spacetime)
-    points = _points(spacetime, CONFIRM_POINTS if normal_zero else SAMPLED_POINTS)
-    for point in points:
+        return _decide_sampled(left, right, spacetime, "outside the exact field")
+    if normal_zero:
+        return _confirm_zero(left, right, spacetime)
+    return _find_witness(left, right, spacetime)
+
+
+def _confirm_zero(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decision:
+    """The normal form says equal; a disagreeing point would mean a branch problem (a root
+    or Abs taken on the wrong sheet), and then the point wins."""
+    usable = 0
+    for point in _points(spacetime, CONFIRM_POINTS):
         differs = _differs_at(left, right, point, spacetime)
         if differs:
-            how = "exact" if not normal_zero else "sampled"
+            detail = "normal form is zero but a sample point disagrees (branch of a root?)"
+            return Decision(False, "sampled", detail, _witness(point, spacetime))
+        usable += differs is not None
+    return Decision(True, "exact", f"normal form is zero; confirmed at {usable} points")
+
+
+def _find_witness(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decision:
+    """The normal form says different; show a point where the two sides differ. If none is
+    found the normal form was not canonical here (e.g. radicals of related bases), and the
+    sample points decide, saying so."""
+    usable = 0
+    for point in _points(spacetime, SAMPLED_POINTS):
+        differs = _differs_at(left, right, point, spacetime)
+        if differs:
             detail = "normal forms differ; witness point found"
-            if normal_zero:
-                detail = "normal form is zero but a sample point disagrees (branch of a root?)"
-            return Decision(False, how, detail, _witness(point, spacetime))
-    if normal_zero:
-        return Decision(True, "exact", f"normal form is zero; confirmed at {len(points)} points")
-    return _nonzero_without_witness(left, right, spacetime, len(points))
+            return Decision(False, "exact", detail, _witness(point, spacetime))
+        usable += differs is not None
+    return _sampled_verdict(usable, "normal form not canonical here")
 
 
 def _without_subs(expr: sympy.Expr) -> sympy.Expr:
@@ -97,36 +113,28 @@ def _without_subs(expr: sympy.Expr) -> sympy.Expr:
     return expr.replace(lambda e: isinstance(e, sympy.Subs), lambda e: e.doit())
 
 
-def _nonzero_without_witness(
-    left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime, tried: int
+def _decide_sampled(
+    left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime, why: str
 ) -> Decision:
-    """The normal form was not canonical (e.g. two radicals of related bases): sample more."""
-    decision = _decide_sampled(left, right, spacetime)
-    if decision.equal:
-        detail = f"normal form not canonical here; {decision.detail}"
-        return Decision(True, "sampled", detail)
-    return decision
-
-
-def _decide_sampled(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decision:
-    points = _points(spacetime, SAMPLED_POINTS)
-    used = 0
-    for point in points:
+    usable = 0
+    for point in _points(spacetime, SAMPLED_POINTS):
         differs = _differs_at(left, right, point, spacetime)
-        if differs is None:
-            continue
-        used += 1
         if differs:
             return Decision(
-                False, "sampled", "differs at a sample point", _witness(point, spacetime)
+                False, "sampled", f"{why}; differs at a sample point", _witness(point, spacetime)
             )
-    if used < MINIMUM_SAMPLED:
-        return Decision(None, "failed", f"only {used} usable sample points in the domain")
+        usable += differs is not None
+    return _sampled_verdict(usable, why)
+
+
+def _sampled_verdict(usable: int, why: str) -> Decision:
+    if usable < MINIMUM_SAMPLED:
+        return Decision(None, "failed", f"{why}; only {usable} usable sample points in the domain")
     return Decision(
         True,
         "sampled",
-        f"equal at {used} exact random points of the domain (tolerance 1e-20 at {DIGITS} digits "
-        "where a value was not rational)",
+        f"{why}; equal at {usable} exact random points of the domain (tolerance 1e-20 at "
+        f"{DIGITS} digits where a value was not rational)",
     )
 
 
