@@ -216,9 +216,9 @@ def conventions_data() -> dict[str, Any]:
     return {
         "signature": SIGNATURE,
         "units": UNITS,
-        "riemann": math_block(RIEMANN_CONVENTION),
-        "ricci": math_block(RICCI_CONVENTION),
-        "field_equations": math_block(FIELD_EQUATIONS),
+        "riemann": math_inline(RIEMANN_CONVENTION),
+        "ricci": math_inline(RICCI_CONVENTION),
+        "field_equations": math_inline(FIELD_EQUATIONS),
     }
 
 

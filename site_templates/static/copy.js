@@ -1,6 +1,11 @@
-// Copy buttons for citations: shown only when the clipboard can be used; the text stays selectable.
+// Entry pages: copy buttons for citations (shown only when the clipboard can be used; the text
+// stays selectable) and unfolded details when printing.
 (function () {
   "use strict";
+  // Printing shows the folded details (metric components, T^a_b) too.
+  window.addEventListener("beforeprint", function () {
+    document.querySelectorAll("details").forEach(function (d) { d.open = true; });
+  });
   if (!navigator.clipboard) { return; }
   document.querySelectorAll("button.copy").forEach(function (button) {
     var source = document.getElementById(button.getAttribute("data-copy"));
