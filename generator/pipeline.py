@@ -8,6 +8,7 @@ keeps what crosses process boundaries small and plain.
 
 from __future__ import annotations
 
+import multiprocessing
 import os
 from collections.abc import Callable, Sequence
 from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
@@ -153,7 +154,8 @@ def _compute(tasks: list[Task], pending: list[int], options: RunOptions,
 def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
                           on_done: Callable[[EntryReport], None] | None):
     # Longest-first scheduling would need costs; the catalog order is good enough for now.
-    with ProcessPoolExecutor(max_workers=jobs, max_tasks_per_child=8) as pool:
+    # No max_tasks_per_child: on Python 3.11 it can deadlock the pool when a worker retires.
+    with ProcessPoolExecutor(max_workers=jobs, mp_context=_spawn()) as pool:
         futures: dict[Future, int] = {pool.submit(run_task, tasks[i]): i for i in pending}
         remaining = set(futures)
         while remaining:
@@ -163,3 +165,8 @@ def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
                 if on_done:
                     on_done(report)
                 yield futures[future], report
+
+
+def _spawn() -> multiprocessing.context.BaseContext:
+    """Fresh interpreters for workers: no inherited locks or library state from the parent."""
+    return multiprocessing.get_context("spawn")
