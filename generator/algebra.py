@@ -432,11 +432,19 @@ def _make_field(discovered: list[GeneratorSpec], coords: tuple) -> RationalField
     ctx = flint.fmpq_mpoly_ctx.get(names, "lex")
     index = {s.key: k for k, s in enumerate(ordered)}
     empty_rules = tuple(tuple(None for _ in coords) for _ in ordered)
-    field = RationalField(ctx, ordered, coords, (), empty_rules, index)
-    relations = tuple(
-        (k, s.degree, _relation(field, k, s)) for k, s in enumerate(ordered) if s.degree
-    )
-    return RationalField(ctx, ordered, coords, relations, empty_rules, index)
+    relations: list[tuple[int, int, flint.fmpq_mpoly]] = []
+    # Radicands are converted with the relations of the generators found before them, exactly
+    # as ``_convert_radical`` sees them, so the relation and the generator's meaning agree.
+    for k in reversed(range(len(ordered))):
+        if ordered[k].degree:
+            so_far = RationalField(ctx, ordered, coords, _ctx_order(relations), empty_rules, index)
+            relations.append((k, ordered[k].degree, _relation(so_far, k, ordered[k])))
+    return RationalField(ctx, ordered, coords, _ctx_order(relations), empty_rules, index)
+
+
+def _ctx_order(relations: list[tuple[int, int, flint.fmpq_mpoly]]) -> tuple:
+    """Reduction order: leading (later discovered) generators first."""
+    return tuple(sorted(relations, key=lambda rel: rel[0]))
 
 
 def _relation(field: RationalField, k: int, spec: GeneratorSpec) -> flint.fmpq_mpoly:

@@ -121,3 +121,14 @@ def test_division_by_zero_is_an_error() -> None:
     field, (value,) = field_with(sp.sin(theta) ** 2 + sp.cos(theta) ** 2 - 1)
     with pytest.raises(ZeroDivisionError):
         field.inv(value)
+
+
+def test_radical_of_a_base_with_an_algebraic_denominator() -> None:
+    # sqrt(1/(1 + sin)): the radicand's denominator is rationalised (to cos^2) before the
+    # relation Z^2 = D N is formed; squaring must give back the radicand exactly.
+    root = sp.sqrt(1 / (1 + sp.sin(theta)))
+    field, (value, radicand, derivative) = field_with(
+        root, 1 / (1 + sp.sin(theta)), sp.diff(root, theta)
+    )
+    assert same(field, field.mul(value, value), radicand)
+    assert same(field, field.diff(value, 2), derivative)
