@@ -234,35 +234,15 @@ def _round_sphere_pair(terms: list[Term], coords: Sequence[sympy.Symbol]) -> tup
 def line_element_latex(
     metric: sympy.MatrixBase, coordinates: Sequence[sympy.Symbol]
 ) -> str:
-    r"""``\text{d}s^{2} = ...`` in textbook shape (see module docstring)."""
-    names = [str(c) for c in coordinates]
+    r"""``\text{d}s^{2} = ...`` in textbook shape (see module docstring).
+
+    A round-sphere pair becomes ``f(d\theta^2 + \sin^2\theta\,d\phi^2)`` and a run of
+    squares sharing one coefficient becomes ``a^2(t)(dx^2 + dy^2 + dz^2)``.
+    """
     printer = TextbookLatexPrinter(coordinates)
-    terms = line_element_terms(metric, names)
-    sphere = _round_sphere_pair(terms, coordinates)
-    pieces: list[tuple[bool, str]] = []
-    for k, term in enumerate(terms):
-        if sphere and k == sphere[1]:
-            continue
-        if sphere and k == sphere[0]:
-            polar, azimuth = coordinates[term.a], coordinates[terms[sphere[1]].a]
-            inner = (
-                rf"{_differential(polar, printer, 2)} + "
-                rf"\sin^{{2}}{printer.doprint(polar)}\,{_differential(azimuth, printer, 2)}"
-            )
-            negative = _prefers_minus(term.coefficient)
-            coefficient = -term.coefficient if negative else term.coefficient
-            body = rf"\left({inner}\right)"
-            if coefficient != 1:
-                lead = printer.doprint(coefficient)
-                if coefficient.is_Add:
-                    lead = rf"\left({lead}\right)"
-                body = lead + body
-            pieces.append((negative, body))
-            continue
-        negative = _prefers_minus(term.coefficient)
-        coefficient = -term.coefficient if negative else term.coefficient
-        pieces.append((negative, _term_latex(coefficient, _differentials(term, coordinates,
-                                                                          printer), printer)))
+    terms = line_element_terms(metric, [str(c) for c in coordinates])
+    pieces = [_group_latex(group, coordinates, printer)
+              for group in _term_groups(terms, coordinates)]
     if not pieces:
         return rf"{_DIFF}s^{{2}} = 0"
     out = []
@@ -272,6 +252,56 @@ def line_element_latex(
         else:
             out.append((" - " if negative else " + ") + body)
     return rf"{_DIFF}s^{{2}} = " + "".join(out)
+
+
+@dataclass(frozen=True)
+class _Group:
+    """Terms printed together: one term, a round sphere, or squares with one coefficient."""
+
+    coefficient: sympy.Expr
+    inner: tuple[Term, ...]
+    sphere: bool = False
+
+
+def _term_groups(terms: list[Term], coords: Sequence[sympy.Symbol]) -> list[_Group]:
+    sphere = _round_sphere_pair(terms, coords)
+    groups: list[_Group] = []
+    for k, term in enumerate(terms):
+        if sphere and k == sphere[1]:
+            continue
+        if sphere and k == sphere[0]:
+            groups.append(_Group(term.coefficient, (term, terms[sphere[1]]), sphere=True))
+            continue
+        last = groups[-1] if groups else None
+        if (last is not None and not last.sphere and term.a == term.b
+                and all(t.a == t.b for t in last.inner) and term.coefficient != 1
+                and sympy.cancel(term.coefficient - last.coefficient) == 0):
+            groups[-1] = _Group(last.coefficient, (*last.inner, term))
+            continue
+        groups.append(_Group(term.coefficient, (term,)))
+    return groups
+
+
+def _group_latex(
+    group: _Group, coords: Sequence[sympy.Symbol], printer: TextbookLatexPrinter
+) -> tuple[bool, str]:
+    """(negative, body) of one group, the sign pulled out front."""
+    negative = _prefers_minus(group.coefficient)
+    coefficient = -group.coefficient if negative else group.coefficient
+    if len(group.inner) == 1:
+        diffs = _differentials(group.inner[0], coords, printer)
+        return negative, _term_latex(coefficient, diffs, printer)
+    if group.sphere:
+        polar, azimuth = coords[group.inner[0].a], coords[group.inner[1].a]
+        inner = (rf"{_differential(polar, printer, 2)} + "
+                 rf"\sin^{{2}}{printer.doprint(polar)}\,{_differential(azimuth, printer, 2)}")
+    else:
+        inner = " + ".join(_differential(coords[t.a], printer, 2) for t in group.inner)
+    body = rf"\left({inner}\right)"
+    if coefficient != 1:
+        lead = printer.doprint(coefficient)
+        body = (rf"\left({lead}\right)" if coefficient.is_Add else lead) + body
+    return negative, body
 
 
 def component_latex(

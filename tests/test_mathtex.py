@@ -121,3 +121,22 @@ def test_mathml_outside_the_allow_list_is_refused(latex: str) -> None:
 def test_radial_coordinate_is_found_by_role() -> None:
     assert mathtex.radial_coordinate(["t", "r", "theta", "phi"]) == "r"
     assert mathtex.radial_coordinate(["t", "x", "y", "z"]) is None
+
+
+def test_flat_flrw_groups_the_spatial_part() -> None:
+    """Flat FLRW: ds^2 = -dt^2 + a^2(t)(dx^2 + dy^2 + dz^2) (Carroll 2004, eq. 8.9, from memory)."""
+    x, y, z = sympy.symbols("x y z", real=True)
+    scale = sympy.Function("a")(t)
+    latex = mathtex.line_element_latex(sympy.diag(-1, scale**2, scale**2, scale**2),
+                                       (t, x, y, z))
+    assert latex == (
+        r"\text{d}s^{2} = -\text{d}t^{2} + a^{2}\left(t\right)"
+        r"\left(\text{d}x^{2} + \text{d}y^{2} + \text{d}z^{2}\right)"
+    )
+
+
+def test_minkowski_needs_no_brackets() -> None:
+    x, y, z = sympy.symbols("x y z", real=True)
+    latex = mathtex.line_element_latex(sympy.diag(-1, 1, 1, 1), (t, x, y, z))
+    assert latex == (r"\text{d}s^{2} = -\text{d}t^{2} + \text{d}x^{2} + \text{d}y^{2}"
+                     r" + \text{d}z^{2}")
