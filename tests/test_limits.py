@@ -21,6 +21,7 @@ from generator.errors import BudgetExceeded, SourcePos
 from generator.limits import (
     BUDGET_CODE,
     DEFAULT_STAGE,
+    STAGE_NAMES,
     budget_failure_report,
     describe_stage,
     run_limited,
@@ -264,3 +265,52 @@ def test_budget_failure_keeps_the_loaded_entry_and_points_at_its_metric() -> Non
     report = budget_failure_report(load, BudgetExceeded("geometry", "memory limit of 1 MiB"))
     assert report.entry is entry
     assert (report.diagnostics[0].line, report.diagnostics[0].column) == (21, 1)
+
+
+# ---------------------------------------------------------------------------- whole pipeline
+
+
+@pytest.mark.slow
+def test_a_pathological_entry_fails_alone_naming_its_stage(tmp_path: Path) -> None:
+    """Two entries: valid Schwarzschild and a valid metric whose curvature explodes. With a
+    3-second budget the second fails with a budget diagnostic naming a stage; the first still
+    verifies and the exit status reports the failure."""
+    import json
+
+    from tests._hostile import almanac, make_catalog
+
+    make_catalog(tmp_path, "hostile-valid", "hostile-pathological")
+    done = almanac(tmp_path, "check", "catalog", "--seconds", "3", "--json", "--no-cache",
+                   "--jobs", "2")
+    assert done.returncode == 1, done.stderr
+    entries = {e["id"]: e for e in json.loads(done.stdout)["entries"]}
+    assert entries["schwarzschild"]["ok"]
+    bad = entries["pathological-expansion"]
+    assert not bad["ok"]
+    (budget,) = [d for d in bad["diagnostics"] if d["code"] == "budget.exceeded"]
+    stage = budget["message"].split("'")[1]
+    assert stage in KNOWN_STAGES, budget["message"]
+    assert "time limit of 3 s" in budget["message"]
+    assert (budget["file"], budget["line"]) == (
+        "catalog/black-holes/pathological-expansion.yaml", 15)
+
+
+# Stage names of the engine's own cooperative budget (generator/geometry.py) and of limits.py.
+KNOWN_STAGES = frozenset({"inverse metric", "Christoffel symbols", "Riemann tensor",
+                          "Ricci tensor", "invariants", "Weyl tensor", "display forms"}) | \
+    frozenset(STAGE_NAMES.values())
+
+
+@pytest.mark.slow
+def test_the_build_reports_the_pathological_entry_and_keeps_the_old_site(tmp_path: Path) -> None:
+    from tests._hostile import almanac, make_catalog
+
+    make_catalog(tmp_path, "hostile-valid", "hostile-pathological")
+    (tmp_path / "site").mkdir()
+    (tmp_path / "site" / "index.html").write_text("previous site")
+    done = almanac(tmp_path, "build", "--seconds", "3", "--no-cache", "--jobs", "2")
+    assert done.returncode == 1
+    assert "pathological-expansion.yaml:15:3: error: computation ran out of its budget" in \
+        done.stderr
+    assert "2 entries checked: 1 verified, 1 failed" in done.stderr
+    assert (tmp_path / "site" / "index.html").read_text() == "previous site"
