@@ -40,7 +40,8 @@ from __future__ import annotations
 
 import itertools
 from collections.abc import Callable, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
+from functools import cached_property
 
 import mpmath
 import sympy
@@ -70,7 +71,7 @@ class Fingerprint:
     has_lambda: bool
     zero: tuple[bool, ...]  # per BASE_INVARIANTS: vanishes identically
     constant: tuple[bool, ...]  # per BASE_INVARIANTS: no coordinate dependence
-    rank: int
+    rank: int | None = None  # functional rank; None until computed (it is the costly part)
 
     def differences(self, other: Fingerprint) -> list[str]:
         """Names of the fingerprint parts that differ (Petrov type only if both are known)."""
@@ -118,7 +119,7 @@ def find_twins(new: EntryReport, others: Sequence[EntryReport]) -> list[tuple[st
 
 def fingerprint(report: EntryReport) -> Fingerprint:
     """The exact part of the comparison, for tests and for explaining a warning."""
-    return _Profile.of(report).fingerprint
+    return _Profile(report).fingerprint
 
 
 def find_all_twins(
@@ -132,7 +133,7 @@ def find_all_twins(
 
     def profile(report: EntryReport) -> _Profile:
         if id(report) not in profiles:
-            profiles[id(report)] = _Profile.of(report)
+            profiles[id(report)] = _Profile(report)
         return profiles[id(report)]
 
     out: dict[str, list[tuple[str, str]]] = {}
@@ -186,23 +187,24 @@ def _linked(a: EntryReport, b: EntryReport) -> bool:
 # ---------------------------------------------------------------------------- profiles
 
 
-@dataclass(frozen=True)
 class _Profile:
-    report: EntryReport
-    fingerprint: Fingerprint
-    invariants: Invariants
+    """What is known about one entry for the comparison, computed as late as possible.
 
-    @classmethod
-    def of(cls, report: EntryReport) -> _Profile:
+    The exact parts of the fingerprint are cheap and rule out most pairs; the invariant set
+    (derivatives of large expressions) and the functional rank are built only for entries that
+    survive them, and only once per run.
+    """
+
+    def __init__(self, report: EntryReport) -> None:
         spacetime, geometry = report.spacetime, report.geometry
         assert spacetime is not None and geometry is not None
+        self.report = report
         base = [getattr(geometry, name) for name in BASE_INVARIANTS]
         zero = tuple(e is None or _is_zero(e, spacetime) for e in base)
         constant = tuple(
             e is None or not (e.free_symbols & set(spacetime.coordinates)) for e in base
         )
-        invariants = invariant_set(report, zero, constant)
-        fingerprint = Fingerprint(
+        self.exact = Fingerprint(
             dimension=spacetime.dimension,
             negative_signs=_negative_signs(spacetime),
             matter_kind=report.classification.matter_kind,  # type: ignore[union-attr]
@@ -210,9 +212,18 @@ class _Profile:
             has_lambda=_has_lambda(report),
             zero=zero,
             constant=constant,
-            rank=functional_rank(invariants, spacetime),
         )
-        return cls(report, fingerprint, invariants)
+
+    @cached_property
+    def invariants(self) -> Invariants:
+        return invariant_set(self.report, self.exact.zero, self.exact.constant)
+
+    @cached_property
+    def fingerprint(self) -> Fingerprint:
+        """The exact fingerprint completed with the functional rank."""
+        spacetime = self.report.spacetime
+        assert spacetime is not None
+        return replace(self.exact, rank=functional_rank(self.invariants, spacetime))
 
 
 def _is_zero(expr: sympy.Expr, spacetime: Spacetime) -> bool:
@@ -333,7 +344,7 @@ def _numeric_rank(rows: list[list]) -> int:
 
 
 def _twin_reason(here: _Profile, there: _Profile) -> str | None:
-    if here.fingerprint.differences(there.fingerprint):
+    if here.exact.differences(there.exact) or here.fingerprint.differences(there.fingerprint):
         return None
     if here.invariants.names != there.invariants.names:
         return None
