@@ -239,19 +239,56 @@ def line_element_latex(
     A round-sphere pair becomes ``f(d\theta^2 + \sin^2\theta\,d\phi^2)`` and a run of
     squares sharing one coefficient becomes ``a^2(t)(dx^2 + dy^2 + dz^2)``.
     """
+    return rf"{_DIFF}s^{{2}} = " + "".join(line_element_pieces(metric, coordinates))
+
+
+def line_element_pieces(
+    metric: sympy.MatrixBase, coordinates: Sequence[sympy.Symbol]
+) -> list[str]:
+    """The signed terms of ds^2 in order: ``["-A", " + B", " - C", ...]``."""
     printer = TextbookLatexPrinter(coordinates)
     terms = line_element_terms(metric, [str(c) for c in coordinates])
     pieces = [_group_latex(group, coordinates, printer)
               for group in _term_groups(terms, coordinates)]
     if not pieces:
-        return rf"{_DIFF}s^{{2}} = 0"
+        return ["0"]
     out = []
     for k, (negative, body) in enumerate(pieces):
         if k == 0:
             out.append(("-" if negative else "") + body)
         else:
             out.append((" - " if negative else " + ") + body)
-    return rf"{_DIFF}s^{{2}} = " + "".join(out)
+    return out
+
+
+_COMMAND = re.compile(r"\\(left|right|,|quad)|\\[A-Za-z]+|[{}^_]")
+
+
+def visual_width(latex: str) -> int:
+    """A rough count of printed characters (commands as one, brackets and scripts as none);
+    fractions are over-counted, which only makes lines break a little early."""
+    return len(_COMMAND.sub(lambda m: "" if m.group(1) or len(m.group(0)) == 1 else "x", latex))
+
+
+def line_element_display_latex(
+    metric: sympy.MatrixBase, coordinates: Sequence[sympy.Symbol], max_width: int = 64
+) -> str:
+    """Like ``line_element_latex`` but broken into aligned rows when it would be too wide
+    for a page, the way long metrics are set in papers (break before + or -)."""
+    pieces = line_element_pieces(metric, coordinates)
+    rows: list[list[str]] = [[]]
+    for piece in pieces:
+        row = rows[-1]
+        if row and visual_width("".join(row) + piece) > max_width:
+            rows.append([piece])
+        else:
+            row.append(piece)
+    lhs = rf"{_DIFF}s^{{2}}"
+    if len(rows) == 1:
+        return f"{lhs} = " + "".join(rows[0])
+    lines = [f"{lhs} &= " + "".join(rows[0])]
+    lines += [r"&\quad " + "".join(row).lstrip() for row in rows[1:]]
+    return r"\begin{split}" + r" \\ ".join(lines) + r"\end{split}"
 
 
 @dataclass(frozen=True)

@@ -486,7 +486,7 @@ def metric_data(report: EntryReport) -> dict[str, Any]:
     if st is None:
         return {"line_element": None, "components": []}
     coords = st.coordinates
-    line = mathtex.line_element_latex(st.metric, coords)
+    line = mathtex.line_element_display_latex(st.metric, coords)
     components = []
     for i in range(st.dimension):
         for j in range(i, st.dimension):
