@@ -38,7 +38,8 @@ PAGE_KB = os.sysconf("SC_PAGE_SIZE") // 1024
 class Measurement:
     size: int
     kind: str  # cold | warm | one-changed
-    seconds: float
+    seconds: float  # wall clock, interpreter start included
+    cpu_seconds: float  # user + system time of the build process and all its workers
     verified: int
     failed: int
     main_peak_mb: float  # RUSAGE_SELF maxrss of the build process
@@ -54,9 +55,11 @@ def probe(arguments: list[str]) -> int:
     from generator.cli import main
 
     status = main(arguments)
-    own = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
-    children = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss
-    print("PEAKS " + json.dumps({"self_kb": own, "children_kb": children}), file=sys.stderr)
+    own = resource.getrusage(resource.RUSAGE_SELF)
+    children = resource.getrusage(resource.RUSAGE_CHILDREN)
+    cpu = own.ru_utime + own.ru_stime + children.ru_utime + children.ru_stime
+    peaks = {"self_kb": own.ru_maxrss, "children_kb": children.ru_maxrss, "cpu": cpu}
+    print("PEAKS " + json.dumps(peaks), file=sys.stderr)
     return status
 
 
@@ -123,9 +126,9 @@ def timed_check(folder: Path, size: int, kind: str, jobs: int) -> Measurement:
     peaks = json.loads(next(line for line in err.splitlines() if line.startswith("PEAKS "))[6:])
     entries = json.loads(out)["entries"]
     verified = sum(e["ok"] for e in entries)
-    return Measurement(size, kind, round(seconds, 2), verified, len(entries) - verified,
-                       round(peaks["self_kb"] / 1024, 1), round(peaks["children_kb"] / 1024, 1),
-                       round(tree_kb / 1024, 1))
+    return Measurement(size, kind, round(seconds, 2), round(peaks["cpu"], 2), verified,
+                       len(entries) - verified, round(peaks["self_kb"] / 1024, 1),
+                       round(peaks["children_kb"] / 1024, 1), round(tree_kb / 1024, 1))
 
 
 def catalog_of(source: Path, files: list[Path], folder: Path) -> None:
@@ -180,20 +183,27 @@ def summary(measurements: list[Measurement]) -> str:
     sizes = sorted({m.size for m in measurements})
     by = {(m.size, m.kind): m for m in measurements}
     kinds = ("cold", "warm", "one-changed")
-    lines = ["| entries | cold (s) | warm (s) | one changed (s) | cold s/entry | verified |",
-             "| ---: | ---: | ---: | ---: | ---: | ---: |"]
+    lines = ["| entries | cold CPU s (wall) | warm CPU s (wall) | one changed CPU s (wall) "
+             "| cold CPU s/entry | verified |", "| ---: | ---: | ---: | ---: | ---: | ---: |"]
     for n in sizes:
-        cells = [f"{by[(n, k)].seconds:.1f}" if (n, k) in by else "–" for k in kinds]
+        cells = [f"{by[(n, k)].cpu_seconds:.1f} ({by[(n, k)].seconds:.0f})" if (n, k) in by
+                 else "–" for k in kinds]
         cold = by.get((n, "cold"))
-        per = f"{cold.seconds / n:.2f}" if cold else "–"
+        per = f"{cold.cpu_seconds / n:.2f}" if cold else "–"
         verified = f"{cold.verified}/{n}" if cold else "–"
         lines.append(f"| {n} | {' | '.join(cells)} | {per} | {verified} |")
     lines.append("")
     for kind in kinds:
-        points = [(m.size, m.seconds) for m in measurements if m.kind == kind]
-        if len(points) >= 2:
-            a, b, r2 = fit_line(points)
-            lines.append(f"- {kind}: t ≈ {a:.1f} s + {b:.3f} s × N  (r² = {r2:.3f})")
+        for label, field in (("CPU", "cpu_seconds"), ("wall", "seconds")):
+            points = [(m.size, getattr(m, field)) for m in measurements if m.kind == kind]
+            if len(points) >= 2:
+                a, b, r2 = fit_line(points)
+                lines.append(f"- {kind}, {label}: t ≈ {a:.1f} s + {b:.3f} s × N "
+                             f"(r² = {r2:.3f})")
+    worst = max(measurements, key=lambda m: m.tree_peak_mb)
+    lines.append(f"- peak memory ({worst.kind}, N = {worst.size}): main process "
+                 f"{worst.main_peak_mb} MB, largest worker {worst.worker_peak_mb} MB, "
+                 f"whole process tree {worst.tree_peak_mb} MB")
     return "\n".join(lines)
 
 

@@ -28,11 +28,12 @@ from typing import Any
 from . import __version__
 from .cache import library_versions
 from .catalog import display_path, load_all, vocabulary
-from .errors import AlmanacError, Diagnostic, UsageError
+from .errors import AlmanacError, BudgetExceeded, Diagnostic, UsageError
 from .geometry import Limits
+from .limits import budget_failure_report, run_limited
 from .loader import LoadResult, Vocabulary, load_entry
 from .model import EntryReport
-from .pipeline import Task, run_task
+from .pipeline import MEMORY_PER_ENTRY, Task, run_task
 from .verify import check_loaded
 from .yamlcheck import MAX_FILE_BYTES
 
@@ -86,7 +87,13 @@ def check_shipped(shipped: ShippedTask) -> EntryReport:
                  for k, item in enumerate((shipped.entry, *shipped.related))]
     own, related = loads[0], loads[1:]
     by_id = {r.entry.id: r for r in related if r.entry is not None}
-    return check_loaded(own, by_id, Limits(seconds=shipped.seconds))
+    try:
+        # As in pipeline.run_task. Dask runs tasks in worker threads, where run_limited can
+        # only rely on the engine's own time budget; `dask worker --memory-limit` bounds memory.
+        return run_limited(check_loaded, own, by_id, Limits(seconds=shipped.seconds),
+                           seconds=shipped.seconds * 1.25 + 5, memory_bytes=MEMORY_PER_ENTRY)
+    except BudgetExceeded as exc:
+        return budget_failure_report(own, exc)
 
 
 def _load_shipped(item: ShippedFile, folder: Path, words: Vocabulary) -> LoadResult:
