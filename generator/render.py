@@ -578,7 +578,8 @@ def invariant_rows(report: EntryReport, verdicts: Mapping[str, Verdict]) -> list
 def claim_source(claim_source_role: str | None, entry: Entry) -> dict[str, Any]:
     """Who the claimed value comes from; ``computed-here`` means the tool's own result."""
     if claim_source_role == "computed-here":
-        return {"computed_here": True, "label": "the tool's own result (no published value given)"}
+        return {"computed_here": True,
+                "label": "the tool's own result: no published value was found to compare with"}
     roles = {r.role for r in entry.references}
     role = claim_source_role or ("claims" if "claims" in roles else "original")
     refs = [r for r in entry.references if r.role == role]
@@ -622,7 +623,12 @@ def matter_data(report: EntryReport, verdicts: Mapping[str, Verdict]) -> dict[st
             for ec in (c.energy_conditions if c else ())
         ],
         "reasons": sorted((c.reasons if c else {}).items()),
+        "energy_conditions_na": "",
     }
+    statuses = {ec.status for ec in (c.energy_conditions if c else ())}
+    if statuses == {"not-applicable"} and c is not None:
+        data["energy_conditions_na"] = c.energy_conditions[0].how
+        data["reasons"] = [(k, v) for k, v in data["reasons"] if k != "energy_conditions"]
     return data
 
 

@@ -126,6 +126,15 @@ def test_opening_an_entry_shows_rendered_mathematics(
     visible = page.inner_text("body")
     for tex in ("\\frac", "\\left", "\\text", "\\sin", "^{"):
         assert tex not in visible
+    statuses = page.evaluate(
+        "document.fonts.ready.then(() => [...document.fonts]"
+        ".filter(f => f.family.includes('Almanac Math')).map(f => f.status))")
+    assert "loaded" in statuses  # the shipped math font, also from file://
+    bracket = page.eval_on_selector_all(
+        "#line-element mo[stretchy='true']",
+        "els => Math.max(...els.map(e => e.getBoundingClientRect().height))")
+    digit = page.eval_on_selector("#line-element mn", "e => e.getBoundingClientRect().height")
+    assert bracket > 1.5 * digit  # brackets grow around the fraction inside them
     page.close()
 
 
