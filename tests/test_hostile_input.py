@@ -1,0 +1,410 @@
+"""Hostile entries: nothing written in an entry may run code, hang the build, corrupt the site
+or attack a reader's browser.
+
+Loader-level tests feed YAML tricks (code-running tags, alias bombs, traversal ids, NUL bytes,
+huge files) and assert a positioned refusal. Site-level tests build a catalog holding
+tests/roots/hostile-content (payloads in every free-text field), parse every produced page
+and assert that no injected element or attribute exists and that the payloads show as text;
+the browser test opens every page in headless Chromium and asserts that no script ran.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import re
+import subprocess
+import sys
+import xml.etree.ElementTree as ET
+from html.parser import HTMLParser
+from pathlib import Path
+
+import pytest
+
+from generator.catalog import vocabulary
+from generator.errors import BudgetExceeded
+from generator.limits import run_limited
+from generator.loader import LoadResult, load_entry, load_text
+from tests._hostile import PROJECT, ROOTS, almanac, make_catalog
+
+VOCABULARY = vocabulary(PROJECT / "catalog")
+VALID = (ROOTS / "hostile-valid/black-holes/schwarzschild.yaml").read_text(encoding="utf-8")
+HOSTILE = ROOTS / "hostile-content/black-holes/hostile-content.yaml"
+FILE = "catalog/black-holes/schwarzschild.yaml"
+
+
+def load(source: str) -> LoadResult:
+    """Load under a hard limit, so a bomb fails the test instead of hanging it."""
+    return run_limited(load_text, source, FILE, Path(FILE), VOCABULARY, seconds=30,
+                       memory_bytes=1 << 30)
+
+
+def codes_at(result: LoadResult) -> list[tuple[str, int, int]]:
+    return [(d.code, d.line, d.column) for d in result.diagnostics if d.severity == "error"]
+
+
+# ---------------------------------------------------------------------------- YAML tricks
+
+CODE_TAGS = [
+    ("title: !!python/object/apply:os.system ['touch PWNED']", 3, 8),
+    ("title: !!python/object/new:subprocess.Popen [['touch', 'PWNED']]", 3, 8),
+    ("title: !!python/name:os.system", 3, 8),
+    ("title: !!python/module:os", 3, 8),
+    ("title: !!binary aGVsbG8=", 3, 8),
+    ("title: !<tag:yaml.org,2002:python/object/apply:os.system> ['touch PWNED']", 3, 8),
+    ("title: !custom something", 3, 8),
+    ("title: !!set {a, b}", 3, 8),
+]
+
+
+@pytest.mark.parametrize(("line", "row", "column"), CODE_TAGS)
+def test_code_running_yaml_tags_are_refused_and_run_nothing(
+    line: str, row: int, column: int, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    monkeypatch.chdir(tmp_path)
+    source = VALID.replace("title: Schwarzschild black hole", line)
+    result = load(source)
+    assert result.entry is None
+    assert codes_at(result) == [("yaml.tag", row, column)]
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_a_tag_on_the_whole_document_is_refused(tmp_path: Path,
+                                                 monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.chdir(tmp_path)
+    result = load("--- !!python/object/apply:os.system\nargs: ['touch PWNED']\n")
+    assert [c for c, _, _ in codes_at(result)] == ["yaml.tag"]
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_a_tag_directive_cannot_smuggle_a_python_tag(tmp_path: Path,
+                                                      monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.chdir(tmp_path)
+    source = "%TAG !p! tag:yaml.org,2002:python/\n---\n" + VALID.replace(
+        "title: Schwarzschild black hole", "title: !p!object/apply:os.system ['touch PWNED']")
+    result = load(source)
+    assert [c for c, _, _ in codes_at(result)] == ["yaml.tag"]
+    assert list(tmp_path.iterdir()) == []
+
+
+BILLION_LAUGHS = """\
+a: &a ["lol","lol","lol","lol","lol","lol","lol","lol","lol"]
+b: &b [*a,*a,*a,*a,*a,*a,*a,*a,*a]
+c: &c [*b,*b,*b,*b,*b,*b,*b,*b,*b]
+d: &d [*c,*c,*c,*c,*c,*c,*c,*c,*c]
+e: &e [*d,*d,*d,*d,*d,*d,*d,*d,*d]
+f: &f [*e,*e,*e,*e,*e,*e,*e,*e,*e]
+g: &g [*f,*f,*f,*f,*f,*f,*f,*f,*f]
+h: &h [*g,*g,*g,*g,*g,*g,*g,*g,*g]
+i: &i [*h,*h,*h,*h,*h,*h,*h,*h,*h]
+"""
+
+
+def test_billion_laughs_is_refused_at_its_first_anchor() -> None:
+    result = load(BILLION_LAUGHS)
+    assert result.entry is None
+    assert codes_at(result)[0] == ("yaml.anchor", 1, 4)
+    assert {c for c, _, _ in codes_at(result)} == {"yaml.anchor", "yaml.alias"}
+
+
+def test_merge_keys_through_aliases_are_refused() -> None:
+    source = VALID.replace("parameters:\n  M: {assume: positive, meaning: mass}",
+                           "parameters:\n  M: &m {assume: positive, meaning: mass}\n"
+                           "  Q: {<<: *m}")
+    result = load(source)
+    assert [c for c, _, _ in codes_at(result)] == ["yaml.anchor", "yaml.alias"]
+
+
+@pytest.mark.parametrize("bad_id", ["../../etc/passwd", "..", "/etc/passwd", "a/b",
+                                    "schwarzschild\\..\\x", "%2e%2e%2fetc"])
+def test_path_traversal_ids_are_refused_at_the_id(bad_id: str) -> None:
+    source = VALID.replace("id: schwarzschild", f"id: '{bad_id}'")
+    result = load(source)
+    assert ("entry.format", 2, 5) in codes_at(result)
+
+
+def test_path_traversal_in_related_entries_is_refused() -> None:
+    source = VALID + "related:\n  - entry: ../../etc/passwd\n    map: {t: t}\n"
+    result = load(source)
+    assert not result.ok
+    assert any(d.code == "entry.format" and d.line == 42 for d in result.diagnostics), \
+        [d.format_text() for d in result.diagnostics]
+
+
+def test_a_nul_byte_is_a_positioned_yaml_error() -> None:
+    """Found by this suite: PyYAML's ReaderError (a character YAML forbids) carries a
+    character index, not a mark, and yamlcheck.read_nodes reports it at 1:1."""
+    source = VALID.replace("title: Schwarzschild black hole", "title: Schwarz\x00schild")
+    result = load(source)
+    assert codes_at(result) == [("yaml.syntax", 3, 15)]
+
+
+def test_a_huge_file_is_refused_before_parsing(tmp_path: Path) -> None:
+    path = tmp_path / "black-holes" / "schwarzschild.yaml"
+    path.parent.mkdir()
+    path.write_text(VALID.replace("notes: |\n", "notes: |\n" + "  padding text\n" * 40_000))
+    result = load_entry(path, FILE, VOCABULARY)
+    assert [(d.code, d.line, d.column) for d in result.diagnostics] == [("file.size", 1, 1)]
+
+
+def test_a_gigantic_math_string_is_refused_with_its_position() -> None:
+    source = VALID.replace("  line_element: -(1 - 2*M/r)*dt**2",
+                           "  line_element: " + "r+" * 15_000 + "-(1 - 2*M/r)*dt**2")
+    result = load(source)
+    assert codes_at(result) == [("math.syntax", 17, 17 + 20_000)]  # where the limit is passed
+
+
+def test_bytes_that_are_not_utf8_are_refused(tmp_path: Path) -> None:
+    path = tmp_path / "black-holes" / "schwarzschild.yaml"
+    path.parent.mkdir()
+    path.write_bytes(VALID.encode().replace(b"Test Curator", b"Test \xff\xfe Curator"))
+    result = load_entry(path, FILE, VOCABULARY)
+    assert [d.code for d in result.diagnostics] == ["file.encoding"]
+
+
+def test_hostile_tags_are_refused_by_the_vocabulary() -> None:
+    source = VALID.replace("tags: [vacuum,", "tags: ['<script>alert(1)</script>', vacuum,")
+    result = load(source)
+    assert codes_at(result) == [("entry.format", 8, 8)]
+
+
+def test_hostile_text_is_loaded_verbatim_for_the_renderer_to_escape() -> None:
+    """The loader neither runs nor alters text: escaping is the renderer's job (tested below)."""
+    result = load_entry(HOSTILE, "catalog/black-holes/hostile-content.yaml", VOCABULARY)
+    assert result.ok, [d.format_text() for d in result.diagnostics]
+    entry = result.entry
+    assert entry is not None
+    assert "<script>window.__pwned=1</script> {{ 7*7 }}" in entry.title
+    assert entry.references[0].doi == '10.1234/"><svg/onload=window.__pwned=20>'
+    assert entry.curation.by.startswith("<script>alert(21)</script>")
+
+
+def test_the_billion_laughs_bomb_loads_in_bounded_time_even_at_full_size() -> None:
+    bomb = BILLION_LAUGHS + "".join(f"x{k}: &x{k} [" + ",".join([f"*{'i' if k == 0 else f'x{k-1}'}"]
+                                                                 * 9) + "]\n" for k in range(5))
+    try:
+        result = load(bomb)
+    except BudgetExceeded as exc:  # pragma: no cover - reported as a failure below
+        pytest.fail(f"alias bomb was expanded: {exc}")
+    assert result.entry is None
+
+
+# ---------------------------------------------------------------------------- the built site
+
+
+@pytest.fixture(scope="module")
+def hostile_site(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """Build a catalog of valid Schwarzschild plus the hostile-content entry (once)."""
+    project = tmp_path_factory.mktemp("hostile-site")
+    make_catalog(project, "hostile-valid", "hostile-content")
+    done = almanac(project, "build", "--no-cache", "--jobs", "2")
+    if done.returncode != 0:
+        pytest.fail(f"the hostile catalog did not build:\n{done.stderr[-3000:]}")
+    return project
+
+
+class _Page(HTMLParser):
+    """Every element with its attributes, and the page's text, as a browser would parse it."""
+
+    def __init__(self) -> None:
+        super().__init__(convert_charrefs=True)
+        self.elements: list[tuple[str, list[tuple[str, str | None]]]] = []
+        self.text: list[str] = []
+        self.script_text: list[str] = []
+        self._in_script = False
+
+    def handle_starttag(self, tag: str, attrs: list[tuple[str, str | None]]) -> None:
+        self.elements.append((tag, attrs))
+        self._in_script = tag in ("script", "style")
+
+    def handle_startendtag(self, tag: str, attrs: list[tuple[str, str | None]]) -> None:
+        self.elements.append((tag, attrs))
+
+    def handle_endtag(self, tag: str) -> None:
+        self._in_script = False
+
+    def handle_data(self, data: str) -> None:
+        (self.script_text if self._in_script else self.text).append(data)
+
+
+def parse_page(path: Path) -> _Page:
+    page = _Page()
+    page.feed(path.read_text(encoding="utf-8"))
+    page.close()
+    return page
+
+
+FORBIDDEN_ELEMENTS = {"iframe", "object", "embed", "base", "frame", "frameset", "applet"}
+URL_ATTRIBUTES = {"href", "src", "action", "formaction", "xlink:href", "data", "poster",
+                  "background", "srcset"}
+BAD_SCHEMES = re.compile(r"^\s*(javascript|vbscript|data:text/html|data:image/svg)", re.I)
+PAYLOAD_MARKERS = ("__pwned", "alert(")
+
+
+def html_pages(site: Path) -> list[Path]:
+    return sorted(site.rglob("*.html"))
+
+
+@pytest.mark.slow
+def test_no_page_carries_an_injected_element_or_attribute(hostile_site: Path) -> None:
+    problems: list[str] = []
+    pages = html_pages(hostile_site / "site")
+    assert len(pages) > 3
+    for path in pages:
+        page = parse_page(path)
+        where = path.relative_to(hostile_site).as_posix()
+        for tag, attrs in page.elements:
+            names = {name for name, _ in attrs}
+            if tag in FORBIDDEN_ELEMENTS:
+                problems.append(f"{where}: <{tag}>")
+            if tag == "meta" and any(n == "http-equiv" for n in names):
+                problems.append(f"{where}: <meta http-equiv>")
+            if tag == "script" and "src" in names:
+                src = dict(attrs)["src"] or ""
+                if "://" in src or src.startswith("//"):
+                    problems.append(f"{where}: remote script {src}")
+            for name, value in attrs:
+                if name.startswith("on"):
+                    problems.append(f"{where}: <{tag} {name}=...>")
+                if name in URL_ATTRIBUTES and value and BAD_SCHEMES.match(value):
+                    problems.append(f"{where}: <{tag} {name}={value[:40]}>")
+        for script in page.script_text:
+            if any(marker in script for marker in PAYLOAD_MARKERS):
+                problems.append(f"{where}: payload inside a script or style element")
+    assert problems == []
+
+
+@pytest.mark.slow
+def test_payloads_show_as_inert_text_on_the_entry_page(hostile_site: Path) -> None:
+    page = parse_page(hostile_site / "site/entries/hostile-content/index.html")
+    text = " ".join(" ".join(page.text).split())
+    for shown in ("<script>window.__pwned=1</script>", "{{ 7*7 }}",
+                  "{% if true %}ran{% endif %}", "<img src=x onerror=\"window.__pwned=2\">",
+                  "&lt;script&gt;alert(9)&lt;/script&gt;", "<script>alert(21)</script>",
+                  '10.1234/"><svg/onload=window.__pwned=20>'):
+        assert shown in text, shown
+    assert "Schwarzschild 49" not in text
+
+
+@pytest.mark.slow
+def test_markdown_notes_keep_formatting_and_lose_active_content(hostile_site: Path) -> None:
+    page = parse_page(hostile_site / "site/entries/hostile-content/index.html")
+    tags = [tag for tag, _ in page.elements]
+    assert "strong" in tags  # ordinary Markdown survives sanitising
+    benign = [t for t, _ in parse_page(
+        hostile_site / "site/entries/schwarzschild/index.html").elements]
+    for active in ("form", "style", "button", "iframe", "meta", "base", "script", "img"):
+        assert tags.count(active) == benign.count(active), active  # none came from the notes
+    hrefs = [dict(attrs).get("href") or "" for tag, attrs in page.elements if tag == "a"]
+    assert not [h for h in hrefs if BAD_SCHEMES.match(h)]
+    assert not [tag for tag, attrs in page.elements if tag in ("details", "math", "svg")
+                and any(n.startswith("on") for n, _ in attrs)]
+
+
+@pytest.mark.slow
+def test_machine_readable_files_carry_the_payloads_as_plain_strings(hostile_site: Path) -> None:
+    site = hostile_site / "site"
+    data = json.loads((site / "entries/hostile-content/entry.json").read_text(encoding="utf-8"))
+    assert "<script>window.__pwned=1</script>" in json.dumps(data, ensure_ascii=False)
+    for script in site.rglob("*.js"):
+        source = script.read_text(encoding="utf-8")
+        assert "</script" not in source.lower(), script
+        assert "<script>window.__pwned" not in source, script
+
+
+@pytest.mark.slow
+def test_svg_files_hold_no_script(hostile_site: Path) -> None:
+    """An SVG opened directly runs its scripts, so generated plots must carry none."""
+    for svg in (hostile_site / "site").rglob("*.svg"):
+        root = ET.parse(svg).getroot()
+        for element in root.iter():
+            assert not element.tag.endswith("script"), svg
+            assert not [n for n in element.attrib if n.lower().startswith("on")], svg
+
+
+@pytest.mark.slow
+def test_no_payload_created_a_file_during_the_build(hostile_site: Path) -> None:
+    created = [p for p in hostile_site.rglob("PWNED*")]
+    assert created == []
+
+
+@pytest.mark.slow
+def test_the_downloadable_python_script_runs_no_payload(hostile_site: Path,
+                                                        tmp_path: Path) -> None:
+    script = hostile_site / "site/entries/hostile-content/hostile-content.py"
+    done = subprocess.run([sys.executable, str(script)], cwd=tmp_path, capture_output=True,
+                          text=True, timeout=300)
+    assert done.returncode == 0, done.stderr
+    assert list(tmp_path.iterdir()) == []
+    namespace: dict[str, object] = {}
+    exec(compile(script.read_text(encoding="utf-8"), str(script), "exec"), namespace)
+    assert "touch PWNED-PY" in str(namespace["TITLE"])
+
+
+@pytest.mark.slow
+def test_the_downloadable_latex_has_no_live_command_from_the_entry(hostile_site: Path) -> None:
+    tex = (hostile_site / "site/entries/hostile-content/hostile-content.tex").read_text(
+        encoding="utf-8")
+    for command in ("\\input{", "\\write18", "\\immediate"):
+        assert command not in tex
+    assert "\\textbackslash{}write18" in tex
+
+
+# ---------------------------------------------------------------------------- in a browser
+
+CHROMIUM = Path("/usr/bin/chromium")
+CHROMIUM_ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic",
+                 "--no-first-run", "--disable-background-networking",
+                 "--disable-component-update", "--disable-sync"]
+
+
+def browser_findings(pages: list[Path]) -> dict[str, list[str]]:
+    """Open each file in headless Chromium; report dialogs, page errors, remote requests and
+    pages where ``window.__pwned`` got set (every payload sets it or calls alert)."""
+    sync_api = pytest.importorskip("playwright.sync_api")
+    if not CHROMIUM.exists():
+        pytest.skip("Chromium is not installed at /usr/bin/chromium")
+    found: dict[str, list[str]] = {"dialogs": [], "errors": [], "remote": [], "pwned": []}
+    with sync_api.sync_playwright() as playwright:
+        browser = playwright.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS)
+        try:
+            page = browser.new_page()
+            page.on("dialog", lambda d: (found["dialogs"].append(d.message), d.dismiss()))
+            page.on("pageerror", lambda e: found["errors"].append(str(e)))
+            page.on("request", lambda r: None if r.url.startswith(("file:", "data:", "about:"))
+                    else found["remote"].append(r.url))
+            for path in pages:
+                page.goto(path.as_uri(), wait_until="load")
+                page.mouse.move(5, 5)
+                page.mouse.move(400, 300)
+                if page.evaluate("() => window.__pwned !== undefined"):
+                    found["pwned"].append(path.name)
+        finally:
+            browser.close()
+    return found
+
+
+@pytest.mark.slow
+@pytest.mark.browser
+def test_the_browser_check_sees_a_script_that_runs(tmp_path: Path) -> None:
+    """Control: the same harness catches a page whose script does run."""
+    page = tmp_path / "control.html"
+    page.write_text("<!doctype html><title>c</title><script>window.__pwned = 1; "
+                    "alert('ran')</script>", encoding="utf-8")
+    found = browser_findings([page])
+    assert found["pwned"] == ["control.html"]
+    assert found["dialogs"] == ["ran"]
+
+
+@pytest.mark.slow
+@pytest.mark.browser
+def test_no_script_from_an_entry_runs_in_a_browser(hostile_site: Path) -> None:
+    site = hostile_site / "site"
+    found = browser_findings(html_pages(site) + sorted(site.rglob("*.svg")))
+    assert found == {"dialogs": [], "errors": [], "remote": [], "pwned": []}
+
+
+def test_no_payload_file_in_the_working_folder() -> None:
+    """The fixture's file-creating payloads name PWNED-*; none may exist in the project."""
+    assert not list(Path(os.getcwd()).glob("PWNED*"))
+    assert not list(PROJECT.glob("PWNED*"))
