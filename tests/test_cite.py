@@ -417,3 +417,54 @@ def test_citation_cff_names_the_same_author_as_entry_citations() -> None:
     cff = _cff()
     assert cff["authors"] == [{"name": CATALOG_AUTHOR}]
     assert cff["title"] == CATALOG_NAME
+
+
+# ---------------------------------------------------------------------------- hash of YAML text
+
+
+def _hash_of_text(text: str) -> str:
+    from generator.loader import Vocabulary, load_text
+
+    path = Path("catalog/demo/lantern.yaml")
+    result = load_text(text, str(path), path, Vocabulary())
+    assert result.entry is not None, [d.format_text() for d in result.diagnostics]
+    return content_hash(result.entry)
+
+
+def test_hash_of_yaml_ignores_order_comments_quoting_and_flow_style() -> None:
+    from _git_sandbox import demo_entry
+
+    original = demo_entry("lantern")
+    relaid = (
+        original.replace("title: Lantern toy spacetime\n", "")
+        .replace("coordinates: [t, x]", "# the chart\ncoordinates:\n  - 't'\n  - \"x\"  # space")
+        .replace(
+            "  k: {assume: positive, meaning: lamp strength}",
+            "  k:\n    meaning: 'lamp strength'\n    assume: \"positive\"",
+        )
+        .replace(
+            "  line_element: -(1 + k*x**2)*dt**2 + dx**2",
+            "  line_element: >-\n    -(1 + k*x**2)*dt**2\n    + dx**2",
+        )
+        + "title: 'Lantern toy spacetime'\n"
+    )
+    assert relaid != original
+    assert _hash_of_text(relaid) == _hash_of_text(original)
+
+
+@pytest.mark.parametrize(
+    ("old", "new"),
+    [
+        ("-(1 + k*x**2)*dt**2", "-(1 + k*x**3)*dt**2"),
+        ("assume: positive", "assume: nonzero"),
+        ("  - x > 0", "  - x > 1"),
+        ('signature: "-+"', 'signature: "+-"'),
+        ("kind: unspecified", "kind: vacuum"),
+    ],
+)
+def test_hash_of_yaml_changes_with_the_mathematics(old: str, new: str) -> None:
+    from _git_sandbox import demo_entry
+
+    original = demo_entry("lantern")
+    assert old in original
+    assert _hash_of_text(original.replace(old, new)) != _hash_of_text(original)
