@@ -219,7 +219,7 @@ def main(argv: list[str] | None = None) -> int:
         default=120.0,
         help="CPU seconds allowed to the textbook reference per metric",
     )
-    parser.add_argument("--repeats", type=int, default=3, help="engine runs per metric (best)")
+    parser.add_argument("--repeats", type=int, default=5, help="engine runs per metric (best)")
     parser.add_argument("--only", nargs="*", default=None, help="metric names to run")
     args = parser.parse_args(argv)
     names = [n for n in METRICS if args.only is None or n in args.only]

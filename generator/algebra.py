@@ -327,8 +327,10 @@ class RationalField:
             if e:
                 unit, g = self._primitive(f)
                 scale *= unit**e
-                primitive.append((str(g), g, e))
-        out += [self.poly_to_sympy(f) ** e for _s, f, e in sorted(primitive, key=lambda t: t[0])]
+                primitive.append((g, e))
+        if len(primitive) > 1:  # flint's factor order is deterministic; sort for readability
+            primitive.sort(key=lambda item: str(item[0]))
+        out += [self.poly_to_sympy(f) ** e for f, e in primitive]
         return scale, out
 
     def _monomial_parts(self, p: flint.fmpq_mpoly) -> tuple[sympy.Rational, list[sympy.Expr]]:

@@ -58,7 +58,7 @@ class FieldArithmetic:
 
     def __init__(self, field: RationalField) -> None:
         self.field = field
-        self.shown: dict[tuple[str, str], sympy.Expr] = {}
+        self.shown: dict[int, sympy.Expr] = {}
 
     def zero(self) -> Frac:
         return self.field.zero()
@@ -94,7 +94,9 @@ class FieldArithmetic:
         """Memoised: many components repeat (symmetric slots, Weyl = Riemann in vacuum)."""
         if x.is_zero():
             return sympy.Integer(0)
-        key = (str(x.num), str(x.den))
+        # Keyed by identity: repeated components are the same objects (symmetric slots, Weyl
+        # = Riemann when Ricci-flat); the Tensors holding them outlive this conversion.
+        key = id(x)
         if key not in self.shown:
             self.shown[key] = self.field.display(x)
         return self.shown[key]
@@ -276,7 +278,9 @@ def curvature(ar: Arithmetic, g: list[list[Any]], budget: Budget) -> Tensors:
     kretschmann = pair_square(ar, riemann, bivector, n)
     budget.check("invariants", ar, [kretschmann, ricci_squared])
     weyl = weyl_squared = None
-    if n >= 4:
+    if n >= 4 and all(ar.is_zero(ricci[a][b]) for a in range(n) for b in range(n)):
+        weyl, weyl_squared = dict(riemann), kretschmann  # Ricci-flat: C_abcd = R_abcd
+    elif n >= 4:
         weyl = weyl_lower(ar, riemann, ricci, scalar, g, n, budget)
         weyl_squared = pair_square(ar, weyl, bivector, n)
         budget.check("Weyl tensor", ar, [weyl_squared])
