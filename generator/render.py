@@ -105,7 +105,8 @@ class RenderError(AlmanacError):
 def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path) -> None:
     """Write the complete site for the published (ok) reports into ``out_dir``."""
     published = published_reports(reports, meta)
-    views = {r.entry.id: entry_view(r, meta) for r in published if r.entry is not None}
+    ids = frozenset(r.entry.id for r in published if r.entry is not None)
+    views = {r.entry.id: entry_view(r, meta, ids) for r in published if r.entry is not None}
     cards = [views[r.entry.id].card for r in published if r.entry is not None]
     env = template_environment()
     pages = list(site_pages(published, views, cards, meta))
@@ -342,12 +343,14 @@ class EntryView:
     json_document: str
 
 
-def entry_view(report: EntryReport, meta: CatalogMeta) -> EntryView:
+def entry_view(
+    report: EntryReport, meta: CatalogMeta, published_ids: frozenset[str] = frozenset()
+) -> EntryView:
     entry = report.entry
     assert entry is not None
     figures = plots.entry_plots(report)
     card = entry_card(report, meta)
-    page = entry_page_data(report, meta, card, figures)
+    page = entry_page_data(report, meta, card, figures, published_ids)
     return EntryView(
         card=card,
         page=page,
@@ -386,7 +389,11 @@ def entry_card(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
 
 
 def entry_page_data(
-    report: EntryReport, meta: CatalogMeta, card: dict[str, Any], figures: Sequence[plots.Plot]
+    report: EntryReport,
+    meta: CatalogMeta,
+    card: dict[str, Any],
+    figures: Sequence[plots.Plot],
+    published_ids: frozenset[str],
 ) -> dict[str, Any]:
     entry = report.entry
     assert entry is not None
@@ -399,7 +406,7 @@ def entry_page_data(
         "invariants": invariant_rows(report, verdicts),
         "matter": matter_data(report, verdicts),
         "symmetry": symmetry_data(report, verdicts),
-        "related": related_rows(report),
+        "related": related_rows(report, published_ids),
         "references": [reference_data(r) for r in entry.references],
         "checks": [verdict_row(v) for v in report.verdicts],
         "provenance": {
@@ -689,7 +696,8 @@ def vector_math(
     return {"math": math_inline(" + ".join(terms).replace("+ -", "- ")), "text": text}
 
 
-def related_rows(report: EntryReport) -> list[dict[str, Any]]:
+def related_rows(report: EntryReport, published_ids: frozenset[str]) -> list[dict[str, Any]]:
+    """Other charts of the same spacetime; linked only when that entry is published."""
     entry, c = report.entry, report.classification
     assert entry is not None
     checks = {v.subject: v for v in (c.related_checked if c else ())}
@@ -698,7 +706,7 @@ def related_rows(report: EntryReport) -> list[dict[str, Any]]:
         verdict = checks.get(f"related.{k}") or checks.get(f"related.{rel.entry}")
         rows.append({
             "entry": rel.entry,
-            "href": f"../{rel.entry}/index.html",
+            "href": f"../{rel.entry}/index.html" if rel.entry in published_ids else "",
             "map": [{"coordinate": name, "text": value.text} for name, value in rel.map],
             "verdict": verdict_row(verdict) if verdict else None,
         })
