@@ -156,6 +156,14 @@ def test_check_log_lists_every_verdict_with_its_method(site: Path) -> None:
     assert "exact (normal form)" in parsed.text
 
 
+def test_other_charts_link_only_to_published_entries(site: Path) -> None:
+    parsed = page(site, "entries/demo-harbour-lantern/index.html")
+    hrefs = [a.get("href", "") for a in parsed.find("a")]
+    assert "../demo-tide-cosmos/index.html" in hrefs
+    assert not any("demo-broken-buoy" in h for h in hrefs)
+    assert "demo-broken-buoy (not published)" in " ".join(parsed.text.split())
+
+
 def test_flipped_signature_is_stated(site: Path) -> None:
     parsed = page(site, "entries/demo-tide-cosmos/index.html")
     assert "+---" in parsed.text

@@ -25,6 +25,7 @@ from generator.model import (
     Matter,
     Parameter,
     Reference,
+    RelatedChart,
     Revision,
     Spacetime,
     Tag,
@@ -186,7 +187,8 @@ def lantern_report(title: str = "Harbour lantern (demo)", **text: str) -> EntryR
             arxiv=text.get("arxiv", "2601.00001"), isbn=None, locator="eq. (1)",
             unconfirmed=("venue",), pos=pos(file)),),
         curation=Curation("2026-11-30", text.get("curator", "Demo curator")),
-        related=(),
+        related=(RelatedChart("demo-tide-cosmos", (("t", math("t")),), pos(file)),
+                 RelatedChart("demo-broken-buoy", (("t", math("t")),), pos(file))),
     )
     verdicts = (
         Verdict("claims.ricci_scalar", True, "exact", "both sides reduce to 0", "0", "0"),
@@ -206,7 +208,8 @@ def lantern_report(title: str = "Harbour lantern (demo)", **text: str) -> EntryR
         petrov_type="D", weyl_scalars=None,
         killing_vectors_checked=(Verdict("claims.killing_vectors.0", True, "exact",
                                          "Lie derivative of g vanishes"),),
-        related_checked=(), geodesic_equations=(),
+        related_checked=(Verdict("related.0", True, "exact", "demo map", "", "equal"),),
+        geodesic_equations=(),
     )
     return EntryReport(entry, file, spacetime, geometry, classification, verdicts, (),
                        content_hash="c0ffee" * 10 + "abcd", seconds=0.5)
