@@ -62,16 +62,23 @@ class Plot:
 
 
 def entry_plots(report: EntryReport) -> tuple[Plot, ...]:
-    """The figures for one entry (none when there is no radial coordinate to plot along)."""
+    """The figures for one entry: invariants and metric functions along a radial coordinate,
+    else the scale factors along time; none when no parameter values satisfy the domain."""
     st, entry = report.spacetime, report.entry
     if st is None or entry is None or report.geometry is None:
         return ()
-    radial_name = radial_coordinate([str(c) for c in st.coordinates])
-    if radial_name is None:
+    names = [str(c) for c in st.coordinates]
+    along = radial_coordinate(names) or next((n for n in names if n in TIME_NAMES), None)
+    if along is None:
         return ()
-    setting = plot_setting(report, radial_name)
+    setting = plot_setting(report, along)
+    if setting is None:
+        return ()
     with matplotlib.rc_context(SVG_SETTINGS):
-        figures = [invariants_plot(report, setting), metric_functions_plot(report, setting)]
+        if along in TIME_NAMES:
+            figures = [scale_factor_plot(report, setting)]
+        else:
+            figures = [invariants_plot(report, setting), metric_functions_plot(report, setting)]
     return tuple(f for f in figures if f is not None)
 
 
@@ -94,8 +101,9 @@ def describe_values(setting: PlotSetting, plotted: Sequence[sympy.Expr]) -> str:
     return ", ".join(f"{s} = {setting.values[s]}" for s in sorted(shown, key=str))
 
 
-def parameter_values(report: EntryReport) -> dict[sympy.Symbol, sympy.Expr]:
-    """Simple exact sample values from each parameter's assumption, nudged into the domain."""
+def parameter_values(report: EntryReport) -> dict[sympy.Symbol, sympy.Expr] | None:
+    """Simple exact sample values from each parameter's assumption, nudged into the domain;
+    None when no candidate satisfies it (then nothing is plotted rather than a non-solution)."""
     st, entry = report.spacetime, report.entry
     assert st is not None and entry is not None
     by_name = {p.name: p.assume for p in entry.parameters}
@@ -104,7 +112,7 @@ def parameter_values(report: EntryReport) -> dict[sympy.Symbol, sympy.Expr]:
     for trial in _candidate_values(st.parameters, values):
         if domain_holds_for_parameters(st, trial):
             return trial
-    return values
+    return None
 
 
 def _candidate_values(
@@ -137,11 +145,13 @@ def domain_holds_for_parameters(st: Spacetime, values: dict[sympy.Symbol, sympy.
     return True
 
 
-def plot_setting(report: EntryReport, radial_name: str) -> PlotSetting:
+def plot_setting(report: EntryReport, radial_name: str) -> PlotSetting | None:
     st = report.spacetime
     assert st is not None
     radial = next(c for c in st.coordinates if str(c) == radial_name)
     values = parameter_values(report)
+    if values is None:
+        return None
     for c in st.coordinates:
         if c != radial:
             values[c] = fixed_coordinate_value(str(c))
@@ -275,6 +285,54 @@ def metric_functions_plot(report: EntryReport, setting: PlotSetting) -> Plot | N
             "horizons show where -g_tt crosses zero.",
         caption=f"Metric functions against {r}, units G = c = 1, with "
                 f"{values_text}; values clipped to ±20.",
+    )
+
+
+def scale_factor_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:
+    """sqrt(g_ii) against time for spatial directions whose metric depends on time only:
+    the scale factor of FLRW-type models, the separate ones of Kasner/Bianchi I."""
+    st, entry = report.spacetime, report.entry
+    assert st is not None and entry is not None
+    time = setting.radial
+    n = st.dimension
+    series, seen = [], []
+    for i, c in enumerate(st.coordinates):
+        g = sympy.sympify(st.metric[i, i])
+        off_diagonal = any(st.metric[i, j] != 0 for j in range(n) if j != i)
+        if c == time or off_diagonal or (g.free_symbols & set(st.coordinates)) != {time}:
+            continue
+        factor = sympy.sqrt(g)
+        if any(sympy.cancel(factor - other) == 0 for other in seen):
+            continue
+        values = sample(factor, setting, st)
+        if values is not None and numpy.isfinite(values).sum() >= 2:
+            seen.append(factor)
+            series.append((f"sqrt(g_{c}{c})", values))
+    if not series:
+        return None
+    values_text = describe_values(setting, seen)
+    x = numpy.linspace(setting.low, setting.high, SAMPLE_COUNT)[1:]
+    figure = _figure(1)
+    axis = figure.axes[0]
+    for label, values in series:
+        axis.plot(x, values, label=label, linewidth=1.4)
+    if all(_wants_log(v) for _, v in series):
+        axis.set_yscale("log")
+        axis.yaxis.set_major_formatter(LogFormatter())
+        axis.yaxis.set_minor_formatter(NullFormatter())
+    axis.legend(loc="best", frameon=False)
+    axis.set_xlabel(f"{time}  (G = c = 1)")
+    axis.set_ylabel("scale factor")
+    title = f"Scale factors along {time}" + (f"; {values_text}" if values_text else "")
+    figure.suptitle(title)
+    labels = ", ".join(label for label, _ in series)
+    return Plot(
+        file_name="scale-factors.svg",
+        svg=_svg(figure),
+        alt=f"{labels} of {entry.title} against {time}"
+            + (f" for {values_text}." if values_text else "."),
+        caption=f"Scale factors (square roots of the spatial metric components) against {time}, "
+                "units G = c = 1" + (f", with {values_text}" if values_text else "") + ".",
     )
 
 

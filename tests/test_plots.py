@@ -85,3 +85,30 @@ def test_expressions_with_free_functions_are_not_sampled() -> None:
     setting = plots.plot_setting(report, "r")
     unknown = sympy.Function("h")(report.spacetime.coordinates[1])
     assert plots.sample(unknown, setting, report.spacetime) is None
+
+
+def test_cosmologies_get_a_scale_factor_plot_along_time() -> None:
+    """Einstein–de Sitter: a(t) proportional to t^(2/3) (from memory; e.g. Carroll, Spacetime
+    and Geometry, 2004, sec. 8.3), written out in the metric so it can be plotted."""
+    report = demo.tide_report()
+    t = report.spacetime.coordinates[0]
+    g = sympy.diag(-1, *(3 * [t ** sympy.Rational(4, 3)]))
+    eds = replace(report, spacetime=replace(report.spacetime, metric=sympy.ImmutableMatrix(g),
+                                            functions=(), domain=(sympy.StrictGreaterThan(t, 0),)))
+    figures = plots.entry_plots(eds)
+    assert [f.file_name for f in figures] == ["scale-factors.svg"]
+    assert "sqrt(g_xx)" in figures[0].alt  # the three equal factors are drawn once
+    assert "sqrt(g_yy)" not in figures[0].alt
+    setting = plots.plot_setting(eds, "t")
+    values = plots.sample(sympy.sqrt(g[1, 1]), setting, eds.spacetime)
+    times = numpy.linspace(setting.low, setting.high, plots.SAMPLE_COUNT)[1:]
+    expected = [float(mpmath.power(mpmath.mpf(float(x)), mpmath.mpf(2) / 3)) for x in times]
+    assert numpy.allclose(values, expected, rtol=1e-12)
+
+
+def test_no_plot_when_no_sample_values_satisfy_the_domain() -> None:
+    report = demo.lantern_report()
+    m = report.spacetime.parameters[0]
+    impossible = replace(report, spacetime=replace(
+        report.spacetime, domain=(sympy.StrictLessThan(m, 0),)))
+    assert plots.entry_plots(impossible) == ()
