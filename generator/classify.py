@@ -171,8 +171,8 @@ def record_petrov_reasons(petrov: PetrovResult, reasons: dict[str, str]) -> None
         reasons["petrov_type"] = petrov.reason
     if petrov.weyl_scalars is None:
         reasons["weyl_scalars"] = (petrov.reason if petrov.type is None else
-                                   "no orthonormal frame with fixed signs was found in this "
-                                   "chart, or the tetrad was too large to show")
+                                   "shown only for metrics diagonal in their chart with an "
+                                   "orthonormal frame of fixed signs over the domain")
 
 
 def check_petrov_claim(entry: Entry, petrov: PetrovResult) -> list[Diagnostic]:

@@ -95,9 +95,6 @@ def hawking_ellis(mixed: sympy.Matrix, lower: sympy.Matrix, metric: sympy.Matrix
         return pointwise_type(mixed, spacetime, points,
                               "T^a_b couples more than two coordinates in this chart")
     time = lorentzian_block(blocks, metric, points, spacetime)
-    if time is None:
-        return Spectrum("undecided", "failed", "could not tell which block of the metric is "
-                        "timelike at the sample points")
     eigen: list[tuple[list[sympy.Expr], int | None]] = []  # eigenvalues, index of timelike one
     kinds = []
     for k, block in enumerate(blocks):
@@ -128,7 +125,9 @@ def type_one(eigen: list[tuple[list[sympy.Expr], int | None]], blocks: list[list
             else:
                 pressures.append(value)
     if density is None:
-        return Spectrum("I", "exact", "no timelike eigenvector was identified")
+        return Spectrum("I", "exact", "T^a_b is diagonalisable with real eigenvalues, but no "
+                        "eigenvector is timelike at every sample point (does the domain cross "
+                        "a horizon?), so ρ and the pressures are not separated")
     return Spectrum("I", "exact", "T^a_b is diagonalisable with real eigenvalues",
                     sympy.factor(density), tuple(sympy.factor(p) for p in pressures))
 
@@ -266,10 +265,18 @@ def inequalities(spectrum: Spectrum, dimension: int) -> dict[str, list[tuple[str
 
 def judge(requirements: list[tuple[str, sympy.Expr]], spacetime: Spacetime,
           points: Sequence[Point], name: str) -> EnergyCondition:
-    """Proved for all requirements → holds; one negative at a point → violated."""
+    """Proved for all requirements → holds; one negative at a point → violated.
+
+    With free functions a negative value at a point only shows that *some* choice of the
+    functions violates the condition, so the verdict is then "undecided" (it depends on them).
+    """
     for label, expr in requirements:
         for point in points:
             if sign_at(expr, point, spacetime) == -1:
+                if has_free_functions(expr, spacetime):
+                    return EnergyCondition(name, "undecided", f"depends on the free functions: "
+                                           f"{label} < 0 for some values of them (e.g. at "
+                                           f"{point_text(point)})")
                 return EnergyCondition(name, "violated", f"{label} < 0 at {point_text(point)}",
                                        describe_point(point))
     unproved = [label for label, expr in requirements if not proves_sign(expr, spacetime)]
@@ -277,6 +284,11 @@ def judge(requirements: list[tuple[str, sympy.Expr]], spacetime: Spacetime,
         return EnergyCondition(name, "holds", "proved symbolically on the whole domain")
     return EnergyCondition(name, "undecided", f"not proved ({', '.join(unproved)} ≥ 0); no "
                            f"violation at {len(points)} exact sample points")
+
+
+def has_free_functions(expr: sympy.Expr, spacetime: Spacetime) -> bool:
+    heads = {f.func for f in spacetime.functions}
+    return any(f.func in heads for f in sympy.sympify(expr).atoms(sympy.Function))
 
 
 def energy_conditions(spectrum: Spectrum, lower: sympy.Matrix, metric: sympy.Matrix,
@@ -326,6 +338,9 @@ def observer_search(name: str, lower: sympy.Matrix, metric: sympy.Matrix,
         Tm, gm = sympy.Matrix(lower.rows, lower.cols, T), sympy.Matrix(metric.rows,
                                                                         metric.cols, g)
         found = violation_at(name, Tm, gm)
+        if found and has_free_functions(lower, spacetime):
+            return EnergyCondition(name, "undecided", f"depends on the free functions: "
+                                   f"{found} for some values of them")
         if found:
             return EnergyCondition(name, "violated", f"{found} at {point_text(point)}",
                                    describe_point(point))

@@ -74,6 +74,8 @@ def point_text(point: Point) -> str:
 def index_label(names: Sequence[str], indices: Sequence[int]) -> str:
     """``tt`` for one-letter coordinate names, ``(r,theta)`` otherwise."""
     chosen = [names[i] for i in indices]
+    if len(chosen) == 1:
+        return chosen[0]
     if all(len(c) == 1 for c in chosen):
         return "".join(chosen)
     return "(" + ",".join(chosen) + ")"
@@ -91,7 +93,7 @@ def vanishes(expr: sympy.Expr, spacetime: Spacetime) -> Decision:
     confirms at sample points. A non-zero result of cancellation is never taken as proof.
     """
     expr = sympy.sympify(expr)
-    if expr.is_zero is True and expr.is_number:
+    if expr == 0:
         return Decision(True, "exact", "identically zero")
     if sympy.count_ops(expr, visual=False) <= CANCEL_LIMIT:
         try:

@@ -362,8 +362,9 @@ def orthonormal_frame(metric: sympy.Matrix, spacetime: Spacetime, points: Sequen
 
 def weyl_scalars(geometry: Geometry, spacetime: Spacetime, points: Sequence[Point]
                  ) -> dict[str, sympy.Expr] | None:
-    """Ψ0..Ψ4 in the tool's tetrad; None when the frame is too large to be useful."""
-    if geometry.weyl is None or not points:
+    """Ψ0..Ψ4 in the tool's tetrad, for diagonal metrics (elsewhere the square roots of the
+    Gram–Schmidt frame make them too large to be useful; the type does not need them)."""
+    if geometry.weyl is None or not points or not geometry.metric.is_diagonal():
         return None
     frame = orthonormal_frame(geometry.metric, spacetime, points)
     if frame is None or sum(sympy.count_ops(v) for v in frame) > PSI_SIZE_LIMIT:
