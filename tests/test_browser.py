@@ -145,3 +145,24 @@ def test_copy_button_appears_when_the_clipboard_is_available(
     page.goto(http_root + "entries/demo-harbour-lantern/index.html")
     assert page.locator("button.copy").first.is_visible()
     page.close()
+
+
+def test_print_layout_hides_navigation_and_search(browser: object, site: Path) -> None:
+    page = browser.new_page()  # type: ignore[attr-defined]
+    page.goto(site.as_uri() + "/browse.html")
+    assert page.locator("#finder").is_visible()
+    page.emulate_media(media="print")
+    assert not page.locator("#finder").is_visible()
+    assert not page.locator("header nav").is_visible()
+    assert page.locator("footer .catalog-version").is_visible()
+    page.close()
+
+
+def test_dark_scheme_changes_the_page_colours(browser: object, site: Path) -> None:
+    page = browser.new_page(color_scheme="dark")  # type: ignore[attr-defined]
+    page.goto(site.as_uri() + "/index.html")
+    dark = page.evaluate("getComputedStyle(document.body).backgroundColor")
+    page.emulate_media(color_scheme="light")
+    light = page.evaluate("getComputedStyle(document.body).backgroundColor")
+    assert dark != light
+    page.close()
