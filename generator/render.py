@@ -13,6 +13,7 @@ clock, so the same catalog gives byte-identical files.
 from __future__ import annotations
 
 import json
+import keyword
 import re
 import shutil
 from collections import Counter
@@ -931,8 +932,20 @@ def search_index_script(cards: Sequence[dict[str, Any]]) -> str:
 
 
 def python_literal(text: str) -> str:
-    """A string as a safe Python literal (contributor text never becomes code)."""
-    return json.dumps(text, ensure_ascii=True)
+    """A string as a safe, ASCII-only Python literal (contributor text never becomes code)."""
+    return ascii(text)
+
+
+SCRIPT_NAMES = frozenset({"sympy", "metric", "coordinates", "ENTRY_ID", "TITLE",
+                          "CATALOG_VERSION", "CONTENT_HASH"})
+
+
+def require_identifiers(symbols: Sequence[Any]) -> None:
+    """Names written into the SymPy script as code must be plain, non-clashing identifiers."""
+    for symbol in symbols:
+        name = getattr(symbol, "__name__", None) or str(symbol)
+        if not name.isidentifier() or keyword.iskeyword(name) or name in SCRIPT_NAMES:
+            raise RenderError(f"symbol name {name!r} cannot be written into the SymPy script")
 
 
 def sympy_script(report: EntryReport, meta: CatalogMeta) -> str:
@@ -955,6 +968,7 @@ def sympy_script(report: EntryReport, meta: CatalogMeta) -> str:
     ]
     if st is None:
         return "\n".join([*lines, "metric = None", ""])
+    require_identifiers([*st.coordinates, *st.parameters, *(f.func for f in st.functions)])
     assumptions = {p.name: p.assume for p in entry.parameters}
     for symbol in st.coordinates:
         lines.append(f"{symbol} = sympy.Symbol({python_literal(str(symbol))}, real=True)")
