@@ -262,8 +262,8 @@ def browse_context(cards: Sequence[dict[str, Any]], meta: CatalogMeta) -> dict[s
         "cards": list(cards),
         "families": [{"name": f.name, "title": f.title} for f in meta.families],
         "dimensions": sorted({c["dimension"] for c in cards}),
-        "matter_kinds": sorted({c["matter"] for c in cards}),
-        "matter_labels": MATTER_LABELS,
+        "matter_kinds": [{"value": k, "label": MATTER_LABELS.get(k, k)}
+                         for k in sorted({c["matter"] for c in cards})],
         "petrov_types": sorted({c["petrov"] for c in cards if c["petrov"]}),
         "tags": used_tags,
     }
