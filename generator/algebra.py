@@ -376,6 +376,7 @@ def build_field(request: FieldRequest) -> tuple[RationalField, list[Frac]]:
     specs += [GeneratorSpec(p, p, "parameter") for p in request.parameters]
     function_heads = {f.func: f for f in request.functions}
     depth_of: dict[sympy.Basic, int] = {}
+    derivatives: dict[tuple[sympy.Basic, sympy.Symbol], sympy.Expr] = {}
     pending = list(request.expressions)
     depth = 0
     while True:
@@ -384,12 +385,12 @@ def build_field(request: FieldRequest) -> tuple[RationalField, list[Frac]]:
             depth_of.setdefault(s.key, depth)
         if depth >= request.derivative_depth:
             break
-        pending = _derivative_expressions(field, depth_of, depth, request.coordinates)
+        pending = _derivative_expressions(field, depth_of, depth, request.coordinates, derivatives)
         depth += 1
         if not pending:
             break
         specs = list(_discovery_order(field))
-    final = _finalise(field, depth_of, request)
+    final = _finalise(field, depth_of, request, derivatives)
     return final, [_convert(final, e, function_heads) for e in request.expressions]
 
 
@@ -398,13 +399,22 @@ def _discovery_order(field: RationalField) -> list[GeneratorSpec]:
 
 
 def _derivative_expressions(
-    field: RationalField, depth_of: dict[sympy.Basic, int], depth: int, coords: tuple
+    field: RationalField,
+    depth_of: dict[sympy.Basic, int],
+    depth: int,
+    coords: tuple,
+    derivatives: dict[tuple[sympy.Basic, sympy.Symbol], sympy.Expr],
 ) -> list[sympy.Expr]:
+    """SymPy derivatives of the generators found at ``depth`` (remembered in
+    ``derivatives``: SymPy's diff is the slowest step of building a field)."""
     out = []
     for s in field.specs:
         if depth_of[s.key] != depth or s.kind in ("coordinate", "parameter", "constant"):
             continue
-        out += [sympy.diff(s.meaning, x) for x in coords if s.meaning.has(x)]
+        for x in coords:
+            if s.meaning.has(x):
+                derivatives[s.key, x] = sympy.diff(s.meaning, x)
+                out.append(derivatives[s.key, x])
     return out
 
 
@@ -459,13 +469,15 @@ def _relation(field: RationalField, k: int, spec: GeneratorSpec) -> flint.fmpq_m
     return z**spec.degree - base.den ** (spec.degree - 1) * base.num
 
 
-def _finalise(field: RationalField, depth_of: dict, request: FieldRequest) -> RationalField:
+def _finalise(
+    field: RationalField, depth_of: dict, request: FieldRequest, derivatives: dict
+) -> RationalField:
     """Attach derivative rules to every generator that has them within the depth."""
     heads = {f.func: f for f in request.functions}
     rules = []
     for s in field.specs:
         if depth_of.get(s.key, 0) < request.derivative_depth:
-            row = [_rule(field, s, x, heads) for x in request.coordinates]
+            row = [_rule(field, s, x, heads, derivatives) for x in request.coordinates]
         else:
             row = [_MISSING if s.meaning.has(x) else None for x in request.coordinates]
         rules.append(tuple(row))
@@ -474,13 +486,18 @@ def _finalise(field: RationalField, depth_of: dict, request: FieldRequest) -> Ra
     )
 
 
-def _rule(field: RationalField, spec: GeneratorSpec, x: sympy.Symbol, heads: dict) -> Frac | None:
+def _rule(
+    field: RationalField, spec: GeneratorSpec, x: sympy.Symbol, heads: dict, derivatives: dict
+) -> Frac | None:
     if spec.kind == "coordinate":
         return field.one() if spec.key == x else None
     if spec.kind in ("parameter", "constant") or not spec.meaning.has(x):
         return None
+    derivative = derivatives.get((spec.key, x))
+    if derivative is None:
+        derivative = sympy.diff(spec.meaning, x)
     try:
-        d = _convert(field, sympy.diff(spec.meaning, x), heads)
+        d = _convert(field, derivative, heads)
     except _NeedGenerator:
         return _MISSING
     return None if d.is_zero() else d
