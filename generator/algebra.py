@@ -20,10 +20,13 @@ from __future__ import annotations
 import functools
 import itertools
 import math
+import time
 from dataclasses import dataclass
 
 import flint
 import sympy
+
+from .errors import BudgetExceeded
 
 TRIG_PAIRS = {sympy.sin: "sin", sympy.cos: "cos"}
 HYPERBOLIC_PAIRS = {sympy.sinh: "sinh", sympy.cosh: "cosh"}
@@ -367,6 +370,7 @@ class FieldRequest:
     functions: tuple[sympy.Expr, ...]
     expressions: tuple[sympy.Expr, ...]
     derivative_depth: int = 2  # how many times expressions will be differentiated
+    deadline: float | None = None  # time.monotonic() value; past it, building raises
 
 
 def build_field(request: FieldRequest) -> tuple[RationalField, list[Frac]]:
@@ -380,6 +384,7 @@ def build_field(request: FieldRequest) -> tuple[RationalField, list[Frac]]:
     pending = list(request.expressions)
     depth = 0
     while True:
+        _check_deadline(request)
         field = _discover(specs, pending, request.coordinates, function_heads)
         for s in field.specs:
             depth_of.setdefault(s.key, depth)
@@ -392,6 +397,11 @@ def build_field(request: FieldRequest) -> tuple[RationalField, list[Frac]]:
         specs = list(_discovery_order(field))
     final = _finalise(field, depth_of, request, derivatives)
     return final, [_convert(final, e, function_heads) for e in request.expressions]
+
+
+def _check_deadline(request: FieldRequest) -> None:
+    if request.deadline is not None and time.monotonic() > request.deadline:
+        raise BudgetExceeded("generator field", "time limit exceeded while reading the metric")
 
 
 def _discovery_order(field: RationalField) -> list[GeneratorSpec]:

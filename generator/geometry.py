@@ -203,7 +203,7 @@ def compute_geometry_with(spacetime: Spacetime, limits: Limits | None, engine: s
     budget = Budget.start(limits or Limits())
     if engine != "sympy":
         try:
-            arithmetic, metric = field_setup(spacetime, derivative_depth=2)
+            arithmetic, metric = field_setup(spacetime, 2, budget.deadline)
             tensors = curvature(arithmetic, metric, budget)
             used = "rational-function"
         except NotInField:
@@ -218,12 +218,20 @@ def compute_geometry_with(spacetime: Spacetime, limits: Limits | None, engine: s
     return to_geometry(spacetime, tensors, arithmetic, used, time.monotonic() - started)
 
 
-def field_setup(spacetime: Spacetime, derivative_depth: int) -> tuple[FieldArithmetic, list]:
-    """Build the field of the metric components, closed under ``derivative_depth`` derivatives."""
+def field_setup(
+    spacetime: Spacetime, derivative_depth: int, deadline: float | None = None
+) -> tuple[FieldArithmetic, list]:
+    """Build the field of the metric components, closed under ``derivative_depth`` derivatives
+    (2 for curvature; callers that differentiate curvature again ask for more)."""
     n = spacetime.dimension
     entries = tuple(spacetime.metric[a, b] for a in range(n) for b in range(n))
     request = FieldRequest(
-        spacetime.coordinates, spacetime.parameters, spacetime.functions, entries, derivative_depth
+        spacetime.coordinates,
+        spacetime.parameters,
+        spacetime.functions,
+        entries,
+        derivative_depth,
+        deadline,
     )
     field, values = build_field(request)
     return FieldArithmetic(field), [values[a * n : (a + 1) * n] for a in range(n)]
