@@ -171,8 +171,9 @@ def record_petrov_reasons(petrov: PetrovResult, reasons: dict[str, str]) -> None
         reasons["petrov_type"] = petrov.reason
     if petrov.weyl_scalars is None:
         reasons["weyl_scalars"] = (petrov.reason if petrov.type is None else
-                                   "shown only for metrics diagonal in their chart with an "
-                                   "orthonormal frame of fixed signs over the domain")
+                                   "shown only for metrics diagonal in their chart, with an "
+                                   "orthonormal frame of fixed signs over the domain and a "
+                                   "Weyl tensor small enough to display")
 
 
 def check_petrov_claim(entry: Entry, petrov: PetrovResult) -> list[Diagnostic]:

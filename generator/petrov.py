@@ -32,7 +32,7 @@ from .exactvalues import Point, sign_at, vanishes
 from .model import Geometry, Index, Spacetime
 
 PAIRS = [(0, 1), (0, 2), (0, 3), (1, 2), (1, 3), (2, 3)]
-PSI_SIZE_LIMIT = 4000  # operations in a tetrad vector; beyond it the Ψ's are not shown
+PSI_SIZE_LIMIT = 400  # operations in the Weyl components or the frame; beyond: Ψ's not shown
 
 
 @dataclass(frozen=True)
@@ -337,50 +337,57 @@ def decide_type(geometry: Geometry, spacetime: Spacetime) -> tuple[str, list[str
 # ---------------------------------------------------------------------------- Ψ0..Ψ4
 
 
-def orthonormal_frame(metric: sympy.Matrix, spacetime: Spacetime, points: Sequence[Point]
-                      ) -> list[sympy.Matrix] | None:
-    """Gram–Schmidt, spatial coordinates first (e0 is then the normal of t = const)."""
-    n = metric.rows
-    frame: list[sympy.Matrix] = []
-    signs: list[int] = []
-    for i in [*range(1, n), 0]:
-        v = sympy.zeros(n, 1)
-        v[i] = 1
-        for e, s in zip(frame, signs, strict=True):
-            v = v - s * (e.T * metric * v)[0, 0] * e
-        q = sympy.cancel((v.T * metric * v)[0, 0])
-        found = {sign_at(q, p, spacetime) for p in points} - {None}
+def diagonal_frame_signs(metric: sympy.Matrix, spacetime: Spacetime, points: Sequence[Point]
+                         ) -> list[int] | None:
+    """Sign of each g_aa over the sample points (None if one changes sign or is undecided)."""
+    signs = []
+    for a in range(metric.rows):
+        found = {sign_at(metric[a, a], p, spacetime) for p in points} - {None}
         if len(found) != 1 or 0 in found:
             return None
-        s = found.pop()
-        frame.append((v / sympy.sqrt(s * q)).applyfunc(sympy.radsimp))
-        signs.append(s)
-    if signs[-1] != -1:
-        return None
-    return [frame[-1], *frame[:-1]]
+        signs.append(found.pop())
+    return signs if signs.count(-1) == 1 else None
 
 
 def weyl_scalars(geometry: Geometry, spacetime: Spacetime, points: Sequence[Point]
                  ) -> dict[str, sympy.Expr] | None:
-    """Ψ0..Ψ4 in the tool's tetrad, for diagonal metrics (elsewhere the square roots of the
-    Gram–Schmidt frame make them too large to be useful; the type does not need them)."""
+    """Ψ0..Ψ4 in the tool's tetrad, for diagonal metrics.
+
+    The frame is e_a = ∂_a/√|g_aa| (time first, then the spatial coordinates in order). The
+    contraction is done with symbols n_a standing for 1/√|g_aa| and the coefficient of each
+    monomial in them summed exactly; only then are the roots put in, so no expression with
+    square roots is ever expanded. Elsewhere the Ψ's are not shown (the type does not need them).
+    """
     if geometry.weyl is None or not points or not geometry.metric.is_diagonal():
         return None
-    frame = orthonormal_frame(geometry.metric, spacetime, points)
-    if frame is None or sum(sympy.count_ops(v) for v in frame) > PSI_SIZE_LIMIT:
+    signs = diagonal_frame_signs(geometry.metric, spacetime, points)
+    if signs is None:
         return None
-    e0, e1, e2, e3 = frame
+    time = signs.index(-1)
+    order = [time, *(a for a in range(4) if a != time)]
+    scale = [sympy.Dummy(f"n{a}", positive=True) for a in range(4)]
+    unit = [sympy.Matrix([scale[a] if b == a else 0 for b in range(4)]) for a in order]
     r2 = sympy.sqrt(2)
-    ell, nn = (e0 + e1) / r2, (e0 - e1) / r2
-    m, mb = (e2 + sympy.I * e3) / r2, (e2 - sympy.I * e3) / r2
+    ell, nn = (unit[0] + unit[1]) / r2, (unit[0] - unit[1]) / r2
+    m, mb = (unit[2] + sympy.I * unit[3]) / r2, (unit[2] - sympy.I * unit[3]) / r2
     C = weyl_component(geometry.weyl)
     nonzero = [(k, C(*k)) for k in itertools.product(range(4), repeat=4) if C(*k) != 0]
+    roots = {scale[a]: 1 / sympy.sqrt(signs[a] * geometry.metric[a, a]) for a in range(4)}
 
     def contract(a: sympy.Matrix, b: sympy.Matrix, c: sympy.Matrix, d: sympy.Matrix
                  ) -> sympy.Expr:
-        total = sum((v * a[i] * b[j] * c[k] * d[q] for (i, j, k, q), v in nonzero),
-                    sympy.Integer(0))
-        return sympy.factor(sympy.expand(total))
+        groups: dict[sympy.Expr, list[sympy.Expr]] = {}
+        for (i, j, k, q), v in nonzero:
+            weight = sympy.expand(a[i] * b[j] * c[k] * d[q])
+            if weight == 0:
+                continue
+            for coefficient, monomial in (t.as_independent(*scale) for t in
+                                          sympy.Add.make_args(weight)):
+                groups.setdefault(monomial, []).append(coefficient * v)
+        total = sympy.Integer(0)
+        for monomial, terms in groups.items():
+            total += sympy.factor(sympy.cancel(sympy.Add(*terms))) * monomial.xreplace(roots)
+        return sympy.factor(total) if sympy.count_ops(total) < PSI_SIZE_LIMIT else total
 
     return {
         "Psi0": contract(ell, m, ell, m),
