@@ -12,6 +12,7 @@ digits with a 1e-20 tolerance), and the decision says so. Strings are never comp
 from __future__ import annotations
 
 import sympy
+from sympy.core.function import AppliedUndef
 
 from .algebra import FieldRequest, Frac, NotInField, RationalField, build_field
 from .model import Decision, Spacetime
@@ -46,7 +47,7 @@ def canonical(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr:
     Deterministic: the same expression always gives the same tree. Expressions outside the
     field get SymPy's ``factor(cancel(...))``, which is deterministic as well.
     """
-    expr = sympy.sympify(expr)
+    expr = _aligned(sympy.sympify(expr), spacetime)
     try:
         field, (value,) = _field_of((expr,), spacetime)
     except (NotInField, ZeroDivisionError):
@@ -67,7 +68,7 @@ def _field_of(
 
 
 def _decide(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decision:
-    left, right = _without_subs(left), _without_subs(right)
+    left, right = (_without_subs(_aligned(e, spacetime)) for e in (left, right))
     try:
         field, (a, b) = _field_of((left, right), spacetime)
         normal_zero = field.equal(a, b)
@@ -103,6 +104,27 @@ def _find_witness(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> 
             return Decision(False, "exact", detail, _witness(point, spacetime))
         usable += differs is not None
     return _sampled_verdict(usable, "normal form not canonical here")
+
+
+def _aligned(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr:
+    """Use the spacetime's own symbols and functions for same-named ones in ``expr``.
+
+    SymPy tells ``Symbol('r')`` from ``Symbol('r', real=True)`` and ``Function('a')`` from
+    ``Function('a', positive=True)``; a claim read with other assumptions than the metric must
+    still be compared with it, not with an unrelated variable."""
+    own = {str(s): s for s in (*spacetime.coordinates, *spacetime.parameters)}
+    symbols = {s: own[s.name] for s in expr.free_symbols if s.name in own and own[s.name] != s}
+    if symbols:
+        expr = expr.xreplace(symbols)
+    heads = {f.func.__name__: f.func for f in spacetime.functions}
+    foreign = {
+        f
+        for f in expr.atoms(AppliedUndef)
+        if f.func.__name__ in heads and f.func is not heads[f.func.__name__]
+    }
+    if foreign:
+        expr = expr.xreplace({f: heads[f.func.__name__](*f.args) for f in foreign})
+    return expr
 
 
 def _without_subs(expr: sympy.Expr) -> sympy.Expr:

@@ -171,3 +171,19 @@ def test_undecidable_when_the_domain_is_empty() -> None:
     st = spacetime((t, r), (M,), sp.diag(-1, 1), domain=(sp.Gt(r, 1), sp.Lt(r, 0)), signature="-+")
     decision = decide_equal(sp.Float("0.5") * r, r / 2, st)
     assert (decision.equal, decision.method) == (None, "failed")
+
+
+def test_claims_with_other_assumptions_still_compare_with_the_metric() -> None:
+    # A claim read with plain symbols and an assumption-free a(t) means the entry's r, M and
+    # scale factor; SymPy would otherwise treat them as unrelated variables.
+    st = schwarzschild()
+    plain_r, plain_m = sp.Symbol("r"), sp.Symbol("M")
+    assert decide_equal(48 * plain_m**2 / plain_r**6, SCHWARZSCHILD_K, st).equal is True
+    assert decide_equal(47 * plain_m**2 / plain_r**6, SCHWARZSCHILD_K, st).equal is False
+    cosmos = flrw_flat()
+    plain_a = sp.Function("a")(t)
+    right = 6 * sp.Derivative(plain_a, t) ** 2 / plain_a**2
+    scale = cosmos.functions[0]
+    computed = 6 * sp.Derivative(scale, t) ** 2 / scale**2
+    decision = decide_equal(right, computed, cosmos)
+    assert (decision.equal, decision.method) == (True, "exact")
