@@ -17,7 +17,7 @@ import sympy
 from . import classify as classify_stage
 from .equality import decide_equal
 from .errors import BudgetExceeded, Diagnostic
-from .geometry import Limits, compute_geometry
+from .geometry import DegenerateMetric, Limits, compute_geometry
 from .loader import LoadResult, parse_at, symbol_table
 from .model import Classification, Entry, EntryReport, Geometry, Spacetime, Verdict
 from .sampling import sample_points
@@ -46,8 +46,12 @@ def check_loaded(
                            _hash(entry))
     try:
         geometry = compute_geometry(spacetime, limits)
-    except BudgetExceeded as exc:
-        diagnostics.append(_budget_diagnostic(entry, exc))
+    except (BudgetExceeded, DegenerateMetric) as exc:
+        diagnostics.append(_budget_diagnostic(entry, exc) if isinstance(exc, BudgetExceeded)
+                           else Diagnostic.at(entry.pos("metric"), "error",
+                                              "the metric has no inverse (det g = 0)",
+                                              "metric.degenerate",
+                                              "check for a missing or duplicated component"))
         return EntryReport(entry, load.file, spacetime, None, None, (), tuple(diagnostics),
                            _hash(entry), time.perf_counter() - started)
     verdicts, claim_problems = check_scalar_claims(entry, spacetime, geometry)
