@@ -381,3 +381,20 @@ def test_a_line_element_whose_check_would_expand_enormously_ends_quickly(
     assert not problem, f"loading an entry is unbounded: {problem}"
     assert [d.code for d in result.diagnostics] == ["metric.line-element"]
     assert_loaded_or_explained(result, source)
+
+
+@pytest.mark.parametrize("text", [
+    "((r+M)**100 + 1)**100",
+    "(((r+1)**10 + M)**10 + 1)**100",
+])
+def test_a_claim_whose_normal_form_has_astronomic_degree_is_refused_by_the_parser(
+    text: str,
+) -> None:
+    """Found by this suite: such a claim parses, then equality.decide_equal builds its
+    rational-function normal form (a polynomial of degree 10 000 in two variables) inside one
+    FLINT call that no alarm can interrupt (measured: 185 s before a 30 s alarm could fire).
+    Nested integer powers multiply degrees, so the parser must bound their product as it
+    already bounds a single exponent (MAX_EXPONENT)."""
+    value, problem = parse_bounded(text)
+    assert value is None and problem is not None
+    assert problem.code == "math.syntax"
