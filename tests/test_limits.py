@@ -314,3 +314,35 @@ def test_the_build_reports_the_pathological_entry_and_keeps_the_old_site(tmp_pat
         done.stderr
     assert "2 entries checked: 1 verified, 1 failed" in done.stderr
     assert (tmp_path / "site" / "index.html").read_text() == "previous site"
+
+
+def _proposed_run_task_body(load: LoadResult, related: dict, seconds: float,
+                            memory_bytes: int):
+    """The body proposed for generator.pipeline.run_task (kept identical to the report)."""
+    from generator.geometry import Limits
+    from generator.verify import check_loaded
+
+    try:
+        return run_limited(check_loaded, load, related, Limits(seconds=seconds),
+                           seconds=seconds, memory_bytes=memory_bytes,
+                           stage_of=describe_stage)
+    except BudgetExceeded as exc:
+        return budget_failure_report(load, exc)
+
+
+@pytest.mark.slow
+def test_the_proposed_wiring_turns_a_pathological_entry_into_a_report() -> None:
+    from generator.catalog import vocabulary
+    from generator.loader import load_entry
+
+    root = Path(__file__).resolve().parent / "roots"
+    path = root / "hostile-pathological/black-holes/pathological-expansion.yaml"
+    project = Path(__file__).resolve().parents[1]
+    load = load_entry(path, "catalog/black-holes/pathological-expansion.yaml",
+                      vocabulary(project / "catalog"))
+    assert load.ok
+    report = _proposed_run_task_body(load, {}, 3.0, 2 << 30)
+    assert not report.ok
+    (budget,) = [d for d in report.diagnostics if d.code == BUDGET_CODE]
+    assert (budget.line, budget.column) == (15, 3)
+    assert "time limit of 3 s" in budget.message
