@@ -323,7 +323,7 @@ def read_nodes(file: str, source: str) -> tuple[yaml.Node | None, list[Diagnosti
         return None, [Diagnostic(file, line, column, "error", message, "yaml.syntax",
                                  "check indentation, colons and quotes around this point")]
     except yaml.YAMLError as exc:
-        return None, [Diagnostic(file, 1, 1, "error", f"invalid YAML: {exc}", "yaml.syntax")]
+        return None, [Diagnostic(file, *_line_column(_line_starts(source), getattr(exc, "position", 0)), "error", f"invalid YAML: {exc}", "yaml.syntax")]  # noqa: E501
     if len(documents) != 1 or documents[0] is None:
         return None, [Diagnostic(file, 1, 1, "error", "expected exactly one YAML document",
                                  "yaml.document", "an entry file holds one mapping")]
