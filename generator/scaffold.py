@@ -667,13 +667,13 @@ def interview(draft: Draft, catalog: Path, ask: Ask, out: TextIO) -> Draft:
                 lambda v: None if v in known else "not a family",
             ),
         )
-    for name, prompt in (
+    for name, question in (
         ("title", "Title: "),
         ("chart", "Chart: "),
         ("summary", "One-line summary: "),
     ):
         if not getattr(d, name):
-            d = replace(d, **{name: _ask(ask, prompt)})
+            d = replace(d, **{name: _ask(ask, question)})
     if not d.coordinates:
         d = replace(d, coordinates=_ask_coordinates(ask, out))
     if not d.parameters:
@@ -700,9 +700,9 @@ def interview(draft: Draft, catalog: Path, ask: Ask, out: TextIO) -> Draft:
     return d
 
 
-def _ask(ask: Ask, prompt: str) -> str:
+def _ask(ask: Ask, question: str) -> str:
     try:
-        return ask(prompt).strip()
+        return ask(question).strip()
     except EOFError as exc:
         raise _Abort("stopped before all questions were answered") from exc
 
@@ -710,20 +710,20 @@ def _ask(ask: Ask, prompt: str) -> str:
 def _ask_until(
     ask: Ask,
     out: TextIO,
-    prompt: str,
+    question: str,
     problem: Callable[[str], str | None],
     allow_empty: bool = False,
     tries: int = 5,
 ) -> str:
     for _ in range(tries):
-        answer = _ask(ask, prompt)
+        answer = _ask(ask, question)
         if allow_empty and not answer:
             return ""
         complaint = problem(answer) if answer else "an answer is needed"
         if complaint is None:
             return answer
         print(f"  {complaint}; try again", file=out)
-    raise _Abort(f"no usable answer to {prompt.strip()!r}")
+    raise _Abort(f"no usable answer to {question.strip()!r}")
 
 
 def _ask_coordinates(ask: Ask, out: TextIO) -> tuple[str, ...]:
@@ -744,5 +744,5 @@ def _ask_parameters(ask: Ask, out: TextIO) -> tuple[ParameterSpec, ...]:
         bad = [p.name for p in specs if not valid_name(p.name) or p.assume not in ASSUMPTIONS]
         return f"check {', '.join(bad)} (assume: {', '.join(ASSUMPTIONS)})" if bad else None
 
-    prompt = "Parameters as NAME:ASSUME:MEANING; ... (e.g. M:positive:mass; empty for none): "
-    return parse_parameters([_ask_until(ask, out, prompt, problem, allow_empty=True)])
+    question = "Parameters as NAME:ASSUME:MEANING; ... (e.g. M:positive:mass; empty for none): "
+    return parse_parameters([_ask_until(ask, out, question, problem, allow_empty=True)])

@@ -57,8 +57,8 @@ def run(argv: list[str], catalog: Path, answers: list[str] | None = None) -> tup
     out = io.StringIO()
     replies = iter(answers or [])
 
-    def ask(prompt: str) -> str:
-        out.write(prompt)
+    def ask(question: str) -> str:
+        out.write(question)
         return next(replies)
 
     argv = [*argv, "--catalog", str(catalog), "--repo", str(catalog.parent)]
@@ -279,7 +279,7 @@ def test_interactive_asks_for_what_is_missing_and_re_asks_bad_answers(catalog: P
 
 
 def test_interactive_stops_cleanly_when_input_ends(catalog: Path) -> None:
-    def ask(prompt: str) -> str:
+    def ask(question: str) -> str:
         raise EOFError
 
     out = io.StringIO()
