@@ -25,8 +25,9 @@ MAX_LENGTH = 20_000
 MAX_DEPTH = 100
 MAX_DIGITS = 40
 MAX_EXPONENT = 100  # numerator and denominator bound of a numeric exponent
-MAX_POWER_BITS = 4096
-MAX_DERIVATIVE_ORDER = 4  # bound on the size of a number raised to a number
+MAX_POWER_BITS = 4096  # bound on the size of a number raised to a number
+MAX_DERIVATIVE_ORDER = 4
+MAX_DEGREE = 200  # bound on the polynomial degree an expression can expand to
 
 KNOWN_FUNCTIONS: dict[str, Callable[..., sympy.Expr]] = {
     "sin": sympy.sin,
@@ -382,9 +383,47 @@ def _unknown_name_hint(name: str) -> str:
     return "declare it under 'parameters', 'coordinates' or 'functions'"
 
 
+def degree_bound(expr: sympy.Basic) -> int:
+    """An upper bound of the degree the expression reaches when expanded into polynomials.
+
+    Nested integer powers multiply degrees (``((r + 1)**100 + 1)**100`` has degree 10 000), and
+    the exact engine would build that polynomial inside one uninterruptible library call, so the
+    parser refuses such expressions up front. Function applications count as one generator whose
+    argument's degree also counts.
+    """
+    memo: dict[sympy.Basic, int] = {}
+
+    def bound(node: sympy.Basic) -> int:
+        if node in memo:
+            return memo[node]
+        if node.is_Atom:
+            value = 0 if node.is_number else 1
+        elif node.is_Add:
+            value = max(bound(arg) for arg in node.args)
+        elif node.is_Mul:
+            value = sum(bound(arg) for arg in node.args)
+        elif node.is_Pow and node.exp.is_Rational:
+            value = abs(int(node.exp.p)) * bound(node.base)
+        else:
+            value = max([1, *(bound(arg) for arg in node.args)])
+        memo[node] = min(value, 10**9)
+        return memo[node]
+
+    return bound(expr)
+
+
+def _check_degree(expr: sympy.Basic) -> sympy.Basic:
+    degree = degree_bound(expr)
+    if degree > MAX_DEGREE:
+        raise MathSyntaxError(
+            f"expression expands to polynomial degree up to {degree} (limit {MAX_DEGREE})", 0,
+            "nested powers multiply degrees; simplify the expression by hand")
+    return expr
+
+
 def parse_expression(text: str, table: SymbolTable) -> sympy.Expr:
     """Parse one math string into a SymPy expression (no differentials unless declared)."""
-    return _Parser(text, table, allow_relations=False).parse()
+    return _check_degree(_Parser(text, table, allow_relations=False).parse())
 
 
 def table_from_symbols(symbols: Mapping[str, sympy.Basic]) -> SymbolTable:
@@ -406,4 +445,4 @@ def parse_math(math: MathText, symbols: Mapping[str, sympy.Basic]) -> sympy.Expr
 
 def parse_inequality(text: str, table: SymbolTable) -> sympy.Basic:
     """Parse a domain inequality; chains such as ``0 < theta < pi`` become an ``And``."""
-    return _Parser(text, table, allow_relations=True).parse()
+    return _check_degree(_Parser(text, table, allow_relations=True).parse())
