@@ -15,7 +15,9 @@ import sympy
 
 from .model import Spacetime
 
-SIZE_LIMIT = 3000  # operations; bigger expressions are not attempted
+SIZE_LIMIT = 600  # operations; bigger expressions are not attempted ("not proved")
+CANCEL_LIMIT = 250  # operations; larger quotients are not cancelled or factored
+RADICAND_LIMIT = 150  # operations in a square root's argument that is examined
 
 
 def _bound(relation: sympy.Basic, x: sympy.Symbol) -> tuple[str, sympy.Expr, bool] | None:
@@ -113,6 +115,8 @@ def _hide_known_roots(expr: sympy.Expr, facts: list[sympy.Expr]) -> sympy.Expr:
         base, exponent = power.as_base_exp()
         if not (exponent.is_Rational and exponent.q == 2):
             continue
+        if sympy.count_ops(base) > RADICAND_LIMIT:
+            continue
         radicand = sympy.expand(base)
         if radicand.is_positive or any(radicand == f for f in expanded_facts):
             table[power] = sympy.Dummy("root", positive=True)
@@ -134,6 +138,8 @@ def _factor_sign_ok(factor: sympy.Expr, strict: bool) -> bool:
 def _product_sign_ok(expr: sympy.Expr, strict: bool) -> bool:
     if (expr.is_positive if strict else expr.is_nonnegative) is True:
         return True
+    if sympy.count_ops(expr) > CANCEL_LIMIT:
+        return False
     factored = sympy.factor(expr)
     factors = sympy.Mul.make_args(factored)
     return all(_factor_sign_ok(f, strict) for f in factors)
@@ -142,13 +148,18 @@ def _product_sign_ok(expr: sympy.Expr, strict: bool) -> bool:
 def proves_sign(expr: sympy.Expr, spacetime: Spacetime, strict: bool = False) -> bool:
     """True only if ``expr`` ≥ 0 (> 0 when ``strict``) is proved on the whole domain."""
     expr = sympy.sympify(expr)
-    if expr.is_zero and not strict:
-        return True
+    if expr == 0:
+        return not strict
     if sympy.count_ops(expr) > SIZE_LIMIT:
         return False
     try:
         substituted = apply_substitution(expr, spacetime)
-        numerator, denominator = sympy.fraction(sympy.cancel(sympy.together(substituted)))
+        if sympy.count_ops(substituted) > 2 * SIZE_LIMIT:
+            return False
+        together = sympy.together(substituted)
+        if sympy.count_ops(together) <= CANCEL_LIMIT:
+            together = sympy.cancel(together)
+        numerator, denominator = sympy.fraction(together)
         if numerator == 0:
             return not strict
         return _product_sign_ok(numerator, strict) and _product_sign_ok(denominator, True)
