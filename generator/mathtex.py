@@ -69,9 +69,10 @@ def _coordinate_degree(term: sympy.Expr, coords: frozenset[sympy.Symbol]) -> int
 def textbook_order(terms: Sequence[sympy.Expr], coords: frozenset[sympy.Symbol]) -> list:
     """Order the terms of a sum as textbooks do.
 
-    With a pure number among the terms (``1 - 2M/r + Q^2/r^2``, ``1 - k r^2``) the number comes
-    first and the rest by growing power of the coordinates; otherwise (``r^2 - 2Mr + a^2``)
-    by falling power, plain coordinate powers before terms carrying parameters.
+    With a positive number among the terms (``1 - 2M/r + Q^2/r^2``, ``1 - k r^2``) the number
+    comes first and the rest by growing power of the coordinates; a negative number goes last
+    (``Lambda r^2 - 3``); otherwise (``r^2 - 2Mr + a^2``) by falling power, plain coordinate
+    powers before terms carrying parameters.
     """
     numbers = [t for t in terms if t.is_Number]
     others = [t for t in terms if not t.is_Number]
@@ -79,6 +80,10 @@ def textbook_order(terms: Sequence[sympy.Expr], coords: frozenset[sympy.Symbol])
     def params(term: sympy.Expr) -> int:
         return len(term.free_symbols - coords)
 
+    if numbers and numbers[0].is_negative and others:
+        others.sort(key=lambda t: (-_coordinate_degree(t, coords), params(t),
+                                   sympy.default_sort_key(t)))
+        return others + numbers  # Lambda r^2 - 3, not -3 + Lambda r^2
     if numbers:
         others.sort(key=lambda t: (abs(_coordinate_degree(t, coords)),
                                    _coordinate_degree(t, coords) > 0, params(t),
@@ -98,7 +103,10 @@ def _prefers_minus(expr: sympy.Expr) -> bool:
             return bool(constant[0].is_negative)
         negative = sum(1 for t in expr.args if t.could_extract_minus_sign())
         return negative > len(expr.args) - negative
-    return bool(expr.could_extract_minus_sign())
+    coefficient, rest = expr.as_coeff_Mul()
+    if coefficient.is_negative:
+        return True
+    return bool(rest.is_Add and _prefers_minus(rest))
 
 
 class TextbookLatexPrinter(LatexPrinter):
