@@ -224,9 +224,9 @@ def pointwise_type(mixed: sympy.Matrix, spacetime: Spacetime, points: Sequence[P
 
 def type_at_point(matrix: sympy.Matrix) -> str:
     """Segre type of a rational matrix self-adjoint for a Lorentzian metric."""
-    x = sympy.Dummy("x")
-    poly = sympy.Poly(matrix.charpoly(x).as_expr(), x)
-    squarefree = sympy.Poly(sympy.sqf_part(poly.as_expr()), x)
+    characteristic = matrix.charpoly()
+    x = characteristic.gen
+    squarefree = sympy.Poly(sympy.sqf_part(characteristic.as_expr()), x)
     if squarefree.count_roots() < squarefree.degree():
         return "IV"
     s_of_m = evaluate_polynomial(squarefree, matrix)

@@ -51,9 +51,14 @@ def domain_substitution(spacetime: Spacetime) -> list[dict[sympy.Basic, sympy.Ex
     symbols = list(spacetime.coordinates) + list(spacetime.parameters)
     used: set[sympy.Basic] = set()
     replaced: set[sympy.Basic] = set()
-    for x in symbols:
+    # bounds that mention other symbols first: x > 2*v is used before v > 0 replaces v
+    visits = [(x, True) for x in symbols] + [(x, False) for x in symbols]
+    for x, relative in visits:
+        if x in replaced:
+            continue
         found = [(rel, b) for rel in spacetime.domain if rel not in used
-                 and (b := _bound(rel, x)) is not None and not b[1].free_symbols & replaced]
+                 and (b := _bound(rel, x)) is not None and not b[1].free_symbols & replaced
+                 and bool(b[1].free_symbols) == relative]
         if not found:
             continue
         bounds = [b for _, b in found]
