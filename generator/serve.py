@@ -70,9 +70,11 @@ def watch(
     stop: threading.Event,
     roots: tuple[Path, ...],
     interval: float = POLL_SECONDS,
+    initial: tuple[tuple[str, int, int], ...] | None = None,
 ) -> None:
-    """Poll the roots until ``stop`` is set; rebuild after every change."""
-    last = snapshot(roots)
+    """Poll the roots until ``stop`` is set; rebuild after every change since ``initial``
+    (taken by the caller before starting the thread, so no edit can slip in between)."""
+    last = snapshot(roots) if initial is None else initial
     while not stop.wait(interval):
         current = snapshot(roots)
         if current != last:
@@ -98,7 +100,8 @@ def serve(
     roots = tuple(watch_paths) if watch_paths is not None else watched_roots()
     server = make_server(site_dir, host, port)
     stop = threading.Event()
-    watcher = threading.Thread(target=watch, args=(rebuild, stop, roots), daemon=True)
+    watcher = threading.Thread(target=watch, daemon=True,
+                               args=(rebuild, stop, roots, POLL_SECONDS, snapshot(roots)))
     watcher.start()
     print(f"serve: previewing {site_dir} at http://{host}:{server.server_port}/ "
           "(Ctrl-C to stop)", file=sys.stderr)

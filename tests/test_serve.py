@@ -25,7 +25,9 @@ def test_watch_rebuilds_after_a_change_and_stops_when_asked(tmp_path: Path) -> N
     source.write_text("title: one\n")
     rebuilt = threading.Event()
     stop = threading.Event()
-    watcher = threading.Thread(target=serve.watch, args=(rebuilt.set, stop, (tmp_path,), 0.05))
+    initial = serve.snapshot([tmp_path])
+    watcher = threading.Thread(target=serve.watch,
+                               args=(rebuilt.set, stop, (tmp_path,), 0.05, initial))
     watcher.start()
     try:
         source.write_text("title: two, longer\n")
