@@ -17,7 +17,7 @@ import keyword
 import re
 import shutil
 from collections import Counter
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -777,11 +777,20 @@ def citations(report: EntryReport, meta: CatalogMeta) -> dict[str, str]:
     entry = report.entry
     assert entry is not None
     return {
-        "entry_bibtex": cite.cite_entry(report, meta, "bibtex"),
-        "entry_text": cite.cite_entry(report, meta, "text"),
-        "original_bibtex": cite.cite_original(entry, "bibtex"),
+        "entry_bibtex": cite_or_reason(lambda: cite.cite_entry(report, meta, "bibtex")),
+        "entry_text": cite_or_reason(lambda: cite.cite_entry(report, meta, "text")),
+        "original_bibtex": cite_or_reason(lambda: cite.cite_original(entry, "bibtex")),
         "url": cite.entry_url(meta, entry.id),
     }
+
+
+def cite_or_reason(make: Callable[[], str]) -> str:
+    """A citation, or why there is none (cite.py refuses e.g. an entry without a content
+    hash); one uncitable entry should not take the whole site down."""
+    try:
+        return make()
+    except ValueError as exc:
+        return f"(no citation available: {exc})"
 
 
 def markdown_html(text: str, allow_links: bool) -> Markup:

@@ -295,6 +295,15 @@ def test_hostile_sympy_script_keeps_text_in_string_literals(hostile_site: Path) 
     assert ast.literal_eval(title_line.removeprefix("TITLE = ")).startswith("Lantern <script>")
 
 
+def test_an_entry_without_content_hash_still_renders_and_says_why(tmp_path: Path) -> None:
+    from dataclasses import replace
+
+    report = replace(demo.lantern_report(), content_hash="")
+    site = demo.build_demo_site(tmp_path / "out", [report])
+    parsed = page(site, "entries/demo-harbour-lantern/index.html")
+    assert "no citation available" in parsed.text
+
+
 def test_unsafe_page_names_are_refused(tmp_path: Path) -> None:
     from dataclasses import replace
 
