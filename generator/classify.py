@@ -9,6 +9,7 @@ A quantity that a dimension or signature makes meaningless is None with its reas
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
+from dataclasses import replace
 
 import sympy
 
@@ -78,6 +79,7 @@ def stress_energy_physics(matter: MatterResult, spacetime: Spacetime, geometry: 
     assert matter.stress_energy_mixed is not None and matter.stress_energy is not None
     spectrum = hawking_ellis(matter.stress_energy_mixed, matter.stress_energy, geometry.metric,
                              spacetime, points)
+    spectrum = with_declared_source(spectrum, matter)
     if spectrum.method != "exact" or spectrum.type == "undecided":
         reasons["hawking_ellis_type"] = spectrum.reason
     if spectrum.energy_density is None:
@@ -86,6 +88,24 @@ def stress_energy_physics(matter: MatterResult, spacetime: Spacetime, geometry: 
     conditions = energy_conditions(spectrum, matter.stress_energy, geometry.metric, spacetime,
                                    points)
     return spectrum, conditions
+
+
+def with_declared_source(spectrum: Spectrum, matter: MatterResult) -> Spectrum:
+    """Use the declared (and verified) ρ and pressures: equal to the eigenvalues of T^a_b,
+    usually in a much simpler form, which helps both the page and the positivity proofs."""
+    source = matter.source
+    if source is None or source.density is None:
+        return spectrum
+    if source.kind == "null-dust" and spectrum.type == "II":
+        return replace(spectrum, null_dust_weight=source.density)
+    if source.kind == "perfect-fluid" and source.pressures is not None:
+        return Spectrum("I", "exact", "a perfect fluid with unit timelike velocity (declared "
+                        "and verified): u^a is the timelike eigenvector", source.density,
+                        source.pressures)
+    if source.pressures is not None and spectrum.type == "I" and spectrum.method == "exact":
+        return replace(spectrum, energy_density=source.density, pressures=source.pressures,
+                       reason=spectrum.reason + "; ρ and pressures as declared (verified)")
+    return spectrum
 
 
 def not_applicable_reason(matter: MatterResult, spacetime: Spacetime) -> str:

@@ -265,12 +265,16 @@ def inequalities(spectrum: Spectrum, dimension: int) -> dict[str, list[tuple[str
 
 def judge(requirements: list[tuple[str, sympy.Expr]], spacetime: Spacetime,
           points: Sequence[Point], name: str) -> EnergyCondition:
-    """Proved for all requirements → holds; one negative at a point → violated.
+    """Proved for all requirements → holds; else one negative at a point → violated.
 
     With free functions a negative value at a point only shows that *some* choice of the
     functions violates the condition, so the verdict is then "undecided" (it depends on them).
     """
-    for label, expr in requirements:
+    unproved = [(label, expr) for label, expr in requirements
+                if not proves_sign(expr, spacetime)]
+    if not unproved:
+        return EnergyCondition(name, "holds", "proved symbolically on the whole domain")
+    for label, expr in unproved:
         for point in points:
             if sign_at(expr, point, spacetime) == -1:
                 if has_free_functions(expr, spacetime):
@@ -279,11 +283,9 @@ def judge(requirements: list[tuple[str, sympy.Expr]], spacetime: Spacetime,
                                            f"{point_text(point)})")
                 return EnergyCondition(name, "violated", f"{label} < 0 at {point_text(point)}",
                                        describe_point(point))
-    unproved = [label for label, expr in requirements if not proves_sign(expr, spacetime)]
-    if not unproved:
-        return EnergyCondition(name, "holds", "proved symbolically on the whole domain")
-    return EnergyCondition(name, "undecided", f"not proved ({', '.join(unproved)} ≥ 0); no "
-                           f"violation at {len(points)} exact sample points")
+    labels = ", ".join(label for label, _ in unproved)
+    return EnergyCondition(name, "undecided", f"not proved ({labels} ≥ 0); no violation at "
+                           f"{len(points)} exact sample points")
 
 
 def has_free_functions(expr: sympy.Expr, spacetime: Spacetime) -> bool:

@@ -45,6 +45,7 @@ class SourceData:
     kind: str
     density: sympy.Expr | None = None
     vector: tuple[sympy.Expr, ...] | None = None  # u^a or k^a
+    pressures: tuple[sympy.Expr, ...] | None = None  # principal pressures when declared
 
 
 @dataclass(frozen=True)
@@ -262,8 +263,9 @@ def build_perfect_fluid(entry: Entry, spacetime: Spacetime, geometry: Geometry) 
             f"the fluid velocity {verb} a unit timelike vector: g_ab u^a u^b + 1 ≠ 0"
             f" (g_ab u^a u^b = {sympy.factor(norm(u, geometry.metric))})",
             "matter.velocity", "give u^a (upper index) normalised to g_ab u^a u^b = -1"),)
+    pressures = (p,) * (len(u) - 1)
     return Built(perfect_fluid(rho, p, u, geometry.metric), False, problems,
-                 SourceData("perfect-fluid", rho, tuple(u)))
+                 SourceData("perfect-fluid", rho, tuple(u), pressures))
 
 
 def build_null_dust(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> Built:
@@ -304,7 +306,9 @@ def build_anisotropic(entry: Entry, spacetime: Spacetime, geometry: Geometry) ->
     rho = parse_field(entry, spacetime, "matter.density", m.density)
     time = names.index(missing[0])
     diagonal = [-rho if a == time else pressures[a] for a in range(len(names))]
-    return Built(sympy.diag(*diagonal), True, (), SourceData("anisotropic-fluid", rho))
+    spatial = tuple(pressures[a] for a in range(len(names)) if a != time)
+    return Built(sympy.diag(*diagonal), True, (), SourceData("anisotropic-fluid", rho,
+                                                             pressures=spatial))
 
 
 BUILDERS: dict[str, Callable[[Entry, Spacetime, Geometry], Built]] = {
@@ -388,9 +392,10 @@ def classify_matter(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> M
     reasons = {}
     if geometry.dimension < 3:
         reasons["matter_kind"] = "Einstein's equations are empty below three dimensions"
+    verified = built.source if built is not None and not diagnostics else None
     return MatterResult(kind, lam, sympy.ImmutableMatrix(stress.applyfunc(sympy.cancel)),
                         sympy.ImmutableMatrix(mixed.applyfunc(sympy.cancel)),
-                        tuple(diagnostics), reasons, built.source if built else None)
+                        tuple(diagnostics), reasons, verified)
 
 
 def computed_kind(found: Geometric, declared: str, source_ok: bool) -> str:
