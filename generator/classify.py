@@ -24,6 +24,9 @@ from .symmetry import check_all_related, check_killing_vector, geodesic_equation
 SAMPLE_COUNT = 10
 SAMPLE_SEED = 424242
 NO_MATTER = ("vacuum", "lambda-vacuum")
+# SymPy's ways of giving up on an expression; they make a result "undecided", not a crash.
+ALGEBRA_FAILURES = (ValueError, TypeError, ZeroDivisionError, NotImplementedError,
+                    ArithmeticError, sympy.PolynomialError, RecursionError)
 
 
 def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
@@ -36,9 +39,20 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     matter = classify_matter(entry, spacetime, geometry)
     diagnostics += matter.diagnostics
     reasons.update(matter.reasons)
-    spectrum, conditions = stress_energy_physics(matter, spacetime, geometry, points, reasons)
+    try:
+        spectrum, conditions = stress_energy_physics(matter, spacetime, geometry, points,
+                                                     reasons)
+    except ALGEBRA_FAILURES as exc:
+        why = f"the computer algebra failed ({type(exc).__name__}: {exc})"
+        reasons["hawking_ellis_type"] = reasons["energy_conditions"] = why
+        spectrum = Spectrum("undecided", "failed", why)
+        conditions = tuple(EnergyCondition(name, "undecided", why) for name in CONDITIONS)
     diagnostics += check_stress_claims(entry, spectrum, conditions, matter)
-    petrov = petrov_type(geometry, spacetime, points)
+    try:
+        petrov = petrov_type(geometry, spacetime, points)
+    except ALGEBRA_FAILURES as exc:
+        petrov = PetrovResult("undecided", f"the computer algebra failed "
+                              f"({type(exc).__name__}: {exc})")
     record_petrov_reasons(petrov, reasons)
     diagnostics += check_petrov_claim(entry, petrov)
     killing = [check_killing_vector(entry, spacetime, i, claim)
@@ -205,5 +219,3 @@ def check_petrov_claim(entry: Entry, petrov: PetrovResult) -> list[Diagnostic]:
     return [problem] if problem else []
 
 
-def describe(expr: sympy.Expr | None) -> str:
-    return "" if expr is None else str(expr)
