@@ -53,7 +53,7 @@ from .sampling import Point, sample_points
 
 SEED = 20261202
 POINTS_HERE = 2  # sample points of the new entry whose values must be matched
-STARTS_THERE = 6  # Newton starting points in the other entry
+STARTS_THERE = 4  # Newton starting points in the other entry
 DIGITS = 30
 SOLVE_TOLERANCE = mpmath.mpf("1e-18")
 CHECK_TOLERANCE = mpmath.mpf("1e-15")
@@ -364,8 +364,12 @@ def _twin_reason(here: _Profile, there: _Profile) -> str | None:
     spacetime_here = here.report.spacetime
     assert spacetime_here is not None
     targets = [_values(here.invariants, p) for p in _points(spacetime_here, POINTS_HERE, SEED)]
-    verdicts = [_match(target, there) for target in targets]
-    if any(v == "different" for v in verdicts) or not targets:
+    verdicts: list[str] = []
+    for target in targets:  # stop at the first point the other entry cannot reach
+        verdicts.append(_match(target, there))
+        if verdicts[-1] == "different":
+            return None
+    if not targets:
         return None
     if all(v == "underdetermined" for v in verdicts):
         return f"same kind ({kind}); too few invariants to compare values"
