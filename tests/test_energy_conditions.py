@@ -19,7 +19,7 @@ from classify_cases import (
 )
 
 from generator.classify import classify
-from generator.energy import type_at_point
+from generator.energy import has_complex_eigenvalue, type_at_point
 from generator.equality import decide_equal
 from generator.model import Claims, Matter
 
@@ -177,3 +177,13 @@ def test_energy_condition_claim_on_vacuum_does_not_apply() -> None:
     _, problems, _ = classified(schwarzschild_entry(claims=claims))
     assert [p.code for p in problems] == ["claim.energy-condition"]
     assert "does not apply" in problems[0].message
+
+
+def test_non_rational_points_detect_only_clearly_complex_spectra() -> None:
+    # A rotation block with irrational entries has eigenvalues 1 ± i*sqrt(2) (common practice);
+    # a real diagonal matrix with the same entries must not be called type IV.
+    root = sympy.sqrt(2)
+    rotation = [1, root, 0, 0, -root, 1, 0, 0, 0, 0, 1, 0, 0, 0, 0, sympy.E]
+    diagonal = [1, 0, 0, 0, 0, root, 0, 0, 0, 0, 1, 0, 0, 0, 0, sympy.E]
+    assert has_complex_eigenvalue(rotation, 4)
+    assert not has_complex_eigenvalue(diagonal, 4)
