@@ -2,16 +2,17 @@
 
 The key is a hash of everything the result depends on: the exact bytes of the entry and of the
 entries it links to (exact bytes rather than a canonical form, because diagnostics carry line
-and column numbers), the budget, and the versions of the generator and of the libraries that
-compute. Reports are stored as pickles signed with HMAC-SHA256; a file whose signature does not
-verify (corrupt, truncated, written by another machine or version, or planted) is ignored and
-recomputed, never unpickled. The signing secret lives outside the cache folder: the
-ALMANAC_CACHE_SECRET environment variable (set it in CI to keep a cache between runs) or a
-per-user key file created on first use.
+and column numbers), the budget, the generator's version and source code, and the versions of
+the libraries that compute. Reports are stored as pickles signed with HMAC-SHA256; a file
+whose signature does not verify (corrupt, truncated, written by another machine or version,
+or planted) is ignored and recomputed, never unpickled. The signing secret lives outside the
+cache folder: the ALMANAC_CACHE_SECRET environment variable (set it in CI to keep a cache
+between runs) or a per-user key file created on first use.
 """
 
 from __future__ import annotations
 
+import functools
 import hashlib
 import hmac
 import os
@@ -41,10 +42,21 @@ def _version(name: str) -> str:
         return "absent"
 
 
+@functools.cache
+def generator_fingerprint() -> str:
+    """Hash of the generator's own source: a code change invalidates results even when the
+    version number has not been bumped yet (as during development)."""
+    digest = hashlib.sha256(__version__.encode())
+    for path in sorted(Path(__file__).parent.glob("*.py")):
+        digest.update(path.name.encode() + b"\0" + path.read_bytes())
+    return digest.hexdigest()
+
+
 def cache_key(task: Any) -> str:
     """Hash of a pipeline task's inputs (entry bytes, related entries, budget, versions)."""
     digest = hashlib.sha256()
-    digest.update(f"{__version__}|{library_versions()}|{task.seconds}|{task.display}".encode())
+    digest.update(f"{generator_fingerprint()}|{library_versions()}|{task.seconds}|"
+                  f"{task.display}".encode())
     for path in (task.file, *task.related_files):
         digest.update(b"\0" + str(Path(path).name).encode() + b"\0")
         try:
