@@ -71,9 +71,9 @@ def random_rational(rng: random.Random, scale: int, sign: str = "any") -> sympy.
     parameter much smaller than another (e.g. Lambda*M**2 < 1/9) are still reached."""
     decade = sympy.Rational(10) ** rng.choice((0, 0, 0, -1, -1, -2, 1))
     value = sympy.Rational(rng.randint(1, 99), rng.randint(1, 12)) * scale * decade / 10
-    if sign == "nonnegative" and rng.random() < 0.05:
+    if sign in ("nonnegative", "nonpositive") and rng.random() < 0.05:
         return sympy.Integer(0)
-    if sign == "negative" or (sign == "any" and rng.random() < 0.25):
+    if sign in ("negative", "nonpositive") or (sign == "any" and rng.random() < 0.25):
         return -value
     return value
 
@@ -153,13 +153,25 @@ def _bounded_value(
 def function_values(f: sympy.Expr, rng: random.Random, scale: int) -> Point:
     """Independent values for f and its partial derivatives up to a fixed order."""
     values: Point = {}
-    positive = bool(f.is_positive)
-    values[f] = random_rational(rng, scale, "positive" if positive else "any")
+    values[f] = random_rational(rng, scale, _sign_of(f))
     variables = f.args
     for order in range(1, FUNCTION_DERIVATIVE_ORDER + 1):
         for combo in itertools.combinations_with_replacement(variables, order):
             values[sympy.Derivative(f, *combo)] = random_rational(rng, scale)
     return values
+
+
+def _sign_of(f: sympy.Expr) -> str:
+    """The sign a free function's declared assumption allows for its values."""
+    if f.is_positive:
+        return "positive"
+    if f.is_negative:
+        return "negative"
+    if f.is_nonnegative:
+        return "nonnegative"
+    if f.is_nonpositive:
+        return "nonpositive"
+    return "any"
 
 
 def substitute(expr: sympy.Expr, point: Point, angles: tuple[sympy.Symbol, ...] = ()) -> sympy.Expr:
