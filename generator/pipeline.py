@@ -64,6 +64,17 @@ def run_task(task: Task) -> EntryReport:
                            seconds=task.seconds * 1.25 + 5, memory_bytes=MEMORY_PER_ENTRY)
     except BudgetExceeded as exc:
         return budget_failure_report(own, exc)
+    except Exception as exc:  # a bug must fail this entry loudly, not the whole build
+        return internal_failure_report(task.display, exc)
+
+
+def internal_failure_report(file: str, exc: BaseException) -> EntryReport:
+    """An entry whose check crashed: say so plainly (it is our bug, not the contributor's)."""
+    diagnostic = Diagnostic(file, 1, 1, "error",
+                            f"internal error while checking this entry: {type(exc).__name__}: "
+                            f"{str(exc)[:300]}", "internal.error",
+                            "this is a bug in the generator, not in the entry; please report it")
+    return EntryReport(None, file, None, None, None, (), (diagnostic,))
 
 
 def check_files(
@@ -129,8 +140,9 @@ def _run(tasks: list[Task], loads: list[LoadResult], options: RunOptions,
 
 
 def _cacheable(report: EntryReport) -> bool:
-    """Budget failures depend on the machine's speed; never cache them."""
-    return not any(d.code == "budget.exceeded" for d in report.diagnostics)
+    """Budget, cluster and internal failures depend on the run, not the entry: never cache."""
+    transient = ("budget.exceeded", "distributed.worker", "internal.error")
+    return not any(d.code in transient for d in report.diagnostics)
 
 
 def _compute(tasks: list[Task], pending: list[int], options: RunOptions,
@@ -161,7 +173,10 @@ def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
         while remaining:
             done, remaining = wait(remaining, return_when=FIRST_COMPLETED)
             for future in sorted(done, key=lambda f: futures[f]):
-                report = future.result()
+                try:
+                    report = future.result()
+                except Exception as exc:  # e.g. a worker killed by the system
+                    report = internal_failure_report(tasks[futures[future]].display, exc)
                 if on_done:
                     on_done(report)
                 yield futures[future], report

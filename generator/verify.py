@@ -126,18 +126,24 @@ def _flip(signature: str) -> str:
 
 def _inertia(metric: sympy.ImmutableMatrix, point: dict[sympy.Basic, sympy.Expr]
              ) -> list[str] | None:
-    """Signs of the eigenvalues at a point (30 digits), or None if the metric is degenerate."""
+    """Signs of the eigenvalues at a point, or None if the metric is degenerate there.
+
+    Degeneracy is decided exactly (det g = 0 at the exact point). The signs come from
+    eigenvalues at increasing precision until each is clearly away from zero, so charts whose
+    components differ by many orders of magnitude (e.g. cosh**2 of a large radius) are fine.
+    """
     values = metric.subs(point)
     if values.det() == 0:
         return None
-    with mpmath.workdps(30):
-        numeric = mpmath.matrix([[mpmath.mpf(sympy.N(v, 30)) for v in row]
-                                 for row in values.tolist()])
-        eigenvalues = mpmath.eigsy(numeric)[0]
-        scale = max(abs(e) for e in eigenvalues)
-        if any(abs(e) < scale * mpmath.mpf(10) ** -20 for e in eigenvalues):
-            return None
-        return ["-" if e < 0 else "+" for e in eigenvalues]
+    for digits in (50, 200, 800):
+        with mpmath.workdps(digits):
+            numeric = mpmath.matrix([[mpmath.mpf(sympy.N(v, digits)) for v in row]
+                                     for row in values.tolist()])
+            eigenvalues = mpmath.eigsy(numeric)[0]
+            scale = max(abs(e) for e in eigenvalues)
+            if all(abs(e) > scale * mpmath.mpf(10) ** (10 - digits) for e in eigenvalues):
+                return ["-" if e < 0 else "+" for e in eigenvalues]
+    return None
 
 
 def _describe(point: dict[sympy.Basic, sympy.Expr]) -> str:

@@ -124,8 +124,6 @@ def test_a_worker_process_that_dies_fails_that_entry_only(root, cluster, monkeyp
 
 
 @pytest.mark.slow
-@pytest.mark.xfail(strict=True, reason="pipeline._cacheable keeps only budget failures out of "
-                   "the cache; a distributed.worker failure must stay out too")
 def test_failures_on_the_cluster_are_not_cached(root, cluster, monkeypatch, tmp_path):
     monkeypatch.setenv(SECRET_ENV, "cluster-test-secret")
     monkeypatch.setattr(on_cluster, "check_shipped", failing_for("flat-spherical", "raise"))
