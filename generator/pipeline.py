@@ -94,7 +94,38 @@ def check_files(
     cross = cross_entry_diagnostics(all_loads, set(by_id))
     tasks = [_task(load, by_id, root, base, options) for load in selected_loads]
     reports = _run(tasks, selected_loads, options, on_done)
-    return [_with_extra(report, cross.get(report.file, [])) for report in reports]
+    others = _cached_reports(all_loads, set(selected_loads), by_id, root, base, options)
+    twins = twin_warnings(reports, [*reports, *others])
+    return [_with_extra(report, cross.get(report.file, []) + twins.get(report.file, []))
+            for report in reports]
+
+
+def _cached_reports(all_loads: list[LoadResult], selected: set[LoadResult],
+                    by_id: dict[str, LoadResult], root: Path | None, base: Path,
+                    options: RunOptions) -> list[EntryReport]:
+    """Reports of the unselected entries that are already in the cache (never computed here:
+    a one-entry check stays quick, and CI keeps the cache of the last full build)."""
+    if options.cache_dir is None:
+        return []
+    cache = ResultCache(options.cache_dir)
+    found = []
+    for load in all_loads:
+        if load not in selected:
+            hit = cache.get(cache_key(_task(load, by_id, root, base, options)))
+            if hit is not None:
+                found.append(hit)
+    return found
+
+
+def twin_warnings(new: list[EntryReport], catalog: list[EntryReport]
+                  ) -> dict[str, list[Diagnostic]]:
+    """Warnings for entries whose spacetime is probably already in the catalog."""
+    from .twins import find_all_twins, twin_diagnostics
+
+    verified = [r for r in new if r.ok]
+    found = find_all_twins(verified, [r for r in catalog if r.ok])
+    return {r.file: twin_diagnostics(r, found[r.entry.id]) for r in verified
+            if r.entry is not None and r.entry.id in found}
 
 
 def _task(load: LoadResult, by_id: dict[str, LoadResult], root: Path | None, base: Path,
