@@ -12,6 +12,7 @@ import multiprocessing
 import os
 from collections.abc import Callable, Sequence
 from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
+from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -196,21 +197,56 @@ def _compute(tasks: list[Task], pending: list[int], options: RunOptions,
 
 def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
                           on_done: Callable[[EntryReport], None] | None):
-    # Longest-first scheduling would need costs; the catalog order is good enough for now.
+    """Run tasks on a process pool; if a worker is killed (e.g. at the CPU-time backstop) the
+    pool breaks, and the unfinished tasks are re-run one per fresh process so that only the
+    entry that kills its worker fails."""
+    unfinished = list(pending)
     # No max_tasks_per_child: on Python 3.11 it can deadlock the pool when a worker retires.
     with ProcessPoolExecutor(max_workers=jobs, mp_context=_spawn()) as pool:
         futures: dict[Future, int] = {pool.submit(run_task, tasks[i]): i for i in pending}
         remaining = set(futures)
         while remaining:
             done, remaining = wait(remaining, return_when=FIRST_COMPLETED)
+            broken = [f for f in done if isinstance(f.exception(), BrokenProcessPool)]
+            if broken:
+                break
             for future in sorted(done, key=lambda f: futures[f]):
-                try:
-                    report = future.result()
-                except Exception as exc:  # e.g. a worker killed by the system
-                    report = internal_failure_report(tasks[futures[future]].display, exc)
+                report = _result(future, tasks[futures[future]])
+                unfinished.remove(futures[future])
                 if on_done:
                     on_done(report)
                 yield futures[future], report
+    for i in unfinished:
+        report = _run_alone(tasks[i])
+        if on_done:
+            on_done(report)
+        yield i, report
+
+
+def _result(future: Future, task: Task) -> EntryReport:
+    try:
+        return future.result()
+    except Exception as exc:
+        return internal_failure_report(task.display, exc)
+
+
+def _run_alone(task: Task) -> EntryReport:
+    """One task in its own worker process: if that process dies, only this entry fails."""
+    with ProcessPoolExecutor(max_workers=1, mp_context=_spawn()) as pool:
+        future = pool.submit(run_task, task)
+        try:
+            return future.result()
+        except BrokenProcessPool:
+            return worker_killed_report(task.display)
+        except Exception as exc:
+            return internal_failure_report(task.display, exc)
+
+
+def worker_killed_report(file: str) -> EntryReport:
+    diagnostic = Diagnostic(file, 1, 1, "error", "computation ran out of its budget: the "
+                            "worker process was ended at the CPU-time backstop",
+                            "budget.exceeded", "simplify the metric, or raise --seconds")
+    return EntryReport(None, file, None, None, None, (), (diagnostic,))
 
 
 def _spawn() -> multiprocessing.context.BaseContext:

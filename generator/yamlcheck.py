@@ -322,8 +322,11 @@ def read_nodes(file: str, source: str) -> tuple[yaml.Node | None, list[Diagnosti
         message = f"invalid YAML: {exc.problem or exc.context}"
         return None, [Diagnostic(file, line, column, "error", message, "yaml.syntax",
                                  "check indentation, colons and quotes around this point")]
-    except yaml.YAMLError as exc:
-        return None, [Diagnostic(file, *_line_column(_line_starts(source), getattr(exc, "position", 0)), "error", f"invalid YAML: {exc}", "yaml.syntax")]  # noqa: E501
+    except yaml.YAMLError as exc:  # e.g. a character YAML forbids (NUL, control bytes)
+        where = _line_column(_line_starts(source), getattr(exc, "position", 0))
+        reason = getattr(exc, "reason", None) or str(exc)
+        return None, [Diagnostic(file, *where, "error", f"invalid YAML: {reason}", "yaml.syntax",
+                                 "remove the character; entries are plain UTF-8 text")]
     if len(documents) != 1 or documents[0] is None:
         return None, [Diagnostic(file, 1, 1, "error", "expected exactly one YAML document",
                                  "yaml.document", "an entry file holds one mapping")]

@@ -368,7 +368,7 @@ def test_a_line_element_whose_check_would_expand_enormously_ends_quickly(
     """Found by this suite: the quadratic-form check of loader.py expands the
     differential-free part with ``sympy.expand`` (unbounded), and loading runs in the parent
     process without limits, so one such entry hangs the whole check. The entry must instead
-    be refused with a positioned diagnostic (it is not a quadratic form)."""
+    be refused with a positioned diagnostic; the parser now refuses it for its degree."""
     source = SEED.replace(
         "-(1 - 2*M/r)*dt**2 + dr**2/(1 - 2*M/r) + r**2*(dtheta**2 + sin(theta)**2*dphi**2)",
         line_element)
@@ -379,7 +379,8 @@ def test_a_line_element_whose_check_would_expand_enormously_ends_quickly(
     except BudgetExceeded as exc:
         problem = str(exc)
     assert not problem, f"loading an entry is unbounded: {problem}"
-    assert [d.code for d in result.diagnostics] == ["metric.line-element"]
+    assert [d.code for d in result.diagnostics] == ["math.syntax"]
+    assert "degree" in result.diagnostics[0].message
     assert_loaded_or_explained(result, source)
 
 
