@@ -67,7 +67,7 @@ PETROV_TYPES = ("I", "II", "III", "D", "N", "O")
 HAWKING_ELLIS_TYPES = ("I", "II", "III", "IV")
 CONDITION_STATES = ("holds", "violated", "undecided")
 ENERGY_CONDITIONS = ("null", "weak", "strong", "dominant")
-REFERENCE_ROLES = ("original", "claims", "textbook", "review", "erratum")
+REFERENCE_ROLES = ("original", "independent", "claims", "textbook", "review", "erratum")
 REFERENCE_FIELDS = ("authors", "title", "venue", "year", "doi", "arxiv", "isbn", "locator")
 SCALAR_CLAIMS = ("ricci_scalar", "kretschmann", "ricci_squared", "weyl_squared")
 COMPUTED_HERE = "computed-here"
@@ -227,7 +227,8 @@ REFERENCE = Field(
     "A publication.",
     "record",
     fields=(
-        Field("role", "Why it is cited.", "choice", required=True, choices=REFERENCE_ROLES),
+        Field("role", "Why it is cited (independent: the same solution found independently).",
+              "choice", required=True, choices=REFERENCE_ROLES),
         Field(
             "authors",
             "Authors as printed.",
