@@ -9,18 +9,16 @@ import os
 import shutil
 import sys
 import tempfile
-import tomllib
 from dataclasses import dataclass
 from importlib import metadata
 from pathlib import Path
 
 from . import __version__
 from .catalog import entry_files, read_families, read_tags
+from .cite import DEFAULT_BASE_URL, project_settings
 from .errors import UsageError
 from .model import CatalogMeta, EntryReport
 from .pipeline import RunOptions, check_files
-
-DEFAULT_BASE_URL = "https://metric-almanac.org/"
 
 
 @dataclass(frozen=True)
@@ -47,7 +45,7 @@ def build_site(catalog: Path, out: Path, options: RunOptions,
         print(f"build failed: {len(refused)} entries did not verify; site/ left unchanged",
               file=sys.stderr)
         return BuildResult(False, tuple(reports), refused)
-    meta = catalog_meta(catalog)
+    meta = catalog_meta(catalog, options.cache_dir)
     render_atomically(reports, meta, out)
     print(f"site written to {out}/ ({len(reports) - len(refused)} entries)", file=sys.stderr)
     return BuildResult(not refused, tuple(reports), refused)
@@ -62,10 +60,10 @@ def report_problems(reports: list[EntryReport]) -> None:
           file=sys.stderr)
 
 
-def catalog_meta(catalog: Path) -> CatalogMeta:
+def catalog_meta(catalog: Path, cache_dir: Path | None = None) -> CatalogMeta:
     """Catalog-wide data: versions, vocabularies, the contributor guide, git revisions."""
     project = catalog.resolve().parent
-    settings = _project_settings(project)
+    settings = project_settings(project)
     guide = project / "DEVELOPERS.md"
     return CatalogMeta(
         version=settings.get("version", __version__),
@@ -75,27 +73,18 @@ def catalog_meta(catalog: Path) -> CatalogMeta:
         tags=read_tags(catalog),
         contributing_markdown=guide.read_text(encoding="utf-8") if guide.is_file() else "",
         base_url=settings.get("base_url", DEFAULT_BASE_URL),
-        revisions=_revisions(project, catalog),
+        revisions=_revisions(project, catalog, cache_dir),
     )
 
 
-def _project_settings(project: Path) -> dict[str, str]:
-    path = project / "pyproject.toml"
-    if not path.is_file():
-        return {}
-    data = tomllib.loads(path.read_text(encoding="utf-8"))
-    settings = dict(data.get("tool", {}).get("almanac", {}))
-    settings.setdefault("version", data.get("project", {}).get("version", __version__))
-    return {k: str(v) for k, v in settings.items()}
-
-
-def _revisions(project: Path, catalog: Path) -> dict:
+def _revisions(project: Path, catalog: Path, cache_dir: Path | None) -> dict:
     from .history import GitError, catalog_revisions, repo_root
 
     if repo_root(project) is None:
         return {}
+    cache_file = cache_dir / "content-hashes.json" if cache_dir is not None else None
     try:
-        return catalog_revisions(project, catalog)
+        return catalog_revisions(project, catalog, cache_file=cache_file)
     except (GitError, UsageError):
         return {}
 

@@ -42,7 +42,7 @@ HASH_SCHEME = "metric-almanac-content-v1"
 SHORT_HASH_LENGTH = 12
 CATALOG_NAME = "Metric Almanac"
 CATALOG_AUTHOR = "Metric Almanac contributors"
-DEFAULT_BASE_URL = "https://metric-almanac.org/"  # same default as build.py
+DEFAULT_BASE_URL = "https://metric-almanac.org/"  # permanent URL prefix unless pyproject sets one
 ACCESS_DATE_PLACEHOLDER = "<date>"
 
 _T = TypeVar("_T")

@@ -61,7 +61,7 @@ class Diagnostic:
         text = self.message + (f" (hint: {self.hint})" if self.hint else "")
         text = text.replace("%", "%25").replace("\r", "%0D").replace("\n", "%0A")
         return (
-            f"::{level} file={self.file},line={self.line},col={self.column},"
+            f"::{level} file={_escape_property(self.file)},line={self.line},col={self.column},"
             f"title={_escape_property(title)}::{text}"
         )
 

@@ -26,6 +26,10 @@ from .model import EntryReport
 from .verify import check_loaded
 
 MEMORY_PER_ENTRY = 2 * 1024**3  # bytes an entry may add to its worker
+# The duplicate search compares invariants numerically and costs seconds per pair, so it runs
+# for a pull request's few entries, not for a whole-catalog build, and under a time limit.
+TWIN_SEARCH_MAX_ENTRIES = 8
+TWIN_SEARCH_SECONDS = 120.0
 
 
 @dataclass(frozen=True)
@@ -95,8 +99,10 @@ def check_files(
     cross = cross_entry_diagnostics(all_loads, set(by_id))
     tasks = [_task(load, by_id, root, base, options) for load in selected_loads]
     reports = _run(tasks, selected_loads, options, on_done)
-    others = _cached_reports(all_loads, set(selected_loads), by_id, root, base, options)
-    twins = twin_warnings(reports, [*reports, *others])
+    twins: dict[str, list[Diagnostic]] = {}
+    if len(reports) <= TWIN_SEARCH_MAX_ENTRIES:
+        others = _cached_reports(all_loads, set(selected_loads), by_id, root, base, options)
+        twins = twin_warnings(reports, [*reports, *others])
     return [_with_extra(report, cross.get(report.file, []) + twins.get(report.file, []))
             for report in reports]
 
@@ -118,13 +124,25 @@ def _cached_reports(all_loads: list[LoadResult], selected: set[LoadResult],
     return found
 
 
+def _twin_search_stopped(report: EntryReport) -> Diagnostic:
+    assert report.entry is not None
+    return Diagnostic.at(report.entry.pos("id"), "note",
+                         f"the search for duplicate spacetimes stopped after "
+                         f"{TWIN_SEARCH_SECONDS:g} s without a result", "entry.duplicate",
+                         "compare with similar entries by hand")
+
+
 def twin_warnings(new: list[EntryReport], catalog: list[EntryReport]
                   ) -> dict[str, list[Diagnostic]]:
     """Warnings for entries whose spacetime is probably already in the catalog."""
     from .twins import find_all_twins, twin_diagnostics
 
     verified = [r for r in new if r.ok]
-    found = find_all_twins(verified, [r for r in catalog if r.ok])
+    try:
+        found = run_limited(find_all_twins, verified, [r for r in catalog if r.ok],
+                            seconds=TWIN_SEARCH_SECONDS, memory_bytes=MEMORY_PER_ENTRY)
+    except BudgetExceeded:
+        return {r.file: [_twin_search_stopped(r)] for r in verified}
     return {r.file: twin_diagnostics(r, found[r.entry.id]) for r in verified
             if r.entry is not None and r.entry.id in found}
 

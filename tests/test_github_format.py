@@ -63,10 +63,6 @@ def test_title_property_escapes_colon_comma_percent_newline() -> None:
     assert ",title=a%3Ab%2Cc%25d%0Ae::" in text
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="format_github does not yet escape the file property (a path with ':' or ',')",
-)
 def test_file_property_is_escaped_like_every_property() -> None:
     text = diagnostic(file="odd,dir/x:y.yaml").format_github()
     assert text.startswith("::error file=odd%2Cdir/x%3Ay.yaml,line=12,col=5,")

@@ -13,7 +13,7 @@ ISOTROPIC = ("-((1 - M/(2*rho))/(1 + M/(2*rho)))**2*dt**2 + (1 + M/(2*rho))**4*(
              " + rho**2*(dtheta**2 + sin(theta)**2*dphi**2))")
 
 
-def isotropic_entry():  # noqa: ANN201
+def isotropic_entry():
     """Schwarzschild in isotropic coordinates, r = rho (1 + M/(2 rho))**2 (Misner, Thorne &
     Wheeler 1973, eq. (31.22), from memory)."""
     return make_entry("t rho theta phi", ISOTROPIC, {"M": "positive"},
@@ -24,7 +24,7 @@ def link(**map_: str) -> RelatedChart:
     return RelatedChart("isotropic", vector(**map_), POSITIONS["related.0"])
 
 
-def check(chart: RelatedChart):  # noqa: ANN201
+def check(chart: RelatedChart):
     entry, spacetime, geometry = prepared(schwarzschild_entry(related=(chart,)))
     other_entry, other, _ = prepared(isotropic_entry())
     return classify(entry, spacetime, geometry, {"isotropic": (other_entry, other)})
