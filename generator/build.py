@@ -129,4 +129,6 @@ def serve_site(catalog: Path, out: Path, port: int) -> None:
         build_site(catalog, out, options, publish_verified_only=True)
 
     rebuild()
-    serve(out, rebuild, host="127.0.0.1", port=port)
+    from .render import TEMPLATE_DIR
+
+    serve(out, rebuild, host="127.0.0.1", port=port, watch_paths=[catalog, TEMPLATE_DIR])
