@@ -29,7 +29,7 @@ import sympy
 from jinja2 import Environment, FileSystemLoader, StrictUndefined, select_autoescape
 from markupsafe import Markup, escape
 
-from . import cite, mathtex, plots
+from . import cite, export, mathtex, plots
 from .errors import AlmanacError
 from .mathparse import parse_inequality, parse_math, table_from_symbols
 from .model import (
@@ -813,25 +813,6 @@ def expr_text(expr: sympy.Basic | None) -> str | None:
     return None if expr is None else sympy.sstr(expr, order="lex")
 
 
-def matrix_components(matrix: sympy.MatrixBase | None, names: Sequence[str]) -> dict[str, str]:
-    if matrix is None:
-        return {}
-    out = {}
-    for i in range(matrix.shape[0]):
-        for j in range(matrix.shape[1]):
-            if matrix[i, j] != 0:
-                out[f"{names[i]} {names[j]}"] = expr_text(matrix[i, j]) or "0"
-    return out
-
-
-def indexed_components(data: Mapping[tuple[int, ...], sympy.Expr] | None,
-                       names: Sequence[str]) -> dict[str, str]:
-    if not data:
-        return {}
-    return {" ".join(names[i] for i in key): expr_text(value) or "0"
-            for key, value in sorted(data.items())}
-
-
 def entry_json(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
     """The entry as written plus everything computed: the JSON download."""
     entry = report.entry
@@ -871,50 +852,10 @@ def reference_json(r: Reference) -> dict[str, Any]:
 
 
 def computed_json(report: EntryReport) -> dict[str, Any]:
-    st, g, c = report.spacetime, report.geometry, report.classification
-    names = [str(x) for x in st.coordinates] if st else []
-    out: dict[str, Any] = {}
-    if st is not None:
-        out.update({"dimension": st.dimension, "signature_written": st.signature,
-                    "signature_flipped": st.sign == -1,
-                    "metric": matrix_components(st.metric, names)})
-    if g is not None:
-        out.update({
-            "inverse_metric": matrix_components(g.inverse_metric, names),
-            "christoffel": indexed_components(g.christoffel, names),
-            "riemann_lower": indexed_components(g.riemann, names),
-            "ricci": matrix_components(g.ricci, names),
-            "einstein_mixed": matrix_components(g.einstein_mixed, names),
-            "weyl_lower": indexed_components(g.weyl, names),
-            "ricci_scalar": expr_text(g.ricci_scalar),
-            "kretschmann": expr_text(g.kretschmann),
-            "ricci_squared": expr_text(g.ricci_squared),
-            "weyl_squared": expr_text(g.weyl_squared),
-            "engine": g.engine,
-        })
-    if c is not None:
-        out.update(classification_json(c, names))
-    return out
-
-
-def classification_json(c: Any, names: Sequence[str]) -> dict[str, Any]:
-    return {
-        "matter_kind": c.matter_kind,
-        "cosmological_constant": expr_text(c.cosmological_constant),
-        "stress_energy_mixed": matrix_components(c.stress_energy_mixed, names),
-        "hawking_ellis_type": c.hawking_ellis_type,
-        "energy_density": expr_text(c.energy_density),
-        "principal_pressures": [expr_text(p) for p in (c.principal_pressures or ())],
-        "energy_conditions": [
-            {"name": e.name, "status": e.status, "how": e.how, "witness": e.witness}
-            for e in c.energy_conditions
-        ],
-        "petrov_type": c.petrov_type,
-        "weyl_scalars": {k: expr_text(v) for k, v in sorted((c.weyl_scalars or {}).items())},
-        "killing_vectors_checked": [verdict_row(v) for v in c.killing_vectors_checked],
-        "related_checked": [verdict_row(v) for v in c.related_checked],
-        "reasons": dict(sorted(c.reasons.items())),
-    }
+    """All computed data of an entry (one definition, shared with `check --json`)."""
+    if report.spacetime is None or report.geometry is None:
+        return {}
+    return export.computed_json(report.spacetime, report.geometry, report.classification)
 
 
 def catalog_json(published: Sequence[EntryReport], meta: CatalogMeta) -> str:
