@@ -395,8 +395,22 @@ def _check_mathml(markup: str) -> None:
 _UPRIGHT_D = re.compile(r"<mtext>d</mtext>")
 
 
+_OPERATOR_NAMES = ("arcsin|arccos|arctan|sinh|cosh|tanh|coth|sech|csch|sin|cos|tan|cot|sec|csc"
+                   "|log|exp|ln")
+_BEFORE_OPERATOR = re.compile(rf"(?<=[\w}})])\s*\\({_OPERATOR_NAMES})(?![a-z])")
+_AFTER_OPERATOR = re.compile(rf"\\({_OPERATOR_NAMES})(\^{{[^{{}}]*}})?\s*(?=\{{|\\[a-zA-Z]|\w)")
+
+
+def operator_spacing(latex: str) -> str:
+    """Thin spaces around function names, as TeX's \\mathop gives them (a cos θ, not acosθ):
+    MathML renderers set <mi>cos</mi> flush against its neighbours otherwise."""
+    latex = _BEFORE_OPERATOR.sub(lambda m: rf"\,\{m.group(1)}", latex)
+    return _AFTER_OPERATOR.sub(lambda m: rf"\{m.group(1)}{m.group(2) or ''}\,", latex)
+
+
 def latex_to_mathml(latex: str, display: bool = False) -> str:
     """MathML for our own LaTeX; raises UnsafeMathML if the result fails the allow-list."""
+    latex = operator_spacing(latex)
     markup = _latex_to_mathml(latex, display="block" if display else "inline")
     markup = _UPRIGHT_D.sub('<mi mathvariant="normal">d</mi>', markup)
     _check_mathml(markup)

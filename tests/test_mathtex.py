@@ -140,3 +140,13 @@ def test_minkowski_needs_no_brackets() -> None:
     latex = mathtex.line_element_latex(sympy.diag(-1, 1, 1, 1), (t, x, y, z))
     assert latex == (r"\text{d}s^{2} = -\text{d}t^{2} + \text{d}x^{2} + \text{d}y^{2}"
                      r" + \text{d}z^{2}")
+
+
+def test_function_names_get_thin_spaces_like_tex_operators() -> None:
+    # TeX sets \cos as an operator with thin spaces around it (common practice): "a cos θ",
+    # never "acosθ", which reads as arccos.
+    a, theta = sympy.symbols("a theta")
+    spaced = mathtex.operator_spacing(mathtex.to_latex(a * sympy.cos(theta)))
+    assert spaced == r"a\,\cos\,{\theta}"
+    markup = mathtex.latex_to_mathml(mathtex.to_latex(a**2 * sympy.cos(theta) ** 2))
+    assert markup.count("<mspace") == 2
