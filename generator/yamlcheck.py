@@ -283,10 +283,12 @@ def _character_positions(
     return tuple(out)
 
 
+_YAML_LINE_BREAK = re.compile(r"\r\n|[\r\n\x85\u2028\u2029]")
+
+
 def _line_starts(source: str) -> list[int]:
-    starts = [0]
-    starts.extend(i + 1 for i, ch in enumerate(source) if ch == "\n")
-    return starts
+    """Where lines start, with YAML's own line breaks (so positions agree with its marks)."""
+    return [0, *(match.end() for match in _YAML_LINE_BREAK.finditer(source))]
 
 
 def _line_column(line_starts: list[int], index: int) -> tuple[int, int]:

@@ -7,6 +7,7 @@ reported as the Riemann-tensor stage. No test asserts how long anything took.
 
 from __future__ import annotations
 
+import re
 import resource
 import signal
 import subprocess
@@ -290,7 +291,9 @@ def test_a_pathological_entry_fails_alone_naming_its_stage(tmp_path: Path) -> No
     (budget,) = [d for d in bad["diagnostics"] if d["code"] == "budget.exceeded"]
     stage = budget["message"].split("'")[1]
     assert stage in KNOWN_STAGES, budget["message"]
-    assert "time limit of 3 s" in budget["message"]
+    # the engine's own 3 s budget, or the hard alarm behind it (3 s * 1.25 + 5 s) when the
+    # engine is inside a library call that only the alarm can interrupt
+    assert re.search(r"time limit of (3|8\.75) s", budget["message"]), budget["message"]
     assert (budget["file"], budget["line"]) == (
         "catalog/black-holes/pathological-expansion.yaml", 15)
 
