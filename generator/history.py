@@ -177,7 +177,9 @@ def _mathematical_changes(
     for c in commits:
         digest = hashes.hash_of(root, c)
         if digest is not None and digest != previous:
-            yield Revision(commit=c.commit, date=c.date, content_hash=digest, summary=c.subject)
+            source = _git(root, "cat-file", "blob", c.blob)
+            yield Revision(commit=c.commit, date=c.date, content_hash=digest, summary=c.subject,
+                           source=source)
             previous = digest
 
 

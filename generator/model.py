@@ -327,6 +327,7 @@ class Revision:
     date: str  # ISO date of the commit
     content_hash: str  # the entry's content hash at that commit
     summary: str  # one line: what changed
+    source: str = ""  # the entry file's text at that commit (so a cited hash leads to it)
 
 
 @dataclass(frozen=True)

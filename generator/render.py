@@ -158,6 +158,7 @@ def site_pages(
     yield "conventions.html", "conventions.html", conventions_context(meta)
     yield "contributing.html", "contributing.html", contributing_context(meta)
     yield "catalog.html", "catalog.html", catalog_context(cards, meta)
+    yield "revisions.html", "revisions.html", revisions_context(cards, meta)
     yield "tags/index.html", "tag-list.html", tag_list_context(cards, meta)
     for tag in meta.tags:
         yield f"tags/{tag.name}.html", "tag.html", tag_context(tag.name, cards, meta)
@@ -441,10 +442,32 @@ def download_links(entry_id: str) -> list[dict[str, str]]:
     ]
 
 
+def revision_file(entry_id: str, content_hash: str) -> str:
+    """Site path of an entry's YAML text at the revision with this content hash."""
+    return f"entries/{entry_id}/revisions/{cite.short_hash(content_hash)}.yaml"
+
+
+def revisions_context(cards: Sequence[dict[str, Any]], meta: CatalogMeta) -> dict[str, Any]:
+    """Every recorded revision of every published entry, so a cited hash can be looked up."""
+    published = {card["id"] for card in cards}
+    rows = [
+        {"hash": r.content_hash, "short": cite.short_hash(r.content_hash), "id": entry_id,
+         "href": f"entries/{entry_id}/index.html", "date": r.date, "commit": r.commit[:12],
+         "summary": r.summary, "source_href": revision_file(entry_id, r.content_hash)}
+        for entry_id in sorted(published)
+        for r in meta.revisions.get(entry_id, ())
+    ]
+    rows.sort(key=lambda row: (row["short"], row["id"], row["date"]))
+    return {**base_context(meta, "", "Look up a content hash", "catalog"), "rows": rows}
+
+
 def write_entry_files(report: EntryReport, view: EntryView, meta: CatalogMeta, out: Path) -> None:
     entry = report.entry
     assert entry is not None
     folder = out / "entries" / entry.id
+    for revision in meta.revisions.get(entry.id, ()):
+        if revision.source:
+            write_text(out / revision_file(entry.id, revision.content_hash), revision.source)
     write_text(folder / "entry.json", view.json_document)
     write_text(folder / f"{entry.id}.py", view.sympy_script)
     write_text(folder / f"{entry.id}.tex", view.latex_document)

@@ -314,3 +314,16 @@ def test_unsafe_page_names_are_refused(tmp_path: Path) -> None:
     with pytest.raises(RenderError, match="cannot become a page name"):
         render_site([evil], demo.demo_meta(), tmp_path / "out")
     assert not (tmp_path / "escape").exists()
+
+
+def test_a_cited_hash_leads_to_its_entry_and_revision_text(site: Path) -> None:
+    lookup = page(site, "revisions.html")
+    rows = lookup.find("tr", **{"data-hash": "ab" * 32})
+    assert len(rows) == 1
+    links = [a["href"] for a in lookup.find("a")]
+    assert "entries/demo-harbour-lantern/index.html" in links
+    source = "entries/demo-harbour-lantern/revisions/" + "ab" * 6 + ".yaml"
+    assert source in links
+    assert (site / source).read_text(encoding="utf-8").startswith("id: demo-harbour-lantern")
+    entry = page(site, "entries/demo-harbour-lantern/index.html")
+    assert "../../revisions.html?hash=" + "ab" * 6 in [a["href"] for a in entry.find("a")]

@@ -133,7 +133,8 @@ def demo_meta() -> CatalogMeta:
                               "`python -m generator check`.\n",
         base_url="https://almanac.example/",
         revisions={"demo-harbour-lantern": (
-            Revision("0" * 40, "2026-11-30", "ab" * 32, "Demo: first version of the lantern."),
+            Revision("0" * 40, "2026-11-30", "ab" * 32, "Demo: first version of the lantern.",
+                     source="id: demo-harbour-lantern\n# the demo text of this revision\n"),
         )},
     )
 
