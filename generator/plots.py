@@ -198,8 +198,10 @@ def domain_mask(st: Spacetime, setting: PlotSetting, radius: numpy.ndarray) -> n
         if setting.radial not in relation.free_symbols:
             continue
         reduced = relation.subs(setting.values)
-        if reduced.free_symbols - {setting.radial}:
-            continue
+        if reduced is sympy.false:  # the inequality fails for these parameter values
+            return numpy.zeros_like(radius, dtype=bool)
+        if not isinstance(reduced, sympy.Rel) or reduced.free_symbols - {setting.radial}:
+            continue  # true for every radius (decided by the assumptions), or not radial
         test = sympy.lambdify(setting.radial, reduced.lhs - reduced.rhs, modules="numpy")
         with numpy.errstate(all="ignore"):
             difference = numpy.asarray(test(radius), dtype=float) * numpy.ones_like(radius)

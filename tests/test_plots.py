@@ -112,3 +112,19 @@ def test_no_plot_when_no_sample_values_satisfy_the_domain() -> None:
     impossible = replace(report, spacetime=replace(
         report.spacetime, domain=(sympy.StrictLessThan(m, 0),)))
     assert plots.entry_plots(impossible) == ()
+
+
+def test_domain_that_fails_for_the_parameters_masks_every_radius() -> None:
+    # Found building the real catalog: an inequality can become False (or True) once the
+    # parameter values are substituted; the mask must say so instead of crashing.
+    from generator.model import Spacetime
+
+    r, m = sympy.Symbol("r", real=True), sympy.Symbol("m", positive=True)
+    never = sympy.StrictLessThan(r**2 + m, 0, evaluate=False)  # as the parser builds them
+    always = sympy.StrictGreaterThan(r**2 + m, 0, evaluate=False)
+    st = Spacetime((r,), (m,), (), sympy.ImmutableMatrix([[1]]), "+", 1, (always,))
+    setting = plots.PlotSetting(r, {m: 1}, 0.5, 2.0, (m,))
+    radius = numpy.linspace(0.5, 2.0, 5)
+    assert plots.domain_mask(st, setting, radius).all()
+    st_never = replace(st, domain=(never,))
+    assert not plots.domain_mask(st_never, setting, radius).any()
