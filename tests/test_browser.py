@@ -8,14 +8,13 @@ Never downloads a browser: it uses /usr/bin/chromium or skips.
 from __future__ import annotations
 
 import functools
-import importlib.util
 import threading
 from collections.abc import Iterator
 from http.server import SimpleHTTPRequestHandler, ThreadingHTTPServer
 from pathlib import Path
-from types import ModuleType
 
 import pytest
+from _site_demo import load_demo
 
 CHROMIUM = Path("/usr/bin/chromium")
 CHROMIUM_ARGS = [
@@ -29,15 +28,6 @@ pytestmark = [
     pytest.mark.slow,
     pytest.mark.skipif(not CHROMIUM.exists(), reason="needs Debian's /usr/bin/chromium"),
 ]
-
-
-def load_demo() -> ModuleType:
-    spec = importlib.util.spec_from_file_location("site_demo_reports",
-                                                  ROOTS / "site-demo" / "reports.py")
-    assert spec and spec.loader
-    module = importlib.util.module_from_spec(spec)
-    spec.loader.exec_module(module)
-    return module
 
 
 @pytest.fixture(scope="module")

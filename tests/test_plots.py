@@ -6,28 +6,18 @@ Henry, Astrophys. J. 535, 350 (2000), eq. 1) evaluated independently with mpmath
 
 from __future__ import annotations
 
-import importlib.util
 import xml.etree.ElementTree as ET
 from dataclasses import replace
 from pathlib import Path
-from types import ModuleType
 
 import mpmath
 import numpy
 import sympy
+from _site_demo import load_demo
 
 from generator import plots
 
 ROOTS = Path(__file__).parent / "roots"
-
-
-def load_demo() -> ModuleType:
-    spec = importlib.util.spec_from_file_location("site_demo_reports",
-                                                  ROOTS / "site-demo" / "reports.py")
-    assert spec and spec.loader
-    module = importlib.util.module_from_spec(spec)
-    spec.loader.exec_module(module)
-    return module
 
 
 demo = load_demo()

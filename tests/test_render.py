@@ -7,28 +7,18 @@ do not depend on the geometry engine.
 from __future__ import annotations
 
 import ast
-import importlib.util
 import json
 import subprocess
 import sys
 from html.parser import HTMLParser
 from pathlib import Path
-from types import ModuleType
 from urllib.parse import unquote, urlsplit
 
 import pytest
 import sympy
+from _site_demo import load_demo
 
 ROOTS = Path(__file__).parent / "roots"
-
-
-def load_demo() -> ModuleType:
-    spec = importlib.util.spec_from_file_location("site_demo_reports",
-                                                  ROOTS / "site-demo" / "reports.py")
-    assert spec and spec.loader
-    module = importlib.util.module_from_spec(spec)
-    spec.loader.exec_module(module)
-    return module
 
 
 demo = load_demo()
