@@ -406,10 +406,11 @@ def riemann_lower(ar: Arithmetic, first: list, second: list, n: int, budget: Bud
     return riemann
 
 
-def component(ar: Arithmetic, table: dict, a: int, b: int, c: int, d: int) -> Any:
-    """R_abcd from the independent components, by the pair symmetries."""
+def independent_index(a: int, b: int, c: int, d: int) -> tuple[int, Index] | None:
+    """(sign, key) with T_abcd = sign * T_key for a tensor with Riemann's pair symmetries,
+    key in the stored order a<b, c<d, (a,b)<=(c,d); None when the component vanishes."""
     if a == b or c == d:
-        return ar.zero()
+        return None
     sign = 1
     if a > b:
         a, b, sign = b, a, -sign
@@ -417,10 +418,16 @@ def component(ar: Arithmetic, table: dict, a: int, b: int, c: int, d: int) -> An
         c, d, sign = d, c, -sign
     if (a, b) > (c, d):
         a, b, c, d = c, d, a, b
-    value = table.get((a, b, c, d))
+    return sign, (a, b, c, d)
+
+
+def component(ar: Arithmetic, table: dict, a: int, b: int, c: int, d: int) -> Any:
+    """R_abcd from the independent components, by the pair symmetries."""
+    found = independent_index(a, b, c, d)
+    value = None if found is None else table.get(found[1])
     if value is None:
         return ar.zero()
-    return value if sign == 1 else ar.scale(value, -1)
+    return value if found[0] == 1 else ar.scale(value, -1)
 
 
 def ricci_parts(ar: Arithmetic, riemann: dict, ginv: list, n: int, budget: Budget) -> tuple:

@@ -29,6 +29,7 @@ import sympy
 
 from .algebra import FieldRequest, Frac, NotInField, RationalField, build_field
 from .exactvalues import Point, sign_at, vanishes
+from .geometry import independent_index
 from .model import Geometry, Index, Spacetime
 
 PAIRS = [(0, 1), (0, 2), (0, 3), (1, 2), (1, 3), (2, 3)]
@@ -57,16 +58,10 @@ def weyl_component(weyl: dict[Index, sympy.Expr]) -> Callable[[int, int, int, in
     """C_abcd from the independent components (pair antisymmetry and pair exchange)."""
 
     def get(a: int, b: int, c: int, d: int) -> sympy.Expr:
-        if a == b or c == d:
+        found = independent_index(a, b, c, d)
+        if found is None:
             return sympy.Integer(0)
-        sign = 1
-        if a > b:
-            a, b, sign = b, a, -sign
-        if c > d:
-            c, d, sign = d, c, -sign
-        if (a, b) > (c, d):
-            a, b, c, d = c, d, a, b
-        return sign * weyl.get((a, b, c, d), sympy.Integer(0))
+        return found[0] * weyl.get(found[1], sympy.Integer(0))
 
     return get
 
