@@ -83,9 +83,10 @@ def display_path(path: Path, base: Path) -> str:
         return path.as_posix()
 
 
-def load_all(files: Iterable[Path], root: Path | None, base: Path) -> list[LoadResult]:
+def load_all(files: Iterable[Path], root: Path | None, base: Path, with_math: bool = True
+             ) -> list[LoadResult]:
     vocab = vocabulary(root)
-    return [load_entry(p, display_path(p, base), vocab) for p in files]
+    return [load_entry(p, display_path(p, base), vocab, with_math) for p in files]
 
 
 def cross_entry_diagnostics(loads: Sequence[LoadResult], known_ids: set[str]

@@ -7,6 +7,7 @@ positioned diagnostic; nothing here raises for bad input.
 
 from __future__ import annotations
 
+import re
 from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -58,19 +59,22 @@ class Vocabulary:
     families: frozenset[str] = frozenset()
 
 
-def load_entry(path: Path, display: str | None = None, vocabulary: Vocabulary | None = None
-               ) -> LoadResult:
-    """Load one entry file; ``display`` is the path shown in diagnostics."""
+def load_entry(path: Path, display: str | None = None, vocabulary: Vocabulary | None = None,
+               with_math: bool = True) -> LoadResult:
+    """Load one entry file; ``display`` is the path shown in diagnostics.
+
+    ``with_math=False`` stops after the entry's structure (no metric is built): enough for
+    cross-references between entries, and what a one-entry check needs of the other entries.
+    """
     file = display or str(path)
     source, problem = _read_source(path, file)
     if problem is not None:
         return LoadResult(file, None, None, (problem,))
-    return load_text(source, file, path, vocabulary or Vocabulary())
+    return load_text(source, file, path, vocabulary or Vocabulary(), with_math)
 
 
-def load_text(source: str, file: str, path: Path, vocabulary: Vocabulary) -> LoadResult:
-    from .scaffold import find_todos
-
+def load_text(source: str, file: str, path: Path, vocabulary: Vocabulary,
+              with_math: bool = True) -> LoadResult:
     validated = validate(file, source, schema.ENTRY)
     diagnostics = list(validated.diagnostics) + find_todos(file, source)
     if any(d.severity == "error" for d in diagnostics) and not validated.data:
@@ -80,11 +84,40 @@ def load_text(source: str, file: str, path: Path, vocabulary: Vocabulary) -> Loa
         return LoadResult(file, None, None, tuple(diagnostics))
     entry = _build_entry(data, file, path, validated.positions, source)
     diagnostics += _check_entry(entry, path, vocabulary)
-    if any(d.severity == "error" and d.code != "entry.todo" for d in diagnostics):
+    if not with_math or any(d.severity == "error" and d.code != TODO_CODE
+                            for d in diagnostics):
         return LoadResult(file, entry, None, tuple(diagnostics))
     spacetime, math_problems = build_spacetime(entry)
     diagnostics += math_problems
     return LoadResult(file, entry, spacetime, tuple(diagnostics))
+
+
+TODO_CODE = "entry.todo"
+_TODO = re.compile(r"\bTODO\b[\s:—-]*(?P<what>[^\"'\n\]]*)")
+
+
+def find_todos(file: str, source: str) -> list[Diagnostic]:
+    """One error per TODO marker, at the marker's line and column.
+
+    ``new`` writes TODO markers for what a contributor has not said yet; an entry with one
+    left is refused, so a half-filled scaffold never passes ``check``.
+    """
+    out = []
+    for number, line in enumerate(source.splitlines(), start=1):
+        for match in _TODO.finditer(line):
+            what = match["what"].strip().rstrip(".,;") or "a placeholder"
+            out.append(
+                Diagnostic(
+                    file,
+                    number,
+                    match.start() + 1,
+                    "error",
+                    f"still to fill in: {what}",
+                    TODO_CODE,
+                    "replace the placeholder with the real value and delete the TODO marker",
+                )
+            )
+    return out
 
 
 def _read_source(path: Path, file: str) -> tuple[str, Diagnostic | None]:
@@ -458,7 +491,7 @@ def _metric_from_line_element(entry: Entry, table: SymbolTable, diagnostics: lis
         diagnostics.append(problem)
         return None
     differentials = [table.differentials[f"d{c}"] for c in entry.coordinates]
-    reason = _not_a_quadratic_form(form, differentials)
+    hessian, reason = _quadratic_form_hessian(form, differentials)
     if reason:
         diagnostics.append(_error(text.pos, f"line_element is not a quadratic form in the "
                                   f"differentials: {reason}", "metric.line-element",
@@ -466,25 +499,34 @@ def _metric_from_line_element(entry: Entry, table: SymbolTable, diagnostics: lis
         return None
     n = len(differentials)
     metric = sympy.zeros(n, n)
-    for i in range(n):
-        for j in range(i, n):
-            value = sympy.diff(form, differentials[i], differentials[j])
-            metric[i, j] = metric[j, i] = value / 2
+    for (i, j), value in hessian.items():
+        metric[i, j] = metric[j, i] = value / 2
     return metric
 
 
-def _not_a_quadratic_form(form: sympy.Expr, differentials: list[sympy.Symbol]) -> str:
-    """Why ``form`` is not homogeneous of degree two in the differentials ('' if it is)."""
+def _quadratic_form_hessian(form: sympy.Expr, differentials: list[sympy.Symbol]
+                            ) -> tuple[dict[tuple[int, int], sympy.Expr], str]:
+    """The second derivatives of ``form`` in the differentials (i <= j), or why ``form`` is not
+    homogeneous of degree two in them.
+
+    For a polynomial in the differentials: it is a quadratic form exactly when its value and its
+    first derivatives vanish at d = 0 and its second derivatives are free of differentials.
+    Each first derivative is taken once and reused, which keeps this cheap for long forms.
+    """
     if not form.is_polynomial(*differentials):
-        return "a differential appears inside a function, a root or a denominator"
+        return {}, "a differential appears inside a function, a root or a denominator"
     zero = {d: 0 for d in differentials}
-    if sympy.expand(form.subs(zero)) != 0:
-        return "it has a term without differentials"
-    for d in differentials:
-        if sympy.expand(sympy.diff(form, d).subs(zero)) != 0:
-            return f"it has a term linear in {d}"
-        for e in differentials:
-            third = [sympy.diff(form, d, e, f) for f in differentials]
-            if any(term != 0 for term in third):
-                return "it has a term of degree three or more"
-    return ""
+    if sympy.expand(form.xreplace(zero)) != 0:
+        return {}, "it has a term without differentials"
+    hessian: dict[tuple[int, int], sympy.Expr] = {}
+    chosen = set(differentials)
+    for i, d in enumerate(differentials):
+        first = sympy.diff(form, d)
+        if sympy.expand(first.xreplace(zero)) != 0:
+            return {}, f"it has a term linear in {d.name}"
+        for j in range(i, len(differentials)):
+            second = sympy.diff(first, differentials[j])
+            if second.free_symbols & chosen:
+                return {}, "it has a term of degree three or more"
+            hessian[i, j] = second
+    return hessian, ""

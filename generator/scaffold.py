@@ -2,7 +2,7 @@
 
 A contributor gives what they know (id, chart, coordinates, metric ...) as flags or answers to
 questions; everything else becomes a *TODO marker*. A TODO marker is the word ``TODO`` (upper
-case) anywhere in the file — in a placeholder value or in a comment — and ``find_todos`` turns
+case) anywhere in the file — in a placeholder value or in a comment — and the loader turns
 each one into an error, so ``check`` refuses the entry until every marker has been replaced.
 Placeholders are still valid values, so the file loads and every *other* mistake is reported
 at once too (report every problem, then fail once).
@@ -28,41 +28,13 @@ import sympy
 import yaml
 
 from .errors import Diagnostic, MathSyntaxError
+from .loader import TODO_CODE
 from .mathparse import SymbolTable, parse_expression, parse_inequality, valid_name
 from .schema import ASSUMPTIONS, ID_PATTERN, MATTER_KINDS, SIGNATURE_PATTERN
 
-TODO_MARKER = "TODO"
-TODO_CODE = "entry.todo"
 SCHEMA_LINE = "# yaml-language-server: $schema=../../schema/entry.schema.json"
-_TODO = re.compile(r"\bTODO\b[\s:—-]*(?P<what>[^\"'\n\]]*)")
 
 Ask = Callable[[str], str]
-
-
-# ---------------------------------------------------------------------------- TODO markers
-
-
-def find_todos(file: str, source: str) -> list[Diagnostic]:
-    """One error per TODO marker, at the marker's line and column.
-
-    Hook for the loader / ``check``: ``diagnostics += find_todos(file, source)``.
-    """
-    out = []
-    for number, line in enumerate(source.splitlines(), start=1):
-        for match in _TODO.finditer(line):
-            what = match["what"].strip().rstrip(".,;") or "a placeholder"
-            out.append(
-                Diagnostic(
-                    file,
-                    number,
-                    match.start() + 1,
-                    "error",
-                    f"still to fill in: {what}",
-                    TODO_CODE,
-                    "replace the placeholder with the real value and delete the TODO marker",
-                )
-            )
-    return out
 
 
 # ---------------------------------------------------------------------------- the draft
@@ -426,8 +398,7 @@ def scaffold(draft: Draft, catalog: Path) -> Scaffolded:
     path = catalog / draft.family / f"{draft.id}.yaml"
     text = render(draft)
     loaded = load_text(text, str(path), path, Vocabulary())
-    diagnostics = {d: None for d in (*loaded.diagnostics, *find_todos(str(path), text))}
-    return Scaffolded(path, text, tuple(diagnostics))
+    return Scaffolded(path, text, loaded.diagnostics)  # TODO markers included
 
 
 def blocking(result: Scaffolded) -> list[Diagnostic]:

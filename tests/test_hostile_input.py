@@ -139,6 +139,14 @@ def test_a_nul_byte_is_a_positioned_yaml_error() -> None:
     assert codes_at(result) == [("yaml.syntax", 3, 15)]
 
 
+def test_a_control_byte_after_accented_letters_is_placed_by_character() -> None:
+    """The fast C parser counts bytes in its error positions; the column shown must count
+    characters (here four two-byte letters before the BEL byte)."""
+    source = VALID.replace("title: Schwarzschild black hole", "title: Schwärzéçhïld\x07x")
+    result = load(source)
+    assert codes_at(result) == [("yaml.syntax", 3, 21)]
+
+
 def test_a_huge_file_is_refused_before_parsing(tmp_path: Path) -> None:
     path = tmp_path / "black-holes" / "schwarzschild.yaml"
     path.parent.mkdir()

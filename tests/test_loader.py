@@ -189,12 +189,28 @@ def test_unknown_tag_and_family(catalog: Path) -> None:
     assert errors(load(path)) == [(10, 20, "entry.tag", "unknown tag 'sparkly'")]
 
 
-def test_line_element_must_be_quadratic(catalog: Path) -> None:
+@pytest.mark.parametrize(("form", "reason"), [
+    ("rho**2*(dtheta**2 + dphi)", "linear in dphi"),
+    ("rho**2*(dtheta**2 + dphi**2) + rho", "a term without differentials"),
+    ("rho**2*dtheta**2 + dtheta*dphi**2", "degree three or more"),
+    ("rho**2*dtheta**2 + sin(dphi)**2", "inside a function"),
+    ("rho**2*dtheta**2 + dphi**2/dtheta", "inside a function, a root or a denominator"),
+])
+def test_line_element_must_be_quadratic(catalog: Path, form: str, reason: str) -> None:
     path = write_variant(catalog, {"line_element: rho**2*(dtheta**2 + sin(theta)**2*dphi**2)":
-                                   "line_element: rho**2*(dtheta**2 + dphi)"})
+                                   f"line_element: {form}"})
     (line, _column, code, message), = errors(load(path))
     assert (line, code) == (18, "metric.line-element")
-    assert "linear" in message
+    assert reason in message
+
+
+def test_line_element_cross_terms_are_halved(catalog: Path) -> None:
+    # ds² = g_ab dx^a dx^b counts each off-diagonal term twice (common practice).
+    path = write_variant(catalog, {"line_element: rho**2*(dtheta**2 + sin(theta)**2*dphi**2)":
+                                   "line_element: rho**2*dtheta**2 + 6*dtheta*dphi + dphi**2"})
+    metric = load(path).spacetime.metric
+    assert metric[0, 1] == metric[1, 0] == 3
+    assert metric[1, 1] == 1
 
 
 def test_both_metric_forms_is_an_error(catalog: Path) -> None:

@@ -17,13 +17,11 @@ import pytest
 from _git_sandbox import Sandbox, demo_entry
 
 from generator.jsonschema_export import SCHEMA_PATH, editor_view
-from generator.loader import Vocabulary, load_entry, load_text
+from generator.loader import TODO_CODE, Vocabulary, find_todos, load_entry, load_text
 from generator.scaffold import (
-    TODO_CODE,
     Draft,
     ParameterSpec,
     ReferenceSpec,
-    find_todos,
     new_main,
     render,
 )
