@@ -243,6 +243,35 @@ class RationalField:
     def equal(self, x: Frac, y: Frac) -> bool:
         return x.num == y.num and x.den == y.den
 
+    def square_root(self, x: Frac) -> Frac | None:
+        """A fraction whose square is ``x`` when ``x`` is visibly a square, else None.
+
+        Visibly: numerator and denominator factor (exactly, over Q) into even powers times a
+        positive rational square. Which of the two roots ±y comes back is not specified. The
+        square of the result is compared with ``x`` in normal form before it is returned, so a
+        factorisation can only ever make this say None, never give a wrong root.
+        """
+        if x.is_zero():
+            return self.zero()
+        parts = [self._square_root_poly(p) for p in (x.num, x.den)]
+        if parts[0] is None or parts[1] is None:
+            return None
+        root = self.normal(parts[0], parts[1])
+        return root if self.equal(self.mul(root, root), x) else None
+
+    def _square_root_poly(self, p: flint.fmpq_mpoly) -> flint.fmpq_mpoly | None:
+        content, factors = p.factor()
+        if content <= 0 or any(e % 2 for _f, e in factors):
+            return None
+        top, bottom = int(content.p), int(content.q)
+        top_root, bottom_root = math.isqrt(top), math.isqrt(bottom)
+        if top_root**2 != top or bottom_root**2 != bottom:
+            return None
+        root = self.ctx.constant(flint.fmpq(top_root, bottom_root))
+        for f, e in factors:
+            root = root * f ** (int(e) // 2)
+        return root
+
     # ------------------------------------------------------------------ calculus
     def diff_poly(self, p: flint.fmpq_mpoly, i: int) -> Frac:
         """d p / d x_i by the chain rule over the generators."""

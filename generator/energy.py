@@ -15,14 +15,15 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import Any
 
 import mpmath
 import sympy
 
+from .equality import exact_square_root
 from .exactvalues import (
     Point,
     describe_point,
-    exact_sign,
     point_text,
     sign_at,
     value_at,
@@ -151,7 +152,11 @@ def two_by_two(block: sympy.Matrix, gblock: sympy.Matrix, spacetime: Spacetime,
     if sign < 0:
         return Spectrum("IV", method, "a coupled pair of T^a_b has complex eigenvalues "
                         f"(discriminant {discriminant} < 0)")
-    root = sympy.sqrt(discriminant)
+    # {m - y, m + y} is the same pair for either root ±y, so an exact root of a perfect
+    # square (no radical left) is as good as sqrt and far easier to prove things about.
+    root = exact_square_root(discriminant, spacetime)
+    if root is None:
+        root = sympy.sqrt(discriminant)
     values = [(A + D) / 2 - root, (A + D) / 2 + root]
     if not holds_time:
         return values, None
@@ -326,21 +331,79 @@ def energy_conditions(spectrum: Spectrum, lower: sympy.Matrix, metric: sympy.Mat
 
 
 # ---------------------------------------------------------------------------- observers
+#
+# The observer search works in interval arithmetic (mpmath.iv): each exact value of T_ab and
+# g_ab at the point is enclosed in an interval, every step of the frame and the tests widens the
+# enclosure as needed, and a test counts as violated only when its whole interval lies on the
+# wrong side of zero. That is as certain as the exact route and much cheaper: exact values such
+# as exp(-13/4) otherwise grow into huge trees through the Gram–Schmidt steps.
+
+INTERVAL_BITS = 240
+# A value is enclosed within this relative slack of its 60-digit evaluation, plus the absolute
+# slack below which ``exactvalues.exact_sign`` calls a number zero: a value that is exactly zero
+# but does not look it (exp(1)*exp(-1) - 1) stays an interval around zero.
+RELATIVE_SLACK = mpmath.mpf(10) ** -50
+ABSOLUTE_SLACK = mpmath.mpf(10) ** -45
+
+IntervalMatrix = Any  # a matrix of an interval context (its class is made per context)
+Interval = Any  # an interval number of that context
+IntervalContext = Any
 
 
-def orthogonal_frame(metric: sympy.Matrix) -> tuple[list[sympy.Matrix], list[sympy.Expr]] | None:
-    """Gram–Schmidt on exact numbers, spatial-first so the last vector is the slice normal."""
+def interval_context() -> IntervalContext:
+    """A private interval-arithmetic context at INTERVAL_BITS (mpmath's shared ``iv`` has no
+    local precision switch, and changing its precision would leak into other code)."""
+    ctx = type(mpmath.iv)()
+    ctx.prec = INTERVAL_BITS
+    return ctx
+
+
+def enclosure(iv: IntervalContext, value: sympy.Expr) -> Interval | None:
+    """An interval that certainly contains the exact real number ``value`` (None if it is not
+    a real number)."""
+    if value.is_Rational:
+        return iv.mpf(int(value.p)) / iv.mpf(int(value.q))
+    numeric = value.evalf(60)
+    if not (numeric.is_Float or numeric.is_Rational):
+        return None
+    centre = mpmath.mpf(numeric._mpf_) if numeric.is_Float else mpmath.mpf(
+        int(numeric.p)) / int(numeric.q)
+    slack = abs(centre) * RELATIVE_SLACK + ABSOLUTE_SLACK
+    return iv.mpf([centre - slack, centre + slack])
+
+
+def interval_matrix(iv: IntervalContext, values: Sequence[sympy.Expr], rows: int
+                    ) -> IntervalMatrix | None:
+    enclosed = [enclosure(iv, v) for v in values]
+    if any(e is None for e in enclosed):
+        return None
+    cols = len(enclosed) // rows
+    return iv.matrix([[enclosed[cols * i + j] for j in range(cols)] for i in range(rows)])
+
+
+def certainly_negative(x: Interval) -> bool:
+    return bool(x.b < 0)
+
+
+def certainly_positive(x: Interval) -> bool:
+    return bool(x.a > 0)
+
+
+def orthogonal_frame(iv: IntervalContext, metric: IntervalMatrix
+                     ) -> tuple[list[IntervalMatrix], list[Interval]] | None:
+    """Gram–Schmidt, spatial-first so the last vector is the slice normal; None when a norm
+    is not certainly non-zero."""
     n = metric.rows
     order = [*range(1, n), 0]
-    frame: list[sympy.Matrix] = []
-    norms: list[sympy.Expr] = []
+    frame: list[IntervalMatrix] = []
+    norms: list[Interval] = []
     for i in order:
-        v = sympy.zeros(n, 1)
-        v[i] = 1
+        v = iv.matrix(n, 1)
+        v[i] = iv.mpf(1)
         for e, q in zip(frame, norms, strict=True):
-            v = v - ((e.T * metric * v)[0, 0] / q) * e
+            v = v - e * ((e.T * metric * v)[0, 0] / q)
         q = (v.T * metric * v)[0, 0]
-        if exact_sign(q) in (None, 0):
+        if not (certainly_negative(q) or certainly_positive(q)):
             return None
         frame.append(v)
         norms.append(q)
@@ -351,14 +414,14 @@ def observer_search(name: str, lower: sympy.Matrix, metric: sympy.Matrix,
                     spacetime: Spacetime, points: Sequence[Point], spectrum: Spectrum
                     ) -> EnergyCondition:
     """Look for an explicit observer (or null vector) that violates the condition."""
+    iv = interval_context()
     for point in points:
         T = [value_at(v, point, spacetime) for v in lower]
         g = [value_at(v, point, spacetime) for v in metric]
         if any(v is None for v in T + g):
             continue
-        Tm, gm = sympy.Matrix(lower.rows, lower.cols, T), sympy.Matrix(metric.rows,
-                                                                        metric.cols, g)
-        found = violation_at(name, Tm, gm)
+        Ti, gi = interval_matrix(iv, T, lower.rows), interval_matrix(iv, g, metric.rows)
+        found = violation_at(iv, name, Ti, gi) if Ti is not None and gi is not None else ""
         if found and has_free_functions(lower, spacetime):
             return EnergyCondition(name, "undecided", f"depends on the free functions: "
                                    f"{found} for some values of them")
@@ -369,17 +432,18 @@ def observer_search(name: str, lower: sympy.Matrix, metric: sympy.Matrix,
                            f"violating observer found at {len(points)} exact sample points")
 
 
-def test_vectors(gm: sympy.Matrix) -> tuple[list[tuple[str, sympy.Matrix]], list[sympy.Matrix]]:
+def test_vectors(iv: IntervalContext, gm: IntervalMatrix
+                 ) -> tuple[list[tuple[str, IntervalMatrix]], list[IntervalMatrix]]:
     """Unit timelike test observers (the slice normal and boosts of it) and null vectors."""
-    built = orthogonal_frame(gm)
+    built = orthogonal_frame(iv, gm)
     if built is None:
         return [], []
     frame, norms = built
-    timelike = [k for k, q in enumerate(norms) if exact_sign(q) == -1]
+    timelike = [k for k, q in enumerate(norms) if certainly_negative(q)]
     if len(timelike) != 1:
         return [], []
     t = timelike[0]
-    unit = [e / sympy.sqrt(abs(q)) for e, q in zip(frame, norms, strict=True)]
+    unit = [e / iv.sqrt(abs(q)) for e, q in zip(frame, norms, strict=True)]
     observers = [("slice-normal observer", unit[t])]
     nulls = []
     for k in range(len(unit)):
@@ -387,33 +451,41 @@ def test_vectors(gm: sympy.Matrix) -> tuple[list[tuple[str, sympy.Matrix]], list
             continue
         nulls += [unit[t] + unit[k], unit[t] - unit[k]]
         for c, s in BOOSTS:
-            observers += [("boosted observer", c * unit[t] + s * unit[k]),
-                          ("boosted observer", c * unit[t] - s * unit[k])]
+            ci, si = (iv.mpf(int(x.p)) / iv.mpf(int(x.q)) for x in (c, s))
+            observers += [("boosted observer", unit[t] * ci + unit[k] * si),
+                          ("boosted observer", unit[t] * ci - unit[k] * si)]
     return observers, nulls
 
 
-def violation_at(name: str, T: sympy.Matrix, g: sympy.Matrix) -> str:
-    """Description of a violating vector at this point, or '' if none of the tests fails."""
-    observers, nulls = test_vectors(g)
+def violation_at(iv: IntervalContext, name: str, T: IntervalMatrix, g: IntervalMatrix) -> str:
+    """Description of a violating vector at this point, or '' if none of the tests fails
+    with certainty."""
+    observers, nulls = test_vectors(iv, g)
     n = g.rows
-    ginv = g.inv()
-    trace = sum((ginv[a, b] * T[a, b] for a in range(n) for b in range(n)), sympy.Integer(0))
+    try:
+        ginv = iv.inverse(g)
+    except ZeroDivisionError:
+        return ""
+    trace = iv.mpf(0)
+    for a in range(n):
+        for b in range(n):
+            trace += ginv[a, b] * T[a, b]
 
-    def quad(v: sympy.Matrix) -> sympy.Expr:
+    def quad(v: IntervalMatrix) -> Interval:
         return (v.T * T * v)[0, 0]
 
     if name in ("null", "weak", "strong", "dominant"):
         for k in nulls:
-            if exact_sign(quad(k)) == -1:
+            if certainly_negative(quad(k)):
                 return "T_ab k^a k^b < 0 for a null vector k"
     for label, u in observers:
         energy = quad(u)
-        if name in ("weak", "dominant") and exact_sign(energy) == -1:
+        if name in ("weak", "dominant") and certainly_negative(energy):
             return f"T_ab u^a u^b < 0 for the {label}"
-        if name == "strong" and exact_sign(energy + trace / (n - 2)) == -1:
+        if name == "strong" and certainly_negative(energy + trace / (n - 2)):
             return f"(T_ab − T g_ab/(n−2)) u^a u^b < 0 for the {label}"
         if name == "dominant":
-            flux = -ginv * T * u
-            if exact_sign((flux.T * g * flux)[0, 0]) == 1:
+            flux = -(ginv * T * u)
+            if certainly_positive((flux.T * g * flux)[0, 0]):
                 return f"the energy flux seen by the {label} is spacelike"
     return ""

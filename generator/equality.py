@@ -55,6 +55,19 @@ def canonical(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr:
     return field.display(value)
 
 
+def exact_square_root(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr | None:
+    """±y with y**2 == ``expr`` exactly, when ``expr`` is a perfect square in the field
+    (``RationalField.square_root``); None otherwise. Used where either sign will do, such as the
+    pair of eigenvalues m ± sqrt(discriminant)."""
+    expr = _aligned(sympy.sympify(expr), spacetime)
+    try:
+        field, (value,) = _field_of((expr,), spacetime)
+    except (NotInField, ZeroDivisionError):
+        return None
+    root = field.square_root(value)
+    return None if root is None else field.display(root)
+
+
 def _field_of(
     exprs: tuple[sympy.Expr, ...], spacetime: Spacetime
 ) -> tuple[RationalField, list[Frac]]:
@@ -82,13 +95,10 @@ def _decide(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decisi
 def _confirm_zero(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decision:
     """The normal form says equal; a disagreeing point would mean a branch problem (a root
     or Abs taken on the wrong sheet), and then the point wins."""
-    usable = 0
-    for point in _points(spacetime, CONFIRM_POINTS):
-        differs = _differs_at(left, right, point, spacetime)
-        if differs:
-            detail = "normal form is zero but a sample point disagrees (branch of a root?)"
-            return Decision(False, "sampled", detail, _witness(point, spacetime))
-        usable += differs is not None
+    witness, usable = _first_difference(left, right, spacetime, CONFIRM_POINTS)
+    if witness is not None:
+        detail = "normal form is zero but a sample point disagrees (branch of a root?)"
+        return Decision(False, "sampled", detail, _witness(witness, spacetime))
     return Decision(True, "exact", f"normal form is zero; confirmed at {usable} points")
 
 
@@ -96,14 +106,24 @@ def _find_witness(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> 
     """The normal form says different; show a point where the two sides differ. If none is
     found the normal form was not canonical here (e.g. radicals of related bases), and the
     sample points decide, saying so."""
+    witness, usable = _first_difference(left, right, spacetime, SAMPLED_POINTS)
+    if witness is not None:
+        detail = "normal forms differ; witness point found"
+        return Decision(False, "exact", detail, _witness(witness, spacetime))
+    return _sampled_verdict(usable, "normal form not canonical here")
+
+
+def _first_difference(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime, count: int
+                      ) -> tuple[Point | None, int]:
+    """The first of ``count`` sample points where the sides differ (None if there is none),
+    and how many points were usable (both sides defined) before it."""
     usable = 0
-    for point in _points(spacetime, SAMPLED_POINTS):
+    for point in _points(spacetime, count):
         differs = _differs_at(left, right, point, spacetime)
         if differs:
-            detail = "normal forms differ; witness point found"
-            return Decision(False, "exact", detail, _witness(point, spacetime))
+            return point, usable
         usable += differs is not None
-    return _sampled_verdict(usable, "normal form not canonical here")
+    return None, usable
 
 
 def _aligned(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr:
@@ -138,14 +158,11 @@ def _without_subs(expr: sympy.Expr) -> sympy.Expr:
 def _decide_sampled(
     left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime, why: str
 ) -> Decision:
-    usable = 0
-    for point in _points(spacetime, SAMPLED_POINTS):
-        differs = _differs_at(left, right, point, spacetime)
-        if differs:
-            return Decision(
-                False, "sampled", f"{why}; differs at a sample point", _witness(point, spacetime)
-            )
-        usable += differs is not None
+    witness, usable = _first_difference(left, right, spacetime, SAMPLED_POINTS)
+    if witness is not None:
+        return Decision(
+            False, "sampled", f"{why}; differs at a sample point", _witness(witness, spacetime)
+        )
     return _sampled_verdict(usable, why)
 
 
@@ -161,7 +178,8 @@ def _sampled_verdict(usable: int, why: str) -> Decision:
 
 
 def _points(spacetime: Spacetime, count: int) -> list[Point]:
-    return sample_points(spacetime, count, SEED)
+    """The first ``count`` points of one stream per spacetime (drawn once, see sampling)."""
+    return sample_points(spacetime, max(count, SAMPLED_POINTS), SEED)[:count]
 
 
 def _differs_at(

@@ -14,9 +14,12 @@ stay rational. The returned point therefore also holds the keys sin(theta) and c
 
 from __future__ import annotations
 
+import functools
 import itertools
 import random
+from dataclasses import dataclass
 
+import mpmath
 import sympy
 
 from .model import Spacetime
@@ -31,26 +34,80 @@ Point = dict[sympy.Basic, sympy.Expr]
 
 def sample_points(spacetime: Spacetime, count: int, seed: int) -> list[Point]:
     """``count`` distinct exact points inside the domain (fewer if the domain is too thin to
-    hit by rejection sampling); deterministic for a given seed."""
+    hit by rejection sampling); deterministic for a given seed.
+
+    The same points are asked for many times while one entry is checked (signature, claims,
+    classification); they are computed once per process and handed out as fresh copies.
+    """
+    return [dict(point) for point in _sample_points_once(spacetime, count, seed)]
+
+
+@functools.lru_cache(maxsize=16)
+def _sample_points_once(spacetime: Spacetime, count: int, seed: int) -> tuple[Point, ...]:
     rng = random.Random(seed)
-    angles = angle_coordinates(spacetime)
+    plan = domain_plan(spacetime)
     points: list[Point] = []
     seen: set[tuple] = set()
     for attempt in range(count * ATTEMPTS_PER_POINT):
         if len(points) >= count:
             break
         scale = SCALES[(attempt // 50) % len(SCALES)]
-        point = random_point(spacetime, angles, rng, scale)
+        point = random_point(spacetime, plan, rng, scale)
+        if point is None:
+            continue
         key = tuple(point.values())
-        if key in seen or not inside_domain(spacetime, point, angles):
+        if key in seen or not _holds_everywhere(plan.relations, point, plan.angles):
             continue
         for f in spacetime.functions:
             point.update(function_values(f, rng, scale))
-        if not regular_at(spacetime, point, angles):
+        if not regular_at(spacetime, point, plan.angles):
             continue
         seen.add(key)
         points.append(point)
-    return points
+    return tuple(points)
+
+
+@dataclass(frozen=True)
+class DomainPlan:
+    """The domain of an entry sorted for sampling, worked out once per spacetime.
+
+    ``parameter_relations`` involve parameters only and are tested before any coordinate is
+    drawn (most rejections happen there, e.g. a**2 < M**2). ``bounds`` lists, per coordinate,
+    the relations of the form x > f(parameters) or x < f(parameters), so that x is drawn
+    between them instead of being found by rejection.
+    """
+
+    angles: tuple[sympy.Symbol, ...]
+    parameter_relations: tuple[sympy.Basic, ...]
+    bounds: dict[sympy.Symbol, tuple[tuple[str, sympy.Expr], ...]]
+    relations: tuple[sympy.Basic, ...]
+
+
+def domain_plan(spacetime: Spacetime) -> DomainPlan:
+    coordinates = set(spacetime.coordinates)
+    parameter_relations = tuple(
+        relation for relation in spacetime.domain
+        if isinstance(relation, sympy.core.relational.Relational)
+        and not relation.free_symbols & coordinates)
+    bounds = {x: tuple(_bounds_on(spacetime, x)) for x in spacetime.coordinates}
+    return DomainPlan(angle_coordinates(spacetime), parameter_relations, bounds,
+                      tuple(spacetime.domain))
+
+
+def _bounds_on(spacetime: Spacetime, x: sympy.Symbol):
+    """(">" or "<", bound) for each domain relation x > bound / x < bound (bound free of
+    coordinates)."""
+    mirrored = {">": "<", ">=": "<=", "<": ">", "<=": ">="}
+    for relation in spacetime.domain:
+        if not isinstance(relation, sympy.core.relational.Relational) or (
+                relation.rel_op not in mirrored):
+            continue
+        lhs, rhs, op = relation.lhs, relation.rhs, relation.rel_op
+        if rhs == x and not lhs.has(x):
+            lhs, rhs, op = rhs, lhs, mirrored[op]
+        if lhs != x or rhs.has(*spacetime.coordinates):
+            continue
+        yield (">" if op in (">", ">=") else "<"), rhs
 
 
 def angle_coordinates(spacetime: Spacetime) -> tuple[sympy.Symbol, ...]:
@@ -96,16 +153,20 @@ def parameter_value(symbol: sympy.Symbol, rng: random.Random, scale: int) -> sym
 
 
 def random_point(
-    spacetime: Spacetime, angles: tuple[sympy.Symbol, ...], rng: random.Random, scale: int
-) -> Point:
+    spacetime: Spacetime, plan: DomainPlan, rng: random.Random, scale: int
+) -> Point | None:
+    """Random values for parameters and coordinates, or None when the parameters already
+    leave the domain (the caller then draws again)."""
     point: Point = {}
     for p in spacetime.parameters:
         point[p] = parameter_value(p, rng, scale)
+    if not _holds_everywhere(plan.parameter_relations, point, ()):
+        return None
     for x in spacetime.coordinates:
-        bounded = None if x in angles else _bounded_value(spacetime, x, point, rng)
+        bounded = None if x in plan.angles else _bounded_value(plan.bounds[x], point, rng)
         if bounded is not None:
             point[x] = bounded
-        elif x in angles:
+        elif x in plan.angles:
             q = random_rational(rng, 10, "positive" if rng.random() < 0.9 else "any")
             point[sympy.sin(x)] = 2 * q / (1 + q**2)
             point[sympy.cos(x)] = (1 - q**2) / (1 + q**2)
@@ -115,39 +176,49 @@ def random_point(
     return point
 
 
+BOUND_DENOMINATOR = 64  # irrational bounds are rounded inwards to this grid
+
+
 def _bounded_value(
-    spacetime: Spacetime, x: sympy.Symbol, point: Point, rng: random.Random
+    bounds: tuple[tuple[str, sympy.Expr], ...], point: Point, rng: random.Random
 ) -> sympy.Rational | None:
-    """A value for ``x`` between the bounds the domain sets on it directly (``r > 2*M``,
-    ``x < 1``), when those bounds are rational once the parameters are fixed. Other domain
-    conditions are left to rejection; this only makes thin domains reachable."""
+    """A value between the bounds the domain sets on a coordinate directly (``r > 2*M``,
+    ``r > M + sqrt(M**2 - a**2)``, ``x < 1``) once the parameters are fixed. An irrational
+    bound (a root) is rounded inwards to a nearby rational, so the value stays strictly inside.
+    Other domain conditions are left to rejection; this only makes thin domains reachable."""
     low = high = None
-    for relation in spacetime.domain:
-        if not isinstance(relation, sympy.core.relational.Relational) or relation.rel_op not in (
-            ">",
-            ">=",
-            "<",
-            "<=",
-        ):
+    for side, bound in bounds:
+        value = _rational_bound(bound, point, side)
+        if value is None:
             continue
-        lhs, rhs, op = relation.lhs, relation.rhs, relation.rel_op
-        if rhs == x and not lhs.has(x):
-            lhs, rhs, op = rhs, lhs, {">": "<", ">=": "<=", "<": ">", "<=": ">="}[op]
-        if lhs != x or rhs.has(*spacetime.coordinates):
-            continue
-        bound = rhs.xreplace(point)
-        if not bound.is_Rational:
-            continue
-        if op in (">", ">="):
-            low = bound if low is None else max(low, bound)
+        if side == ">":
+            low = value if low is None else max(low, value)
         else:
-            high = bound if high is None else min(high, bound)
+            high = value if high is None else min(high, value)
     if low is None and high is None:
         return None
     step = random_rational(rng, 1 + abs(low if low is not None else high), "positive")
     if low is not None and high is not None:
         return low + (high - low) * sympy.Rational(rng.randint(1, 99), 100) if high > low else low
     return low + step if low is not None else high - step
+
+
+def _rational_bound(bound: sympy.Expr, point: Point, side: str) -> sympy.Rational | None:
+    """The bound at the point if rational; otherwise a rational just inside it (above a lower
+    bound, below an upper one), from a 30-digit value; None if it is not a real number."""
+    if bound.is_rational_function():
+        value = bound.xreplace(point)
+        return value if value.is_Rational else None
+    numeric = bound.evalf(30, subs=_symbol_values(point))
+    if not numeric.is_Float:
+        return None
+    scaled = mpmath.mpf(numeric) * BOUND_DENOMINATOR
+    inward = mpmath.ceil(scaled) if side == ">" else mpmath.floor(scaled)
+    return sympy.Rational(int(inward), BOUND_DENOMINATOR)
+
+
+def _symbol_values(point: Point) -> dict[sympy.Symbol, sympy.Expr]:
+    return {k: v for k, v in point.items() if isinstance(k, sympy.Symbol)}
 
 
 def function_values(f: sympy.Expr, rng: random.Random, scale: int) -> Point:
@@ -224,31 +295,40 @@ def inside_domain(
 ) -> bool:
     """Every domain inequality holds at the point (decided exactly or at 30 digits)."""
     angles = angle_coordinates(spacetime) if angles is None else angles
-    for relation in spacetime.domain:
-        value = substitute(relation, point, angles)
-        if value is sympy.true:
-            continue
-        if value is sympy.false:
-            return False
-        if not _numeric_truth(value):
+    return _holds_everywhere(spacetime.domain, point, angles)
+
+
+def _holds_everywhere(relations: tuple[sympy.Basic, ...], point: Point,
+                      angles: tuple[sympy.Symbol, ...]) -> bool:
+    """Exact for rational relations; a relation with roots or functions is judged on its
+    30-digit value (a point within 1e-25 of its boundary counts as outside, which only costs
+    a sample)."""
+    for relation in relations:
+        if not isinstance(relation, sympy.core.relational.Relational):
+            value = substitute(relation, point, angles)
+            if value is not sympy.true:
+                return False
+        elif relation.lhs.is_rational_function() and relation.rhs.is_rational_function():
+            if relation.xreplace(point) is not sympy.true:
+                return False
+        elif not _numeric_truth(relation, point):
             return False
     return True
 
 
-def _numeric_truth(relation: sympy.Basic) -> bool:
-    if not isinstance(relation, sympy.core.relational.Relational):
+def _numeric_truth(relation: sympy.core.relational.Relational, point: Point) -> bool:
+    value = (relation.lhs - relation.rhs).evalf(30, subs=_symbol_values(point))
+    if not (value.is_Float or value.is_Rational):  # complex, or not a number at all
         return False
-    difference = (relation.lhs - relation.rhs).evalf(30)
-    if not difference.is_number or not difference.is_real:
-        return False
-    strict = {
-        ">": lambda d: d > 0,
-        "<": lambda d: d < 0,
-        ">=": lambda d: d >= 0,
-        "<=": lambda d: d <= 0,
+    margin = sympy.Float("1e-25", 30)
+    checks = {
+        ">": lambda d: d > margin,
+        "<": lambda d: d < -margin,
+        ">=": lambda d: d > -margin,
+        "<=": lambda d: d < margin,
     }
-    check = strict.get(relation.rel_op)
-    return bool(check(difference)) if check else False
+    check = checks.get(relation.rel_op)
+    return bool(check(value)) if check else False
 
 
 def regular_at(

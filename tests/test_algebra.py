@@ -132,3 +132,16 @@ def test_radical_of_a_base_with_an_algebraic_denominator() -> None:
     )
     assert same(field, field.mul(value, value), radicand)
     assert same(field, field.diff(value, 2), derivative)
+
+
+def test_square_root_of_a_visible_square_and_none_otherwise() -> None:
+    # (r**2 + a**2 cos**2)**2 / (4 r**2): a square once sin**2 = 1 - cos**2 is used
+    # (common practice); r**2 - 2*M*r is not a square of a rational function.
+    field, (square, other) = field_with(
+        (r**2 + M**2 - M**2 * sp.sin(theta) ** 2) ** 2 / (4 * r**2), r**2 - 2 * M * r)
+    root = field.square_root(square)
+    assert root is not None
+    assert same(field, field.mul(root, root), square)
+    assert field.square_root(other) is None
+    _f, (negative,) = field_with(-(r**2))
+    assert _f.square_root(negative) is None  # -r**2 has no real square root

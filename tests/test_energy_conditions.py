@@ -19,7 +19,16 @@ from classify_cases import (
 )
 
 from generator.classify import classify
-from generator.energy import has_complex_eigenvalue, type_at_point
+from generator.energy import (
+    certainly_negative,
+    certainly_positive,
+    enclosure,
+    has_complex_eigenvalue,
+    interval_context,
+    interval_matrix,
+    type_at_point,
+    violation_at,
+)
 from generator.equality import decide_equal
 from generator.model import Claims, Matter
 
@@ -187,3 +196,36 @@ def test_non_rational_points_detect_only_clearly_complex_spectra() -> None:
     diagonal = [1, 0, 0, 0, 0, root, 0, 0, 0, 0, 1, 0, 0, 0, 0, sympy.E]
     assert has_complex_eigenvalue(rotation, 4)
     assert not has_complex_eigenvalue(diagonal, 4)
+
+
+# ---------------------------------------------------------------------------- interval observers
+
+
+def test_an_exact_zero_in_disguise_is_never_given_a_sign() -> None:
+    # sqrt(3 + 2 sqrt 2) = 1 + sqrt 2 (a nested radical, common practice): the difference is
+    # exactly zero, but SymPy keeps it unevaluated; its enclosure must straddle zero.
+    iv = interval_context()
+    disguised = sympy.sqrt(3 + 2 * sympy.sqrt(2)) - 1 - sympy.sqrt(2)
+    assert disguised != 0
+    zero = enclosure(iv, disguised)
+    assert zero is not None and not certainly_negative(zero) and not certainly_positive(zero)
+    tiny = enclosure(iv, sympy.exp(-30))  # far above the slack: a certain sign
+    assert certainly_positive(tiny)
+    assert enclosure(iv, sympy.I + 1) is None
+
+
+@pytest.mark.parametrize(("density", "violated"), [
+    # Dust, T_ab = rho u_a u_b in flat space: all four conditions hold for rho >= 0 and the
+    # weak, strong and dominant ones fail for rho < 0 (Hawking & Ellis 1973, §4.3, from memory).
+    (sympy.Integer(1), {"null": False, "weak": False, "strong": False, "dominant": False}),
+    (sympy.Integer(0), {"null": False, "weak": False, "strong": False, "dominant": False}),
+    (sympy.Rational(-1, 3), {"null": True, "weak": True, "strong": True, "dominant": True}),
+])
+def test_interval_observer_search_on_dust(density: sympy.Expr, violated: dict[str, bool]
+                                          ) -> None:
+    iv = interval_context()
+    metric = sympy.diag(-1, 1, 1, 1)
+    stress = sympy.diag(density, 0, 0, 0)
+    T, g = interval_matrix(iv, list(stress), 4), interval_matrix(iv, list(metric), 4)
+    for name, expected in violated.items():
+        assert bool(violation_at(iv, name, T, g)) is expected, name

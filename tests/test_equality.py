@@ -15,6 +15,7 @@ from _known_metrics import (
     a,
     flrw_flat,
     kerr,
+    kerr_newman,
     kruskal,
     r,
     reissner_nordstrom,
@@ -24,7 +25,7 @@ from _known_metrics import (
     theta,
 )
 
-from generator.equality import canonical, decide_equal, decide_zero
+from generator.equality import canonical, decide_equal, decide_zero, exact_square_root
 from generator.geometry import compute_geometry
 
 SCHWARZSCHILD_K = (
@@ -187,3 +188,16 @@ def test_claims_with_other_assumptions_still_compare_with_the_metric() -> None:
     computed = 6 * sp.Derivative(scale, t) ** 2 / scale**2
     decision = decide_equal(right, computed, cosmos)
     assert (decision.equal, decision.method) == (True, "exact")
+
+
+def test_exact_square_root_gives_a_root_whose_square_is_the_input() -> None:
+    # Kerr–Newman's t–phi block of T^a_b has the discriminant Q**4/(64 pi**2 Sigma**4) in
+    # disguise (Sigma = r**2 + a**2 cos**2 theta; from memory, checked here by squaring).
+    st = kerr_newman()
+    sigma = r**2 + a**2 - a**2 * sp.sin(theta) ** 2
+    disguised = sp.expand(Q**4 * sigma**2) / (64 * sp.pi**2 * sp.expand(sigma**6))
+    root = exact_square_root(disguised, st)
+    assert root is not None
+    assert not any(p.exp.is_Rational and p.exp.q == 2 for p in root.atoms(sp.Pow))
+    assert decide_equal(root**2, disguised, st).equal is True
+    assert exact_square_root(r**2 - 2 * a * r, st) is None

@@ -98,3 +98,27 @@ def test_singular_points_of_the_metric_are_avoided() -> None:
     assert regular_at(st, {t: 0, r: sp.Rational(3, 2)})
     for p in sample_points(st, 10, seed=2):
         assert p[r] not in (0, 1)
+
+
+def test_a_bound_with_a_root_is_met_exactly_and_thin_parameter_ranges_are_reached() -> None:
+    # Kerr's outer horizon r+ = M + sqrt(M**2 - a**2) with a**2 < M**2 (common practice): the
+    # coordinate is drawn above a rational just outside the irrational bound, and the
+    # parameters are drawn until a**2 < M**2 holds, before any coordinate is tried.
+    st = kerr()
+    outside = (sp.Lt(a**2, M**2), sp.Gt(r, M + sp.sqrt(M**2 - a**2)))
+    horizon = spacetime(st.coordinates, st.parameters, st.metric, domain=outside)
+    points = sample_points(horizon, 8, seed=5)
+    assert len(points) == 8
+    for p in points:
+        assert p[a] ** 2 < p[M] ** 2
+        assert sp.Gt(p[r], p[M] + sp.sqrt(p[M] ** 2 - p[a] ** 2)) is sp.true  # exact
+        assert p[r].is_Rational
+
+
+def test_repeated_requests_get_the_same_points_as_fresh_copies() -> None:
+    st = schwarzschild()
+    first = sample_points(st, 3, seed=9)
+    first[0][r] = sp.Integer(-1)  # a caller scribbling on its copy changes nothing else
+    again = sample_points(st, 3, seed=9)
+    assert again[0][r] != -1
+    assert again == sample_points(st, 3, seed=9)
