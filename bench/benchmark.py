@@ -1,16 +1,25 @@
-"""Time the full geometry of five published metrics: our engine against textbook SymPy.
+"""Time five published metrics: our geometry engine, our full check, and textbook SymPy.
 
 Run from the repository root:
 
     python bench/benchmark.py              # cap the textbook reference at 120 s per metric
     python bench/benchmark.py --cap 900    # a longer cap, for a tighter lower bound on ratios
 
-"Full geometry" is what ``generator.geometry.compute_geometry`` returns: inverse metric,
-Christoffel symbols, Riemann, Ricci, scalar, Einstein (lower and mixed), Weyl, and the
-invariants R_abcd R^abcd, R_ab R^ab, C_abcd C^abcd, in display form. The textbook reference does
-the same with the loops of a first course and ``simplify`` on every component; it runs in a
-child process that is stopped at the cap, and is then reported as "> cap" (the ratio is a lower
-bound). No numbers are asserted anywhere: this is a measurement, see bench/README.md.
+Three measurements per metric, in one run:
+
+* "geometry": what ``generator.geometry.compute_geometry`` returns (inverse metric,
+  Christoffel symbols, Riemann, Ricci, scalar, Einstein, Weyl, the invariants R_abcd R^abcd,
+  R_ab R^ab, C_abcd C^abcd in display form), best of several in-process runs;
+* "full check": what ``check`` does for the metric's catalog entry — load and validate the
+  entry (and the catalog around it, for cross-references), signature, geometry, every claim,
+  matter content, Hawking–Ellis type, energy conditions, Petrov type, Killing vectors and chart
+  maps — timed in-process in a fresh interpreter (imports excluded), and as a whole process
+  (``python -m generator check FILE --no-cache``, interpreter start included); medians of three;
+* the textbook reference: the same geometry with the loops of a first course and ``simplify``
+  on every component, in a child process stopped at the cap (then shown as "> cap", and the
+  ratios are lower bounds).
+
+No numbers are asserted anywhere: this is a measurement, see bench/README.md.
 """
 
 from __future__ import annotations
@@ -19,6 +28,8 @@ import argparse
 import multiprocessing
 import os
 import resource
+import statistics
+import subprocess
 import sys
 import time
 from collections.abc import Callable
@@ -40,6 +51,7 @@ from _known_metrics import (  # noqa: E402
 
 from generator.geometry import compute_geometry  # noqa: E402
 from generator.model import Spacetime  # noqa: E402
+from generator.pipeline import RunOptions, check_files  # noqa: E402
 
 METRICS: dict[str, Callable[[], Spacetime]] = {
     "Schwarzschild": schwarzschild,
@@ -48,6 +60,15 @@ METRICS: dict[str, Callable[[], Spacetime]] = {
     "Kerr–de Sitter": kerr_de_sitter,
     "flat FLRW a(t)": flrw_flat,
 }
+# The catalog entry of each metric, for the full check.
+ENTRIES: dict[str, str] = {
+    "Schwarzschild": "catalog/black-holes/schwarzschild.yaml",
+    "Kerr": "catalog/black-holes/kerr-boyer-lindquist.yaml",
+    "Kerr–Newman": "catalog/black-holes/kerr-newman.yaml",
+    "Kerr–de Sitter": "catalog/black-holes/kerr-de-sitter.yaml",
+    "flat FLRW a(t)": "catalog/cosmology/flrw-flat.yaml",
+}
+FULL_CHECK_RUNS = 3
 
 
 # ---------------------------------------------------------------------------- textbook SymPy
@@ -211,6 +232,33 @@ def time_engine(name: str, repeats: int) -> tuple[float, float, str]:
     return best_cpu, best_wall, engine
 
 
+def _full_check_child(entry: str, results: multiprocessing.Queue) -> None:
+    """One in-process full check in a fresh interpreter: nothing warmed, imports not timed."""
+    started = time.perf_counter()
+    reports = check_files([ROOT / entry], ROOT / "catalog", ROOT, RunOptions(jobs=1))
+    results.put((time.perf_counter() - started, all(r.ok for r in reports)))
+
+
+def time_full_check(name: str) -> tuple[float, float]:
+    """Median wall seconds of the full check in-process and as a whole process."""
+    inside, whole = [], []
+    context = multiprocessing.get_context("spawn")
+    for _ in range(FULL_CHECK_RUNS):
+        results = context.Queue()
+        child = context.Process(target=_full_check_child, args=(ENTRIES[name], results))
+        child.start()
+        seconds, ok = results.get()
+        child.join()
+        if not ok:
+            raise SystemExit(f"{ENTRIES[name]} does not verify; fix it before benchmarking")
+        inside.append(seconds)
+        started = time.perf_counter()
+        subprocess.run([sys.executable, "-m", "generator", "check", ENTRIES[name], "--no-cache"],
+                       cwd=ROOT, check=True, capture_output=True)
+        whole.append(time.perf_counter() - started)
+    return statistics.median(inside), statistics.median(whole)
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument(
@@ -224,15 +272,19 @@ def main(argv: list[str] | None = None) -> int:
     args = parser.parse_args(argv)
     names = [n for n in METRICS if args.only is None or n in args.only]
     compute_geometry(METRICS["Schwarzschild"]())  # warm imports and SymPy's caches once
-    print("CPU seconds (the machine may be shared; wall-clock in brackets for the engine)")
-    print(f"{'metric':<16} {'engine':>22} {'textbook SymPy':>16} {'ratio':>10}")
+    print("geometry: CPU seconds, best of the repeats (wall-clock in brackets); full check: "
+          "wall seconds, median of 3")
+    print(f"{'metric':<16} {'geometry':>20} {'full check':>11} {'process':>9} "
+          f"{'textbook SymPy':>16} {'ratio geom.':>12} {'ratio check':>12}")
     for name in names:
         cpu, wall, _engine = time_engine(name, args.repeats)
+        inside, whole = time_full_check(name)
         reference, capped = time_textbook(name, args.cap)
         prefix = "> " if capped else ""
         shown = f"{prefix}{reference:.1f} s"
         print(
-            f"{name:<16} {cpu:>7.3f} s ({wall:.3f} s) {shown:>16} {prefix}{reference / cpu:>6.0f}x",
+            f"{name:<16} {cpu:>7.3f} s ({wall:.3f} s) {inside:>9.2f} s {whole:>7.2f} s "
+            f"{shown:>16} {prefix}{reference / cpu:>8.0f}x {prefix}{reference / inside:>8.0f}x",
             flush=True,
         )
     return 0

@@ -86,14 +86,18 @@ def _secret() -> bytes:
 class ResultCache:
     """A folder of signed result files named by their key."""
 
-    def __init__(self, folder: Path) -> None:
+    def __init__(self, folder: Path, suffix: str = ".bin") -> None:
+        """``suffix`` tells kinds of files apart under one key: reports are ``.bin``; a small
+        object kept beside a report (the duplicate search's card) has its own suffix."""
         self.folder = folder
+        self.suffix = suffix
         self.secret = _secret()
 
     def _path(self, key: str) -> Path:
-        return self.folder / key[:2] / f"{key}.bin"
+        return self.folder / key[:2] / f"{key}{self.suffix}"
 
-    def get(self, key: str) -> EntryReport | None:
+    def get(self, key: str, kind: type = EntryReport) -> Any:
+        """The object stored under ``key`` if its signature verifies and it is a ``kind``."""
         try:
             blob = self._path(key).read_bytes()
         except OSError:
@@ -105,14 +109,14 @@ class ResultCache:
         if not hmac.compare_digest(signature, expected):
             return None
         try:
-            report = pickle.loads(payload)
+            found = pickle.loads(payload)
         except Exception:  # signed by us but unreadable (e.g. a class moved): recompute
             return None
-        return report if isinstance(report, EntryReport) else None
+        return found if isinstance(found, kind) else None
 
-    def put(self, key: str, report: EntryReport) -> None:
+    def put(self, key: str, value: object) -> None:
         """Write atomically, so an interrupted build never leaves a half-written file."""
-        payload = pickle.dumps(report, protocol=pickle.HIGHEST_PROTOCOL)
+        payload = pickle.dumps(value, protocol=pickle.HIGHEST_PROTOCOL)
         signature = hmac.new(self.secret, key.encode() + payload, hashlib.sha256).digest()
         path = self._path(key)
         path.parent.mkdir(parents=True, exist_ok=True)

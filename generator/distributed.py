@@ -28,13 +28,10 @@ from typing import Any
 from . import __version__
 from .cache import library_versions
 from .catalog import display_path, load_all, vocabulary
-from .errors import AlmanacError, BudgetExceeded, Diagnostic, UsageError
-from .geometry import Limits
-from .limits import budget_failure_report, run_limited
+from .errors import AlmanacError, Diagnostic, UsageError
 from .loader import LoadResult, Vocabulary, load_entry
 from .model import EntryReport
-from .pipeline import MEMORY_PER_ENTRY, Task, run_task
-from .verify import check_loaded
+from .pipeline import Task, check_within_limits, run_task
 from .yamlcheck import MAX_FILE_BYTES
 
 FAILURE_CODE = "distributed.worker"
@@ -85,15 +82,9 @@ def check_shipped(shipped: ShippedTask) -> EntryReport:
     with tempfile.TemporaryDirectory(prefix="almanac-worker-") as folder:
         loads = [_load_shipped(item, Path(folder) / str(k), shipped.vocabulary)
                  for k, item in enumerate((shipped.entry, *shipped.related))]
-    own, related = loads[0], loads[1:]
-    by_id = {r.entry.id: r for r in related if r.entry is not None}
-    try:
-        # As in pipeline.run_task. Dask runs tasks in worker threads, where run_limited can
-        # only rely on the engine's own time budget; `dask worker --memory-limit` bounds memory.
-        return run_limited(check_loaded, own, by_id, Limits(seconds=shipped.seconds),
-                           seconds=shipped.seconds * 1.25 + 5, memory_bytes=MEMORY_PER_ENTRY)
-    except BudgetExceeded as exc:
-        return budget_failure_report(own, exc)
+    # Dask runs tasks in worker threads, where the hard limits cannot apply: the engine's own
+    # time budget still does, and `dask worker --memory-limit` bounds memory.
+    return check_within_limits(loads, shipped.seconds)
 
 
 def _load_shipped(item: ShippedFile, folder: Path, words: Vocabulary) -> LoadResult:

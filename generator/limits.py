@@ -51,7 +51,7 @@ STAGE_NAMES: dict[str, str] = {
     "parse_inequality": "parsing the domain",
     "build_spacetime": "building the metric",
     "_metric_from_line_element": "reading the line element",
-    "_not_a_quadratic_form": "reading the line element",
+    "_quadratic_form_hessian": "reading the line element",
     "check_signature": "signature check",
     "compute_geometry": "geometry",
     "compute_geometry_with": "geometry",
@@ -170,6 +170,7 @@ class _Alarm:
     seconds: float
     stage_of: Callable[[FrameType | None], str]
     armed: bool = False
+    stage: str = ""  # where the budget first ran out
     previous_handler: Any = None
     previous_timer: tuple[float, float] = (0.0, 0.0)
 
@@ -182,8 +183,12 @@ class _Alarm:
         return self
 
     def _expired(self, signum: int, frame: FrameType | None) -> None:
+        """Raise in the running code. A repeat names the stage of the first expiry: if that
+        first exception was caught on the way out (a stage that records the failure and moves
+        on), the budget is still the one that ran out there, wherever the repeat lands."""
         if self.armed:
-            raise BudgetExceeded(self.stage_of(frame), f"time limit of {self.seconds:g} s")
+            self.stage = self.stage or self.stage_of(frame)
+            raise BudgetExceeded(self.stage, f"time limit of {self.seconds:g} s")
 
     def __exit__(self, *exc: object) -> None:
         if self.seconds <= 0:

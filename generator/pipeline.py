@@ -13,7 +13,7 @@ import os
 from collections.abc import Callable, Sequence
 from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
 from concurrent.futures.process import BrokenProcessPool
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 from .cache import ResultCache, cache_key
@@ -23,6 +23,7 @@ from .geometry import Limits
 from .limits import budget_failure_report, run_limited
 from .loader import LoadResult
 from .model import EntryReport
+from .twins import TwinCard, twin_card, worth_comparing
 from .verify import check_loaded
 
 MEMORY_PER_ENTRY = 2 * 1024**3  # bytes an entry may add to its worker
@@ -30,6 +31,7 @@ MEMORY_PER_ENTRY = 2 * 1024**3  # bytes an entry may add to its worker
 # for a pull request's few entries, not for a whole-catalog build, and under a time limit.
 TWIN_SEARCH_MAX_ENTRIES = 8
 TWIN_SEARCH_SECONDS = 120.0
+TWIN_CARD_SUFFIX = ".card"  # the small file kept beside each cached report
 
 
 @dataclass(frozen=True)
@@ -56,21 +58,25 @@ class Task:
 
 
 def run_task(task: Task) -> EntryReport:
-    """Check one entry (runs inside a worker process) under a hard time and memory limit.
+    """Check one entry (runs inside a worker process) under a hard time and memory limit."""
+    try:
+        loads = load_all([task.file, *task.related_files], task.root, task.base)
+        return check_within_limits(loads, task.seconds)
+    except Exception as exc:  # a bug must fail this entry loudly, not the whole build
+        return internal_failure_report(task.display, exc)
 
-    The engine also keeps a cooperative budget; the hard alarm gets some slack on top of it so
-    that the engine's own, more precise message wins when it can.
-    """
-    loads = load_all([task.file, *task.related_files], task.root, task.base)
+
+def check_within_limits(loads: list[LoadResult], seconds: float) -> EntryReport:
+    """Check ``loads[0]`` (the rest are the entries it links to) under the entry's budget:
+    the engine's cooperative time limit, and a hard alarm and memory cap with some slack on
+    top so that the engine's own, more precise message wins when it can."""
     own, related = loads[0], loads[1:]
     by_id = {r.entry.id: r for r in related if r.entry is not None}
     try:
-        return run_limited(check_loaded, own, by_id, Limits(seconds=task.seconds),
-                           seconds=task.seconds * 1.25 + 5, memory_bytes=MEMORY_PER_ENTRY)
+        return run_limited(check_loaded, own, by_id, Limits(seconds=seconds),
+                           seconds=seconds * 1.25 + 5, memory_bytes=MEMORY_PER_ENTRY)
     except BudgetExceeded as exc:
         return budget_failure_report(own, exc)
-    except Exception as exc:  # a bug must fail this entry loudly, not the whole build
-        return internal_failure_report(task.display, exc)
 
 
 def internal_failure_report(file: str, exc: BaseException) -> EntryReport:
@@ -92,7 +98,8 @@ def check_files(
     """Check the selected entry files; the rest of the catalog is loaded for cross-references."""
     catalog_files = entry_files([root]) if root is not None else []
     every = {p.resolve() for p in catalog_files} | {p.resolve() for p in selected}
-    all_loads = load_all(sorted(every), root, base)
+    # Workers reload what they check; here only ids and links matter, so no metric is built.
+    all_loads = load_all(sorted(every), root, base, with_math=False)
     by_file = {load.file: load for load in all_loads}
     by_id = {load.entry.id: load for load in all_loads if load.entry is not None}
     selected_loads = [by_file[display_path(p, base)] for p in selected]
@@ -101,27 +108,75 @@ def check_files(
     reports = _run(tasks, selected_loads, options, on_done)
     twins: dict[str, list[Diagnostic]] = {}
     if len(reports) <= TWIN_SEARCH_MAX_ENTRIES:
-        others = _cached_reports(all_loads, set(selected_loads), by_id, root, base, options)
-        twins = twin_warnings(reports, [*reports, *others])
+        others = _twin_candidates(reports, all_loads, set(selected_loads), by_id, root, base,
+                                  options)
+        twins = twin_warnings(reports, [*reports, *others.reports], others.ranks,
+                              others.keep_ranks)
     return [_with_extra(report, cross.get(report.file, []) + twins.get(report.file, []))
             for report in reports]
 
 
-def _cached_reports(all_loads: list[LoadResult], selected: set[LoadResult],
-                    by_id: dict[str, LoadResult], root: Path | None, base: Path,
-                    options: RunOptions) -> list[EntryReport]:
-    """Reports of the unselected entries that are already in the cache (never computed here:
-    a one-entry check stays quick, and CI keeps the cache of the last full build)."""
+@dataclass
+class _Candidates:
+    """Cached reports of unselected entries that might be twins of a selected one."""
+
+    reports: list[EntryReport]
+    ranks: dict[str, int]  # functional ranks already known, by entry id
+    cards: dict[str, tuple[str, TwinCard]]  # entry id -> (report key, card)
+    card_shelf: ResultCache | None
+
+    def keep_ranks(self, ranks: dict[str, int]) -> None:
+        """Remember ranks computed by this search on the entries' cards."""
+        if self.card_shelf is None:
+            return
+        for entry_id, rank in ranks.items():
+            if entry_id in self.cards:
+                key, card = self.cards[entry_id]
+                self.card_shelf.put(key, replace(card, rank=rank))
+
+
+def _twin_candidates(new: list[EntryReport], all_loads: list[LoadResult],
+                     selected: set[LoadResult], by_id: dict[str, LoadResult], root: Path | None,
+                     base: Path, options: RunOptions) -> _Candidates:
+    """Never computed here (a one-entry check stays quick, and CI keeps the cache of the last
+    full build): only entries already in the cache take part, and only those whose card shows
+    they could be a twin have their whole report loaded."""
+    found = _Candidates([], {}, {}, None)
     if options.cache_dir is None:
-        return []
+        return found
     cache = ResultCache(options.cache_dir)
-    found = []
+    found.card_shelf = cards = card_shelf(options.cache_dir)
+    new_cards = [card for card in (twin_card(r) for r in new) if card is not None]
     for load in all_loads:
-        if load not in selected:
-            hit = cache.get(cache_key(_task(load, by_id, root, base, options)))
-            if hit is not None:
-                found.append(hit)
+        if load in selected or not new_cards:
+            continue
+        key = cache_key(_task(load, by_id, root, base, options))
+        card = _card(cache, cards, key)
+        if card is None or not any(worth_comparing(mine, card) for mine in new_cards):
+            continue
+        report = cache.get(key)
+        if report is not None:
+            found.reports.append(report)
+            found.cards[card.id] = (key, card)
+            if card.rank is not None:
+                found.ranks[card.id] = card.rank
     return found
+
+
+def card_shelf(cache_dir: Path) -> ResultCache:
+    """Where the duplicate search's cards live: beside the reports, under the same keys."""
+    return ResultCache(cache_dir, suffix=TWIN_CARD_SUFFIX)
+
+
+def _card(cache: ResultCache, cards: ResultCache, key: str) -> TwinCard | None:
+    """The entry's card, made from its cached report (and kept) the first time it is asked."""
+    card = cards.get(key, TwinCard)
+    if card is None:
+        report = cache.get(key)
+        card = twin_card(report) if report is not None else None
+        if card is not None:
+            cards.put(key, card)
+    return card
 
 
 def _twin_search_stopped(report: EntryReport) -> Diagnostic:
@@ -132,19 +187,24 @@ def _twin_search_stopped(report: EntryReport) -> Diagnostic:
                          "compare with similar entries by hand")
 
 
-def twin_warnings(new: list[EntryReport], catalog: list[EntryReport]
+def twin_warnings(new: list[EntryReport], catalog: list[EntryReport],
+                  known_ranks: dict[str, int] | None = None,
+                  keep_ranks: Callable[[dict[str, int]], None] | None = None
                   ) -> dict[str, list[Diagnostic]]:
     """Warnings for entries whose spacetime is probably already in the catalog."""
-    from .twins import find_all_twins, twin_diagnostics
+    from .twins import search_twins, twin_diagnostics
 
     verified = [r for r in new if r.ok]
     try:
-        found = run_limited(find_all_twins, verified, [r for r in catalog if r.ok],
-                            seconds=TWIN_SEARCH_SECONDS, memory_bytes=MEMORY_PER_ENTRY)
+        search = run_limited(search_twins, verified, [r for r in catalog if r.ok],
+                             known_ranks or {}, seconds=TWIN_SEARCH_SECONDS,
+                             memory_bytes=MEMORY_PER_ENTRY)
     except BudgetExceeded:
         return {r.file: [_twin_search_stopped(r)] for r in verified}
-    return {r.file: twin_diagnostics(r, found[r.entry.id]) for r in verified
-            if r.entry is not None and r.entry.id in found}
+    if keep_ranks is not None:
+        keep_ranks(search.ranks)
+    return {r.file: twin_diagnostics(r, search.found[r.entry.id]) for r in verified
+            if r.entry is not None and r.entry.id in search.found}
 
 
 def _task(load: LoadResult, by_id: dict[str, LoadResult], root: Path | None, base: Path,
@@ -163,14 +223,13 @@ def _task(load: LoadResult, by_id: dict[str, LoadResult], root: Path | None, bas
 def _with_extra(report: EntryReport, extra: list[Diagnostic]) -> EntryReport:
     if not extra:
         return report
-    from dataclasses import replace
-
     return replace(report, diagnostics=report.diagnostics + tuple(extra))
 
 
 def _run(tasks: list[Task], loads: list[LoadResult], options: RunOptions,
          on_done: Callable[[EntryReport], None] | None) -> list[EntryReport]:
     cache = ResultCache(options.cache_dir) if options.cache_dir else None
+    cards = card_shelf(options.cache_dir) if options.cache_dir else None
     keys = [cache_key(task) for task in tasks]
     results: dict[int, EntryReport] = {}
     pending: list[int] = []
@@ -184,8 +243,11 @@ def _run(tasks: list[Task], loads: list[LoadResult], options: RunOptions,
             pending.append(i)
     for i, report in _compute(tasks, pending, options, on_done):
         results[i] = report
-        if cache and _cacheable(report):
+        if cache and cards and _cacheable(report):
             cache.put(keys[i], report)
+            card = twin_card(report)
+            if card is not None:
+                cards.put(keys[i], card)
     return [results[i] for i in range(len(tasks))]
 
 

@@ -8,7 +8,7 @@ entry's metric at the other entry's points. Every comparison goes through ``equa
 
 from __future__ import annotations
 
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
 
 import sympy
 
@@ -16,7 +16,16 @@ from .equality import decide_equal
 from .errors import Diagnostic, MathSyntaxError
 from .exactvalues import coordinate_names, index_label, vanishes
 from .mathparse import parse_math
-from .model import Entry, Geometry, MathText, RelatedChart, Spacetime, VectorClaim, Verdict
+from .model import (
+    Decision,
+    Entry,
+    Geometry,
+    MathText,
+    RelatedChart,
+    Spacetime,
+    VectorClaim,
+    Verdict,
+)
 
 
 class Unreadable(Exception):
@@ -60,6 +69,24 @@ def lie_derivative_metric(xi: Sequence[sympy.Expr], metric: sympy.Matrix,
     return sympy.Matrix(n, n, component)
 
 
+def tally_symmetric(n: int, decide: Callable[[int, int], Decision],
+                    label: Callable[[int, int], str]) -> tuple[list[str], list[str], str]:
+    """Decide each component a <= b of a symmetric n×n tensor equation: the labels of the
+    components that fail and of those left undecided, and "sampled" if any passing component
+    was decided at sample points only (else "exact"), so a verdict says how it was reached."""
+    failing, undecided, method = [], [], "exact"
+    for a in range(n):
+        for b in range(a, n):
+            decision = decide(a, b)
+            if decision.equal is False:
+                failing.append(label(a, b))
+            elif decision.equal is None:
+                undecided.append(label(a, b))
+            elif decision.method == "sampled":
+                method = "sampled"
+    return failing, undecided, method
+
+
 def check_killing_vector(entry: Entry, spacetime: Spacetime, index: int, claim: VectorClaim
                          ) -> tuple[Verdict, Diagnostic | None]:
     subject = f"claims.killing_vectors.{index}"
@@ -71,17 +98,9 @@ def check_killing_vector(entry: Entry, spacetime: Spacetime, index: int, claim: 
     except Unreadable as exc:
         return Verdict(subject, False, "failed", exc.diagnostic.message, shown), exc.diagnostic
     lie = lie_derivative_metric(xi, spacetime.metric, spacetime.coordinates)
-    failing, undecided, method = [], [], "exact"
-    for a in range(len(names)):
-        for b in range(a, len(names)):
-            decision = vanishes(lie[a, b], spacetime)
-            label = f"(L_ξ g)_{index_label(names, (a, b))}"
-            if decision.equal is False:
-                failing.append(label)
-            elif decision.equal is None:
-                undecided.append(label)
-            elif decision.method == "sampled":
-                method = "sampled"
+    failing, undecided, method = tally_symmetric(
+        len(names), lambda a, b: vanishes(lie[a, b], spacetime),
+        lambda a, b: f"(L_ξ g)_{index_label(names, (a, b))}")
     if not failing and not undecided:
         return Verdict(subject, True, method, "L_ξ g_ab = 0", shown, "Killing"), None
     detail = (", ".join(failing) + " ≠ 0") if failing else ""
@@ -154,17 +173,9 @@ def check_related(entry: Entry, spacetime: Spacetime, index: int, link: RelatedC
 def compare_metrics(entry: Entry, subject: str, link: RelatedChart, other_entry: Entry,
                     other: Spacetime, pulled: sympy.Matrix, other_names: Sequence[str]
                     ) -> tuple[Verdict, Diagnostic | None]:
-    failing, undecided, method = [], [], "exact"
-    for i in range(len(other_names)):
-        for j in range(i, len(other_names)):
-            decision = decide_equal(pulled[i, j], other.metric[i, j], other)
-            label = f"g_{index_label(other_names, (i, j))}"
-            if decision.equal is False:
-                failing.append(label)
-            elif decision.equal is None:
-                undecided.append(label)
-            elif decision.method == "sampled":
-                method = "sampled"
+    failing, undecided, method = tally_symmetric(
+        len(other_names), lambda i, j: decide_equal(pulled[i, j], other.metric[i, j], other),
+        lambda i, j: f"g_{index_label(other_names, (i, j))}")
     if not failing and not undecided:
         return Verdict(subject, True, method, f"pull-back equals the metric of "
                        f"{other_entry.id}", other_entry.id, "equal"), None

@@ -39,7 +39,7 @@ Limits, said plainly:
 from __future__ import annotations
 
 import itertools
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, replace
 from functools import cached_property
 
@@ -123,17 +123,35 @@ def fingerprint(report: EntryReport) -> Fingerprint:
 
 
 def find_all_twins(
-    new: Sequence[EntryReport], catalog: Sequence[EntryReport]
+    new: Sequence[EntryReport],
+    catalog: Sequence[EntryReport],
+    known_ranks: Mapping[str, int] | None = None,
 ) -> dict[str, list[tuple[str, str]]]:
     """``find_twins`` for several new entries at once, profiling every entry only once.
 
-    Returns new entry id -> its (other id, reason) pairs (entries without twins omitted).
+    ``known_ranks`` (entry id -> functional rank, from an earlier search) spares the costly
+    part of the fingerprint for those entries. Returns new entry id -> its (other id, reason)
+    pairs (entries without twins omitted).
     """
+    return search_twins(new, catalog, known_ranks or {}).found
+
+
+@dataclass(frozen=True)
+class TwinSearch:
+    """What a search found, and the functional ranks it had to compute (worth keeping)."""
+
+    found: dict[str, list[tuple[str, str]]]
+    ranks: dict[str, int]
+
+
+def search_twins(new: Sequence[EntryReport], catalog: Sequence[EntryReport],
+                 known_ranks: Mapping[str, int]) -> TwinSearch:
     profiles: dict[int, _Profile] = {}
 
     def profile(report: EntryReport) -> _Profile:
         if id(report) not in profiles:
-            profiles[id(report)] = _Profile(report)
+            assert report.entry is not None
+            profiles[id(report)] = _Profile(report, known_ranks.get(report.entry.id))
         return profiles[id(report)]
 
     out: dict[str, list[tuple[str, str]]] = {}
@@ -147,7 +165,45 @@ def find_all_twins(
         ]
         if pairs:
             out[report.entry.id] = pairs  # type: ignore[union-attr]
-    return out
+    ranks = {p.report.entry.id: p.computed_rank for p in profiles.values()  # type: ignore
+             if p.computed_rank is not None}
+    return TwinSearch(out, ranks)
+
+
+# ---------------------------------------------------------------------------- cards
+
+
+@dataclass(frozen=True)
+class TwinCard:
+    """What the search needs to know of a catalog entry before loading its whole report: its
+    id and links, its exact fingerprint (None when it cannot be compared at all) and, once a
+    search has computed it, its functional rank. Kept in the cache beside the report, so a
+    pull-request check loads only the reports of entries that might be twins."""
+
+    id: str
+    links: frozenset[str]
+    exact: Fingerprint | None
+    rank: int | None = None
+
+
+def twin_card(report: EntryReport) -> TwinCard | None:
+    """The card of a checked entry (None without an entry)."""
+    if report.entry is None:
+        return None
+    links = frozenset(item.entry for item in report.entry.related)
+    exact = _Profile(report).exact if _comparable(report) and report.ok else None
+    return TwinCard(report.entry.id, links, exact)
+
+
+def worth_comparing(new: TwinCard, other: TwinCard) -> bool:
+    """False when the cards alone show that the two cannot be reported as twins."""
+    if new.exact is None or other.exact is None or new.id == other.id:
+        return False
+    if other.id in new.links or new.id in other.links:
+        return False
+    if new.rank is not None and other.rank is not None and new.rank != other.rank:
+        return False
+    return not new.exact.differences(other.exact)
 
 
 def twin_diagnostics(report: EntryReport, twins: Sequence[tuple[str, str]]) -> list[Diagnostic]:
@@ -195,10 +251,12 @@ class _Profile:
     survive them, and only once per run.
     """
 
-    def __init__(self, report: EntryReport) -> None:
+    def __init__(self, report: EntryReport, known_rank: int | None = None) -> None:
         spacetime, geometry = report.spacetime, report.geometry
         assert spacetime is not None and geometry is not None
         self.report = report
+        self.known_rank = known_rank
+        self.computed_rank: int | None = None
         base = [getattr(geometry, name) for name in BASE_INVARIANTS]
         zero = tuple(e is None or _is_zero(e, spacetime, geometry.engine) for e in base)
         constant = tuple(
@@ -220,10 +278,14 @@ class _Profile:
 
     @cached_property
     def fingerprint(self) -> Fingerprint:
-        """The exact fingerprint completed with the functional rank."""
+        """The exact fingerprint completed with the functional rank (computed only when an
+        earlier search has not already found it)."""
+        if self.known_rank is not None:
+            return replace(self.exact, rank=self.known_rank)
         spacetime = self.report.spacetime
         assert spacetime is not None
-        return replace(self.exact, rank=functional_rank(self.invariants, spacetime))
+        self.computed_rank = functional_rank(self.invariants, spacetime)
+        return replace(self.exact, rank=self.computed_rank)
 
 
 def _is_zero(expr: sympy.Expr, spacetime: Spacetime, engine: str) -> bool:

@@ -7,6 +7,7 @@ reported as the Riemann-tensor stage. No test asserts how long anything took.
 
 from __future__ import annotations
 
+import contextlib
 import re
 import resource
 import signal
@@ -62,6 +63,18 @@ def classify_swallowing_once() -> None:
 
 def petrov_type() -> int:
     return petrov_type()
+
+
+def record_and_go_on() -> None:
+    """Like check_loaded: a stage that runs out is recorded and the check goes on, so the
+    repeated alarm lands in code that belongs to no named stage."""
+    with contextlib.suppress(BudgetExceeded):
+        riemann_forever()
+    spin_forever()
+
+
+def riemann_forever() -> None:
+    spin_forever()
 
 
 # ---------------------------------------------------------------------------- stage names
@@ -120,6 +133,12 @@ def test_swallowed_alarm_fires_again() -> None:
     with pytest.raises(BudgetExceeded) as caught:
         run_limited(classify_swallowing_once, seconds=0.2, memory_bytes=0)
     assert caught.value.stage == "classification"
+
+
+def test_a_repeat_alarm_names_the_stage_where_the_budget_first_ran_out() -> None:
+    with pytest.raises(BudgetExceeded) as caught:
+        run_limited(record_and_go_on, seconds=0.2, memory_bytes=0)
+    assert caught.value.stage == "Riemann tensor"
 
 
 def test_custom_stage_reader_is_used() -> None:

@@ -130,3 +130,53 @@ def test_an_unexpected_error_in_one_entry_does_not_end_the_run(tmp_path, monkeyp
     assert len(real) == ENTRY_COUNT - 1
     crashed = next(r for r in run.reports if r.file.endswith("/point-mass.yaml"))
     assert not crashed.ok
+
+
+@pytest.mark.slow
+def test_a_pull_request_check_loads_only_possible_twins_and_reuses_their_ranks(tmp_path,
+                                                                               monkeypatch):
+    """The duplicate search of a one-entry check reads small cards for the whole catalog and
+    whole reports only of entries whose card matches; the functional ranks it computes are
+    kept on the cards, so the next check computes only the new entry's own."""
+    from generator import twins
+    from generator.cache import ResultCache
+
+    monkeypatch.setenv(SECRET_ENV, "pipeline-test-secret")
+    root = copy_catalog(tmp_path)
+    options = RunOptions(jobs=1, cache_dir=tmp_path / "cache")
+    checked(root, options)  # the last full build, as CI keeps it
+    copy = root / "black-holes" / "point-mass-copy.yaml"
+    source = (root / "black-holes" / "point-mass.yaml").read_text()
+    copy.write_text(source.replace("id: point-mass\n", "id: point-mass-copy\n"))
+
+    loaded: list[str] = []
+    original_get = ResultCache.get
+
+    def recording_get(self, key, kind=EntryReport):
+        found = original_get(self, key, kind)
+        if kind is EntryReport and found is not None and found.entry is not None:
+            loaded.append(found.entry.id)
+        return found
+
+    ranks: list[str] = []
+    original_rank = twins.functional_rank
+
+    def counting_rank(inv, spacetime):
+        ranks.append(str(spacetime.metric[0, 0]))
+        return original_rank(inv, spacetime)
+
+    monkeypatch.setattr(ResultCache, "get", recording_get)
+    monkeypatch.setattr(twins, "functional_rank", counting_rank)
+    (first,) = check_files([copy], root, root.parent, options)
+    warnings = [d.message for d in first.diagnostics if d.code == "entry.duplicate"]
+    assert any("same spacetime as entry 'point-mass'" in w for w in warnings), warnings
+    assert "flat-spherical" not in loaded and "dust-universe" not in loaded
+    assert "point-mass" in loaded
+    first_ranks = len(ranks)
+    assert first_ranks >= 2  # the copy and at least its twin
+
+    copy.write_text(copy.read_text() + "\n")  # edited again: recomputed, twins searched again
+    ranks.clear()
+    (again,) = check_files([copy], root, root.parent, options)
+    assert [d.message for d in again.diagnostics if d.code == "entry.duplicate"] == warnings
+    assert len(ranks) == 1  # only the edited entry's own rank

@@ -21,7 +21,15 @@ from _entry_builders import schwarzschild
 
 from generator.geometry import compute_geometry
 from generator.model import Classification, EntryReport, RelatedChart, Spacetime
-from generator.twins import find_all_twins, find_twins, fingerprint, twin_diagnostics
+from generator.twins import (
+    find_all_twins,
+    find_twins,
+    fingerprint,
+    search_twins,
+    twin_card,
+    twin_diagnostics,
+    worth_comparing,
+)
 
 t, r, th, ph, rho, v, x, y, z = sp.symbols("t r theta phi rho v x y z", real=True)
 M, m, ell, H = sp.symbols("M m ell H", positive=True)
@@ -213,3 +221,31 @@ def test_find_all_twins_and_warnings() -> None:
     (warning,) = twin_diagnostics(a, found["lantern-a"])
     assert warning.severity == "warning" and warning.code == "entry.duplicate"
     assert warning.message.startswith("probably the same spacetime as entry 'lantern-b': same kind")
+
+
+@pytest.mark.slow
+def test_cards_rule_out_pairs_before_any_report_is_loaded(schwarzschild_charts) -> None:
+    # Two Schwarzschild charts share the exact fingerprint; Reissner–Nordström differs in its
+    # matter kind, so its card alone rules it out; a link or a known different rank does too.
+    iso, plain, rn = (twin_card(schwarzschild_charts[k])
+                      for k in ("isotropic", "schwarzschild", "reissner"))
+    assert iso is not None and plain is not None and rn is not None
+    assert worth_comparing(iso, plain) and not worth_comparing(iso, rn)
+    assert not worth_comparing(iso, iso)
+    assert not worth_comparing(replace(iso, links=frozenset({"schwarzschild"})), plain)
+    assert not worth_comparing(replace(iso, rank=1), replace(plain, rank=2))
+    assert worth_comparing(replace(iso, rank=1), replace(plain, rank=1))
+
+
+@pytest.mark.slow
+def test_known_ranks_are_used_and_new_ones_reported(schwarzschild_charts) -> None:
+    new = schwarzschild_charts["isotropic"]
+    others = [schwarzschild_charts["schwarzschild"], schwarzschild_charts["eddington"]]
+    fresh = search_twins([new], others, {})
+    assert fresh.ranks == {"schwarzschild-isotropic": 1, "schwarzschild": 1,
+                           "schwarzschild-ef": 1}
+    # A (deliberately wrong) remembered rank is believed: the pair is then ruled out unseen.
+    remembered = search_twins([new], others, {"schwarzschild": 2})
+    assert [other for other, _ in remembered.found["schwarzschild-isotropic"]] == [
+        "schwarzschild-ef"]
+    assert "schwarzschild" not in remembered.ranks
