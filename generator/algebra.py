@@ -21,6 +21,7 @@ import functools
 import itertools
 import math
 import time
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import flint
@@ -271,6 +272,18 @@ class RationalField:
         for f, e in factors:
             root = root * f ** (int(e) // 2)
         return root
+
+    def value_at(self, x: Frac, generator_values: Sequence[sympy.Rational]
+                 ) -> sympy.Rational | None:
+        """The exact value of ``x`` where generator k takes ``generator_values[k]`` (values
+        that satisfy the relations, such as a rational point of the unit circle for sin and
+        cos); None where the denominator vanishes."""
+        args = [flint.fmpq(int(v.p), int(v.q)) for v in generator_values]
+        den = x.den(*args)
+        if den == 0:
+            return None
+        num = x.num(*args)
+        return sympy.Rational(int(num.p), int(num.q)) / sympy.Rational(int(den.p), int(den.q))
 
     # ------------------------------------------------------------------ calculus
     def diff_poly(self, p: flint.fmpq_mpoly, i: int) -> Frac:

@@ -68,6 +68,22 @@ def exact_square_root(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr | No
     return None if root is None else field.display(root)
 
 
+def nonzero_in_field(field: RationalField, value: Frac, spacetime: Spacetime,
+                     count: int = CONFIRM_POINTS) -> bool:
+    """True when ``value`` is certainly not identically zero: it is non-zero at one of the
+    first ``count`` sample points, evaluated exactly in the field (points where a generator is
+    irrational, such as a square root, are skipped). A cheap witness for a non-zero normal
+    form; False means only "no witness here", never "zero"."""
+    angles = angle_coordinates(spacetime)
+    for point in _points(spacetime, count):
+        values = [substitute(spec.meaning, point, angles) for spec in field.specs]
+        if all(v.is_Rational for v in values):
+            found = field.value_at(value, values)
+            if found is not None and found != 0:
+                return True
+    return False
+
+
 def _field_of(
     exprs: tuple[sympy.Expr, ...], spacetime: Spacetime
 ) -> tuple[RationalField, list[Frac]]:

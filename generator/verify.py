@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import time
 from collections.abc import Mapping
+from fractions import Fraction
 
 import mpmath
 import sympy
@@ -128,11 +129,16 @@ def _inertia(metric: sympy.ImmutableMatrix, point: dict[sympy.Basic, sympy.Expr]
              ) -> list[str] | None:
     """Signs of the eigenvalues at a point, or None if the metric is degenerate there.
 
-    Degeneracy is decided exactly (det g = 0 at the exact point). The signs come from
+    Rational values (the usual case) are decided exactly by ``exact_inertia``. Otherwise
+    degeneracy is decided exactly (det g = 0 at the exact point). The signs come from
     eigenvalues at increasing precision until each is clearly away from zero, so charts whose
     components differ by many orders of magnitude (e.g. cosh**2 of a large radius) are fine.
     """
     values = metric.subs(point)
+    if all(v.is_Rational for v in values):
+        exact = exact_inertia([[Fraction(int(v.p), int(v.q)) for v in row]
+                               for row in values.tolist()])
+        return None if "0" in exact else exact
     if values.det() == 0:
         return None
     for digits in (50, 200, 800):
@@ -144,6 +150,37 @@ def _inertia(metric: sympy.ImmutableMatrix, point: dict[sympy.Basic, sympy.Expr]
             if all(abs(e) > scale * mpmath.mpf(10) ** (10 - digits) for e in eigenvalues):
                 return ["-" if e < 0 else "+" for e in eigenvalues]
     return None
+
+
+def exact_inertia(matrix: list[list[Fraction]]) -> list[str]:
+    """Signs of the eigenvalues of a symmetric rational matrix ("0" for a zero eigenvalue).
+
+    Sylvester's law of inertia: a congruence P^T A P keeps the number of positive, negative
+    and zero eigenvalues, so symmetric Gaussian elimination reads the signs off the pivots,
+    exactly. A zero diagonal with a nonzero a_ij is first made a nonzero pivot by adding row
+    and column j to row and column i (the new diagonal entry is 2 a_ij + a_jj).
+    """
+    a = [list(row) for row in matrix]
+    signs: list[str] = []
+    while a:
+        size = len(a)
+        k = next((i for i in range(size) if a[i][i] != 0), None)
+        if k is None:
+            pair = next(((i, j) for i in range(size) for j in range(size) if a[i][j] != 0),
+                        None)
+            if pair is None:
+                return signs + ["0"] * size
+            i, j = pair
+            for c in range(size):
+                a[i][c] += a[j][c]
+            for r in range(size):
+                a[r][i] += a[r][j]
+            k = i
+        pivot = a[k][k]
+        signs.append("+" if pivot > 0 else "-")
+        rest = [i for i in range(size) if i != k]
+        a = [[a[i][j] - a[i][k] * a[k][j] / pivot for j in rest] for i in rest]
+    return signs
 
 
 def _describe(point: dict[sympy.Basic, sympy.Expr]) -> str:

@@ -43,6 +43,7 @@ class _Checker:
     def __init__(self, file: str, source: str) -> None:
         self.file = file
         self.source = source
+        self.line_starts = _line_starts(source)  # once per file: every math string needs it
         self.out = Validated()
 
     # -- helpers
@@ -132,7 +133,7 @@ class _Checker:
         if not value.strip():
             self.error(node, f"'{path}' is empty", "entry.empty", "write an expression, e.g. 0")
             return None
-        offsets = _character_positions(self.source, node, value)
+        offsets = _character_positions(self.source, self.line_starts, node, value)
         return MathText(value, self.pos(node), offsets)
 
     def _list(self, node: yaml.Node, spec: Field, path: str) -> list[Any] | None:
@@ -260,7 +261,7 @@ def _close_match(value: str, options: list[str] | tuple[str, ...]) -> str:
 
 
 def _character_positions(
-    source: str, node: yaml.ScalarNode, value: str
+    source: str, line_starts: list[int], node: yaml.ScalarNode, value: str
 ) -> tuple[tuple[int, int], ...]:
     """Map each character of a scalar's value to its (line, column) in the source.
 
@@ -268,7 +269,6 @@ def _character_positions(
     non-space character is matched to its next occurrence in the raw text of the node.
     """
     start, end = node.start_mark.index, node.end_mark.index
-    line_starts = _line_starts(source)
     raw = source[start:end]
     out: list[tuple[int, int]] = []
     cursor = 0
