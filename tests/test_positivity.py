@@ -1,0 +1,79 @@
+"""The sign prover behind "holds" for energy conditions: what it proves, and what it must not.
+
+Published inputs (from memory): Schwarzschild's interior solution of constant density, with
+ρ = 3M/(4πR³) and p = ρ (A − B)/(3B − A), A = √(1 − 2Mr²/R³), B = √(1 − 2M/R)
+(K. Schwarzschild 1916; e.g. R. M. Wald, "General Relativity", 1984, §6.2), for which
+0 ≤ p ≤ ρ inside the star when 8M < 3R (Buchdahl's bound); Bardeen's regular black hole
+with ρ = 3Mg²/(4π(r² + g²)^(5/2)) and p_t = 3Mg²(3r² − 2g²)/(8π(r² + g²)^(7/2)). The false
+statements are elementary (common practice): each is negative somewhere in its domain, so a
+prover that "proves" it is unsound.
+"""
+
+from __future__ import annotations
+
+import pytest
+import sympy as sp
+from _known_metrics import spacetime
+
+from generator.positivity import proves_sign
+
+t, r, theta, phi, x = sp.symbols("t r theta phi x", real=True)
+M, R, g = sp.symbols("M R g", positive=True)
+PLACEHOLDER = sp.diag(-1, 1, 1, 1)  # the prover reads only the symbols and the domain
+
+
+def star():
+    return spacetime((t, r, theta, phi), (M, R), PLACEHOLDER,
+                     domain=(sp.Lt(0, r), sp.Lt(r, R), sp.Lt(8 * M, 3 * R)))
+
+
+def interior_fluid() -> tuple[sp.Expr, sp.Expr]:
+    A, B = sp.sqrt(1 - 2 * M * r**2 / R**3), sp.sqrt(1 - 2 * M / R)
+    rho = 3 * M / (4 * sp.pi * R**3)
+    return rho, rho * (A - B) / (3 * B - A)
+
+
+@pytest.mark.parametrize("name", ["rho", "rho + p", "rho - p", "rho + 3p", "p"])
+def test_the_interior_solution_satisfies_every_energy_condition(name: str) -> None:
+    rho, p = interior_fluid()
+    expr = {"rho": rho, "rho + p": rho + p, "rho - p": rho - p, "rho + 3p": rho + 3 * p,
+            "p": p}[name]
+    assert proves_sign(expr, star())
+
+
+def test_the_interior_pressure_is_not_proved_larger_than_the_density() -> None:
+    rho, p = interior_fluid()
+    assert not proves_sign(p - rho, star())
+    assert not proves_sign(-p, star(), strict=True)
+
+
+def test_both_bounds_of_an_interval_are_used() -> None:
+    # 0 < r < R gives R**2 - r**2 > 0; with r < R alone it is false (r = -2R).
+    assert proves_sign(R**2 - r**2, star(), strict=True)
+    one_sided = spacetime((t, r, theta, phi), (M, R), PLACEHOLDER, domain=(sp.Lt(r, R),))
+    assert not proves_sign(R**2 - r**2, one_sided)
+
+
+def test_a_linear_bound_with_a_coefficient_keeps_the_assumed_sign() -> None:
+    # 8M < 3R with M > 0: both 3R - 8M > 0 and M*(3R - 8M) > 0; but not 2R - 8M (R = 3M).
+    assert proves_sign(3 * R - 8 * M, star(), strict=True)
+    assert proves_sign(M * (3 * R - 8 * M), star(), strict=True)
+    assert not proves_sign(2 * R - 8 * M, star())
+
+
+def test_differences_of_square_roots_are_compared_by_their_squares() -> None:
+    unit = spacetime((t, x, theta, phi), (), PLACEHOLDER, domain=(sp.Lt(0, x), sp.Lt(x, 1)))
+    assert proves_sign(sp.sqrt(2 - x) - sp.sqrt(1 - x), unit, strict=True)
+    assert proves_sign(2 * sp.sqrt(1 - x) - sp.sqrt(4 - 4 * x), unit)  # exactly zero
+    assert not proves_sign(sp.sqrt(x) - sp.sqrt(1 - x), unit)  # negative for x < 1/2
+    assert not proves_sign(sp.sqrt(1 - x) - sp.sqrt(2 - x), unit)
+
+
+def test_half_integer_powers_of_one_base_combine() -> None:
+    bardeen = spacetime((t, r, theta, phi), (M, g), PLACEHOLDER, domain=(sp.Lt(0, r),))
+    X = g**2 + r**2
+    rho = 3 * M * g**2 / (4 * sp.pi * X ** sp.Rational(5, 2))
+    p_t = 3 * M * g**2 * (3 * r**2 - 2 * g**2) / (8 * sp.pi * X ** sp.Rational(7, 2))
+    assert proves_sign(rho + p_t, bardeen)
+    assert not proves_sign(rho - p_t, bardeen)  # ρ − p_t < 0 for r > 2g: not dominant...
+    assert not proves_sign(p_t, bardeen)  # ...and p_t < 0 for 3r² < 2g²
