@@ -624,7 +624,7 @@ def _convert_radical(
     k, r = divmod(p, q)
     if base.has(sympy.Float):
         raise NotInField("floating-point radicand")
-    canon = sympy.cancel(base)
+    canon = _cancelled(base)
     f = _convert(field, canon, heads)
     key = sympy.Tuple(canon, q)
     if key not in field.index:
@@ -634,6 +634,13 @@ def _convert_radical(
     z = field.var(field.index[key])
     root = field.div(z, Frac(f.den, field.ctx.constant(1)))
     return field.mul(field.power(f, k), field.power(root, r))
+
+
+@functools.lru_cache(maxsize=4096)
+def _cancelled(base: sympy.Expr) -> sympy.Expr:
+    """``cancel`` of a radicand, remembered: field discovery converts every expression again
+    each time it finds a new generator, and the same radicands recur across a whole check."""
+    return sympy.cancel(base)
 
 
 def _convert_atom(field: RationalField, e: sympy.Basic, heads: dict) -> Frac:

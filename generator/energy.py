@@ -78,10 +78,11 @@ def coupled_blocks(mixed: sympy.Matrix, metric: sympy.Matrix, spacetime: Spaceti
 def lorentzian_block(blocks: list[list[int]], metric: sympy.Matrix, points: Sequence[Point],
                      spacetime: Spacetime) -> int | None:
     """Which block holds the time direction (its metric block has det < 0) at the points."""
+    determinants = [metric.extract(block, block).det() for block in blocks]
     found = set()
     for point in points:
-        for k, block in enumerate(blocks):
-            if sign_at(metric.extract(block, block).det(), point, spacetime) == -1:
+        for k, determinant in enumerate(determinants):
+            if sign_at(determinant, point, spacetime) == -1:
                 found.add(k)
     return found.pop() if len(found) == 1 else None
 
@@ -145,16 +146,20 @@ def two_by_two(block: sympy.Matrix, gblock: sympy.Matrix, spacetime: Spacetime,
             return [A, D], (0 if holds_time else None)
         return Spectrum("II", "exact", "a coupled pair of T^a_b has a double eigenvalue and is "
                         "not diagonalisable (null eigenvector)")
-    sign, method = discriminant_sign(discriminant, spacetime, points)
+    # A perfect square m² is positive wherever m ≠ 0: proving m ≠ 0 is far cheaper than
+    # proving the expanded square positive. {m - y, m + y} is the same pair for either root
+    # ±y, so the exact root also gives eigenvalues free of radicals.
+    root = exact_square_root(discriminant, spacetime)
+    if root is not None:
+        sign, method = square_sign(root, spacetime, points)
+    else:
+        sign, method = discriminant_sign(discriminant, spacetime, points)
     if sign is None:
         return Spectrum("undecided", "failed", "the sign of the eigenvalue discriminant "
                         f"{discriminant} changes or could not be decided")
     if sign < 0:
         return Spectrum("IV", method, "a coupled pair of T^a_b has complex eigenvalues "
                         f"(discriminant {discriminant} < 0)")
-    # {m - y, m + y} is the same pair for either root ±y, so an exact root of a perfect
-    # square (no radical left) is as good as sqrt and far easier to prove things about.
-    root = exact_square_root(discriminant, spacetime)
     if root is None:
         root = sympy.sqrt(discriminant)
     values = [(A + D) / 2 - root, (A + D) / 2 + root]
@@ -172,6 +177,16 @@ def discriminant_sign(discriminant: sympy.Expr, spacetime: Spacetime,
     signs = {sign_at(discriminant, p, spacetime) for p in points}
     signs.discard(None)
     return (signs.pop(), "sampled") if len(signs) == 1 and 0 not in signs else (None, "failed")
+
+
+def square_sign(root: sympy.Expr, spacetime: Spacetime, points: Sequence[Point]
+                ) -> tuple[int | None, str]:
+    """The sign of root², as ``discriminant_sign`` gives it: never negative; positive, proved
+    when root ≠ 0 is, else when root ≠ 0 at every sample point."""
+    if proves_sign(root, spacetime, strict=True) or proves_sign(-root, spacetime, strict=True):
+        return 1, "exact"
+    signs = {sign_at(root, p, spacetime) for p in points} - {None}
+    return (1, "sampled") if signs and 0 not in signs else (None, "failed")
 
 
 def timelike_eigenvalue(values: list[sympy.Expr], A: sympy.Expr, B: sympy.Expr,
@@ -288,14 +303,20 @@ def inequalities(spectrum: Spectrum, dimension: int) -> dict[str, list[tuple[str
 
 
 def judge(requirements: list[tuple[str, sympy.Expr]], spacetime: Spacetime,
-          points: Sequence[Point], name: str) -> EnergyCondition:
+          points: Sequence[Point], name: str, proved: dict[sympy.Expr, bool] | None = None
+          ) -> EnergyCondition:
     """Proved for all requirements → holds; else one negative at a point → violated.
 
     With free functions a negative value at a point only shows that *some* choice of the
     functions violates the condition, so the verdict is then "undecided" (it depends on them).
+    ``proved`` remembers proofs across the four conditions, which share most inequalities
+    (ρ + p_i ≥ 0 is part of every one).
     """
-    unproved = [(label, expr) for label, expr in requirements
-                if not proves_sign(expr, spacetime)]
+    proved = {} if proved is None else proved
+    for _label, expr in requirements:
+        if expr not in proved:
+            proved[expr] = proves_sign(expr, spacetime)
+    unproved = [(label, expr) for label, expr in requirements if not proved[expr]]
     if not unproved:
         return EnergyCondition(name, "holds", "proved symbolically on the whole domain")
     for label, expr in unproved:
@@ -322,10 +343,14 @@ def energy_conditions(spectrum: Spectrum, lower: sympy.Matrix, metric: sympy.Mat
                       ) -> tuple[EnergyCondition, ...]:
     if spectrum.type == "I" and spectrum.energy_density is not None:
         table = inequalities(spectrum, spacetime.dimension)
-        return tuple(judge(table[name], spacetime, points, name) for name in CONDITIONS)
+        proved: dict[sympy.Expr, bool] = {}
+        return tuple(judge(table[name], spacetime, points, name, proved)
+                     for name in CONDITIONS)
     if spectrum.null_dust_weight is not None:
         requirement = [("ρ (null dust)", spectrum.null_dust_weight)]
-        return tuple(judge(requirement, spacetime, points, name) for name in CONDITIONS)
+        proved = {}
+        return tuple(judge(requirement, spacetime, points, name, proved)
+                     for name in CONDITIONS)
     return tuple(observer_search(name, lower, metric, spacetime, points, spectrum)
                  for name in CONDITIONS)
 

@@ -11,12 +11,20 @@ digits with a 1e-20 tolerance), and the decision says so. Strings are never comp
 
 from __future__ import annotations
 
+import mpmath
 import sympy
 from sympy.core.function import AppliedUndef
 
 from .algebra import FieldRequest, Frac, NotInField, RationalField, build_field
 from .model import Decision, Spacetime
-from .sampling import Point, angle_coordinates, sample_points, substitute
+from .sampling import (
+    Point,
+    angle_coordinates,
+    numeric_value,
+    sample_points,
+    substitute,
+    through_sin_cos,
+)
 
 CONFIRM_POINTS = 3
 SAMPLED_POINTS = 8
@@ -47,12 +55,18 @@ def canonical(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr:
     Deterministic: the same expression always gives the same tree. Expressions outside the
     field get SymPy's ``factor(cancel(...))``, which is deterministic as well.
     """
-    expr = _aligned(sympy.sympify(expr), spacetime)
+    return canonical_all([expr], spacetime)[0]
+
+
+def canonical_all(exprs: list[sympy.Expr], spacetime: Spacetime) -> list[sympy.Expr]:
+    """``canonical`` of several expressions through one field (a tensor's components share
+    their generators, and building the field is the costly part)."""
+    aligned = tuple(_aligned(sympy.sympify(e), spacetime) for e in exprs)
     try:
-        field, (value,) = _field_of((expr,), spacetime)
+        field, values = _field_of(aligned, spacetime)
     except (NotInField, ZeroDivisionError):
-        return sympy.factor(sympy.cancel(expr))
-    return field.display(value)
+        return [sympy.factor(sympy.cancel(e)) for e in aligned]
+    return [field.display(v) for v in values]
 
 
 def exact_square_root(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr | None:
@@ -133,9 +147,11 @@ def _first_difference(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime,
                       ) -> tuple[Point | None, int]:
     """The first of ``count`` sample points where the sides differ (None if there is none),
     and how many points were usable (both sides defined) before it."""
+    angles = angle_coordinates(spacetime)
+    left, right = through_sin_cos(left, angles), through_sin_cos(right, angles)
     usable = 0
     for point in _points(spacetime, count):
-        differs = _differs_at(left, right, point, spacetime)
+        differs = _differs_at(left, right, point)
         if differs:
             return point, usable
         usable += differs is not None
@@ -198,14 +214,12 @@ def _points(spacetime: Spacetime, count: int) -> list[Point]:
     return sample_points(spacetime, max(count, SAMPLED_POINTS), SEED)[:count]
 
 
-def _differs_at(
-    left: sympy.Expr, right: sympy.Expr, point: Point, spacetime: Spacetime
-) -> bool | None:
-    """True/False when the two sides differ/agree at the point, None if undefined there."""
-    angles = angle_coordinates(spacetime)
+def _differs_at(left: sympy.Expr, right: sympy.Expr, point: Point) -> bool | None:
+    """True/False when the two sides differ/agree at the point, None if undefined there.
+    The sides are already written through sin and cos of the angles (``through_sin_cos``)."""
     try:
-        a = substitute(left, point, angles)
-        b = substitute(right, point, angles)
+        a = substitute(left, point)
+        b = substitute(right, point)
     except (ZeroDivisionError, ValueError):
         return None
     if any(v.has(sympy.zoo, sympy.nan, sympy.oo, -sympy.oo) for v in (a, b)):
@@ -216,6 +230,15 @@ def _differs_at(
 
 
 def _numerically_differ(a: sympy.Expr, b: sympy.Expr) -> bool | None:
+    """Agreement to the tolerance decides "equal here"; anything else is decided by SymPy's
+    error-controlled evalf. Plain mpmath at twice the digits is tried first: agreement to
+    1e-20 with 60 digits carried cannot come from rounding, and it is far cheaper."""
+    x, y = numeric_value(a, 2 * DIGITS), numeric_value(b, 2 * DIGITS)
+    if x is not None and y is not None:
+        with mpmath.workdps(2 * DIGITS):
+            scale = max(mpmath.mpf(1), abs(x), abs(y))
+            if abs(x - y) <= mpmath.mpf(float(TOLERANCE)) * scale:
+                return False
     try:
         x, y = complex(a.evalf(DIGITS)), complex(b.evalf(DIGITS))
     except (TypeError, ValueError):

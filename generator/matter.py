@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 
 import sympy
 
-from .equality import decide_equal
+from .equality import canonical_all, decide_equal
 from .errors import Diagnostic, MathSyntaxError
 from .exactvalues import coordinate_names, index_label, vanishes
 from .mathparse import parse_math
@@ -393,9 +393,14 @@ def classify_matter(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> M
     if geometry.dimension < 3:
         reasons["matter_kind"] = "Einstein's equations are empty below three dimensions"
     verified = built.source if built is not None and not diagnostics else None
-    return MatterResult(kind, lam, sympy.ImmutableMatrix(stress.applyfunc(sympy.cancel)),
-                        sympy.ImmutableMatrix(mixed.applyfunc(sympy.cancel)),
+    return MatterResult(kind, lam, simplest(stress, spacetime), simplest(mixed, spacetime),
                         tuple(diagnostics), reasons, verified)
+
+
+def simplest(matrix: sympy.Matrix, spacetime: Spacetime) -> sympy.ImmutableMatrix:
+    """Every component in display form, through one field for the whole matrix."""
+    return sympy.ImmutableMatrix(matrix.rows, matrix.cols,
+                                 canonical_all(list(matrix), spacetime))
 
 
 def computed_kind(found: Geometric, declared: str, source_ok: bool) -> str:

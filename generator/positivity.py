@@ -29,11 +29,15 @@ Roots = dict[sympy.Symbol, sympy.Expr]  # hidden root symbol -> its square
 def _bound(relation: sympy.Basic, x: sympy.Symbol) -> tuple[str, sympy.Expr, bool] | None:
     """('lower'|'upper', bound, strict) if ``relation`` bounds ``x`` by an x-free expression:
     any relation linear in x with a rational coefficient (``8*M < 3*Rs`` bounds Rs below by
-    8*M/3, and M above by 3*Rs/8)."""
+    8*M/3, and M above by 3*Rs/8). A relation with a bare symbol on one side belongs to that
+    symbol (``r > 2*v`` bounds r, not v), so it stays available for it."""
     if not isinstance(relation, sympy.core.relational.Relational):
         return None
     op = relation.rel_op
     if op not in ("<", "<=", ">", ">="):
+        return None
+    bare = {side for side in (relation.lhs, relation.rhs) if side.is_Symbol}
+    if bare and x not in bare:
         return None
     difference = relation.lhs - relation.rhs  # difference OP 0
     if not difference.has(x):

@@ -252,11 +252,13 @@ def substitute(expr: sympy.Expr, point: Point, angles: tuple[sympy.Symbol, ...] 
     angle itself (tan, sec, integer multiples), so that the rational sin/cos values apply.
     """
     if angles:
-        expr = _through_sin_cos(expr, angles)
+        expr = through_sin_cos(expr, angles)
     return expr.xreplace(point)
 
 
-def _through_sin_cos(expr: sympy.Expr, angles: tuple[sympy.Symbol, ...]) -> sympy.Expr:
+def through_sin_cos(expr: sympy.Expr, angles: tuple[sympy.Symbol, ...]) -> sympy.Expr:
+    """``expr`` with circular functions of the angles written through sin and cos of the angle
+    (done once for an expression that is evaluated at several points)."""
     replacements = {}
     for f in expr.atoms(*CIRCULAR):
         coeff, unit = f.args[0].as_coeff_Mul()
@@ -347,3 +349,56 @@ def regular_at(
         return False
     determinant = numeric.det()
     return bool(abs(determinant) > sympy.Float("1e-25", 30))
+
+
+# ---------------------------------------------------------------------------- fast numbers
+
+# SymPy heads evaluated by mpmath in ``numeric_value`` (principal branches on both sides).
+_MPMATH_HEADS = {
+    sympy.sin: mpmath.sin, sympy.cos: mpmath.cos, sympy.tan: mpmath.tan,
+    sympy.cot: mpmath.cot, sympy.sec: mpmath.sec, sympy.csc: mpmath.csc,
+    sympy.sinh: mpmath.sinh, sympy.cosh: mpmath.cosh, sympy.tanh: mpmath.tanh,
+    sympy.coth: mpmath.coth, sympy.sech: mpmath.sech, sympy.csch: mpmath.csch,
+    sympy.asin: mpmath.asin, sympy.acos: mpmath.acos, sympy.atan: mpmath.atan,
+    sympy.asinh: mpmath.asinh, sympy.acosh: mpmath.acosh, sympy.atanh: mpmath.atanh,
+    sympy.exp: mpmath.exp, sympy.log: mpmath.log, sympy.Abs: abs,
+    sympy.LambertW: mpmath.lambertw,
+}
+_MPMATH_CONSTANTS = {sympy.pi: mpmath.pi, sympy.E: mpmath.e, sympy.I: mpmath.j}
+
+
+def numeric_value(value: sympy.Expr, digits: int) -> mpmath.mpc | None:
+    """A number (no free symbols left) in plain mpmath arithmetic at ``digits`` digits, or None
+    if it holds something mpmath is not given here.
+
+    Much faster than SymPy's evalf on the large trees that substituting a point into a
+    pulled-back metric gives, but without evalf's error control: callers may trust it to say
+    that two numbers agree to far fewer digits than it carries, and re-check anything else.
+    """
+    with mpmath.workdps(digits):
+        try:
+            return mpmath.mpc(_numeric(value, {}))
+        except (KeyError, TypeError, ValueError, ZeroDivisionError, OverflowError):
+            return None
+
+
+def _numeric(e: sympy.Basic, memo: dict[sympy.Basic, mpmath.mpc]) -> mpmath.mpc:
+    if e in memo:
+        return memo[e]
+    if e.is_Rational:
+        found = mpmath.mpf(int(e.p)) / int(e.q)
+    elif e.is_Float:
+        found = mpmath.mpf(e)
+    elif e in _MPMATH_CONSTANTS:
+        found = +_MPMATH_CONSTANTS[e]
+    elif e.is_Add:
+        found = mpmath.fsum(_numeric(a, memo) for a in e.args)
+    elif e.is_Mul:
+        found = mpmath.fprod(_numeric(a, memo) for a in e.args)
+    elif e.is_Pow:
+        found = mpmath.power(_numeric(e.base, memo), _numeric(e.exp, memo))
+    else:
+        head = _MPMATH_HEADS[type(e)]  # KeyError: not handled here
+        found = head(*(_numeric(a, memo) for a in e.args))
+    memo[e] = found
+    return found

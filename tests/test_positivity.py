@@ -77,3 +77,15 @@ def test_half_integer_powers_of_one_base_combine() -> None:
     assert proves_sign(rho + p_t, bardeen)
     assert not proves_sign(rho - p_t, bardeen)  # ρ − p_t < 0 for r > 2g: not dominant...
     assert not proves_sign(p_t, bardeen)  # ...and p_t < 0 for 3r² < 2g²
+
+
+def test_a_bound_on_a_bare_coordinate_stays_with_that_coordinate() -> None:
+    # Vaidya's exterior r > 2v, v > 0 (P. C. Vaidya 1951, with m(v) = v): r keeps its bound,
+    # so r > 0 and the null-dust density 1/(4 pi r**2) is positive; v keeps 0 < v.
+    v = sp.Symbol("v", real=True)
+    vaidya = spacetime((v, r, theta, phi), (), PLACEHOLDER,
+                       domain=(sp.Gt(v, 0), sp.Gt(r, 2 * v)))
+    assert proves_sign(1 / (4 * sp.pi * r**2), vaidya, strict=True)
+    assert proves_sign(r - 2 * v, vaidya, strict=True)
+    assert proves_sign(r - v, vaidya, strict=True)
+    assert not proves_sign(v - r, vaidya)

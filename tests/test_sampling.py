@@ -122,3 +122,29 @@ def test_repeated_requests_get_the_same_points_as_fresh_copies() -> None:
     again = sample_points(st, 3, seed=9)
     assert again[0][r] != -1
     assert again == sample_points(st, 3, seed=9)
+
+
+def test_fast_numbers_agree_with_sympy_evalf() -> None:
+    # Reference: SymPy's own error-controlled evalf (a general-purpose library).
+    from generator.sampling import numeric_value
+
+    values = [
+        sp.cos(sp.Rational(13, 7)) ** 2 * sp.cosh(sp.Rational(5, 3)) - sp.sqrt(2) / 3,
+        sp.LambertW(sp.Rational(3, 2)) + sp.atan(sp.Rational(1, 9)) * sp.pi,
+        sp.sqrt(-3 + sp.exp(sp.Rational(1, 4))),  # a negative radicand: an imaginary number
+        sp.Abs(sp.log(sp.Rational(1, 5))) * sp.tanh(2) ** -3,
+    ]
+    for value in values:
+        fast = numeric_value(value, 60)
+        reference = complex(value.evalf(60))
+        assert fast is not None
+        assert abs(complex(fast) - reference) <= 1e-14 * max(1.0, abs(reference)), value
+    assert numeric_value(sp.gamma(sp.Rational(1, 3)), 60) is None  # not handled: say so
+
+
+def test_numeric_comparison_rejects_a_small_real_difference() -> None:
+    from generator.equality import _numerically_differ
+
+    one = sp.cos(sp.Rational(1, 3)) ** 2 + sp.sin(sp.Rational(1, 3)) ** 2
+    assert _numerically_differ(one, sp.Integer(1)) is False
+    assert _numerically_differ(one, 1 + sp.Rational(1, 10**15)) is True
