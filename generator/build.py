@@ -9,6 +9,7 @@ import os
 import shutil
 import sys
 import tempfile
+from collections.abc import Callable
 from dataclasses import dataclass
 from importlib import metadata
 from pathlib import Path
@@ -29,16 +30,20 @@ class BuildResult:
 
 
 def build_site(catalog: Path, out: Path, options: RunOptions,
-               publish_verified_only: bool = False) -> BuildResult:
+               publish_verified_only: bool = False,
+               on_done: Callable[[EntryReport], None] | None = None,
+               on_running: Callable[[list[str]], None] | None = None) -> BuildResult:
     """Check every entry, then render the site into ``out`` atomically.
 
     Any failed entry fails the build and leaves the previous site untouched, unless
     ``publish_verified_only`` is set: then the site is written with the verified entries only.
+    ``on_done`` and ``on_running`` follow the checks (see ``pipeline.check_files``).
     """
     if not (catalog / "tags.yaml").is_file():
         raise UsageError(f"{catalog} is not a catalog folder (no tags.yaml)")
     base = Path.cwd()
-    reports = check_files(entry_files([catalog]), catalog.resolve(), base, options)
+    reports = check_files(entry_files([catalog]), catalog.resolve(), base, options,
+                          on_done, on_running)
     refused = tuple(r.file for r in reports if not r.ok)
     report_problems(reports)
     if refused and not publish_verified_only:

@@ -104,8 +104,11 @@ def _dispatch(args: argparse.Namespace) -> int:
         return run_check(args)
     if args.command == "build":
         from .build import build_site
+        from .catalog import entry_files
 
-        result = build_site(args.catalog, args.out, _options(args), args.publish_verified_only)
+        on_done, on_running = _progress_printer(args, len(entry_files([args.catalog])))
+        result = build_site(args.catalog, args.out, _options(args), args.publish_verified_only,
+                            on_done, on_running)
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "serve":
         from .build import serve_site
@@ -134,7 +137,6 @@ def _options(args: argparse.Namespace):
         jobs=args.jobs,
         seconds_per_entry=args.seconds,
         cache_dir=None if args.no_cache else args.cache_dir,
-        progress=args.progress,
         scheduler=args.scheduler,
     )
 
@@ -154,7 +156,7 @@ def run_check(args: argparse.Namespace) -> int:
         changed = {p.resolve() for p in changed_entries(base, args.changed_since,
                                                        root or Path("catalog"))}
         files = [f for f in files if f.resolve() in changed]
-    reports = check_files(files, root, base, _options(args), _progress_printer(args, len(files)))
+    reports = check_files(files, root, base, _options(args), *_progress_printer(args, len(files)))
     fmt = "json" if args.json else args.format
     _print_reports(reports, fmt, args.show_computed)
     if any(not r.ok for r in reports):
@@ -164,17 +166,21 @@ def run_check(args: argparse.Namespace) -> int:
 
 
 def _progress_printer(args: argparse.Namespace, total: int):
+    """(on_done, on_running) for ``check_files``: a tqdm bar counting entries (cached ones
+    too) whose label names the entries being checked right now."""
     if not args.progress:
-        return None
+        return None, None
     from tqdm import tqdm
 
     bar = tqdm(total=total, unit="entry", file=sys.stderr)
 
     def advance(report) -> None:
-        bar.set_postfix_str(report.entry.id if report.entry else report.file)
         bar.update(1)
 
-    return advance
+    def running(ids: list[str]) -> None:
+        bar.set_postfix_str("checking " + ", ".join(ids) if ids else "")
+
+    return advance, running
 
 
 def _print_reports(reports, fmt: str, show_computed: bool) -> None:

@@ -41,7 +41,6 @@ class RunOptions:
     jobs: int = 0  # 0 = all cores
     seconds_per_entry: float = 300.0
     cache_dir: Path | None = None
-    progress: bool = False
     scheduler: str | None = None  # address of a Dask distributed scheduler
 
 
@@ -94,8 +93,12 @@ def check_files(
     base: Path,
     options: RunOptions,
     on_done: Callable[[EntryReport], None] | None = None,
+    on_running: Callable[[list[str]], None] | None = None,
 ) -> list[EntryReport]:
-    """Check the selected entry files; the rest of the catalog is loaded for cross-references."""
+    """Check the selected entry files; the rest of the catalog is loaded for cross-references.
+
+    ``on_done`` sees every report as it comes (cached ones too); ``on_running`` the ids of the
+    entries being checked at that moment, whenever that set changes (local runs)."""
     catalog_files = entry_files([root]) if root is not None else []
     every = {p.resolve() for p in catalog_files} | {p.resolve() for p in selected}
     # Workers reload what they check; here only ids and links matter, so no metric is built.
@@ -105,7 +108,7 @@ def check_files(
     selected_loads = [by_file[display_path(p, base)] for p in selected]
     cross = cross_entry_diagnostics(all_loads, set(by_id))
     tasks = [_task(load, by_id, root, base, options) for load in selected_loads]
-    reports = _run(tasks, selected_loads, options, on_done)
+    reports = _run(tasks, options, Progress(on_done, on_running))
     twins: dict[str, list[Diagnostic]] = {}
     if len(reports) <= TWIN_SEARCH_MAX_ENTRIES:
         others = _twin_candidates(reports, all_loads, set(selected_loads), by_id, root, base,
@@ -226,8 +229,23 @@ def _with_extra(report: EntryReport, extra: list[Diagnostic]) -> EntryReport:
     return replace(report, diagnostics=report.diagnostics + tuple(extra))
 
 
-def _run(tasks: list[Task], loads: list[LoadResult], options: RunOptions,
-         on_done: Callable[[EntryReport], None] | None) -> list[EntryReport]:
+@dataclass(frozen=True)
+class Progress:
+    """The callbacks of a run, both optional: each finished report, and what runs now."""
+
+    done: Callable[[EntryReport], None] | None = None
+    running: Callable[[list[str]], None] | None = None
+
+    def finished(self, report: EntryReport) -> None:
+        if self.done is not None:
+            self.done(report)
+
+    def now_running(self, tasks: Sequence[Task]) -> None:
+        if self.running is not None:
+            self.running([Path(task.display).stem for task in tasks])
+
+
+def _run(tasks: list[Task], options: RunOptions, progress: Progress) -> list[EntryReport]:
     cache = ResultCache(options.cache_dir) if options.cache_dir else None
     cards = card_shelf(options.cache_dir) if options.cache_dir else None
     keys = [cache_key(task) for task in tasks]
@@ -237,11 +255,10 @@ def _run(tasks: list[Task], loads: list[LoadResult], options: RunOptions,
         hit = cache.get(key) if cache else None
         if hit is not None:
             results[i] = hit
-            if on_done:
-                on_done(hit)
+            progress.finished(hit)
         else:
             pending.append(i)
-    for i, report in _compute(tasks, pending, options, on_done):
+    for i, report in _compute(tasks, pending, options, progress):
         results[i] = report
         if cache and cards and _cacheable(report):
             cache.put(keys[i], report)
@@ -257,35 +274,36 @@ def _cacheable(report: EntryReport) -> bool:
     return not any(d.code in transient for d in report.diagnostics)
 
 
-def _compute(tasks: list[Task], pending: list[int], options: RunOptions,
-             on_done: Callable[[EntryReport], None] | None):
+def _compute(tasks: list[Task], pending: list[int], options: RunOptions, progress: Progress):
     if options.scheduler:
         from .distributed import run_on_scheduler
 
-        yield from run_on_scheduler(options.scheduler, tasks, pending, on_done)
+        yield from run_on_scheduler(options.scheduler, tasks, pending, progress.done)
         return
     jobs = options.jobs or os.cpu_count() or 1
     if jobs == 1 or len(pending) <= 1:
         for i in pending:
+            progress.now_running([tasks[i]])
             report = run_task(tasks[i])
-            if on_done:
-                on_done(report)
+            progress.finished(report)
             yield i, report
         return
-    yield from _compute_in_processes(tasks, pending, jobs, on_done)
+    yield from _compute_in_processes(tasks, pending, jobs, progress)
 
 
 def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
-                          on_done: Callable[[EntryReport], None] | None):
+                          progress: Progress):
     """Run tasks on a process pool; if a worker is killed (e.g. at the CPU-time backstop) the
     pool breaks, and the unfinished tasks are re-run one per fresh process so that only the
-    entry that kills its worker fails."""
+    entry that kills its worker fails. The pool takes tasks in submission order, so the
+    first ``jobs`` unfinished ones are those being checked."""
     unfinished = list(pending)
     # No max_tasks_per_child: on Python 3.11 it can deadlock the pool when a worker retires.
     with ProcessPoolExecutor(max_workers=jobs, mp_context=_spawn()) as pool:
         futures: dict[Future, int] = {pool.submit(run_task, tasks[i]): i for i in pending}
         remaining = set(futures)
         while remaining:
+            progress.now_running([tasks[i] for i in unfinished[:jobs]])
             done, remaining = wait(remaining, return_when=FIRST_COMPLETED)
             broken = [f for f in done if isinstance(f.exception(), BrokenProcessPool)]
             if broken:
@@ -293,13 +311,12 @@ def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
             for future in sorted(done, key=lambda f: futures[f]):
                 report = _result(future, tasks[futures[future]])
                 unfinished.remove(futures[future])
-                if on_done:
-                    on_done(report)
+                progress.finished(report)
                 yield futures[future], report
     for i in unfinished:
+        progress.now_running([tasks[i]])
         report = _run_alone(tasks[i])
-        if on_done:
-            on_done(report)
+        progress.finished(report)
         yield i, report
 
 

@@ -628,16 +628,8 @@ def interview(draft: Draft, catalog: Path, ask: Ask, out: TextIO) -> Draft:
             ),
         )
     if not d.family:
-        known = families(catalog)
-        d = replace(
-            d,
-            family=_ask_until(
-                ask,
-                out,
-                f"Family ({', '.join(known)}): ",
-                lambda v: None if v in known else "not a family",
-            ),
-        )
+        d = replace(d, family=_ask_choice(ask, out, "Family", families(catalog), ", ",
+                                          "not a family"))
     for name, question in (
         ("title", "Title: "),
         ("chart", "Chart: "),
@@ -658,17 +650,17 @@ def interview(draft: Draft, catalog: Path, ask: Ask, out: TextIO) -> Draft:
             ),
         )
     if not d.matter_kind:
-        d = replace(
-            d,
-            matter_kind=_ask_until(
-                ask,
-                out,
-                f"Matter ({' | '.join(MATTER_KINDS)}; empty: decide later): ",
-                lambda v: None if v in MATTER_KINDS else "not a matter kind",
-                allow_empty=True,
-            ),
-        )
+        d = replace(d, matter_kind=_ask_choice(ask, out, "Matter", MATTER_KINDS, " | ",
+                                               "not a matter kind", later=True))
     return d
+
+
+def _ask_choice(ask: Ask, out: TextIO, label: str, options: Sequence[str], separator: str,
+                complaint: str, later: bool = False) -> str:
+    """One of ``options`` (or nothing, when ``later`` allows deciding later)."""
+    question = f"{label} ({separator.join(options)}{'; empty: decide later' if later else ''}): "
+    return _ask_until(ask, out, question, lambda v: None if v in options else complaint,
+                      allow_empty=later)
 
 
 def _ask(ask: Ask, question: str) -> str:

@@ -43,6 +43,24 @@ def test_verified_entry_exits_zero(catalog: Path, capsys: pytest.CaptureFixture[
     assert "1 entries checked: 1 verified, 0 failed" in err
 
 
+def test_progress_bar_names_the_entry_being_checked(catalog: Path,
+                                                   capsys: pytest.CaptureFixture[str]) -> None:
+    status, _, err = run(["check", "catalog/riemannian/lighthouse-dome.yaml", "--progress"],
+                         capsys)
+    assert status == 0, err
+    assert "checking lighthouse-dome" in err
+    assert "1/1" in err
+
+
+@pytest.mark.slow
+def test_build_progress_bar_follows_the_checks(catalog: Path,
+                                               capsys: pytest.CaptureFixture[str]) -> None:
+    status, _, err = run(["build", "--catalog", "catalog", "--out", "site", "--progress",
+                          "--no-cache", "--jobs", "1"], capsys)
+    assert status == 0, err
+    assert "checking lighthouse-dome" in err
+
+
 def test_json_contract(catalog: Path, capsys: pytest.CaptureFixture[str]) -> None:
     status, out, _ = run(["check", "catalog/", "--json"], capsys)
     document = json.loads(out)

@@ -29,13 +29,15 @@ from generator.pipeline import RunOptions, check_files
 class Run:
     reports: list[EntryReport]
     progress: list[str]  # files in the order the progress callback saw them
+    running: list[list[str]]  # what the run said it was checking, each time that changed
 
 
 def checked(root: Path, options: RunOptions) -> Run:
     seen: list[str] = []
+    running: list[list[str]] = []
     reports = check_files(catalog_files(root), root, root.parent, options,
-                          lambda report: seen.append(report.file))
-    return Run(reports, seen)
+                          lambda report: seen.append(report.file), running.append)
+    return Run(reports, seen, running)
 
 
 @pytest.fixture(scope="module")
@@ -65,6 +67,14 @@ def test_the_progress_callback_sees_every_entry_once(serial_and_parallel):
 
 
 @pytest.mark.slow
+def test_the_running_entries_are_named_while_they_run(serial_and_parallel):
+    serial, parallel = serial_and_parallel
+    ids = {Path(r.file).stem for r in serial.reports}
+    assert [names for names in serial.running] == [[Path(r.file).stem] for r in serial.reports]
+    assert all(1 <= len(names) <= 2 for names in parallel.running)  # two worker processes
+    assert set().union(*parallel.running) == ids
+
+
 def test_failing_entries_do_not_stop_the_others(serial_and_parallel):
     for run in serial_and_parallel:
         failed = {r.file for r in run.reports if not r.ok}
