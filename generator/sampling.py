@@ -336,7 +336,30 @@ def _numeric_truth(relation: sympy.core.relational.Relational, point: Point) -> 
 def regular_at(
     spacetime: Spacetime, point: Point, angles: tuple[sympy.Symbol, ...] | None = None
 ) -> bool:
-    """The metric is finite, real and non-degenerate at the point."""
+    """The metric is finite, real and non-degenerate at the point.
+
+    Judged on 30-digit values computed straight from the point (``numeric_at``): a
+    determinant within 1e-25 of zero counts as degenerate, which at worst costs a sample.
+    """
+    n = spacetime.dimension
+    with mpmath.workdps(30):
+        try:
+            memo = numeric_memo(point)
+            values = [mpmath.mpc(_numeric(e, memo)) for e in spacetime.metric]
+        except ZeroDivisionError:
+            return False
+        except _NOT_NUMERIC:  # a function mpmath is not given here: SymPy substitutes
+            return _regular_by_substitution(spacetime, point, angles)
+        tiny = mpmath.mpf(10) ** -20
+        if any(not mpmath.isfinite(v) or abs(mpmath.im(v)) > tiny * max(1, abs(v))
+               for v in values):
+            return False
+        rows = [[mpmath.re(values[n * i + j]) for j in range(n)] for i in range(n)]
+        return bool(abs(mpmath.det(mpmath.matrix(rows))) > mpmath.mpf(10) ** -25)
+
+
+def _regular_by_substitution(spacetime: Spacetime, point: Point,
+                             angles: tuple[sympy.Symbol, ...] | None) -> bool:
     angles = angle_coordinates(spacetime) if angles is None else angles
     try:
         values = spacetime.metric.applyfunc(lambda e: substitute(e, point, angles))
@@ -380,6 +403,17 @@ def numeric_value(value: sympy.Expr, digits: int) -> mpmath.mpc | None:
             return mpmath.mpc(_numeric(value, {}))
         except (KeyError, TypeError, ValueError, ZeroDivisionError, OverflowError):
             return None
+
+
+_NOT_NUMERIC = (KeyError, TypeError, ValueError)
+
+
+def numeric_memo(point: Point) -> dict[sympy.Basic, mpmath.mpc]:
+    """The point's values as mpmath numbers at the current precision, to seed ``_numeric``:
+    expressions are then evaluated at the point without building their exact value first
+    (``_numeric`` raises ZeroDivisionError where an expression is undefined, and one of
+    _NOT_NUMERIC for a head mpmath is not given here)."""
+    return {key: _numeric(sympy.sympify(value), {}) for key, value in point.items()}
 
 
 def _numeric(e: sympy.Basic, memo: dict[sympy.Basic, mpmath.mpc]) -> mpmath.mpc:
