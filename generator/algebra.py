@@ -196,9 +196,21 @@ class RationalField:
         return Frac(x.num * flint.fmpq(num, den), x.den)
 
     def mul(self, x: Frac, y: Frac) -> Frac:
+        """Product of two normal forms by cross-cancellation (Knuth): two gcds of the factors
+        instead of one of the products, and the result is already in lowest terms unless the
+        numerator now needs reducing by a relation (then ``normal`` does the rest)."""
         if x.is_zero() or y.is_zero():
             return self.zero()
-        return self.normal(x.num * y.num, x.den * y.den)
+        g1, g2 = x.num.gcd(y.den), y.num.gcd(x.den)
+        num = (x.num if g1.is_one() else x.num / g1) * (y.num if g2.is_one() else y.num / g2)
+        den = (x.den if g2.is_one() else x.den / g2) * (y.den if g1.is_one() else y.den / g1)
+        degrees = num.degrees()
+        if any(degrees[var] >= degree for var, degree, _rel in self.relations):
+            return self.normal(num, den)
+        lc = den.leading_coefficient()
+        if lc != 1:
+            num, den = num / lc, den / lc
+        return Frac(num, den)
 
     def inv(self, x: Frac) -> Frac:
         if x.is_zero():
