@@ -98,7 +98,9 @@ def check_files(
     """Check the selected entry files; the rest of the catalog is loaded for cross-references.
 
     ``on_done`` sees every report as it comes (cached ones too); ``on_running`` the ids of the
-    entries being checked at that moment, whenever that set changes (local runs)."""
+    entries being checked, each time a check ends (local runs; the pool takes tasks in order,
+    so these are the first unfinished ones — an entry that starts and ends between two looks
+    may go unnamed)."""
     catalog_files = entry_files([root]) if root is not None else []
     every = {p.resolve() for p in catalog_files} | {p.resolve() for p in selected}
     # Workers reload what they check; here only ids and links matter, so no metric is built.

@@ -218,7 +218,9 @@ def invariants_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:
     series, used = [], []
     for key, label in INVARIANT_LABELS:
         expr = getattr(g, key)
-        if expr is None or sympy.sympify(expr).is_constant():
+        # Plotted against the radial coordinate only if it depends on it (a cheap test:
+        # SymPy's is_constant() would run simplify on the whole invariant).
+        if expr is None or setting.radial not in sympy.sympify(expr).free_symbols:
             continue
         values = sample(expr, setting, st)
         if values is not None and numpy.isfinite(values).sum() >= 2:

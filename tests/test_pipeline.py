@@ -72,7 +72,10 @@ def test_the_running_entries_are_named_while_they_run(serial_and_parallel):
     ids = {Path(r.file).stem for r in serial.reports}
     assert [names for names in serial.running] == [[Path(r.file).stem] for r in serial.reports]
     assert all(1 <= len(names) <= 2 for names in parallel.running)  # two worker processes
-    assert set().union(*parallel.running) == ids
+    # The pool starts tasks in order: the first two are named first. A quick entry can start
+    # and finish between two looks, so later names are a subset of the entries, not all.
+    assert parallel.running[0] == [Path(r.file).stem for r in parallel.reports[:2]]
+    assert set().union(*parallel.running) <= ids
 
 
 def test_failing_entries_do_not_stop_the_others(serial_and_parallel):
