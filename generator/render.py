@@ -116,7 +116,8 @@ def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path
     for report in published:
         write_entry_files(report, views[report.entry.id], meta, out_dir)  # type: ignore[union-attr]
     write_text(out_dir / "assets" / "search-index.js", search_index_script(cards))
-    write_text(out_dir / "catalog.json", catalog_json(published, meta))
+    entries = [views[r.entry.id].data for r in published if r.entry is not None]
+    write_text(out_dir / "catalog.json", catalog_json(entries, meta))
     copy_static(out_dir)
     if SCHEMA_FILE.is_file():
         (out_dir / "schema").mkdir(parents=True, exist_ok=True)
@@ -342,6 +343,7 @@ class EntryView:
     plots: tuple[plots.Plot, ...]
     latex_document: str
     sympy_script: str
+    data: dict[str, Any]  # the JSON download, also the entry's part of catalog.json
     json_document: str
 
 
@@ -353,14 +355,15 @@ def entry_view(
     figures = plots.entry_plots(report)
     card = entry_card(report, meta)
     page = entry_page_data(report, meta, card, figures, published_ids)
+    data = entry_json(report, meta)
     return EntryView(
         card=card,
         page=page,
         plots=figures,
         latex_document=latex_document(report, meta),
         sympy_script=sympy_script(report, meta),
-        json_document=json.dumps(entry_json(report, meta), indent=2, sort_keys=True,
-                                 ensure_ascii=False) + "\n",
+        data=data,
+        json_document=json.dumps(data, indent=2, sort_keys=True, ensure_ascii=False) + "\n",
     )
 
 
@@ -881,7 +884,8 @@ def computed_json(report: EntryReport) -> dict[str, Any]:
     return export.computed_json(report.spacetime, report.geometry, report.classification)
 
 
-def catalog_json(published: Sequence[EntryReport], meta: CatalogMeta) -> str:
+def catalog_json(entries: Sequence[dict[str, Any]], meta: CatalogMeta) -> str:
+    """The whole catalog in one file: the entries' JSON downloads (``entry_json``) together."""
     data = {
         "format": "metric-almanac-catalog-1",
         "catalog_version": meta.version,
@@ -889,7 +893,7 @@ def catalog_json(published: Sequence[EntryReport], meta: CatalogMeta) -> str:
         "sympy_version": meta.sympy_version,
         "families": [{"name": f.name, "title": f.title, "about": f.about} for f in meta.families],
         "tags": [{"name": t.name, "meaning": t.meaning} for t in meta.tags],
-        "entries": [entry_json(r, meta) for r in published],
+        "entries": list(entries),
     }
     return json.dumps(data, indent=1, sort_keys=True, ensure_ascii=False) + "\n"
 
