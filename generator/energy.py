@@ -351,7 +351,9 @@ def energy_conditions(spectrum: Spectrum, lower: sympy.Matrix, metric: sympy.Mat
         proved = {}
         return tuple(judge(requirement, spacetime, points, name, proved)
                      for name in CONDITIONS)
-    return tuple(observer_search(name, lower, metric, spacetime, points, spectrum)
+    iv = interval_context()
+    enclosed = enclosed_points(iv, lower, metric, spacetime, points)
+    return tuple(observer_search(iv, name, lower, spacetime, enclosed, len(points), spectrum)
                  for name in CONDITIONS)
 
 
@@ -435,18 +437,32 @@ def orthogonal_frame(iv: IntervalContext, metric: IntervalMatrix
     return frame, norms
 
 
-def observer_search(name: str, lower: sympy.Matrix, metric: sympy.Matrix,
-                    spacetime: Spacetime, points: Sequence[Point], spectrum: Spectrum
-                    ) -> EnergyCondition:
-    """Look for an explicit observer (or null vector) that violates the condition."""
-    iv = interval_context()
+Enclosed = tuple[Point, IntervalMatrix, IntervalMatrix]  # a point with T_ab and g_ab there
+
+
+def enclosed_points(iv: IntervalContext, lower: sympy.Matrix, metric: sympy.Matrix,
+                    spacetime: Spacetime, points: Sequence[Point]) -> list[Enclosed]:
+    """T_ab and g_ab enclosed in intervals at each sample point where both are numbers; done
+    once for the four conditions, which all search the same points."""
+    found = []
     for point in points:
         T = [value_at(v, point, spacetime) for v in lower]
         g = [value_at(v, point, spacetime) for v in metric]
         if any(v is None for v in T + g):
             continue
         Ti, gi = interval_matrix(iv, T, lower.rows), interval_matrix(iv, g, metric.rows)
-        found = violation_at(iv, name, Ti, gi) if Ti is not None and gi is not None else ""
+        if Ti is not None and gi is not None:
+            found.append((point, Ti, gi))
+    return found
+
+
+def observer_search(iv: IntervalContext, name: str, lower: sympy.Matrix, spacetime: Spacetime,
+                    enclosed: Sequence[Enclosed], tried: int, spectrum: Spectrum
+                    ) -> EnergyCondition:
+    """Look for an explicit observer (or null vector) that violates the condition at the
+    ``tried`` sample points (``enclosed``: those where T_ab and g_ab are numbers)."""
+    for point, Ti, gi in enclosed:
+        found = violation_at(iv, name, Ti, gi)
         if found and has_free_functions(lower, spacetime):
             return EnergyCondition(name, "undecided", f"depends on the free functions: "
                                    f"{found} for some values of them")
@@ -454,7 +470,7 @@ def observer_search(name: str, lower: sympy.Matrix, metric: sympy.Matrix,
             return EnergyCondition(name, "violated", f"{found} at {point_text(point)}",
                                    describe_point(point))
     return EnergyCondition(name, "undecided", f"Hawking–Ellis type {spectrum.type}; no "
-                           f"violating observer found at {len(points)} exact sample points")
+                           f"violating observer found at {tried} exact sample points")
 
 
 def test_vectors(iv: IntervalContext, gm: IntervalMatrix

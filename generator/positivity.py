@@ -139,10 +139,6 @@ def _function_substitution(spacetime: Spacetime) -> dict[sympy.Basic, sympy.Expr
     return table
 
 
-def apply_substitution(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr:
-    return substitute_domain(expr, spacetime)[0]
-
-
 def substitute_domain(expr: sympy.Expr, spacetime: Spacetime) -> tuple[sympy.Expr, Roots]:
     """``expr`` over the parametrised domain, with known-positive roots hidden (and what each
     hidden root squares to)."""
