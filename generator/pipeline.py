@@ -17,7 +17,14 @@ from dataclasses import dataclass, replace
 from pathlib import Path
 
 from .cache import ResultCache, cache_key
-from .catalog import cross_entry_diagnostics, display_path, entry_files, load_all
+from .catalog import (
+    Outline,
+    cross_entry_diagnostics,
+    display_path,
+    entry_files,
+    load_all,
+    outline_all,
+)
 from .errors import BudgetExceeded, Diagnostic
 from .geometry import Limits
 from .limits import budget_failure_report, run_limited
@@ -103,18 +110,17 @@ def check_files(
     may go unnamed)."""
     catalog_files = entry_files([root]) if root is not None else []
     every = {p.resolve() for p in catalog_files} | {p.resolve() for p in selected}
-    # Workers reload what they check; here only ids and links matter, so no metric is built.
-    all_loads = load_all(sorted(every), root, base, with_math=False)
-    by_file = {load.file: load for load in all_loads}
-    by_id = {load.entry.id: load for load in all_loads if load.entry is not None}
-    selected_loads = [by_file[display_path(p, base)] for p in selected]
-    cross = cross_entry_diagnostics(all_loads, set(by_id))
-    tasks = [_task(load, by_id, root, base, options) for load in selected_loads]
+    # Workers load what they check; here only ids and links matter.
+    outlines = outline_all(sorted(every), root, base)
+    by_file = {outline.file: outline for outline in outlines}
+    by_id = {outline.id: outline for outline in outlines if outline.id is not None}
+    chosen = [by_file[display_path(p, base)] for p in selected]
+    cross = cross_entry_diagnostics(outlines, set(by_id))
+    tasks = [_task(outline, by_id, root, base, options) for outline in chosen]
     reports = _run(tasks, options, Progress(on_done, on_running))
     twins: dict[str, list[Diagnostic]] = {}
     if len(reports) <= TWIN_SEARCH_MAX_ENTRIES:
-        others = _twin_candidates(reports, all_loads, set(selected_loads), by_id, root, base,
-                                  options)
+        others = _twin_candidates(reports, outlines, set(chosen), by_id, root, base, options)
         twins = twin_warnings(reports, [*reports, *others.reports], others.ranks,
                               others.keep_ranks)
     return [_with_extra(report, cross.get(report.file, []) + twins.get(report.file, []))
@@ -140,9 +146,9 @@ class _Candidates:
                 self.card_shelf.put(key, replace(card, rank=rank))
 
 
-def _twin_candidates(new: list[EntryReport], all_loads: list[LoadResult],
-                     selected: set[LoadResult], by_id: dict[str, LoadResult], root: Path | None,
-                     base: Path, options: RunOptions) -> _Candidates:
+def _twin_candidates(new: list[EntryReport], outlines: list[Outline], selected: set[Outline],
+                     by_id: dict[str, Outline], root: Path | None, base: Path,
+                     options: RunOptions) -> _Candidates:
     """Never computed here (a one-entry check stays quick, and CI keeps the cache of the last
     full build): only entries already in the cache take part, and only those whose card shows
     they could be a twin have their whole report loaded."""
@@ -152,10 +158,10 @@ def _twin_candidates(new: list[EntryReport], all_loads: list[LoadResult],
     cache = ResultCache(options.cache_dir)
     found.card_shelf = cards = card_shelf(options.cache_dir)
     new_cards = [card for card in (twin_card(r) for r in new) if card is not None]
-    for load in all_loads:
-        if load in selected or not new_cards:
+    for outline in outlines:
+        if outline in selected or not new_cards:
             continue
-        key = cache_key(_task(load, by_id, root, base, options))
+        key = cache_key(_task(outline, by_id, root, base, options))
         card = _card(cache, cards, key)
         if card is None or not any(worth_comparing(mine, card) for mine in new_cards):
             continue
@@ -212,17 +218,16 @@ def twin_warnings(new: list[EntryReport], catalog: list[EntryReport],
             if r.entry is not None and r.entry.id in search.found}
 
 
-def _task(load: LoadResult, by_id: dict[str, LoadResult], root: Path | None, base: Path,
+def _task(outline: Outline, by_id: dict[str, Outline], root: Path | None, base: Path,
           options: RunOptions) -> Task:
-    related = []
-    if load.entry is not None:
-        for item in load.entry.related:
-            other = by_id.get(item.entry)
-            if other is not None:
-                related.append(base / other.file if not Path(other.file).is_absolute()
-                               else Path(other.file))
-    return Task(base / load.file if not Path(load.file).is_absolute() else Path(load.file),
-                load.file, root, base, tuple(related), options.seconds_per_entry)
+    related = [_on_disk(by_id[target].file, base) for target, _ in outline.links
+               if target in by_id]
+    return Task(_on_disk(outline.file, base), outline.file, root, base, tuple(related),
+                options.seconds_per_entry)
+
+
+def _on_disk(file: str, base: Path) -> Path:
+    return Path(file) if Path(file).is_absolute() else base / file
 
 
 def _with_extra(report: EntryReport, extra: list[Diagnostic]) -> EntryReport:

@@ -11,7 +11,13 @@ from pathlib import Path
 
 import pytest
 
-from generator.catalog import cross_entry_diagnostics, vocabulary
+from generator.catalog import (
+    cross_entry_diagnostics,
+    outline_all,
+    outline_of,
+    peek_outline,
+    vocabulary,
+)
 from generator.loader import LoadResult, isbn_checksum_ok, load_entry
 
 DEMO = Path(__file__).parent / "roots" / "demo-catalog" / "catalog"
@@ -76,9 +82,12 @@ def test_duplicate_ids_across_the_catalog(catalog: Path) -> None:
     twin = catalog / "stars" / "lighthouse-dome.yaml"
     twin.parent.mkdir()
     shutil.copy(DEMO_ENTRY, twin)
-    loads = [load(DEMO_ENTRY), load(twin)]
-    problems = cross_entry_diagnostics(loads, {"lighthouse-dome"})
-    assert [d.code for d in problems[twin.name]] == ["catalog.duplicate-id"]
+    loads = [load_entry(path, str(path), vocabulary(catalog)) for path in (DEMO_ENTRY, twin)]
+    problems = cross_entry_diagnostics([outline_of(x) for x in loads], {"lighthouse-dome"})
+    # Both files are told, each naming the other, so a one-entry check of either hears it.
+    for mine, other in ((loads[0], loads[1]), (loads[1], loads[0])):
+        assert [d.code for d in problems[mine.file]] == ["catalog.duplicate-id"]
+        assert other.file in problems[mine.file][0].message
 
 
 @pytest.mark.parametrize(
@@ -224,3 +233,35 @@ def test_unreadable_and_binary_files(tmp_path: Path) -> None:
     binary = tmp_path / "binary.yaml"
     binary.write_bytes(b"id: x\n\xff\xfe")
     assert [d.code for d in load_entry(binary).diagnostics] == ["file.encoding"]
+
+
+SHIPPED = Path(__file__).resolve().parent.parent / "catalog"
+
+
+def test_the_quick_outline_of_every_shipped_entry_equals_the_loaders() -> None:
+    """A one-entry check reads the other entries' ids and links from libyaml's node tree only;
+    positions included, that must be exactly what the validating loader reads."""
+    words = vocabulary(SHIPPED)
+    files = sorted(p for p in SHIPPED.rglob("*.yaml") if p.parent != SHIPPED)
+    assert len(files) > 50
+    for path in files:
+        quick = peek_outline(path, path.name)
+        assert quick == outline_of(load_entry(path, path.name, words, with_math=False))
+    assert any(peek_outline(p, p.name).links for p in files)  # links were compared too
+
+
+@pytest.mark.parametrize("text", [
+    "- a list\n",                                     # not a mapping
+    "id: 12\n",                                       # id not text
+    "id: [a, b]\n",
+    "id: x\nrelated: x\n",                            # related not a list
+    "id: x\nrelated:\n  - y\n",                       # a link that is not a mapping
+    "id: x\nrelated:\n  - map: {}\n",                 # a link without its entry
+    "id: x\n  bad: indentation\n",                    # not YAML
+])
+def test_anything_unusual_is_left_to_the_full_loader(tmp_path: Path, text: str) -> None:
+    path = tmp_path / "x.yaml"
+    path.write_text(text)
+    assert peek_outline(path, "x.yaml") is None
+    [outline] = outline_all([path], None, tmp_path)  # the loader's reading, with its errors
+    assert outline == outline_of(load_entry(path, "x.yaml", with_math=False))

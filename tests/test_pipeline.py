@@ -193,3 +193,27 @@ def test_a_pull_request_check_loads_only_possible_twins_and_reuses_their_ranks(t
     (again,) = check_files([copy], root, root.parent, options)
     assert [d.message for d in again.diagnostics if d.code == "entry.duplicate"] == warnings
     assert len(ranks) == 1  # only the edited entry's own rank
+
+
+def test_a_one_entry_check_of_a_newcomer_hears_that_its_id_is_taken(tmp_path, monkeypatch):
+    """The newcomer sorts before the entry whose id it reuses; it must still be told."""
+    root = copy_catalog(tmp_path)
+    install_counting_engine(monkeypatch)
+    newcomer = root / "aaa" / "point-mass.yaml"
+    newcomer.parent.mkdir()
+    newcomer.write_text((root / "black-holes" / "point-mass.yaml").read_text())
+    [report] = check_files([newcomer], root, root.parent, RunOptions(jobs=1))
+    taken = [d for d in report.diagnostics if d.code == "catalog.duplicate-id"]
+    assert len(taken) == 1 and "catalog/black-holes/point-mass.yaml" in taken[0].message
+    assert not report.ok
+
+
+def test_a_one_entry_check_reports_a_link_to_a_missing_entry(tmp_path, monkeypatch):
+    root = copy_catalog(tmp_path)
+    install_counting_engine(monkeypatch)
+    linking = next(p for p in catalog_files(root) if "related:" in p.read_text())
+    target = linking.read_text().split("related:")[1].split("entry:")[1].split()[0]
+    linking.write_text(linking.read_text().replace(f"entry: {target}", "entry: nowhere-else"))
+    [report] = check_files([linking], root, root.parent, RunOptions(jobs=1))
+    assert [d.message for d in report.diagnostics if d.code == "catalog.related"] == [
+        "related entry 'nowhere-else' does not exist"]
