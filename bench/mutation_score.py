@@ -34,7 +34,7 @@ if str(PROJECT) not in sys.path:
 
 from generator import verify  # noqa: E402
 from generator.catalog import entry_files, load_all, vocabulary  # noqa: E402
-from generator.geometry import Limits, compute_geometry  # noqa: E402
+from generator.geometry import Limits, compute_geometry_and_weyl  # noqa: E402
 from generator.loader import LoadResult, load_entry  # noqa: E402
 from generator.model import EntryReport  # noqa: E402
 
@@ -201,7 +201,8 @@ def _label_mutants(data: Data) -> Iterator[tuple[str, Data, bool]]:
 
 
 class GeometryMemo:
-    """compute_geometry, remembered per metric: claim mutants reuse the control's curvature."""
+    """compute_geometry_and_weyl, remembered per metric: claim mutants reuse the control's
+    curvature."""
 
     def __init__(self) -> None:
         self.results: dict[Any, Any] = {}
@@ -209,7 +210,7 @@ class GeometryMemo:
     def __call__(self, spacetime: Any, limits: Limits | None = None) -> Any:
         key = (spacetime.metric, spacetime.coordinates, spacetime.sign)
         if key not in self.results:
-            self.results[key] = compute_geometry(spacetime, limits)
+            self.results[key] = compute_geometry_and_weyl(spacetime, limits)
         return self.results[key]
 
 
@@ -238,8 +239,8 @@ def run(files: list[Path], catalog: Path, progress: Callable[[str], None] = prin
     every = load_all(entry_files([catalog]), catalog.resolve(), PROJECT)
     by_id = {load.entry.id: load for load in every if load.entry is not None}
     memo = GeometryMemo()
-    original = verify.compute_geometry
-    verify.compute_geometry = memo
+    original = verify.compute_geometry_and_weyl
+    verify.compute_geometry_and_weyl = memo
     outcomes: list[Outcome] = []
     skipped: list[str] = []
     try:
@@ -247,7 +248,7 @@ def run(files: list[Path], catalog: Path, progress: Callable[[str], None] = prin
             for file in files:
                 outcomes += _mutate_one(file, Path(tmp), by_id, catalog, skipped, progress)
     finally:
-        verify.compute_geometry = original
+        verify.compute_geometry_and_weyl = original
     return outcomes, skipped
 
 

@@ -15,14 +15,14 @@ import sympy
 
 from .energy import CONDITIONS, Spectrum, energy_conditions, hawking_ellis
 from .errors import Diagnostic
+from .geometry import WeylOperator
 from .matter import MatterResult, classify_matter
 from .model import Classification, EnergyCondition, Entry, Geometry, Spacetime
 from .petrov import PetrovResult, petrov_type
-from .sampling import Point, sample_points
+from .sampling import Point, entry_points
 from .symmetry import check_all_related, check_killing_vector, geodesic_equations
 
 SAMPLE_COUNT = 10
-SAMPLE_SEED = 424242
 NO_MATTER = ("vacuum", "lambda-vacuum")
 # SymPy's ways of giving up on an expression; they make a result "undecided", not a crash.
 ALGEBRA_FAILURES = (ValueError, TypeError, ZeroDivisionError, NotImplementedError,
@@ -30,10 +30,14 @@ ALGEBRA_FAILURES = (ValueError, TypeError, ZeroDivisionError, NotImplementedErro
 
 
 def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
-             related: Mapping[str, tuple[Entry, Spacetime]]
+             related: Mapping[str, tuple[Entry, Spacetime]],
+             weyl_operator: WeylOperator | None = None,
              ) -> tuple[Classification, list[Diagnostic]]:
-    """Classify the entry's spacetime and check every physics claim it makes."""
-    points = sample_points(spacetime, SAMPLE_COUNT, SAMPLE_SEED)
+    """Classify the entry's spacetime and check every physics claim it makes.
+
+    ``weyl_operator``: the engine's exact Weyl operator, if it has one (spares the Petrov
+    test a conversion); the results are the same without it."""
+    points = entry_points(spacetime, SAMPLE_COUNT)
     diagnostics: list[Diagnostic] = []
     reasons: dict[str, str] = {}
     matter = classify_matter(entry, spacetime, geometry)
@@ -49,7 +53,7 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
         conditions = tuple(EnergyCondition(name, "undecided", why) for name in CONDITIONS)
     diagnostics += check_stress_claims(entry, spectrum, conditions, matter)
     try:
-        petrov = petrov_type(geometry, spacetime, points)
+        petrov = petrov_type(geometry, spacetime, points, weyl_operator)
     except ALGEBRA_FAILURES as exc:
         petrov = PetrovResult("undecided", f"the computer algebra failed "
                               f"({type(exc).__name__}: {exc})")

@@ -20,8 +20,8 @@ from .model import Decision, Spacetime
 from .sampling import (
     Point,
     angle_coordinates,
+    entry_points,
     numeric_value,
-    sample_points,
     substitute,
     through_sin_cos,
 )
@@ -31,7 +31,6 @@ SAMPLED_POINTS = 8
 MINIMUM_SAMPLED = 5
 DIGITS = 30
 TOLERANCE = sympy.Float("1e-20", DIGITS)
-SEED = 20261201
 
 
 def decide_zero(expr: sympy.Expr, spacetime: Spacetime) -> Decision:
@@ -89,8 +88,12 @@ def nonzero_in_field(field: RationalField, value: Frac, spacetime: Spacetime,
     irrational, such as a square root, are skipped). A cheap witness for a non-zero normal
     form; False means only "no witness here", never "zero"."""
     angles = angle_coordinates(spacetime)
+    # Only the generators in ``value`` need a rational value: an angle θ is a generator of a
+    # field closed under derivatives, yet a value written in sin θ and cos θ never holds it.
+    used = [max(n, d) > 0 for n, d in zip(value.num.degrees(), value.den.degrees(), strict=True)]
     for point in _points(spacetime, count):
-        values = [substitute(spec.meaning, point, angles) for spec in field.specs]
+        values = [substitute(spec.meaning, point, angles) if needed else sympy.Integer(0)
+                  for spec, needed in zip(field.specs, used, strict=True)]
         if all(v.is_Rational for v in values):
             found = field.value_at(value, values)
             if found is not None and found != 0:
@@ -210,8 +213,8 @@ def _sampled_verdict(usable: int, why: str) -> Decision:
 
 
 def _points(spacetime: Spacetime, count: int) -> list[Point]:
-    """The first ``count`` points of one stream per spacetime (drawn once, see sampling)."""
-    return sample_points(spacetime, max(count, SAMPLED_POINTS), SEED)[:count]
+    """The first ``count`` points of the entry's stream (drawn once, see sampling)."""
+    return entry_points(spacetime, count)
 
 
 def _differs_at(left: sympy.Expr, right: sympy.Expr, point: Point) -> bool | None:

@@ -38,6 +38,24 @@ class Limits:
     max_terms: int = 200_000  # size bound on any intermediate numerator
 
 
+@dataclass(frozen=True)
+class WeylOperator:
+    """The Weyl tensor as the exact engine holds it, handed on to the Petrov test.
+
+    ``operator`` is W^P_Q = G^PR C_RQ over the index pairs of ``algebra.pairs`` (the Weyl
+    tensor acting on bivectors), ``bivector`` the pair metric G^PQ, all reduced fractions in
+    ``field``. The engine forms W anyway for C_abcd C^abcd; passing it on spares converting
+    the display forms back into a field. Not part of ``Geometry``: flint values are neither
+    cached nor shown.
+    """
+
+    field: RationalField
+    weyl: tuple[Frac, ...]  # the independent C_abcd (for the C = 0 test)
+    operator: tuple[tuple[Frac, ...], ...]
+    bivector: tuple[tuple[Frac, ...], ...]
+    metric: tuple[tuple[Frac, ...], ...]
+
+
 class Arithmetic(Protocol):
     """The operations the curvature formulas need; one implementation per engine."""
 
@@ -199,6 +217,14 @@ def compute_geometry(spacetime: Spacetime, limits: Limits | None = None) -> Geom
 def compute_geometry_with(spacetime: Spacetime, limits: Limits | None, engine: str) -> Geometry:
     """``engine``: "auto" (field, SymPy as fallback), "rational-function" or "sympy"; the
     forced engines exist so tests and the benchmark can compare the two paths."""
+    return compute_geometry_and_weyl(spacetime, limits, engine)[0]
+
+
+def compute_geometry_and_weyl(
+    spacetime: Spacetime, limits: Limits | None, engine: str = "auto"
+) -> tuple[Geometry, WeylOperator | None]:
+    """The geometry, and the Weyl operator in exact form when the field engine ran in four
+    dimensions (None otherwise: the Petrov test then converts the display forms itself)."""
     started = time.monotonic()
     budget = Budget.start(limits or Limits())
     if engine != "sympy":
@@ -215,7 +241,21 @@ def compute_geometry_with(spacetime: Spacetime, limits: Limits | None, engine: s
         tensors = curvature(arithmetic, metric, budget)
         used = "sympy"
     budget.check("display forms", arithmetic)
-    return to_geometry(spacetime, tensors, arithmetic, used, time.monotonic() - started)
+    geometry = to_geometry(spacetime, tensors, arithmetic, used, time.monotonic() - started)
+    return geometry, weyl_operator(arithmetic, tensors, metric)
+
+
+def weyl_operator(ar: Arithmetic, t: Tensors, g: list[list[Any]]) -> WeylOperator | None:
+    if not isinstance(ar, FieldArithmetic) or t.weyl is None or t.weyl_operator is None:
+        return None
+    if len(g) != 4:
+        return None
+
+    def rows(m: list[list[Frac]]) -> tuple[tuple[Frac, ...], ...]:
+        return tuple(tuple(row) for row in m)
+
+    return WeylOperator(ar.field, tuple(t.weyl.values()), rows(t.weyl_operator),
+                        rows(t.bivector), rows(g))
 
 
 def field_setup(
@@ -266,6 +306,8 @@ class Tensors:
     kretschmann: Any
     ricci_squared: Any
     weyl_squared: Any
+    weyl_operator: list[list[Any]] | None  # C on index pairs, raised by the pair metric
+    bivector: list[list[Any]]  # the pair metric G^PQ
 
 
 def curvature(ar: Arithmetic, g: list[list[Any]], budget: Budget) -> Tensors:
@@ -283,14 +325,17 @@ def curvature(ar: Arithmetic, g: list[list[Any]], budget: Budget) -> Tensors:
         [ar.product(mixed[a][b], mixed[b][a]) for a in range(n) for b in range(n)]
     )
     bivector = bivector_inverse(ar, ginv, n)
-    kretschmann = pair_square(ar, riemann, bivector, n)
+    riemann_operator = pair_operator(ar, riemann, bivector, n)
+    kretschmann = trace_square(ar, riemann_operator)
     budget.check("invariants", ar, [kretschmann, ricci_squared])
-    weyl = weyl_squared = None
+    weyl = weyl_squared = weyl_on_pairs = None
     if n >= 4 and all(ar.is_zero(ricci[a][b]) for a in range(n) for b in range(n)):
-        weyl, weyl_squared = dict(riemann), kretschmann  # Ricci-flat: C_abcd = R_abcd
+        # Ricci-flat: C_abcd = R_abcd
+        weyl, weyl_squared, weyl_on_pairs = dict(riemann), kretschmann, riemann_operator
     elif n >= 4:
         weyl = weyl_lower(ar, riemann, ricci, scalar, g, n, budget)
-        weyl_squared = pair_square(ar, weyl, bivector, n)
+        weyl_on_pairs = pair_operator(ar, weyl, bivector, n)
+        weyl_squared = trace_square(ar, weyl_on_pairs)
         budget.check("Weyl tensor", ar, [weyl_squared])
     christoffel = {
         (a, b, c): second[a][b][c]
@@ -311,6 +356,8 @@ def curvature(ar: Arithmetic, g: list[list[Any]], budget: Budget) -> Tensors:
         kretschmann,
         ricci_squared,
         weyl_squared,
+        weyl_on_pairs,
+        bivector,
     )
 
 
@@ -468,12 +515,12 @@ def bivector_inverse(ar: Arithmetic, ginv: list, n: int) -> list[list[Any]]:
     ]
 
 
-def pair_square(ar: Arithmetic, table: dict, bivector: list, n: int) -> Any:
-    """X_abcd X^abcd = 4 tr(X G X G) with X and G as matrices over index pairs."""
+def pair_operator(ar: Arithmetic, table: dict, bivector: list, n: int) -> list[list[Any]]:
+    """M^P_Q = G^PR X_RQ: the tensor X_abcd as an operator on bivectors (index pairs)."""
     slots = pairs(n)
     x = [[component(ar, table, a, b, c, d) for c, d in slots] for a, b in slots]
     size = len(slots)
-    m = [
+    return [
         [
             ar.sum(
                 [
@@ -486,6 +533,11 @@ def pair_square(ar: Arithmetic, table: dict, bivector: list, n: int) -> Any:
         ]
         for p in range(size)
     ]
+
+
+def trace_square(ar: Arithmetic, m: list[list[Any]]) -> Any:
+    """X_abcd X^abcd = 4 tr(M M) for the pair operator M of X."""
+    size = len(m)
     total = ar.sum(
         [
             ar.product(m[p][q], m[q][p])

@@ -509,24 +509,67 @@ def _quadratic_form_hessian(form: sympy.Expr, differentials: list[sympy.Symbol]
     """The second derivatives of ``form`` in the differentials (i <= j), or why ``form`` is not
     homogeneous of degree two in them.
 
-    For a polynomial in the differentials: it is a quadratic form exactly when its value and its
-    first derivatives vanish at d = 0 and its second derivatives are free of differentials.
-    Each first derivative is taken once and reused, which keeps this cheap for long forms.
+    The form is read as a polynomial in the differentials by walking its tree once (sums
+    merge, products multiply, integer powers repeat), with the coefficients left as they are:
+    no derivative is taken and nothing is expanded except the parts that must vanish. A
+    differential inside a function, a root or a denominator is refused.
     """
-    if not form.is_polynomial(*differentials):
-        return {}, "a differential appears inside a function, a root or a denominator"
-    zero = {d: 0 for d in differentials}
-    if sympy.expand(form.xreplace(zero)) != 0:
-        return {}, "it has a term without differentials"
+    index = {d: i for i, d in enumerate(differentials)}
+    try:
+        terms = _in_differentials(form, index)
+    except _NotQuadratic as exc:
+        return {}, str(exc)
     hessian: dict[tuple[int, int], sympy.Expr] = {}
-    chosen = set(differentials)
-    for i, d in enumerate(differentials):
-        first = sympy.diff(form, d)
-        if sympy.expand(first.xreplace(zero)) != 0:
-            return {}, f"it has a term linear in {d.name}"
-        for j in range(i, len(differentials)):
-            second = sympy.diff(first, differentials[j])
-            if second.free_symbols & chosen:
-                return {}, "it has a term of degree three or more"
-            hessian[i, j] = second
+    for monomial, coefficient in sorted(terms.items()):
+        if len(monomial) == 2:
+            i, j = monomial
+            hessian[i, j] = 2 * coefficient if i == j else coefficient
+        elif sympy.expand(coefficient) != 0:
+            return {}, ("it has a term without differentials" if not monomial else
+                        f"it has a term linear in {differentials[monomial[0]].name}")
     return hessian, ""
+
+
+class _NotQuadratic(Exception):
+    """Why a line element is not a quadratic form in the differentials."""
+
+
+Monomial = tuple[int, ...]  # sorted indices of the differentials in a term
+
+
+def _in_differentials(expr: sympy.Expr, index: dict[sympy.Symbol, int]
+                      ) -> dict[Monomial, sympy.Expr]:
+    """``expr`` as {monomial in the differentials: coefficient}, degrees up to two."""
+    if not expr.free_symbols & index.keys():
+        return {(): expr}
+    if expr in index:
+        return {(index[expr],): sympy.Integer(1)}
+    if isinstance(expr, sympy.Add):
+        total: dict[Monomial, sympy.Expr] = {}
+        for arg in expr.args:
+            for monomial, coefficient in _in_differentials(arg, index).items():
+                total[monomial] = total.get(monomial, 0) + coefficient
+        return total
+    if isinstance(expr, sympy.Mul):
+        product: dict[Monomial, sympy.Expr] = {(): sympy.Integer(1)}
+        for arg in expr.args:
+            product = _times(product, _in_differentials(arg, index))
+        return product
+    if isinstance(expr, sympy.Pow) and expr.exp.is_Integer and expr.exp > 0:
+        base, power = _in_differentials(expr.base, index), {(): sympy.Integer(1)}
+        for _ in range(int(expr.exp)):
+            power = _times(power, base)
+        return power
+    raise _NotQuadratic("a differential appears inside a function, a root or a denominator")
+
+
+def _times(x: dict[Monomial, sympy.Expr], y: dict[Monomial, sympy.Expr]
+           ) -> dict[Monomial, sympy.Expr]:
+    product: dict[Monomial, sympy.Expr] = {}
+    for mx, cx in x.items():
+        for my, cy in y.items():
+            monomial = tuple(sorted(mx + my))
+            if len(monomial) > 2:
+                raise _NotQuadratic("it has a term of degree three or more")
+            product[monomial] = product.get(monomial, 0) + cx * cy
+    return product

@@ -30,7 +30,7 @@ import sympy
 from .algebra import FieldRequest, Frac, NotInField, RationalField, build_field
 from .equality import nonzero_in_field
 from .exactvalues import Point, sign_at, vanishes
-from .geometry import independent_index
+from .geometry import WeylOperator, independent_index
 from .model import Geometry, Index, Spacetime
 
 PAIRS = [(0, 1), (0, 2), (0, 3), (1, 2), (1, 3), (2, 3)]
@@ -136,62 +136,45 @@ def entries(x: Complex) -> list[sympy.Expr]:
 # ---------------------------------------------------------------------------- exact field path
 
 
-class FieldAlgebra:
-    """The same complex 6×6 algebra in the flint rational-function field of ``algebra``.
+Grid = list[list[Frac]]
 
-    Products of Weyl matrices swell quickly in SymPy trees; in the field every entry stays a
-    reduced fraction, and a zero normal form is an exact zero.
+
+class FieldAlgebra:
+    """Real 6×6 matrices over the flint rational-function field of ``algebra``.
+
+    Every entry stays a reduced fraction, so a zero normal form is an exact zero. The Weyl
+    operator and the duality are sparse for the usual charts, so products skip zero entries.
     """
 
     def __init__(self, field: RationalField, spacetime: Spacetime) -> None:
         self.f = field
         self.spacetime = spacetime
 
-    def matmul(self, x: list[list[Frac]], y: list[list[Frac]]) -> list[list[Frac]]:
-        f = self.f
-        return [[f.sum([f.mul(x[i][k], y[k][j]) for k in range(6)]) for j in range(6)]
-                for i in range(6)]
+    def matmul(self, x: Sequence[Sequence[Frac]], y: Sequence[Sequence[Frac]]) -> Grid:
+        f, size = self.f, len(x)
+        rows = [[(k, v) for k, v in enumerate(row) if not v.is_zero()] for row in x]
+        return [[f.sum([f.mul(v, y[k][j]) for k, v in rows[i] if not y[k][j].is_zero()])
+                 for j in range(size)] for i in range(size)]
 
-    def combine(self, x: list[list[Frac]], y: list[list[Frac]], sign: int = 1
-                ) -> list[list[Frac]]:
-        f = self.f
-        return [[f.add(x[i][j], y[i][j]) if sign > 0 else f.sub(x[i][j], y[i][j])
-                 for j in range(6)] for i in range(6)]
-
-    def scale(self, s: Frac, x: list[list[Frac]]) -> list[list[Frac]]:
-        return [[self.f.mul(s, v) for v in row] for row in x]
-
-    def multiply(self, x: tuple, y: tuple, sigma2: Frac) -> tuple:
-        (a, b), (c, d) = x, y
-        real = self.combine(self.matmul(a, c), self.scale(sigma2, self.matmul(b, d)), -1)
-        return real, self.combine(self.matmul(a, d), self.matmul(b, c))
-
-    def times(self, s: tuple[Frac, Frac], x: tuple, sigma2: Frac) -> tuple:
-        f = self.f
-        (p, q), (a, b) = s, x
-        return (self.combine(self.scale(p, a), self.scale(f.mul(sigma2, q), b), -1),
-                self.combine(self.scale(p, b), self.scale(q, a)))
+    def trace_of_product(self, x: Sequence[Sequence[Frac]], y: Sequence[Sequence[Frac]]
+                         ) -> Frac:
+        """tr(XY) = Σ X_ij Y_ji without forming XY."""
+        size = len(x)
+        return self.f.sum([self.f.mul(x[i][j], y[j][i]) for i in range(size)
+                           for j in range(size) if not x[i][j].is_zero()])
 
     def number(self, s: tuple[Frac, Frac], t: tuple[Frac, Frac], sigma2: Frac
                ) -> tuple[Frac, Frac]:
+        """(s₀ + iσs₁)(t₀ + iσt₁) with σ² = sigma2."""
         f = self.f
         return (f.sub(f.mul(s[0], t[0]), f.mul(sigma2, f.mul(s[1], t[1]))),
                 f.add(f.mul(s[0], t[1]), f.mul(s[1], t[0])))
 
-    def trace_of_product(self, x: tuple, y: tuple, sigma2: Frac) -> tuple[Frac, Frac]:
-        """tr(XY) = Σ X_ij Y_ji without forming XY (36 products per part instead of 216)."""
-        f = self.f
-        (a, b), (c, d) = x, y
-        pairs = [(i, j) for i in range(6) for j in range(6)]
-        real = f.sub(f.sum([f.mul(a[i][j], c[j][i]) for i, j in pairs]),
-                     f.mul(sigma2, f.sum([f.mul(b[i][j], d[j][i]) for i, j in pairs])))
-        imaginary = f.sum([f.mul(a[i][j], d[j][i]) for i, j in pairs]
-                          + [f.mul(b[i][j], c[j][i]) for i, j in pairs])
-        return real, imaginary
-
-    def trace(self, x: tuple) -> tuple[Frac, Frac]:
-        return self.f.sum([x[0][i][i] for i in range(6)]), self.f.sum([x[1][i][i]
-                                                                        for i in range(6)])
+    def combination(self, terms: Sequence[tuple[Frac, Sequence[Sequence[Frac]]]]) -> Grid:
+        """Σ c_k X_k entrywise, for scalar coefficients c_k."""
+        f, size = self.f, len(terms[0][1])
+        return [[f.sum([f.mul(c, x[i][j]) for c, x in terms]) for j in range(size)]
+                for i in range(size)]
 
     def is_zero(self, values: Sequence[Frac], what: str) -> bool:
         """Zero normal forms are exact zeros; a non-zero one is confirmed by decide_zero."""
@@ -211,29 +194,29 @@ class FieldAlgebra:
         return is_zero([self.f.to_sympy(v) for v in candidates[3:]], self.spacetime, what)
 
 
-def field_operators(geometry: Geometry, spacetime: Spacetime
-                    ) -> tuple[FieldAlgebra, list, list, Frac, list[Frac]]:
-    """W, S̃, σ² and the Weyl components, converted into one rational-function field."""
+def field_operators(geometry: Geometry, spacetime: Spacetime) -> WeylOperator:
+    """The Weyl operator from the display forms, for a geometry that did not come with one
+    (the SymPy engine's, or one built by hand); raises NotInField when it does not fit."""
     assert geometry.weyl is not None
     C = weyl_component(geometry.weyl)
     lower = [C(*PAIRS[E], *PAIRS[B]) for E in range(6) for B in range(6)]
     g2 = list(bivector_metric(geometry.inverse_metric))
+    weyl = list(geometry.weyl.values())
     request = FieldRequest(spacetime.coordinates, spacetime.parameters, spacetime.functions,
-                           (*lower, *g2, *geometry.metric), 0)
+                           (*lower, *g2, *geometry.metric, *weyl), 0)
     field, values = build_field(request)
-    algebra = FieldAlgebra(field, spacetime)
 
-    def grid(flat: list[Frac]) -> list[list[Frac]]:
-        return [flat[6 * i: 6 * i + 6] for i in range(6)]
+    def grid(flat: Sequence[Frac]) -> tuple[tuple[Frac, ...], ...]:
+        size = round(len(flat) ** 0.5)
+        return tuple(tuple(flat[size * i: size * i + size]) for i in range(size))
 
-    low, G2, metric = grid(values[:36]), grid(values[36:72]), values[72:]
-    levi = [[field.const(int(sympy.LeviCivita(*PAIRS[E], *PAIRS[B]))) for B in range(6)]
-            for E in range(6)]
-    sigma2 = field.neg(determinant(field, [metric[4 * i: 4 * i + 4] for i in range(4)]))
-    return algebra, algebra.matmul(G2, low), algebra.matmul(G2, levi), sigma2, values[:36]
+    G2 = grid(values[36:72])
+    operator = FieldAlgebra(field, spacetime).matmul(G2, grid(values[:36]))
+    return WeylOperator(field, tuple(values[88:]), grid([v for row in operator for v in row]),
+                        G2, grid(values[72:88]))
 
 
-def determinant(field: RationalField, m: list[list[Frac]]) -> Frac:
+def determinant(field: RationalField, m: Sequence[Sequence[Frac]]) -> Frac:
     """Laplace expansion (the metric is at most 4×4 here)."""
     if len(m) == 1:
         return m[0][0]
@@ -241,30 +224,36 @@ def determinant(field: RationalField, m: list[list[Frac]]) -> Frac:
     for j, entry in enumerate(m[0]):
         if entry.is_zero():
             continue
-        minor = [row[:j] + row[j + 1:] for row in m[1:]]
+        minor = [[*row[:j], *row[j + 1:]] for row in m[1:]]
         term = field.mul(entry, determinant(field, minor))
         terms.append(term if j % 2 == 0 else field.neg(term))
     return field.sum(terms)
 
 
-def decide_type_in_field(geometry: Geometry, spacetime: Spacetime) -> tuple[str, list[str]]:
-    """`decide_type` with exact field arithmetic (same criteria, same order)."""
-    algebra, W, dual, sigma2, weyl_values = field_operators(geometry, spacetime)
-    f = algebra.f
-    if algebra.is_zero(weyl_values, "the Weyl tensor"):
+def decide_type_in_field(ops: WeylOperator, spacetime: Spacetime) -> tuple[str, list[str]]:
+    """`decide_type` in exact field arithmetic, with real matrices only.
+
+    The self-dual projector P = ½(1 − i*) commutes with W and P² = P, so Q = PW gives
+    Q² = PW², tr Qᵏ = ½ tr Wᵏ − ½ iσ tr(S̃Wᵏ), and for complex scalars s, u, v the matrix
+    P(sW² − uW − 2vI) vanishes exactly when its σ-part does: M_i = S̃ M_r for
+    M = M_r + iσ M_i (its σ-free part then vanishes too, because (σS̃)² = ** = −1). So the
+    criteria of ``decide_type`` need W², S̃W and S̃W² and no complex 6×6 product.
+    """
+    algebra, f = FieldAlgebra(ops.field, spacetime), ops.field
+    if algebra.is_zero(ops.weyl, "the Weyl tensor"):
         return "O", ["C_abcd = 0"]
     tests = ["C_abcd ≠ 0"]
-    half = sympy.Rational(1, 2)
-    identity = [[f.one() if i == j else f.zero() for j in range(6)] for i in range(6)]
-
-    def scaled(x: list[list[Frac]], q: sympy.Rational) -> list[list[Frac]]:
-        return [[f.scale(v, q) for v in row] for row in x]
-
-    Q = (scaled(W, half), scaled(algebra.matmul(dual, W), -half))
-    P = (scaled(identity, half), scaled(dual, -half))
-    Q2 = algebra.multiply(Q, Q, sigma2)
-    t2 = algebra.trace(Q2)
-    t3 = algebra.trace_of_product(Q2, Q, sigma2)
+    W = ops.operator
+    levi = [[f.const(int(sympy.LeviCivita(*PAIRS[E], *PAIRS[B]))) for B in range(6)]
+            for E in range(6)]
+    dual = algebra.matmul(ops.bivector, levi)
+    sigma2 = f.neg(determinant(f, ops.metric))
+    W2, dual_W = algebra.matmul(W, W), algebra.matmul(dual, W)
+    half, minus_half = sympy.Rational(1, 2), sympy.Rational(-1, 2)
+    t2 = (f.scale(algebra.trace_of_product(W, W), half),
+          f.scale(algebra.trace_of_product(dual_W, W), minus_half))
+    t3 = (f.scale(algebra.trace_of_product(W2, W), half),
+          f.scale(algebra.trace_of_product(dual_W, W2), minus_half))
     t2_cubed = algebra.number(algebra.number(t2, t2, sigma2), t2, sigma2)
     t3_squared = algebra.number(t3, t3, sigma2)
     special = [f.sub(t2_cubed[k], f.scale(t3_squared[k], 6)) for k in range(2)]
@@ -273,17 +262,18 @@ def decide_type_in_field(geometry: Geometry, spacetime: Spacetime) -> tuple[str,
     tests.append("I³ = 27 J²")
     if algebra.is_zero(list(t2), "I"):
         tests.append("I = J = 0")
-        if algebra.is_zero([v for part in Q2 for row in part for v in row], "Q²"):
+        if algebra.is_zero([v for row in W2 for v in row], "Q²"):  # Q² = PW² = 0 ⇔ W² = 0
             return "N", [*tests, "Q² = 0"]
         return "III", [*tests, "Q² ≠ 0, Q³ = 0"]
     tests.append("I ≠ 0")
-    a = algebra.times(algebra.number(t2, t2, sigma2), Q2, sigma2)
-    b = algebra.times(algebra.number(t2, t3, sigma2), Q, sigma2)
-    c = algebra.times(t3_squared, P, sigma2)
-    minimal = [algebra.combine(algebra.combine(a[k], b[k], -1), scaled(c[k], 2), -1)
-               for k in range(2)]
-    if algebra.is_zero([v for part in minimal for row in part for v in row],
-                       "(Q − λ)(Q + 2λ)"):
+    s, u = algebra.number(t2, t2, sigma2), algebra.number(t2, t3, sigma2)
+    v = t3_squared
+    identity = [[f.one() if i == j else f.zero() for j in range(6)] for i in range(6)]
+    # M_i − S̃ M_r with M = sW² − uW − 2vI
+    residue = algebra.combination([
+        (s[1], W2), (f.neg(u[1]), W), (f.scale(v[1], -2), identity),
+        (f.neg(s[0]), algebra.matmul(dual, W2)), (u[0], dual_W), (f.scale(v[0], 2), dual)])
+    if algebra.is_zero([x for row in residue for x in row], "(Q − λ)(Q + 2λ)"):
         return "D", [*tests, "(Q − λ)(Q + 2λ) = 0"]
     return "II", [*tests, "(Q − λ)(Q + 2λ) ≠ 0"]
 
@@ -291,14 +281,16 @@ def decide_type_in_field(geometry: Geometry, spacetime: Spacetime) -> tuple[str,
 # ---------------------------------------------------------------------------- the type
 
 
-def petrov_type(geometry: Geometry, spacetime: Spacetime,
-                points: Sequence[Point] = ()) -> PetrovResult:
+def petrov_type(geometry: Geometry, spacetime: Spacetime, points: Sequence[Point] = (),
+                operator: WeylOperator | None = None) -> PetrovResult:
+    """``operator``: the engine's exact Weyl operator when it has one (quicker)."""
     if geometry.dimension != 4 or not spacetime.lorentzian or geometry.weyl is None:
         return PetrovResult(None, "the Petrov type is defined for 4-dimensional Lorentzian "
                             "metrics only")
     try:
         try:
-            kind, tests = decide_type_in_field(geometry, spacetime)
+            kind, tests = decide_type_in_field(operator or field_operators(geometry, spacetime),
+                                               spacetime)
         except (NotInField, ZeroDivisionError):
             kind, tests = decide_type(geometry, spacetime)
     except Undecided as exc:
