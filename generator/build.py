@@ -51,7 +51,7 @@ def build_site(catalog: Path, out: Path, options: RunOptions,
               file=sys.stderr)
         return BuildResult(False, tuple(reports), refused)
     meta = catalog_meta(catalog, options.cache_dir)
-    render_atomically(reports, meta, out)
+    render_atomically(reports, meta, out, options.cache_dir)
     print(f"site written to {out}/ ({len(reports) - len(refused)} entries)", file=sys.stderr)
     return BuildResult(not refused, tuple(reports), refused)
 
@@ -94,9 +94,14 @@ def _revisions(project: Path, catalog: Path, cache_dir: Path | None) -> dict:
         return {}
 
 
-def render_atomically(reports: list[EntryReport], meta: CatalogMeta, out: Path) -> None:
-    """Render into a fresh sibling folder, then swap it in, so readers never see half a site."""
-    from .render import render_site
+def render_atomically(reports: list[EntryReport], meta: CatalogMeta, out: Path,
+                      cache_dir: Path | None = None) -> None:
+    """Render into a fresh sibling folder, then swap it in, so readers never see half a site.
+    With a cache folder, entry views are kept there between builds (``render.kept_view``)."""
+    from .cache import ResultCache
+    from .render import VIEW_SUFFIX, render_site
+
+    kept = ResultCache(cache_dir, suffix=VIEW_SUFFIX) if cache_dir is not None else None
 
     out = out.resolve()
     out.parent.mkdir(parents=True, exist_ok=True)
@@ -104,7 +109,7 @@ def render_atomically(reports: list[EntryReport], meta: CatalogMeta, out: Path) 
     recover_interrupted_swap(out, old)
     staging = Path(tempfile.mkdtemp(prefix=f".{out.name}.building-", dir=out.parent))
     try:
-        render_site(reports, meta, staging)
+        render_site(reports, meta, staging, kept)
     except BaseException:
         shutil.rmtree(staging, ignore_errors=True)
         raise

@@ -30,12 +30,17 @@ FORMAT = b"almanac-cache-1\n"
 SECRET_ENV = "ALMANAC_CACHE_SECRET"
 
 
-def library_versions() -> str:
-    names = ("sympy", "python-flint", "mpmath")
+COMPUTING_LIBRARIES = ("sympy", "python-flint", "mpmath")
+
+
+def library_versions(names: tuple[str, ...] = COMPUTING_LIBRARIES) -> str:
     return ";".join(f"{n}={_version(n)}" for n in names)
 
 
+@functools.cache
 def _version(name: str) -> str:
+    """Installed version of a library (read once per process: reading package metadata is
+    slow, and every cache key asks)."""
     try:
         return metadata.version(name)
     except metadata.PackageNotFoundError:

@@ -297,6 +297,9 @@ class EntryReport:
     diagnostics: tuple[Diagnostic, ...]
     content_hash: str = ""
     seconds: float = 0.0
+    # Hash of everything the report was computed from (the pipeline's cache key): lets the
+    # render stage keep what it made of the report. Empty when the report was made otherwise.
+    inputs_key: str = ""
 
     @property
     def ok(self) -> bool:

@@ -261,12 +261,12 @@ def _run(tasks: list[Task], options: RunOptions, progress: Progress) -> list[Ent
     for i, key in enumerate(keys):
         hit = cache.get(key) if cache else None
         if hit is not None:
-            results[i] = hit
+            results[i] = replace(hit, inputs_key=key)
             progress.finished(hit)
         else:
             pending.append(i)
     for i, report in _compute(tasks, pending, options, progress):
-        results[i] = report
+        results[i] = report = replace(report, inputs_key=keys[i])
         if cache and cards and _cacheable(report):
             cache.put(keys[i], report)
             card = twin_card(report)

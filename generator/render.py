@@ -12,6 +12,7 @@ clock, so the same catalog gives byte-identical files.
 
 from __future__ import annotations
 
+import hashlib
 import json
 import keyword
 import re
@@ -30,6 +31,7 @@ from jinja2 import Environment, FileSystemLoader, StrictUndefined, select_autoes
 from markupsafe import Markup, escape
 
 from . import cite, export, mathtex, plots
+from .cache import ResultCache, library_versions
 from .errors import AlmanacError
 from .mathparse import parse_inequality, parse_math, table_from_symbols
 from .model import (
@@ -103,11 +105,15 @@ class RenderError(AlmanacError):
 # ---------------------------------------------------------------------------- the stage
 
 
-def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path) -> None:
-    """Write the complete site for the published (ok) reports into ``out_dir``."""
+def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path,
+                kept_views: ResultCache | None = None) -> None:
+    """Write the complete site for the published (ok) reports into ``out_dir``.
+
+    ``kept_views``: where entry views made by earlier builds are kept (see ``kept_view``)."""
     published = published_reports(reports, meta)
     ids = frozenset(r.entry.id for r in published if r.entry is not None)
-    views = {r.entry.id: entry_view(r, meta, ids) for r in published if r.entry is not None}
+    views = {r.entry.id: kept_view(r, meta, ids, kept_views)
+             for r in published if r.entry is not None}
     cards = [views[r.entry.id].card for r in published if r.entry is not None]
     env = template_environment()
     pages = list(site_pages(published, views, cards, meta))
@@ -365,6 +371,47 @@ def entry_view(
         data=data,
         json_document=json.dumps(data, indent=2, sort_keys=True, ensure_ascii=False) + "\n",
     )
+
+
+VIEW_SUFFIX = ".view"
+RENDER_LIBRARIES = ("matplotlib", "latex2mathml", "markdown", "nh3", "markupsafe", "numpy")
+
+
+def kept_view(report: EntryReport, meta: CatalogMeta, published_ids: frozenset[str],
+              shelf: ResultCache | None) -> EntryView:
+    """``entry_view``, kept under a key of everything it is made from.
+
+    Once the checks come from the cache, plots and typesetting are nearly all of a build's
+    time; a rebuild then makes views only for the entries that changed (or whose
+    surroundings in the catalog did: families, tags, revisions, which entries are published).
+    """
+    key = view_key(report, meta, published_ids) if shelf is not None else None
+    if shelf is not None and key is not None:
+        found = shelf.get(key, EntryView)
+        if found is not None:
+            return found
+    view = entry_view(report, meta, published_ids)
+    if shelf is not None and key is not None:
+        shelf.put(key, view)
+    return view
+
+
+def view_key(report: EntryReport, meta: CatalogMeta, published_ids: frozenset[str]
+             ) -> str | None:
+    """Hash of what ``entry_view`` reads: the report (by the hash of its inputs, which covers
+    the generator's source and the computing libraries), the diagnostics added after checking
+    it, the catalog-wide data an entry page shows, and the versions of the rendering
+    libraries. None for a report without that hash (made outside the pipeline)."""
+    entry = report.entry
+    if not report.inputs_key or entry is None:
+        return None
+    parts = (
+        report.inputs_key, repr(report.diagnostics), meta.version, meta.generator_version,
+        meta.sympy_version, meta.base_url, repr(meta.families), repr(meta.tags),
+        repr(meta.revisions.get(entry.id, ())), repr(sorted(published_ids)),
+        library_versions(RENDER_LIBRARIES),
+    )
+    return hashlib.sha256("\0".join(parts).encode()).hexdigest()
 
 
 def entry_card(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:

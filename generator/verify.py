@@ -133,7 +133,9 @@ def _inertia(metric: sympy.ImmutableMatrix, point: dict[sympy.Basic, sympy.Expr]
 
     ``metric`` has its circular functions written through sin and cos of the angles
     (``through_sin_cos``), so a point's rational sin and cos apply by plain replacement
-    (``xreplace``; SymPy's ``subs`` took a tenth of a second per Kerr point). Rational values (the usual case) are decided exactly by ``exact_inertia``. Otherwise
+    (``xreplace``; SymPy's ``subs`` took a tenth of a second per Kerr point).
+
+    Rational values (the usual case) are decided exactly by ``exact_inertia``. Otherwise
     degeneracy is decided exactly (det g = 0 at the exact point). The signs come from
     eigenvalues at increasing precision until each is clearly away from zero, so charts whose
     components differ by many orders of magnitude (e.g. cosh**2 of a large radius) are fine.

@@ -67,3 +67,81 @@ def test_rebuild_is_byte_identical(project: Path) -> None:
     first = snapshot(project / "site")
     assert build_site(project / "catalog", project / "site", OPTIONS).ok
     assert snapshot(project / "site") == first
+
+
+def add_a_second_entry(project: Path) -> str:
+    source = project / "catalog" / "riemannian" / "lighthouse-dome.yaml"
+    copy = source.with_name("lighthouse-dome-annex.yaml")
+    copy.write_text(source.read_text().replace("id: lighthouse-dome\n",
+                                               "id: lighthouse-dome-annex\n"))
+    return "lighthouse-dome-annex"
+
+
+def test_entry_views_are_kept_and_remade_only_for_what_changed(project: Path,
+                                                              monkeypatch: pytest.MonkeyPatch
+                                                              ) -> None:
+    """With a cache folder, a rebuild takes each entry's rendered view from the cache unless
+    something it is made from changed; the site stays byte-identical to a build without any
+    cache."""
+    from generator import render
+    from generator.cache import SECRET_ENV
+
+    monkeypatch.setenv(SECRET_ENV, "build-test-secret")
+    annex = add_a_second_entry(project)
+    made: list[str] = []
+    real = render.entry_view
+
+    def counting_view(report, meta, published_ids=frozenset()):
+        made.append(report.entry.id)
+        return real(report, meta, published_ids)
+
+    monkeypatch.setattr(render, "entry_view", counting_view)
+    cached = RunOptions(jobs=1, cache_dir=project / "cache")
+    assert build_site(project / "catalog", project / "site", cached).ok
+    assert sorted(made) == ["lighthouse-dome", annex]
+    first = snapshot(project / "site")
+
+    made.clear()
+    assert build_site(project / "catalog", project / "site", cached).ok
+    assert made == []
+    assert snapshot(project / "site") == first
+
+    entry = project / "catalog" / "riemannian" / f"{annex}.yaml"
+    text = entry.read_text()
+    title = next(line for line in text.splitlines() if line.startswith("title:"))
+    entry.write_text(text.replace(title, title + " (annex)"))
+    assert build_site(project / "catalog", project / "site", cached).ok
+    assert made == [annex]
+
+    assert build_site(project / "catalog", project / "fresh", OPTIONS).ok
+    assert snapshot(project / "site") == snapshot(project / "fresh")
+
+
+def test_the_view_key_names_everything_a_view_is_made_from(project: Path) -> None:
+    from dataclasses import replace
+
+    from generator.build import catalog_meta
+    from generator.errors import Diagnostic
+    from generator.model import Family, Revision
+    from generator.pipeline import check_files
+    from generator.render import view_key
+
+    [report] = check_files([project / "catalog" / "riemannian" / "lighthouse-dome.yaml"],
+                           project / "catalog", project, OPTIONS)
+    meta = catalog_meta(project / "catalog")
+    ids = frozenset({"lighthouse-dome"})
+    key = view_key(report, meta, ids)
+    assert key is not None and key == view_key(report, meta, ids)
+    revision = Revision("0" * 40, "2026-12-01", "f" * 64, "first", "id: x\n")
+    note = Diagnostic(report.file, 1, 1, "note", "a duplicate spacetime?", "entry.duplicate")
+    changed = [
+        view_key(replace(report, inputs_key="another"), meta, ids),
+        view_key(replace(report, diagnostics=(*report.diagnostics, note)), meta, ids),
+        view_key(report, replace(meta, version="9.9.9"), ids),
+        view_key(report, replace(meta, base_url="https://elsewhere.example/"), ids),
+        view_key(report, replace(meta, families=(*meta.families, Family("x", "X", ""))), ids),
+        view_key(report, replace(meta, revisions={"lighthouse-dome": (revision,)}), ids),
+        view_key(report, meta, ids | {"another-entry"}),
+    ]
+    assert key not in changed and len(set(changed)) == len(changed)
+    assert view_key(replace(report, inputs_key=""), meta, ids) is None
