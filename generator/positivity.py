@@ -17,6 +17,7 @@ from __future__ import annotations
 import sympy
 
 from .model import Spacetime
+from .sampling import linear_bound
 
 SIZE_LIMIT = 600  # operations; bigger expressions are not attempted ("not proved")
 CANCEL_LIMIT = 250  # operations; larger quotients are not cancelled or factored
@@ -24,30 +25,6 @@ RADICAND_LIMIT = 150  # operations in a square root's argument that is examined
 SQUARINGS = 2  # u − v ≥ 0 ⇐ u² − v² ≥ 0, applied at most this many times in a row
 
 Roots = dict[sympy.Symbol, sympy.Expr]  # hidden root symbol -> its square
-
-
-def _bound(relation: sympy.Basic, x: sympy.Symbol) -> tuple[str, sympy.Expr, bool] | None:
-    """('lower'|'upper', bound, strict) if ``relation`` bounds ``x`` by an x-free expression:
-    any relation linear in x with a rational coefficient (``8*M < 3*Rs`` bounds Rs below by
-    8*M/3, and M above by 3*Rs/8). A relation with a bare symbol on one side belongs to that
-    symbol (``r > 2*v`` bounds r, not v), so it stays available for it."""
-    if not isinstance(relation, sympy.core.relational.Relational):
-        return None
-    op = relation.rel_op
-    if op not in ("<", "<=", ">", ">="):
-        return None
-    bare = {side for side in (relation.lhs, relation.rhs) if side.is_Symbol}
-    if bare and x not in bare:
-        return None
-    difference = relation.lhs - relation.rhs  # difference OP 0
-    if not difference.has(x):
-        return None
-    coefficient = sympy.diff(difference, x)
-    if not coefficient.is_Rational or coefficient == 0:
-        return None
-    bound = -difference.subs(x, 0) / coefficient
-    lower = (op in (">", ">=")) == (coefficient > 0)
-    return ("lower" if lower else "upper"), bound, op in ("<", ">")
 
 
 def _assumed_bound(x: sympy.Symbol) -> tuple[str, sympy.Expr, bool] | None:
@@ -82,7 +59,7 @@ def domain_substitution(spacetime: Spacetime) -> list[dict[sympy.Basic, sympy.Ex
         if x in replaced:
             continue
         candidates = [(rel, b) for rel in spacetime.domain if rel not in used
-                      and (b := _bound(rel, x)) is not None
+                      and (b := linear_bound(rel, x)) is not None
                       and not b[1].free_symbols & replaced]
         found = [(rel, b) for rel, b in candidates if bool(b[1].free_symbols) == relative]
         assumed = _assumed_bound(x)

@@ -106,19 +106,37 @@ def domain_plan(spacetime: Spacetime) -> DomainPlan:
 
 
 def _bounds_on(spacetime: Spacetime, x: sympy.Symbol):
-    """(">" or "<", bound) for each domain relation x > bound / x < bound (bound free of
-    coordinates)."""
-    mirrored = {">": "<", ">=": "<=", "<": ">", "<=": ">="}
+    """(">" or "<", bound) for each domain relation that bounds x by an expression free of
+    coordinates (``r > 2*M``, ``3*r < R``), read by ``linear_bound``."""
     for relation in spacetime.domain:
-        if not isinstance(relation, sympy.core.relational.Relational) or (
-                relation.rel_op not in mirrored):
-            continue
-        lhs, rhs, op = relation.lhs, relation.rhs, relation.rel_op
-        if rhs == x and not lhs.has(x):
-            lhs, rhs, op = rhs, lhs, mirrored[op]
-        if lhs != x or rhs.has(*spacetime.coordinates):
-            continue
-        yield (">" if op in (">", ">=") else "<"), rhs
+        found = linear_bound(relation, x)
+        if found is not None and not found[1].has(*spacetime.coordinates):
+            yield (">" if found[0] == "lower" else "<"), found[1]
+
+
+def linear_bound(relation: sympy.Basic, x: sympy.Symbol) -> tuple[str, sympy.Expr, bool] | None:
+    """('lower'|'upper', bound, strict) if ``relation`` bounds ``x`` by an x-free expression:
+    any relation linear in x with a rational coefficient (``8*M < 3*Rs`` bounds Rs below by
+    8*M/3, and M above by 3*Rs/8). A relation with a bare symbol on one side belongs to that
+    symbol (``r > 2*v`` bounds r, not v), so it stays available for it. The sampler and the
+    sign prover read bounds through this one function, so they agree on what a domain says."""
+    if not isinstance(relation, sympy.core.relational.Relational):
+        return None
+    op = relation.rel_op
+    if op not in ("<", "<=", ">", ">="):
+        return None
+    bare = {side for side in (relation.lhs, relation.rhs) if side.is_Symbol}
+    if bare and x not in bare:
+        return None
+    difference = relation.lhs - relation.rhs  # difference OP 0
+    if not difference.has(x):
+        return None
+    coefficient = sympy.diff(difference, x)
+    if not coefficient.is_Rational or coefficient == 0:
+        return None
+    bound = -difference.subs(x, 0) / coefficient
+    lower = (op in (">", ">=")) == (coefficient > 0)
+    return ("lower" if lower else "upper"), bound, op in ("<", ">")
 
 
 def angle_coordinates(spacetime: Spacetime) -> tuple[sympy.Symbol, ...]:

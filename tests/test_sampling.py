@@ -20,6 +20,7 @@ from _known_metrics import (
 from generator.sampling import (
     angle_coordinates,
     inside_domain,
+    linear_bound,
     regular_at,
     sample_points,
     substitute,
@@ -148,3 +149,27 @@ def test_numeric_comparison_rejects_a_small_real_difference() -> None:
     one = sp.cos(sp.Rational(1, 3)) ** 2 + sp.sin(sp.Rational(1, 3)) ** 2
     assert _numerically_differ(one, sp.Integer(1)) is False
     assert _numerically_differ(one, 1 + sp.Rational(1, 10**15)) is True
+
+
+def test_linear_bounds_are_read_once_for_sampler_and_prover() -> None:
+    R = sp.Symbol("R", positive=True)
+    assert linear_bound(2 * r > 3 * M, r) == ("lower", 3 * M / 2, True)
+    assert linear_bound(sp.Ge(r - M, 0), r) == ("lower", M, False)
+    assert linear_bound(3 * r - R < 0, r) == ("upper", R / 3, True)
+    assert linear_bound(3 * r < R, r) is None  # bare R: the relation bounds R ...
+    assert linear_bound(3 * r < R, R) == ("lower", 3 * r, True)  # ... from below by 3r
+    assert linear_bound(sp.Lt(M, r / 3), r) is None  # bare M: the relation bounds M
+    assert linear_bound(r**2 > M, r) is None  # not linear in r
+    assert linear_bound(sp.pi * r < 1, r) is None  # coefficient not rational
+
+
+def test_a_thin_interval_set_by_linear_bounds_is_sampled_directly() -> None:
+    """0.99 R < r < 1.01 R written without a bare symbol: drawn between the bounds, not
+    hoped for by rejection (which finds no such point in its attempts); every point inside."""
+    R = sp.Symbol("R", positive=True)
+    st = spacetime((t, r), (R,), sp.diag(-1, 1),
+                   domain=(100 * r - 99 * R > 0, 100 * r - 101 * R < 0))
+    points = sample_points(st, 6, seed=11)
+    assert len(points) == 6
+    for p in points:
+        assert p[R] * sp.Rational(99, 100) < p[r] < p[R] * sp.Rational(101, 100)
