@@ -32,12 +32,15 @@ class BuildResult:
 def build_site(catalog: Path, out: Path, options: RunOptions,
                publish_verified_only: bool = False,
                on_done: Callable[[EntryReport], None] | None = None,
-               on_running: Callable[[list[str]], None] | None = None) -> BuildResult:
+               on_running: Callable[[list[str]], None] | None = None,
+               prune_cache: bool = False) -> BuildResult:
     """Check every entry, then render the site into ``out`` atomically.
 
     Any failed entry fails the build and leaves the previous site untouched, unless
     ``publish_verified_only`` is set: then the site is written with the verified entries only.
     ``on_done`` and ``on_running`` follow the checks (see ``pipeline.check_files``).
+    ``prune_cache``: once the site is written, delete the cached reports, cards and views this
+    build did not use (for a cache kept between CI runs; see ``cache.prune``).
     """
     if not (catalog / "tags.yaml").is_file():
         raise UsageError(f"{catalog} is not a catalog folder (no tags.yaml)")
@@ -51,9 +54,21 @@ def build_site(catalog: Path, out: Path, options: RunOptions,
               file=sys.stderr)
         return BuildResult(False, tuple(reports), refused)
     meta = catalog_meta(catalog, options.cache_dir)
-    render_atomically(reports, meta, out, options.cache_dir)
+    views = render_atomically(reports, meta, out, options.cache_dir)
+    if prune_cache and options.cache_dir is not None:
+        prune_unused(options.cache_dir, reports, views)
     print(f"site written to {out}/ ({len(reports) - len(refused)} entries)", file=sys.stderr)
     return BuildResult(not refused, tuple(reports), refused)
+
+
+def prune_unused(cache_dir: Path, reports: list[EntryReport], views: set[str]) -> None:
+    from .cache import REPORT_SUFFIX, prune
+    from .pipeline import TWIN_CARD_SUFFIX
+    from .render import VIEW_SUFFIX
+
+    used = {r.inputs_key for r in reports if r.inputs_key}
+    removed = prune(cache_dir, {REPORT_SUFFIX: used, TWIN_CARD_SUFFIX: used, VIEW_SUFFIX: views})
+    print(f"cache pruned: {removed} unused files removed from {cache_dir}", file=sys.stderr)
 
 
 def report_problems(reports: list[EntryReport]) -> None:
@@ -95,9 +110,10 @@ def _revisions(project: Path, catalog: Path, cache_dir: Path | None) -> dict:
 
 
 def render_atomically(reports: list[EntryReport], meta: CatalogMeta, out: Path,
-                      cache_dir: Path | None = None) -> None:
+                      cache_dir: Path | None = None) -> set[str]:
     """Render into a fresh sibling folder, then swap it in, so readers never see half a site.
-    With a cache folder, entry views are kept there between builds (``render.kept_view``)."""
+    With a cache folder, entry views are kept there between builds (``render.kept_view``);
+    returns the keys of the views used."""
     from .cache import ResultCache
     from .render import VIEW_SUFFIX, render_site
 
@@ -109,7 +125,7 @@ def render_atomically(reports: list[EntryReport], meta: CatalogMeta, out: Path,
     recover_interrupted_swap(out, old)
     staging = Path(tempfile.mkdtemp(prefix=f".{out.name}.building-", dir=out.parent))
     try:
-        render_site(reports, meta, staging, kept)
+        views = render_site(reports, meta, staging, kept)
     except BaseException:
         shutil.rmtree(staging, ignore_errors=True)
         raise
@@ -119,6 +135,7 @@ def render_atomically(reports: list[EntryReport], meta: CatalogMeta, out: Path,
     os.replace(staging, out)
     os.chmod(out, 0o755)
     shutil.rmtree(old, ignore_errors=True)
+    return views
 
 
 def recover_interrupted_swap(out: Path, old: Path) -> None:

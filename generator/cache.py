@@ -27,6 +27,7 @@ from . import __version__
 from .model import EntryReport
 
 FORMAT = b"almanac-cache-1\n"
+REPORT_SUFFIX = ".bin"
 SECRET_ENV = "ALMANAC_CACHE_SECRET"
 
 
@@ -91,7 +92,7 @@ def _secret() -> bytes:
 class ResultCache:
     """A folder of signed result files named by their key."""
 
-    def __init__(self, folder: Path, suffix: str = ".bin") -> None:
+    def __init__(self, folder: Path, suffix: str = REPORT_SUFFIX) -> None:
         """``suffix`` tells kinds of files apart under one key: reports are ``.bin``; a small
         object kept beside a report (the duplicate search's card) has its own suffix."""
         self.folder = folder
@@ -133,3 +134,20 @@ class ResultCache:
         except BaseException:
             Path(tmp).unlink(missing_ok=True)
             raise
+
+
+def prune(folder: Path, keep: dict[str, set[str]]) -> int:
+    """Delete the cache files of the kinds in ``keep`` (suffix → keys still in use) whose key
+    is not in use; returns how many went. Files of other kinds are left alone.
+
+    A cache kept between CI runs otherwise grows by a generation of reports and views with
+    every change to the generator; after a full build, what it did not use is what no later
+    run of this catalog will ask for.
+    """
+    removed = 0
+    for suffix, keys in keep.items():
+        for path in sorted(folder.glob(f"??/*{suffix}")):
+            if path.name[: -len(suffix)] not in keys:
+                path.unlink(missing_ok=True)
+                removed += 1
+    return removed

@@ -53,6 +53,9 @@ def build_parser() -> argparse.ArgumentParser:
     build.add_argument("--publish-verified-only", action="store_true",
                        help="write the site with the verified entries even if others failed "
                        "(the exit status still reports the failures)")
+    build.add_argument("--prune-cache", action="store_true",
+                       help="after the build, delete cached results it did not use (keeps a "
+                       "cache that CI saves between runs from growing)")
     _add_run_options(build)
 
     serve = commands.add_parser("serve", help="preview the site on 127.0.0.1, rebuilding on "
@@ -108,7 +111,7 @@ def _dispatch(args: argparse.Namespace) -> int:
 
         on_done, on_running = _progress_printer(args, len(entry_files([args.catalog])))
         result = build_site(args.catalog, args.out, _options(args), args.publish_verified_only,
-                            on_done, on_running)
+                            on_done, on_running, args.prune_cache)
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "serve":
         from .build import serve_site

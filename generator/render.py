@@ -106,13 +106,15 @@ class RenderError(AlmanacError):
 
 
 def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path,
-                kept_views: ResultCache | None = None) -> None:
+                kept_views: ResultCache | None = None) -> set[str]:
     """Write the complete site for the published (ok) reports into ``out_dir``.
 
-    ``kept_views``: where entry views made by earlier builds are kept (see ``kept_view``)."""
+    ``kept_views``: where entry views made by earlier builds are kept (see ``kept_view``).
+    Returns the keys of the views this site is made of (what a pruned cache keeps)."""
     published = published_reports(reports, meta)
     ids = frozenset(r.entry.id for r in published if r.entry is not None)
-    views = {r.entry.id: kept_view(r, meta, ids, kept_views)
+    keys = {r.entry.id: view_key(r, meta, ids) for r in published if r.entry is not None}
+    views = {r.entry.id: kept_view(r, meta, ids, kept_views, keys[r.entry.id])
              for r in published if r.entry is not None}
     cards = [views[r.entry.id].card for r in published if r.entry is not None]
     env = template_environment()
@@ -128,6 +130,7 @@ def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path
     if SCHEMA_FILE.is_file():
         (out_dir / "schema").mkdir(parents=True, exist_ok=True)
         shutil.copyfile(SCHEMA_FILE, out_dir / "schema" / "entry.schema.json")
+    return {key for key in keys.values() if key is not None}
 
 
 SLUG = re.compile(r"^[a-z0-9][a-z0-9-]*$")
@@ -378,14 +381,13 @@ RENDER_LIBRARIES = ("matplotlib", "latex2mathml", "markdown", "nh3", "markupsafe
 
 
 def kept_view(report: EntryReport, meta: CatalogMeta, published_ids: frozenset[str],
-              shelf: ResultCache | None) -> EntryView:
-    """``entry_view``, kept under a key of everything it is made from.
+              shelf: ResultCache | None, key: str | None) -> EntryView:
+    """``entry_view``, kept under ``key`` (``view_key``: everything it is made from).
 
     Once the checks come from the cache, plots and typesetting are nearly all of a build's
     time; a rebuild then makes views only for the entries that changed (or whose
     surroundings in the catalog did: families, tags, revisions, which entries are published).
     """
-    key = view_key(report, meta, published_ids) if shelf is not None else None
     if shelf is not None and key is not None:
         found = shelf.get(key, EntryView)
         if found is not None:

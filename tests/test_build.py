@@ -145,3 +145,52 @@ def test_the_view_key_names_everything_a_view_is_made_from(project: Path) -> Non
     ]
     assert key not in changed and len(set(changed)) == len(changed)
     assert view_key(replace(report, inputs_key=""), meta, ids) is None
+
+
+def test_a_pruned_cache_keeps_exactly_what_the_last_build_used(project: Path,
+                                                               monkeypatch: pytest.MonkeyPatch
+                                                               ) -> None:
+    from generator import render
+    from generator.cache import SECRET_ENV
+
+    monkeypatch.setenv(SECRET_ENV, "build-test-secret")
+    cache = project / "cache"
+    cached = RunOptions(jobs=1, cache_dir=cache)
+
+    def kept(suffix: str) -> set[str]:
+        return {p.name for p in cache.glob(f"??/*{suffix}")}
+
+    assert build_site(project / "catalog", project / "site", cached).ok
+    before = {suffix: kept(suffix) for suffix in (".bin", ".card", ".view")}
+    assert all(len(names) == 1 for names in before.values())
+    (cache / "notes.txt").write_text("not a cache file of ours")
+    entry = project / "catalog" / "riemannian" / "lighthouse-dome.yaml"
+    entry.write_text(entry.read_text().replace("title: Lighthouse dome", "title: Lighthouse"))
+
+    assert build_site(project / "catalog", project / "site", cached, prune_cache=True).ok
+    for suffix, old in before.items():
+        now = kept(suffix)
+        assert len(now) == 1 and not now & old, suffix  # the edited entry's new files only
+    assert (cache / "notes.txt").is_file()
+
+    made: list[str] = []
+    real = render.entry_view
+    monkeypatch.setattr(render, "entry_view",
+                        lambda report, meta, ids=frozenset(): made.append(report.entry.id)
+                        or real(report, meta, ids))
+    assert build_site(project / "catalog", project / "site", cached, prune_cache=True).ok
+    assert made == [] and {s: len(kept(s)) for s in before} == {s: 1 for s in before}
+
+
+def test_the_command_line_prunes_on_request(project: Path, monkeypatch: pytest.MonkeyPatch,
+                                            capsys: pytest.CaptureFixture[str]) -> None:
+    from generator.cache import SECRET_ENV
+    from generator.cli import main
+
+    monkeypatch.setenv(SECRET_ENV, "build-test-secret")
+    stale = project / "cache" / "ab" / ("ab" + "0" * 62 + ".view")
+    stale.parent.mkdir(parents=True)
+    stale.write_bytes(b"left by an older build")
+    assert main(["build", "--jobs", "1", "--cache-dir", "cache", "--prune-cache"]) == 0
+    assert not stale.exists()
+    assert "cache pruned: 1 unused files removed" in capsys.readouterr().err
