@@ -64,7 +64,8 @@ def load_entry(path: Path, display: str | None = None, vocabulary: Vocabulary | 
     """Load one entry file; ``display`` is the path shown in diagnostics.
 
     ``with_math=False`` stops after the entry's structure (no metric is built): enough for
-    cross-references between entries, and what a one-entry check needs of the other entries.
+    cross-references between entries (``catalog.outline_all`` uses it for a file its quick
+    reading finds unusual, so that the loader's diagnostics speak).
     """
     file = display or str(path)
     source, problem = _read_source(path, file)
