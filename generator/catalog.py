@@ -15,7 +15,7 @@ import yaml
 from .errors import Diagnostic, SourcePos, UsageError
 from .loader import LoadResult, Vocabulary, load_entry
 from .model import Family, Tag
-from .yamlcheck import MAX_FILE_BYTES
+from .yamlcheck import MAX_FILE_BYTES, node_position, read_nodes
 
 ENTRY_SUFFIXES = (".yaml", ".yml")
 VOCABULARY_FILES = ("tags.yaml", "families.yaml")
@@ -126,22 +126,20 @@ def outline_all(files: Iterable[Path], root: Path | None, base: Path) -> list[Ou
 
 
 def peek_outline(path: Path, display: str) -> Outline | None:
-    """The id and links of a well-formed entry from libyaml's node tree, without validating
-    the rest (about five times quicker than the structure load); None when anything is
-    unusual, so that the full loader, with its diagnostics, decides instead.
-
-    Composing builds nodes only (no object is constructed, and an alias is a shared node, not
-    a copy), and only the top-level ``id`` and ``related`` nodes are visited.
+    """The id and links of a well-formed entry from its YAML node tree (``read_nodes``: the
+    same safe reading as the loader's), without validating the rest — a few times quicker
+    than the structure load; None when anything is unusual, so that the full loader,
+    with its diagnostics, decides instead. Only the top-level ``id`` and ``related`` nodes
+    are visited.
     """
-    fast = getattr(yaml, "CSafeLoader", None)
     try:
         raw = path.read_bytes()
-        if fast is None or len(raw) > MAX_FILE_BYTES:
+        if len(raw) > MAX_FILE_BYTES:
             return None
-        node = yaml.compose(raw.decode("utf-8"), Loader=fast)
-    except (OSError, UnicodeDecodeError, yaml.YAMLError):
+        node, problems = read_nodes(display, raw.decode("utf-8"))
+    except (OSError, UnicodeDecodeError):
         return None
-    if not isinstance(node, yaml.MappingNode):
+    if problems or not isinstance(node, yaml.MappingNode):
         return None
     top = {key.value: value for key, value in node.value if isinstance(key, yaml.ScalarNode)}
     identity = top.get("id")
@@ -158,16 +156,12 @@ def peek_outline(path: Path, display: str) -> Outline | None:
             named = {k.value: v for k, v in item.value if isinstance(k, yaml.ScalarNode)}
             if not _is_plain_text(named.get("entry")):
                 return None
-            links.append((named["entry"].value, _mark(display, item)))
-    return Outline(display, identity.value, _mark(display, identity), tuple(links))
+            links.append((named["entry"].value, node_position(display, item)))
+    return Outline(display, identity.value, node_position(display, identity), tuple(links))
 
 
 def _is_plain_text(node: yaml.Node | None) -> bool:
     return isinstance(node, yaml.ScalarNode) and node.tag == "tag:yaml.org,2002:str"
-
-
-def _mark(file: str, node: yaml.Node) -> SourcePos:
-    return SourcePos(file, node.start_mark.line + 1, node.start_mark.column + 1)
 
 
 def cross_entry_diagnostics(outlines: Sequence[Outline], known_ids: set[str]

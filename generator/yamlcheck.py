@@ -39,6 +39,11 @@ class Validated:
     diagnostics: list[Diagnostic] = field(default_factory=list)
 
 
+def node_position(file: str, node: yaml.Node) -> SourcePos:
+    """Where a node starts, 1-based (YAML marks count from 0)."""
+    return SourcePos(file, node.start_mark.line + 1, node.start_mark.column + 1)
+
+
 class _Checker:
     def __init__(self, file: str, source: str) -> None:
         self.file = file
@@ -48,7 +53,7 @@ class _Checker:
 
     # -- helpers
     def pos(self, node: yaml.Node) -> SourcePos:
-        return SourcePos(self.file, node.start_mark.line + 1, node.start_mark.column + 1)
+        return node_position(self.file, node)
 
     def error(self, node: yaml.Node, message: str, code: str, hint: str = "") -> None:
         self.out.diagnostics.append(Diagnostic.at(self.pos(node), "error", message, code, hint))
