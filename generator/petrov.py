@@ -27,13 +27,13 @@ from dataclasses import dataclass, field
 
 import sympy
 
-from .algebra import FieldRequest, Frac, NotInField, RationalField, build_field
+from .algebra import FieldRequest, Frac, NotInField, RationalField, build_field, pairs
 from .equality import nonzero_in_field
 from .exactvalues import Point, sign_at, vanishes
 from .geometry import WeylOperator, independent_index
 from .model import Geometry, Index, Spacetime
 
-PAIRS = [(0, 1), (0, 2), (0, 3), (1, 2), (1, 3), (2, 3)]
+PAIRS = pairs(4)  # the engine's order of index pairs: its Weyl operator uses it too
 PSI_SIZE_LIMIT = 400  # operations in the Weyl components or the frame; beyond: Ψ's not shown
 
 
@@ -206,14 +206,13 @@ def field_operators(geometry: Geometry, spacetime: Spacetime) -> WeylOperator:
                            (*lower, *g2, *geometry.metric, *weyl), 0)
     field, values = build_field(request)
 
-    def grid(flat: Sequence[Frac]) -> tuple[tuple[Frac, ...], ...]:
-        size = round(len(flat) ** 0.5)
+    def grid(flat: Sequence[Frac], size: int) -> tuple[tuple[Frac, ...], ...]:
         return tuple(tuple(flat[size * i: size * i + size]) for i in range(size))
 
-    G2 = grid(values[36:72])
-    operator = FieldAlgebra(field, spacetime).matmul(G2, grid(values[:36]))
-    return WeylOperator(field, tuple(values[88:]), grid([v for row in operator for v in row]),
-                        G2, grid(values[72:88]))
+    G2 = grid(values[36:72], 6)
+    operator = FieldAlgebra(field, spacetime).matmul(G2, grid(values[:36], 6))
+    return WeylOperator(field, tuple(values[88:]), tuple(map(tuple, operator)), G2,
+                        grid(values[72:88], 4))
 
 
 def determinant(field: RationalField, m: Sequence[Sequence[Frac]]) -> Frac:

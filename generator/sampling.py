@@ -367,7 +367,7 @@ def regular_at(
 ) -> bool:
     """The metric is finite, real and non-degenerate at the point.
 
-    Judged on 30-digit values computed straight from the point (``numeric_at``): a
+    Judged on 30-digit values computed straight from the point (``numeric_memo``): a
     determinant within 1e-25 of zero counts as degenerate, which at worst costs a sample.
     """
     n = spacetime.dimension
