@@ -28,7 +28,9 @@ def _add_run_options(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--no-cache", action="store_true", help="recompute everything")
     parser.add_argument("--scheduler", metavar="ADDRESS",
                         help="spread entries over a Dask distributed scheduler (tcp://host:port)")
-    parser.add_argument("--progress", action="store_true", help="show a progress bar")
+    parser.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
+                        help="show a progress bar naming the entries being checked (default: "
+                        "when standard error is a terminal)")
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -168,10 +170,19 @@ def run_check(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def wants_progress(choice: bool | None, stream) -> bool:
+    """The bar is on when asked for, and by default on a terminal: someone watching a long
+    build sees which entry holds it up, while logs and pipes get no carriage-return noise."""
+    if choice is not None:
+        return choice
+    isatty = getattr(stream, "isatty", None)
+    return bool(isatty and isatty())
+
+
 def _progress_printer(args: argparse.Namespace, total: int):
     """(on_done, on_running) for ``check_files``: a tqdm bar counting entries (cached ones
     too) whose label names the entries being checked right now."""
-    if not args.progress:
+    if not wants_progress(args.progress, sys.stderr):
         return None, None
     from tqdm import tqdm
 

@@ -16,7 +16,7 @@ import pytest
 import sympy
 from sympy.parsing.sympy_parser import parse_expr
 
-from generator.cli import main
+from generator.cli import main, wants_progress
 
 DEMO = Path(__file__).parent / "roots" / "demo-catalog" / "catalog"
 CONTRACT_KEYS = {"dimension", "signature", "ricci_scalar", "kretschmann", "ricci_squared",
@@ -50,6 +50,31 @@ def test_progress_bar_names_the_entry_being_checked(catalog: Path,
     assert status == 0, err
     assert "checking lighthouse-dome" in err
     assert "1/1" in err
+
+
+def test_no_progress_bar_by_default_in_a_pipe_or_when_refused(
+        catalog: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    for refusal in ([], ["--no-progress"]):
+        status, _, err = run(["check", "catalog/riemannian/lighthouse-dome.yaml", *refusal],
+                             capsys)
+        assert status == 0, err
+        assert "checking lighthouse-dome" not in err and "1/1" not in err
+
+
+class _Stream:
+    def __init__(self, terminal: bool) -> None:
+        self.terminal = terminal
+
+    def isatty(self) -> bool:
+        return self.terminal
+
+
+def test_progress_bar_defaults_to_on_for_a_terminal_only() -> None:
+    assert wants_progress(None, _Stream(True))
+    assert not wants_progress(None, _Stream(False))
+    assert not wants_progress(None, object())  # a stream that cannot tell
+    assert wants_progress(True, _Stream(False))
+    assert not wants_progress(False, _Stream(True))
 
 
 @pytest.mark.slow
