@@ -2,7 +2,8 @@
 
 Used for energy conditions, where "holds" must mean *proved*. The method is deliberately
 simple and sound: every domain bound ``x > e`` is replaced by ``x = e + s`` with a fresh
-positive slack ``s`` (so every point of the domain is reached), sin of an angle in (0, π) by a
+positive slack ``s`` (so every point of the domain is reached; for a positive x bounded only
+through its square, ``x² > e`` gives ``x = √(e + s)``), sin of an angle in (0, π) by a
 positive symbol, free functions by symbols with their declared sign and their derivatives by
 real symbols. The result must then be a quotient of products of factors that SymPy's
 assumption system sees as nonnegative (sums of positive terms, even powers, ...). Square roots
@@ -66,6 +67,12 @@ def domain_substitution(spacetime: Spacetime) -> list[dict[sympy.Basic, sympy.Ex
         if assumed is not None:  # kept with a domain bound on the other side (never alone)
             candidates.append((sympy.true, assumed))
         if not found:
+            squared = _square_bound(spacetime.domain, x, used, replaced, relative)
+            if squared is not None:
+                relation, root = squared
+                used.add(relation)
+                replaced.add(x)
+                steps.append({x: root})
             continue
         bounds = [b for _, b in found]
         if _is_angle_interval(x, bounds):
@@ -90,6 +97,42 @@ def domain_substitution(spacetime: Spacetime) -> list[dict[sympy.Basic, sympy.Ex
 
 
 Bound = tuple[str, sympy.Expr, bool]  # side, bound, strict
+
+
+def square_lower_bound(relation: sympy.Basic, x: sympy.Symbol) -> Bound | None:
+    """A lower bound on x² from a relation in which a positive x occurs only squared
+    (``3*r**2 < Rt**2 - A**2`` bounds Rt² below by A² + 3r²), read as a bound on a stand-in
+    for x² by ``linear_bound``. For x > 0 every point with x² ≥ b is x = √(b + s), s ≥ 0,
+    so the substitution reaches the whole domain; upper bounds are not used (x = √(b − s)
+    would need b − s ≥ 0, which nothing proves)."""
+    if not x.is_positive or not isinstance(relation, sympy.core.relational.Relational):
+        return None
+    square = sympy.Dummy(f"{x}_squared", positive=True)
+    sides = [sympy.expand(side).subs(x**2, square) for side in (relation.lhs, relation.rhs)]
+    if any(side.has(x) for side in sides):
+        return None
+    bound = linear_bound(sympy.core.relational.Relational(*sides, relation.rel_op), square)
+    if bound is None or bound[0] != "lower" or bound[1].has(square):
+        return None
+    return bound
+
+
+def _square_bound(domain: tuple[sympy.Basic, ...], x: sympy.Symbol, used: set[sympy.Basic],
+                  replaced: set[sympy.Basic], relative: bool
+                  ) -> tuple[sympy.Basic, sympy.Expr] | None:
+    """(relation, √(b + s)) for the first unused relation giving x² a lower bound b, in the
+    same pass as ``domain_substitution``'s linear bounds (bounds on other symbols first)."""
+    for relation in domain:
+        if relation in used:
+            continue
+        found = square_lower_bound(relation, x)
+        if found is None or found[1].free_symbols & replaced:
+            continue
+        if bool(found[1].free_symbols) != relative:
+            continue
+        _, bound, strict = found
+        return relation, sympy.sqrt(bound + _slack(f"{x}_squared", strict))
+    return None
 
 
 def _open_interval(candidates: list[tuple[sympy.Basic, Bound]]

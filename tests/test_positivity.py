@@ -89,3 +89,63 @@ def test_a_bound_on_a_bare_coordinate_stays_with_that_coordinate() -> None:
     assert proves_sign(r - 2 * v, vaidya, strict=True)
     assert proves_sign(r - v, vaidya, strict=True)
     assert not proves_sign(v - r, vaidya)
+
+
+# ---------------------------------------------------------------------------- squared bounds
+# Tolman's solution IV (R. C. Tolman, "Static solutions of Einstein's field equations for
+# spheres of fluid", Phys. Rev. 55, 364, 1939; listed in M. S. R. Delgaty and K. Lake,
+# Comput. Phys. Commun. 115, 395, 1998), in the form of the catalog entry (whose density and
+# pressure the engine verifies from the metric): the surface p = 0 is at 3r² = Rt² − A², so
+# the star is the domain 3r² < Rt² − A². There 8πRt²(A² + 2r²)²(ρ + 3p) =
+# 6A⁴ + 18A²r² + 12r⁴ + (6A² + 8r²)s with Rt² = A² + 3r² + s (checked by expansion below).
+
+A_, Rt = sp.symbols("A Rt", positive=True)
+
+
+def tolman_iv(*domain: sp.Basic):
+    return spacetime((t, r, theta, phi), (A_, Rt), PLACEHOLDER,
+                     domain=domain or (sp.Lt(0, r), sp.Lt(3 * r**2, Rt**2 - A_**2)))
+
+
+def tolman_iv_fluid() -> tuple[sp.Expr, sp.Expr]:
+    rho = ((3 * A_**4 + 3 * A_**2 * Rt**2 + 7 * A_**2 * r**2 + 2 * Rt**2 * r**2 + 6 * r**4)
+           / (8 * sp.pi * Rt**2 * (A_**2 + 2 * r**2) ** 2))
+    p = (Rt**2 - A_**2 - 3 * r**2) / (8 * sp.pi * Rt**2 * (A_**2 + 2 * r**2))
+    return rho, p
+
+
+def test_the_slack_form_of_tolman_iv_is_a_sum_of_positive_terms() -> None:
+    rho, p = tolman_iv_fluid()
+    s = sp.Symbol("s", positive=True)
+    scaled = sp.cancel((rho + 3 * p) * 8 * sp.pi * Rt**2 * (A_**2 + 2 * r**2) ** 2)
+    expected = 6 * A_**4 + 18 * A_**2 * r**2 + 12 * r**4 + (6 * A_**2 + 8 * r**2) * s
+    assert sp.expand(scaled.subs(Rt**2, A_**2 + 3 * r**2 + s) - expected) == 0
+
+
+@pytest.mark.parametrize("name", ["rho + 3p", "rho + p", "rho - p", "p"])
+def test_tolman_iv_satisfies_the_energy_conditions_inside_the_star(name: str) -> None:
+    rho, p = tolman_iv_fluid()
+    expr = {"rho + 3p": rho + 3 * p, "rho + p": rho + p, "rho - p": rho - p, "p": p}[name]
+    assert proves_sign(expr, tolman_iv(), strict=name != "p")
+
+
+def test_tolman_iv_outside_the_star_is_not_proved() -> None:
+    # With Rt > A only (the surface bound forgotten) the pressure is negative for large r and
+    # ρ + 3p too (its numerator ends in −12r⁴): a proof there would be unsound.
+    rho, p = tolman_iv_fluid()
+    too_wide = tolman_iv(sp.Lt(0, r), sp.Lt(A_, Rt))
+    assert not proves_sign(rho + 3 * p, too_wide)
+    assert not proves_sign(p, too_wide)
+
+
+def test_only_lower_bounds_of_a_positive_square_are_used() -> None:
+    from generator.positivity import square_lower_bound
+
+    inside = sp.Lt(3 * r**2, Rt**2 - A_**2)
+    assert square_lower_bound(inside, Rt) == ("lower", A_**2 + 3 * r**2, True)
+    assert square_lower_bound(inside, A_) is None  # an upper bound on A²
+    assert square_lower_bound(inside, r) is None  # r is not declared positive
+    assert square_lower_bound(sp.Lt(Rt**3, A_), Rt) is None  # not through the square only
+    # an upper bound on Rt² must not be read as a lower one: Rt² < A² does not make Rt > A
+    assert not proves_sign(Rt - A_, tolman_iv(sp.Lt(Rt**2, A_**2)))
+    assert proves_sign(Rt - A_, tolman_iv(sp.Lt(A_**2, Rt**2)), strict=True)
