@@ -186,3 +186,31 @@ def cross_entry_diagnostics(outlines: Sequence[Outline], known_ids: set[str]
                     where, "error", f"related entry '{target}' does not exist",
                     "catalog.related", "use the id of an entry in the catalog"))
     return out
+
+
+def chart_groups(outlines: Iterable[Outline]) -> dict[str, str]:
+    """Entry id → the first id (in sort order) of the entries joined to it by ``related``
+    links, in either direction and through chains.
+
+    Charts of one spacetime are not duplicates of each other: a new Schwarzschild chart that
+    maps onto the Schwarzschild entry must not be warned as a twin of the Kruskal–Szekeres
+    entry, which maps there too. The links are the declared ones; a link that does not verify
+    makes its entry fail anyway.
+    """
+    parent: dict[str, str] = {}
+
+    def root(entry_id: str) -> str:
+        parent.setdefault(entry_id, entry_id)
+        while parent[entry_id] != entry_id:
+            parent[entry_id] = parent[parent[entry_id]]
+            entry_id = parent[entry_id]
+        return entry_id
+
+    for outline in outlines:
+        if outline.id is None:
+            continue
+        for target, _ in outline.links:
+            a, b = root(outline.id), root(target)
+            parent[max(a, b)] = min(a, b)
+        root(outline.id)
+    return {entry_id: root(entry_id) for entry_id in sorted(parent)}

@@ -19,6 +19,7 @@ from pathlib import Path
 from .cache import ResultCache, cache_key
 from .catalog import (
     Outline,
+    chart_groups,
     cross_entry_diagnostics,
     display_path,
     entry_files,
@@ -120,9 +121,11 @@ def check_files(
     reports = _run(tasks, options, Progress(on_done, on_running))
     twins: dict[str, list[Diagnostic]] = {}
     if len(reports) <= TWIN_SEARCH_MAX_ENTRIES:
-        others = _twin_candidates(reports, outlines, set(chosen), by_id, root, base, options)
+        groups = chart_groups(outlines)
+        others = _twin_candidates(reports, outlines, set(chosen), by_id, root, base, options,
+                                  groups)
         twins = twin_warnings(reports, [*reports, *others.reports], others.ranks,
-                              others.keep_ranks)
+                              others.keep_ranks, groups)
     return [_with_extra(report, cross.get(report.file, []) + twins.get(report.file, []))
             for report in reports]
 
@@ -148,7 +151,7 @@ class _Candidates:
 
 def _twin_candidates(new: list[EntryReport], outlines: list[Outline], selected: set[Outline],
                      by_id: dict[str, Outline], root: Path | None, base: Path,
-                     options: RunOptions) -> _Candidates:
+                     options: RunOptions, groups: dict[str, str]) -> _Candidates:
     """Never computed here (a one-entry check stays quick, and CI keeps the cache of the last
     full build): only entries already in the cache take part, and only those whose card shows
     they could be a twin have their whole report loaded."""
@@ -163,7 +166,7 @@ def _twin_candidates(new: list[EntryReport], outlines: list[Outline], selected: 
             continue
         key = cache_key(_task(outline, by_id, root, base, options))
         card = _card(cache, cards, key)
-        if card is None or not any(worth_comparing(mine, card) for mine in new_cards):
+        if card is None or not any(worth_comparing(mine, card, groups) for mine in new_cards):
             continue
         report = cache.get(key)
         if report is not None:
@@ -200,15 +203,17 @@ def _twin_search_stopped(report: EntryReport) -> Diagnostic:
 
 def twin_warnings(new: list[EntryReport], catalog: list[EntryReport],
                   known_ranks: dict[str, int] | None = None,
-                  keep_ranks: Callable[[dict[str, int]], None] | None = None
+                  keep_ranks: Callable[[dict[str, int]], None] | None = None,
+                  groups: dict[str, str] | None = None,
                   ) -> dict[str, list[Diagnostic]]:
-    """Warnings for entries whose spacetime is probably already in the catalog."""
+    """Warnings for entries whose spacetime is probably already in the catalog (never for
+    charts joined to it by ``related`` links, directly or through chains: ``groups``)."""
     from .twins import search_twins, twin_diagnostics
 
     verified = [r for r in new if r.ok]
     try:
         search = run_limited(search_twins, verified, [r for r in catalog if r.ok],
-                             known_ranks or {}, seconds=TWIN_SEARCH_SECONDS,
+                             known_ranks or {}, groups or {}, seconds=TWIN_SEARCH_SECONDS,
                              memory_bytes=MEMORY_PER_ENTRY)
     except BudgetExceeded:
         return {r.file: [_twin_search_stopped(r)] for r in verified}

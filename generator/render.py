@@ -31,6 +31,7 @@ from jinja2 import Environment, FileSystemLoader, StrictUndefined, select_autoes
 from markupsafe import Markup, escape
 
 from . import cite, export, mathtex, plots
+from .atlas import MAPS_HERE, ChartLink, chart_links
 from .cache import ResultCache, library_versions
 from .errors import AlmanacError
 from .mathparse import parse_inequality, parse_math, table_from_symbols
@@ -113,8 +114,11 @@ def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path
     Returns the keys of the views this site is made of (what a pruned cache keeps)."""
     published = published_reports(reports, meta)
     ids = frozenset(r.entry.id for r in published if r.entry is not None)
-    keys = {r.entry.id: view_key(r, meta, ids) for r in published if r.entry is not None}
-    views = {r.entry.id: kept_view(r, meta, ids, kept_views, keys[r.entry.id])
+    links = chart_links(published)
+    keys = {r.entry.id: view_key(r, meta, ids, links[r.entry.id])
+            for r in published if r.entry is not None}
+    views = {r.entry.id: kept_view(r, meta, ids, kept_views, keys[r.entry.id],
+                                   links[r.entry.id])
              for r in published if r.entry is not None}
     cards = [views[r.entry.id].card for r in published if r.entry is not None]
     env = template_environment()
@@ -357,14 +361,17 @@ class EntryView:
 
 
 def entry_view(
-    report: EntryReport, meta: CatalogMeta, published_ids: frozenset[str] = frozenset()
+    report: EntryReport, meta: CatalogMeta, published_ids: frozenset[str] = frozenset(),
+    links: tuple[ChartLink, ...] = (),
 ) -> EntryView:
+    """``links``: the other charts of this spacetime that the entry does not map to itself
+    (``atlas.chart_links``)."""
     entry = report.entry
     assert entry is not None
     figures = plots.entry_plots(report)
     card = entry_card(report, meta)
-    page = entry_page_data(report, meta, card, figures, published_ids)
-    data = entry_json(report, meta)
+    page = entry_page_data(report, meta, card, figures, published_ids, links)
+    data = entry_json(report, meta, published_ids, links)
     return EntryView(
         card=card,
         page=page,
@@ -381,7 +388,8 @@ RENDER_LIBRARIES = ("matplotlib", "latex2mathml", "markdown", "nh3", "markupsafe
 
 
 def kept_view(report: EntryReport, meta: CatalogMeta, published_ids: frozenset[str],
-              shelf: ResultCache | None, key: str | None) -> EntryView:
+              shelf: ResultCache | None, key: str | None,
+              links: tuple[ChartLink, ...] = ()) -> EntryView:
     """``entry_view``, kept under ``key`` (``view_key``: everything it is made from).
 
     Once the checks come from the cache, plots and typesetting are nearly all of a build's
@@ -392,14 +400,14 @@ def kept_view(report: EntryReport, meta: CatalogMeta, published_ids: frozenset[s
         found = shelf.get(key, EntryView)
         if found is not None:
             return found
-    view = entry_view(report, meta, published_ids)
+    view = entry_view(report, meta, published_ids, links)
     if shelf is not None and key is not None:
         shelf.put(key, view)
     return view
 
 
-def view_key(report: EntryReport, meta: CatalogMeta, published_ids: frozenset[str]
-             ) -> str | None:
+def view_key(report: EntryReport, meta: CatalogMeta, published_ids: frozenset[str],
+             links: tuple[ChartLink, ...] = ()) -> str | None:
     """Hash of what ``entry_view`` reads: the report (by the hash of its inputs, which covers
     the generator's source and the computing libraries), the diagnostics added after checking
     it, the catalog-wide data an entry page shows, and the versions of the rendering
@@ -410,7 +418,7 @@ def view_key(report: EntryReport, meta: CatalogMeta, published_ids: frozenset[st
     parts = (
         report.inputs_key, repr(report.diagnostics), meta.version, meta.generator_version,
         meta.sympy_version, meta.base_url, repr(meta.families), repr(meta.tags),
-        repr(meta.revisions.get(entry.id, ())), repr(sorted(published_ids)),
+        repr(meta.revisions.get(entry.id, ())), repr(sorted(published_ids)), repr(links),
         library_versions(RENDER_LIBRARIES),
     )
     return hashlib.sha256("\0".join(parts).encode()).hexdigest()
@@ -448,6 +456,7 @@ def entry_page_data(
     card: dict[str, Any],
     figures: Sequence[plots.Plot],
     published_ids: frozenset[str],
+    links: tuple[ChartLink, ...] = (),
 ) -> dict[str, Any]:
     entry = report.entry
     assert entry is not None
@@ -461,6 +470,8 @@ def entry_page_data(
         "matter": matter_data(report, verdicts),
         "symmetry": symmetry_data(report, verdicts),
         "related": related_rows(report, published_ids),
+        "maps_onto_here": [chart_link_row(link) for link in links if link.kind == MAPS_HERE],
+        "charts_through": [chart_link_row(link) for link in links if link.kind != MAPS_HERE],
         "references": [reference_data(r) for r in entry.references],
         "checks": [verdict_row(v) for v in report.verdicts],
         "provenance": {
@@ -789,6 +800,19 @@ def related_rows(report: EntryReport, published_ids: frozenset[str]) -> list[dic
     return rows
 
 
+def chart_link_row(link: ChartLink) -> dict[str, Any]:
+    """One chart of this spacetime that another entry, or a chain of entries, joins to this
+    one (all published, so every link has a page)."""
+    return {
+        "entry": link.entry,
+        "href": f"../{link.entry}/index.html",
+        "chart": link.chart,
+        "map": [{"coordinate": name, "text": text} for name, text in link.map],
+        "method_label": METHOD_LABELS.get(link.method, link.method),
+        "route": [{"entry": step, "href": f"../{step}/index.html"} for step in link.route],
+    }
+
+
 def reference_data(reference: Reference) -> dict[str, Any]:
     unconfirmed = set(reference.unconfirmed)
     return {
@@ -888,7 +912,9 @@ def expr_text(expr: sympy.Basic | None) -> str | None:
     return None if expr is None else sympy.sstr(expr, order="lex")
 
 
-def entry_json(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
+def entry_json(report: EntryReport, meta: CatalogMeta,
+               published_ids: frozenset[str] = frozenset(),
+               links: tuple[ChartLink, ...] = ()) -> dict[str, Any]:
     """The entry as written plus everything computed: the JSON download."""
     entry = report.entry
     assert entry is not None
@@ -911,11 +937,22 @@ def entry_json(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "references": [reference_json(r) for r in entry.references],
         "computed": computed_json(report),
         "verdicts": [verdict_row(v) for v in report.verdicts],
+        "same_spacetime": same_spacetime_json(entry, published_ids, links),
         "revisions": [
             {"commit": r.commit, "date": r.date, "content_hash": r.content_hash,
              "summary": r.summary} for r in meta.revisions.get(entry.id, ())
         ],
     }
+
+
+def same_spacetime_json(entry: Entry, published_ids: frozenset[str],
+                        links: tuple[ChartLink, ...]) -> list[dict[str, Any]]:
+    """The published charts of this spacetime, joined by verified maps: written here, written
+    there, or through a chain (``route``: the entries in between)."""
+    rows = [{"entry": rel.entry, "route": []} for rel in entry.related
+            if rel.entry in published_ids]
+    rows += [{"entry": link.entry, "route": list(link.route)} for link in links]
+    return sorted(rows, key=lambda row: row["entry"])
 
 
 def reference_json(r: Reference) -> dict[str, Any]:

@@ -145,7 +145,10 @@ class TwinSearch:
 
 
 def search_twins(new: Sequence[EntryReport], catalog: Sequence[EntryReport],
-                 known_ranks: Mapping[str, int]) -> TwinSearch:
+                 known_ranks: Mapping[str, int],
+                 groups: Mapping[str, str] | None = None) -> TwinSearch:
+    """``groups``: entry id → its group of charts joined by ``related`` links, followed
+    through chains (``catalog.chart_groups``); pairs in one group are never twins."""
     profiles: dict[int, _Profile] = {}
 
     def profile(report: EntryReport) -> _Profile:
@@ -159,7 +162,8 @@ def search_twins(new: Sequence[EntryReport], catalog: Sequence[EntryReport],
         pairs = [
             (other.entry.id, reason)  # type: ignore[union-attr]
             for other in catalog
-            if other is not report and _comparable(other) and not _linked(report, other)
+            if other is not report and _comparable(other)
+            and not _linked(report, other, groups or {})
             for reason in [_twin_reason(profile(report), profile(other))]
             if reason
         ]
@@ -195,11 +199,12 @@ def twin_card(report: EntryReport) -> TwinCard | None:
     return TwinCard(report.entry.id, links, exact)
 
 
-def worth_comparing(new: TwinCard, other: TwinCard) -> bool:
+def worth_comparing(new: TwinCard, other: TwinCard,
+                    groups: Mapping[str, str] | None = None) -> bool:
     """False when the cards alone show that the two cannot be reported as twins."""
     if new.exact is None or other.exact is None or new.id == other.id:
         return False
-    if other.id in new.links or new.id in other.links:
+    if other.id in new.links or new.id in other.links or _same_group(new.id, other.id, groups):
         return False
     if new.rank is not None and other.rank is not None and new.rank != other.rank:
         return False
@@ -233,11 +238,17 @@ def _comparable(report: EntryReport) -> bool:
     )
 
 
-def _linked(a: EntryReport, b: EntryReport) -> bool:
+def _linked(a: EntryReport, b: EntryReport, groups: Mapping[str, str]) -> bool:
     assert a.entry is not None and b.entry is not None
     a_links = {r.entry for r in a.entry.related}
     b_links = {r.entry for r in b.entry.related}
-    return a.entry.id == b.entry.id or b.entry.id in a_links or a.entry.id in b_links
+    return (a.entry.id == b.entry.id or b.entry.id in a_links or a.entry.id in b_links
+            or _same_group(a.entry.id, b.entry.id, groups))
+
+
+def _same_group(a: str, b: str, groups: Mapping[str, str] | None) -> bool:
+    """Joined by a chain of ``related`` links (see ``search_twins``)."""
+    return bool(groups) and a in groups and groups.get(a) == groups.get(b)
 
 
 # ---------------------------------------------------------------------------- profiles

@@ -91,9 +91,9 @@ def test_entry_views_are_kept_and_remade_only_for_what_changed(project: Path,
     made: list[str] = []
     real = render.entry_view
 
-    def counting_view(report, meta, published_ids=frozenset()):
+    def counting_view(report, meta, *surroundings):
         made.append(report.entry.id)
-        return real(report, meta, published_ids)
+        return real(report, meta, *surroundings)
 
     monkeypatch.setattr(render, "entry_view", counting_view)
     cached = RunOptions(jobs=1, cache_dir=project / "cache")
@@ -120,6 +120,7 @@ def test_entry_views_are_kept_and_remade_only_for_what_changed(project: Path,
 def test_the_view_key_names_everything_a_view_is_made_from(project: Path) -> None:
     from dataclasses import replace
 
+    from generator.atlas import MAPS_HERE, ChartLink
     from generator.build import catalog_meta
     from generator.errors import Diagnostic
     from generator.model import Family, Revision
@@ -142,6 +143,8 @@ def test_the_view_key_names_everything_a_view_is_made_from(project: Path) -> Non
         view_key(report, replace(meta, families=(*meta.families, Family("x", "X", ""))), ids),
         view_key(report, replace(meta, revisions={"lighthouse-dome": (revision,)}), ids),
         view_key(report, meta, ids | {"another-entry"}),
+        view_key(report, meta, ids, (ChartLink("another-entry", "its chart", MAPS_HERE, (),
+                                               (("u", "t"),), "exact"),)),
     ]
     assert key not in changed and len(set(changed)) == len(changed)
     assert view_key(replace(report, inputs_key=""), meta, ids) is None

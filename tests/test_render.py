@@ -177,6 +177,23 @@ def test_search_index_is_an_embedded_script_with_published_entries(site: Path) -
     assert len(browse.find("li", class_="card")) == 2
 
 
+def test_a_map_written_by_one_entry_shows_on_both_pages(site: Path) -> None:
+    """The lantern maps onto the tide cosmos (a verified map of the demo) and onto a refused
+    entry. The lantern's page lists its own maps; the tide's page lists the lantern's map as
+    one given by another entry, linked; nobody links to the refused entry."""
+    lantern = page(site, "entries/demo-harbour-lantern/index.html")
+    tide = page(site, "entries/demo-tide-cosmos/index.html")
+    assert "Maps given here" in lantern.text and "Maps given by other entries" not in lantern.text
+    assert "Maps given by other entries" in tide.text and "Maps given here" not in tide.text
+    assert tide.find("a", href="../demo-harbour-lantern/index.html")
+    assert tide.find("a", href="#other-charts")  # in the page's table of contents
+    assert not any("demo-broken-buoy" in a.get("href", "") for a in tide.find("a"))
+    for name, expected in (("demo-harbour-lantern", "demo-tide-cosmos"),
+                           ("demo-tide-cosmos", "demo-harbour-lantern")):
+        data = json.loads((site / f"entries/{name}/entry.json").read_text("utf-8"))
+        assert data["same_spacetime"] == [{"entry": expected, "route": []}]
+
+
 def test_entry_json_download_has_computed_data(site: Path) -> None:
     data = json.loads((site / "entries/demo-harbour-lantern/entry.json").read_text("utf-8"))
     computed = data["computed"]

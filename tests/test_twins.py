@@ -121,6 +121,25 @@ def test_related_charts_are_skipped(schwarzschild_charts) -> None:
 
 
 @pytest.mark.slow
+def test_charts_joined_through_a_third_entry_are_skipped(schwarzschild_charts) -> None:
+    """Isotropic and Eddington–Finkelstein both map onto the Schwarzschild chart (a catalog's
+    related links, as ``catalog.chart_groups`` reads them): the two are the same spacetime
+    by construction, so neither may be warned as the other's twin."""
+    new = schwarzschild_charts["isotropic"]
+    others = list(schwarzschild_charts.values())
+    groups = {"schwarzschild": "schwarzschild", "schwarzschild-ef": "schwarzschild",
+              "schwarzschild-isotropic": "schwarzschild",
+              "reissner-nordstrom": "reissner-nordstrom"}
+    assert search_twins([new], others, {}, groups).found == {}
+    # without the groups the same search warns of both (the guard above is what stops it)
+    assert set(dict(search_twins([new], others, {}).found[new.entry.id])) == {
+        "schwarzschild", "schwarzschild-ef"}
+    cards = {name: twin_card(chart) for name, chart in schwarzschild_charts.items()}
+    assert worth_comparing(cards["isotropic"], cards["eddington"])
+    assert not worth_comparing(cards["isotropic"], cards["eddington"], groups)
+
+
+@pytest.mark.slow
 def test_same_fingerprint_different_spacetime_is_not_flagged() -> None:
     """Demo pair: f = 1 - 2M/r + c/r**3 and f = 1 - 2M/r + c/r**4 share every exact
     fingerprint part (4D, unspecified matter, no invariant vanishes, rank 1) but their
