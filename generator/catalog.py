@@ -188,9 +188,10 @@ def cross_entry_diagnostics(outlines: Sequence[Outline], known_ids: set[str]
     return out
 
 
-def chart_groups(outlines: Iterable[Outline]) -> dict[str, str]:
+def chart_groups(links: Iterable[tuple[str, Iterable[str]]]) -> dict[str, str]:
     """Entry id → the first id (in sort order) of the entries joined to it by ``related``
-    links, in either direction and through chains.
+    links, in either direction and through chains; ``links`` holds (entry id, the ids its
+    ``related`` names) — from outlines in a check, from reports in the duplicate search.
 
     Charts of one spacetime are not duplicates of each other: a new Schwarzschild chart that
     maps onto the Schwarzschild entry must not be warned as a twin of the Kruskal–Szekeres
@@ -206,11 +207,14 @@ def chart_groups(outlines: Iterable[Outline]) -> dict[str, str]:
             entry_id = parent[entry_id]
         return entry_id
 
-    for outline in outlines:
-        if outline.id is None:
-            continue
-        for target, _ in outline.links:
-            a, b = root(outline.id), root(target)
+    for entry_id, targets in links:
+        for target in targets:
+            a, b = root(entry_id), root(target)
             parent[max(a, b)] = min(a, b)
-        root(outline.id)
+        root(entry_id)
     return {entry_id: root(entry_id) for entry_id in sorted(parent)}
+
+
+def outline_links(outlines: Iterable[Outline]) -> list[tuple[str, list[str]]]:
+    """(id, linked ids) of every outline with an id, for ``chart_groups``."""
+    return [(o.id, [target for target, _ in o.links]) for o in outlines if o.id is not None]

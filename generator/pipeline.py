@@ -25,6 +25,7 @@ from .catalog import (
     entry_files,
     load_all,
     outline_all,
+    outline_links,
 )
 from .errors import BudgetExceeded, Diagnostic
 from .geometry import Limits
@@ -121,7 +122,7 @@ def check_files(
     reports = _run(tasks, options, Progress(on_done, on_running))
     twins: dict[str, list[Diagnostic]] = {}
     if len(reports) <= TWIN_SEARCH_MAX_ENTRIES:
-        groups = chart_groups(outlines)
+        groups = chart_groups(outline_links(outlines))
         others = _twin_candidates(reports, outlines, set(chosen), by_id, root, base, options,
                                   groups)
         twins = twin_warnings(reports, [*reports, *others.reports], others.ranks,
@@ -213,7 +214,7 @@ def twin_warnings(new: list[EntryReport], catalog: list[EntryReport],
     verified = [r for r in new if r.ok]
     try:
         search = run_limited(search_twins, verified, [r for r in catalog if r.ok],
-                             known_ranks or {}, groups or {}, seconds=TWIN_SEARCH_SECONDS,
+                             known_ranks or {}, groups, seconds=TWIN_SEARCH_SECONDS,
                              memory_bytes=MEMORY_PER_ENTRY)
     except BudgetExceeded:
         return {r.file: [_twin_search_stopped(r)] for r in verified}

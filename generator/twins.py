@@ -46,6 +46,7 @@ from functools import cached_property
 import mpmath
 import sympy
 
+from .catalog import chart_groups
 from .equality import decide_zero
 from .errors import Diagnostic
 from .model import EntryReport, Spacetime
@@ -109,8 +110,9 @@ class Invariants:
 def find_twins(new: EntryReport, others: Sequence[EntryReport]) -> list[tuple[str, str]]:
     """(other id, reason) for each entry whose spacetime is probably the new entry's one.
 
-    Pairs linked by ``related`` (either direction) are skipped: they are known charts of the
-    same spacetime. Entries without geometry or with free functions are not compared.
+    Pairs linked by ``related`` (either direction, directly or through a chain of the entries
+    given) are skipped: they are known charts of the same spacetime. Entries without geometry
+    or with free functions are not compared.
     """
     if not _comparable(new):
         return []
@@ -148,7 +150,11 @@ def search_twins(new: Sequence[EntryReport], catalog: Sequence[EntryReport],
                  known_ranks: Mapping[str, int],
                  groups: Mapping[str, str] | None = None) -> TwinSearch:
     """``groups``: entry id → its group of charts joined by ``related`` links, followed
-    through chains (``catalog.chart_groups``); pairs in one group are never twins."""
+    through chains (``catalog.chart_groups``); pairs in one group are never twins. Without
+    it the groups come from the links of the reports searched."""
+    if groups is None:
+        groups = chart_groups((r.entry.id, [item.entry for item in r.entry.related])
+                              for r in [*new, *catalog] if r.entry is not None)
     profiles: dict[int, _Profile] = {}
 
     def profile(report: EntryReport) -> _Profile:
@@ -163,7 +169,7 @@ def search_twins(new: Sequence[EntryReport], catalog: Sequence[EntryReport],
             (other.entry.id, reason)  # type: ignore[union-attr]
             for other in catalog
             if other is not report and _comparable(other)
-            and not _linked(report, other, groups or {})
+            and not _same_group(report.entry.id, other.entry.id, groups)  # type: ignore
             for reason in [_twin_reason(profile(report), profile(other))]
             if reason
         ]
@@ -205,7 +211,7 @@ def worth_comparing(new: TwinCard, other: TwinCard,
     if new.exact is None or other.exact is None or new.id == other.id:
         return False
     if other.id in new.links or new.id in other.links or _same_group(new.id, other.id, groups):
-        return False
+        return False  # the cards' own links, then chains through the rest of the catalog
     if new.rank is not None and other.rank is not None and new.rank != other.rank:
         return False
     return not new.exact.differences(other.exact)
@@ -238,17 +244,9 @@ def _comparable(report: EntryReport) -> bool:
     )
 
 
-def _linked(a: EntryReport, b: EntryReport, groups: Mapping[str, str]) -> bool:
-    assert a.entry is not None and b.entry is not None
-    a_links = {r.entry for r in a.entry.related}
-    b_links = {r.entry for r in b.entry.related}
-    return (a.entry.id == b.entry.id or b.entry.id in a_links or a.entry.id in b_links
-            or _same_group(a.entry.id, b.entry.id, groups))
-
-
 def _same_group(a: str, b: str, groups: Mapping[str, str] | None) -> bool:
-    """Joined by a chain of ``related`` links (see ``search_twins``)."""
-    return bool(groups) and a in groups and groups.get(a) == groups.get(b)
+    """The same entry, or joined by a chain of ``related`` links (see ``search_twins``)."""
+    return a == b or (groups is not None and groups.get(a, a) == groups.get(b, b))
 
 
 # ---------------------------------------------------------------------------- profiles

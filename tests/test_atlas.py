@@ -17,7 +17,7 @@ from types import SimpleNamespace
 import pytest
 
 from generator.atlas import MAPS_HERE, THROUGH, ChartLink, chart_links
-from generator.catalog import Outline, chart_groups
+from generator.catalog import Outline, chart_groups, outline_links
 from generator.model import MathText, RelatedChart, SourcePos, Verdict
 
 HERE = SourcePos("catalog/x.yaml", 1, 1)
@@ -119,10 +119,10 @@ def outline(entry_id: str, *targets: str) -> Outline:
 
 
 def test_declared_links_group_charts_through_chains_in_either_direction() -> None:
-    groups = chart_groups([outline("kruskal", "schw"), outline("schw"),
-                           outline("isotropic", "schw"), outline("rn"),
-                           outline("ds-static", "ds-flat"), outline("ds-flat", "ds-global"),
-                           outline("ds-global")])
+    groups = chart_groups(outline_links([
+        outline("kruskal", "schw"), outline("schw"), outline("isotropic", "schw"),
+        outline("rn"), outline("ds-static", "ds-flat"), outline("ds-flat", "ds-global"),
+        outline("ds-global"), Outline("catalog/x/unreadable.yaml", None, HERE, ())]))
     assert groups == {"ds-flat": "ds-flat", "ds-global": "ds-flat", "ds-static": "ds-flat",
                       "isotropic": "isotropic", "kruskal": "isotropic", "rn": "rn",
                       "schw": "isotropic"}

@@ -131,9 +131,15 @@ def test_charts_joined_through_a_third_entry_are_skipped(schwarzschild_charts) -
               "schwarzschild-isotropic": "schwarzschild",
               "reissner-nordstrom": "reissner-nordstrom"}
     assert search_twins([new], others, {}, groups).found == {}
-    # without the groups the same search warns of both (the guard above is what stops it)
-    assert set(dict(search_twins([new], others, {}).found[new.entry.id])) == {
+    # with every entry in a group of its own the same search warns of both
+    alone = {name: name for name in groups}
+    assert set(dict(search_twins([new], others, {}, alone).found[new.entry.id])) == {
         "schwarzschild", "schwarzschild-ef"}
+    # without groups given, they come from the links of the entries searched
+    chained = [replace(chart, entry=replace(chart.entry, related=(
+        RelatedChart("schwarzschild", (), chart.entry.pos("related")),)))
+        for chart in (new, schwarzschild_charts["eddington"])]
+    assert find_twins(chained[0], [*others, chained[1]]) == []
     cards = {name: twin_card(chart) for name, chart in schwarzschild_charts.items()}
     assert worth_comparing(cards["isotropic"], cards["eddington"])
     assert not worth_comparing(cards["isotropic"], cards["eddington"], groups)
