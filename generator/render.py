@@ -113,13 +113,11 @@ def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path
     ``kept_views``: where entry views made by earlier builds are kept (see ``kept_view``).
     Returns the keys of the views this site is made of (what a pruned cache keeps)."""
     published = published_reports(reports, meta)
-    ids = frozenset(r.entry.id for r in published if r.entry is not None)
-    links = chart_links(published)
-    keys = {r.entry.id: view_key(r, meta, ids, links[r.entry.id])
-            for r in published if r.entry is not None}
-    views = {r.entry.id: kept_view(r, meta, ids, kept_views, keys[r.entry.id],
-                                   links[r.entry.id])
-             for r in published if r.entry is not None}
+    around = surroundings(published)
+    keys = {entry_id: view_key(r, meta, around[entry_id])
+            for entry_id, r in zip(around, published, strict=True)}
+    views = {entry_id: kept_view(r, meta, kept_views, keys[entry_id], around[entry_id])
+             for entry_id, r in zip(around, published, strict=True)}
     cards = [views[r.entry.id].card for r in published if r.entry is not None]
     env = template_environment()
     pages = list(site_pages(published, views, cards, meta))
@@ -360,18 +358,32 @@ class EntryView:
     json_document: str
 
 
-def entry_view(
-    report: EntryReport, meta: CatalogMeta, published_ids: frozenset[str] = frozenset(),
-    links: tuple[ChartLink, ...] = (),
-) -> EntryView:
-    """``links``: the other charts of this spacetime that the entry does not map to itself
-    (``atlas.chart_links``)."""
+@dataclass(frozen=True)
+class Surroundings:
+    """What an entry's view shows of the rest of the catalog, and nothing more (it is part of
+    the view's key: adding an unrelated entry must not re-render every page)."""
+
+    published_links: tuple[str, ...] = ()  # entries its own `related` names that are published
+    charts: tuple[ChartLink, ...] = ()  # other charts of its spacetime (atlas.chart_links)
+
+
+def surroundings(published: Sequence[EntryReport]) -> dict[str, Surroundings]:
+    """The surroundings of every published entry, in the order given."""
+    ids = {r.entry.id for r in published if r.entry is not None}
+    charts = chart_links(published)
+    return {r.entry.id: Surroundings(
+                tuple(sorted({rel.entry for rel in r.entry.related} & ids)), charts[r.entry.id])
+            for r in published if r.entry is not None}
+
+
+def entry_view(report: EntryReport, meta: CatalogMeta,
+               around: Surroundings = Surroundings()) -> EntryView:
     entry = report.entry
     assert entry is not None
     figures = plots.entry_plots(report)
     card = entry_card(report, meta)
-    page = entry_page_data(report, meta, card, figures, published_ids, links)
-    data = entry_json(report, meta, published_ids, links)
+    page = entry_page_data(report, meta, card, figures, around)
+    data = entry_json(report, meta, around)
     return EntryView(
         card=card,
         page=page,
@@ -387,27 +399,26 @@ VIEW_SUFFIX = ".view"
 RENDER_LIBRARIES = ("matplotlib", "latex2mathml", "markdown", "nh3", "markupsafe", "numpy")
 
 
-def kept_view(report: EntryReport, meta: CatalogMeta, published_ids: frozenset[str],
-              shelf: ResultCache | None, key: str | None,
-              links: tuple[ChartLink, ...] = ()) -> EntryView:
+def kept_view(report: EntryReport, meta: CatalogMeta, shelf: ResultCache | None,
+              key: str | None, around: Surroundings = Surroundings()) -> EntryView:
     """``entry_view``, kept under ``key`` (``view_key``: everything it is made from).
 
     Once the checks come from the cache, plots and typesetting are nearly all of a build's
     time; a rebuild then makes views only for the entries that changed (or whose
-    surroundings in the catalog did: families, tags, revisions, which entries are published).
+    surroundings in the catalog did: families, tags, revisions, the entries it is joined to).
     """
     if shelf is not None and key is not None:
         found = shelf.get(key, EntryView)
         if found is not None:
             return found
-    view = entry_view(report, meta, published_ids, links)
+    view = entry_view(report, meta, around)
     if shelf is not None and key is not None:
         shelf.put(key, view)
     return view
 
 
-def view_key(report: EntryReport, meta: CatalogMeta, published_ids: frozenset[str],
-             links: tuple[ChartLink, ...] = ()) -> str | None:
+def view_key(report: EntryReport, meta: CatalogMeta, around: Surroundings = Surroundings()
+             ) -> str | None:
     """Hash of what ``entry_view`` reads: the report (by the hash of its inputs, which covers
     the generator's source and the computing libraries), the diagnostics added after checking
     it, the catalog-wide data an entry page shows, and the versions of the rendering
@@ -418,7 +429,7 @@ def view_key(report: EntryReport, meta: CatalogMeta, published_ids: frozenset[st
     parts = (
         report.inputs_key, repr(report.diagnostics), meta.version, meta.generator_version,
         meta.sympy_version, meta.base_url, repr(meta.families), repr(meta.tags),
-        repr(meta.revisions.get(entry.id, ())), repr(sorted(published_ids)), repr(links),
+        repr(meta.revisions.get(entry.id, ())), repr(around),
         library_versions(RENDER_LIBRARIES),
     )
     return hashlib.sha256("\0".join(parts).encode()).hexdigest()
@@ -455,8 +466,7 @@ def entry_page_data(
     meta: CatalogMeta,
     card: dict[str, Any],
     figures: Sequence[plots.Plot],
-    published_ids: frozenset[str],
-    links: tuple[ChartLink, ...] = (),
+    around: Surroundings,
 ) -> dict[str, Any]:
     entry = report.entry
     assert entry is not None
@@ -469,9 +479,9 @@ def entry_page_data(
         "invariants": invariant_rows(report, verdicts),
         "matter": matter_data(report, verdicts),
         "symmetry": symmetry_data(report, verdicts),
-        "related": related_rows(report, published_ids),
-        "maps_onto_here": [chart_link_row(link) for link in links if link.kind == MAPS_HERE],
-        "charts_through": [chart_link_row(link) for link in links if link.kind != MAPS_HERE],
+        "related": related_rows(report, around.published_links),
+        "maps_onto_here": [chart_link_row(c) for c in around.charts if c.kind == MAPS_HERE],
+        "charts_through": [chart_link_row(c) for c in around.charts if c.kind != MAPS_HERE],
         "references": [reference_data(r) for r in entry.references],
         "checks": [verdict_row(v) for v in report.verdicts],
         "provenance": {
@@ -783,7 +793,7 @@ def vector_math(
     return {"math": math_inline(" + ".join(terms).replace("+ -", "- ")), "text": text}
 
 
-def related_rows(report: EntryReport, published_ids: frozenset[str]) -> list[dict[str, Any]]:
+def related_rows(report: EntryReport, published: Sequence[str]) -> list[dict[str, Any]]:
     """Other charts of the same spacetime; linked only when that entry is published."""
     entry, c = report.entry, report.classification
     assert entry is not None
@@ -793,7 +803,7 @@ def related_rows(report: EntryReport, published_ids: frozenset[str]) -> list[dic
         verdict = checks.get(f"related.{k}") or checks.get(f"related.{rel.entry}")
         rows.append({
             "entry": rel.entry,
-            "href": f"../{rel.entry}/index.html" if rel.entry in published_ids else "",
+            "href": f"../{rel.entry}/index.html" if rel.entry in published else "",
             "map": [{"coordinate": name, "text": value.text} for name, value in rel.map],
             "verdict": verdict_row(verdict) if verdict else None,
         })
@@ -913,8 +923,7 @@ def expr_text(expr: sympy.Basic | None) -> str | None:
 
 
 def entry_json(report: EntryReport, meta: CatalogMeta,
-               published_ids: frozenset[str] = frozenset(),
-               links: tuple[ChartLink, ...] = ()) -> dict[str, Any]:
+               around: Surroundings = Surroundings()) -> dict[str, Any]:
     """The entry as written plus everything computed: the JSON download."""
     entry = report.entry
     assert entry is not None
@@ -937,7 +946,7 @@ def entry_json(report: EntryReport, meta: CatalogMeta,
         "references": [reference_json(r) for r in entry.references],
         "computed": computed_json(report),
         "verdicts": [verdict_row(v) for v in report.verdicts],
-        "same_spacetime": same_spacetime_json(entry, published_ids, links),
+        "same_spacetime": same_spacetime_json(around),
         "revisions": [
             {"commit": r.commit, "date": r.date, "content_hash": r.content_hash,
              "summary": r.summary} for r in meta.revisions.get(entry.id, ())
@@ -945,13 +954,11 @@ def entry_json(report: EntryReport, meta: CatalogMeta,
     }
 
 
-def same_spacetime_json(entry: Entry, published_ids: frozenset[str],
-                        links: tuple[ChartLink, ...]) -> list[dict[str, Any]]:
+def same_spacetime_json(around: Surroundings) -> list[dict[str, Any]]:
     """The published charts of this spacetime, joined by verified maps: written here, written
     there, or through a chain (``route``: the entries in between)."""
-    rows = [{"entry": rel.entry, "route": []} for rel in entry.related
-            if rel.entry in published_ids]
-    rows += [{"entry": link.entry, "route": list(link.route)} for link in links]
+    rows = [{"entry": entry_id, "route": []} for entry_id in around.published_links]
+    rows += [{"entry": link.entry, "route": list(link.route)} for link in around.charts]
     return sorted(rows, key=lambda row: row["entry"])
 
 

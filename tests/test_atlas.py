@@ -126,3 +126,17 @@ def test_declared_links_group_charts_through_chains_in_either_direction() -> Non
     assert groups == {"ds-flat": "ds-flat", "ds-global": "ds-flat", "ds-static": "ds-flat",
                       "isotropic": "isotropic", "kruskal": "isotropic", "rn": "rn",
                       "schw": "isotropic"}
+
+
+def test_an_entry_view_sees_only_the_entries_it_is_joined_to() -> None:
+    """What a page shows of the rest of the catalog is part of its kept view's key: adding an
+    unrelated entry must leave every other view's surroundings as they were; publishing an
+    entry that this one maps to, or one that maps onto it, changes them."""
+    from generator.render import surroundings
+
+    base = [report("a", ("b", True, "exact"), ("c", True, "exact")), report("b")]
+    before = surroundings(base)
+    assert before["a"].published_links == ("b",)  # c is not published
+    assert surroundings([*base, report("unrelated")])["a"] == before["a"]
+    assert surroundings([*base, report("c")])["a"].published_links == ("b", "c")
+    assert surroundings([*base, report("d", ("b", True, "exact"))])["b"] != before["b"]

@@ -125,29 +125,28 @@ def test_the_view_key_names_everything_a_view_is_made_from(project: Path) -> Non
     from generator.errors import Diagnostic
     from generator.model import Family, Revision
     from generator.pipeline import check_files
-    from generator.render import view_key
+    from generator.render import Surroundings, view_key
 
     [report] = check_files([project / "catalog" / "riemannian" / "lighthouse-dome.yaml"],
                            project / "catalog", project, OPTIONS)
     meta = catalog_meta(project / "catalog")
-    ids = frozenset({"lighthouse-dome"})
-    key = view_key(report, meta, ids)
-    assert key is not None and key == view_key(report, meta, ids)
+    key = view_key(report, meta)
+    assert key is not None and key == view_key(report, meta, Surroundings())
     revision = Revision("0" * 40, "2026-12-01", "f" * 64, "first", "id: x\n")
     note = Diagnostic(report.file, 1, 1, "note", "a duplicate spacetime?", "entry.duplicate")
+    chart = ChartLink("another-entry", "its chart", MAPS_HERE, (), (("u", "t"),), "exact")
     changed = [
-        view_key(replace(report, inputs_key="another"), meta, ids),
-        view_key(replace(report, diagnostics=(*report.diagnostics, note)), meta, ids),
-        view_key(report, replace(meta, version="9.9.9"), ids),
-        view_key(report, replace(meta, base_url="https://elsewhere.example/"), ids),
-        view_key(report, replace(meta, families=(*meta.families, Family("x", "X", ""))), ids),
-        view_key(report, replace(meta, revisions={"lighthouse-dome": (revision,)}), ids),
-        view_key(report, meta, ids | {"another-entry"}),
-        view_key(report, meta, ids, (ChartLink("another-entry", "its chart", MAPS_HERE, (),
-                                               (("u", "t"),), "exact"),)),
+        view_key(replace(report, inputs_key="another"), meta),
+        view_key(replace(report, diagnostics=(*report.diagnostics, note)), meta),
+        view_key(report, replace(meta, version="9.9.9")),
+        view_key(report, replace(meta, base_url="https://elsewhere.example/")),
+        view_key(report, replace(meta, families=(*meta.families, Family("x", "X", "")))),
+        view_key(report, replace(meta, revisions={"lighthouse-dome": (revision,)})),
+        view_key(report, meta, Surroundings(published_links=("another-entry",))),
+        view_key(report, meta, Surroundings(charts=(chart,))),
     ]
     assert key not in changed and len(set(changed)) == len(changed)
-    assert view_key(replace(report, inputs_key=""), meta, ids) is None
+    assert view_key(replace(report, inputs_key=""), meta) is None
 
 
 def test_a_pruned_cache_keeps_exactly_what_the_last_build_used(project: Path,
