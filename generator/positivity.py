@@ -15,6 +15,8 @@ proved" — never "false".
 
 from __future__ import annotations
 
+from collections.abc import Callable
+
 import sympy
 
 from .model import Spacetime
@@ -59,20 +61,20 @@ def domain_substitution(spacetime: Spacetime) -> list[dict[sympy.Basic, sympy.Ex
     for x, relative in visits:
         if x in replaced:
             continue
-        candidates = [(rel, b) for rel in spacetime.domain if rel not in used
-                      and (b := linear_bound(rel, x)) is not None
-                      and not b[1].free_symbols & replaced]
+        candidates = _usable_bounds(spacetime.domain, linear_bound, x, used, replaced)
         found = [(rel, b) for rel, b in candidates if bool(b[1].free_symbols) == relative]
         assumed = _assumed_bound(x)
         if assumed is not None:  # kept with a domain bound on the other side (never alone)
             candidates.append((sympy.true, assumed))
         if not found:
-            squared = _square_bound(spacetime.domain, x, used, replaced, relative)
-            if squared is not None:
-                relation, root = squared
+            squares = [(rel, b) for rel, b in _usable_bounds(
+                spacetime.domain, square_lower_bound, x, used, replaced)
+                if bool(b[1].free_symbols) == relative]
+            if squares:  # x² > b with x > 0: x = √(b + s)
+                relation, (_, bound, strict) = squares[0]
                 used.add(relation)
                 replaced.add(x)
-                steps.append({x: root})
+                steps.append({x: sympy.sqrt(bound + _slack(f"{x}_squared", strict))})
             continue
         bounds = [b for _, b in found]
         if _is_angle_interval(x, bounds):
@@ -99,6 +101,16 @@ def domain_substitution(spacetime: Spacetime) -> list[dict[sympy.Basic, sympy.Ex
 Bound = tuple[str, sympy.Expr, bool]  # side, bound, strict
 
 
+def _usable_bounds(domain: tuple[sympy.Basic, ...],
+                   reader: Callable[[sympy.Basic, sympy.Symbol], Bound | None],
+                   x: sympy.Symbol, used: set[sympy.Basic], replaced: set[sympy.Basic]
+                   ) -> list[tuple[sympy.Basic, Bound]]:
+    """(relation, bound) for the relations not used yet that ``reader`` reads as a bound on
+    x in symbols not replaced yet."""
+    return [(rel, b) for rel in domain if rel not in used
+            and (b := reader(rel, x)) is not None and not b[1].free_symbols & replaced]
+
+
 def square_lower_bound(relation: sympy.Basic, x: sympy.Symbol) -> Bound | None:
     """A lower bound on x² from a relation in which a positive x occurs only squared
     (``3*r**2 < Rt**2 - A**2`` bounds Rt² below by A² + 3r²), read as a bound on a stand-in
@@ -112,27 +124,7 @@ def square_lower_bound(relation: sympy.Basic, x: sympy.Symbol) -> Bound | None:
     if any(side.has(x) for side in sides):
         return None
     bound = linear_bound(sympy.core.relational.Relational(*sides, relation.rel_op), square)
-    if bound is None or bound[0] != "lower" or bound[1].has(square):
-        return None
-    return bound
-
-
-def _square_bound(domain: tuple[sympy.Basic, ...], x: sympy.Symbol, used: set[sympy.Basic],
-                  replaced: set[sympy.Basic], relative: bool
-                  ) -> tuple[sympy.Basic, sympy.Expr] | None:
-    """(relation, √(b + s)) for the first unused relation giving x² a lower bound b, in the
-    same pass as ``domain_substitution``'s linear bounds (bounds on other symbols first)."""
-    for relation in domain:
-        if relation in used:
-            continue
-        found = square_lower_bound(relation, x)
-        if found is None or found[1].free_symbols & replaced:
-            continue
-        if bool(found[1].free_symbols) != relative:
-            continue
-        _, bound, strict = found
-        return relation, sympy.sqrt(bound + _slack(f"{x}_squared", strict))
-    return None
+    return bound if bound is not None and bound[0] == "lower" else None
 
 
 def _open_interval(candidates: list[tuple[sympy.Basic, Bound]]
