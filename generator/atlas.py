@@ -15,7 +15,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 
-from .model import EntryReport
+from .model import EntryReport, related_subject
 
 MAPS_HERE = "maps-here"  # the other entry gives a map onto this one
 THROUGH = "through"  # joined to this one by a chain of maps only
@@ -53,7 +53,7 @@ def verified_maps(published: Sequence[EntryReport]) -> list[_Map]:
             continue
         verdicts = {v.subject: v for v in classification.related_checked}
         for k, link in enumerate(entry.related):
-            verdict = verdicts.get(f"related.{k}")
+            verdict = verdicts.get(related_subject(k))
             if verdict is not None and verdict.ok and link.entry in ids:
                 found.append(_Map(entry.id, link.entry,
                                   tuple((name, value.text) for name, value in link.map),

@@ -91,7 +91,7 @@ def nonzero_in_field(field: RationalField, value: Frac, spacetime: Spacetime,
     # Only the generators in ``value`` need a rational value: an angle θ is a generator of a
     # field closed under derivatives, yet a value written in sin θ and cos θ never holds it.
     used = [max(n, d) > 0 for n, d in zip(value.num.degrees(), value.den.degrees(), strict=True)]
-    for point in _points(spacetime, count):
+    for point in entry_points(spacetime, count):
         values = [substitute(spec.meaning, point, angles) if needed else sympy.Integer(0)
                   for spec, needed in zip(field.specs, used, strict=True)]
         if all(v.is_Rational for v in values):
@@ -153,7 +153,7 @@ def _first_difference(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime,
     angles = angle_coordinates(spacetime)
     left, right = through_sin_cos(left, angles), through_sin_cos(right, angles)
     usable = 0
-    for point in _points(spacetime, count):
+    for point in entry_points(spacetime, count):
         differs = _differs_at(left, right, point)
         if differs:
             return point, usable
@@ -210,11 +210,6 @@ def _sampled_verdict(usable: int, why: str) -> Decision:
         f"{why}; equal at {usable} exact random points of the domain (tolerance 1e-20 at "
         f"{DIGITS} digits where a value was not rational)",
     )
-
-
-def _points(spacetime: Spacetime, count: int) -> list[Point]:
-    """The first ``count`` points of the entry's stream (drawn once, see sampling)."""
-    return entry_points(spacetime, count)
 
 
 def _differs_at(left: sympy.Expr, right: sympy.Expr, point: Point) -> bool | None:

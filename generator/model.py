@@ -254,6 +254,11 @@ class Verdict:
     computed: str = ""
 
 
+def related_subject(index: int) -> str:
+    """The verdict subject of an entry's ``related[index]`` map (check, page and atlas agree)."""
+    return f"related.{index}"
+
+
 EnergyStatus = Literal["holds", "violated", "undecided", "not-applicable"]
 
 

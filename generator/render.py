@@ -44,6 +44,7 @@ from .model import (
     Reference,
     Spacetime,
     Verdict,
+    related_subject,
 )
 
 REPO_ROOT = Path(__file__).resolve().parent.parent
@@ -800,7 +801,7 @@ def related_rows(report: EntryReport, published: Sequence[str]) -> list[dict[str
     checks = {v.subject: v for v in (c.related_checked if c else ())}
     rows = []
     for k, rel in enumerate(entry.related):
-        verdict = checks.get(f"related.{k}") or checks.get(f"related.{rel.entry}")
+        verdict = checks.get(related_subject(k))
         rows.append({
             "entry": rel.entry,
             "href": f"../{rel.entry}/index.html" if rel.entry in published else "",

@@ -25,6 +25,7 @@ from .model import (
     Spacetime,
     VectorClaim,
     Verdict,
+    related_subject,
 )
 
 
@@ -149,7 +150,7 @@ def parameter_renaming(spacetime: Spacetime, other: Spacetime) -> dict[sympy.Bas
 
 def check_related(entry: Entry, spacetime: Spacetime, index: int, link: RelatedChart,
                   other_entry: Entry, other: Spacetime) -> tuple[Verdict, Diagnostic | None]:
-    subject = f"related.{index}"
+    subject = related_subject(index)
     names = coordinate_names(spacetime)
     other_names = coordinate_names(other)
     template = Diagnostic.at(link.pos, "error", "", "related.map")
