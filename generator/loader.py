@@ -256,6 +256,7 @@ def _build_reference(data: dict[str, Any], pos: SourcePos) -> Reference:
         locator=data.get("locator"),
         unconfirmed=tuple(data.get("unconfirmed", ())),
         pos=pos,
+        confirmed=data.get("confirmed"),
     )
 
 

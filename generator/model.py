@@ -117,6 +117,7 @@ class Reference:
     locator: str | None
     unconfirmed: tuple[str, ...]  # names of fields recalled but not confirmed
     pos: SourcePos
+    confirmed: str | None = None  # where the fields were confirmed (a record's address)
 
 
 @dataclass(frozen=True)

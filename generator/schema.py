@@ -246,6 +246,8 @@ REFERENCE = Field(
               pattern=ARXIV_PATTERN),
         Field("isbn", "ISBN of a book.", "line", pattern=ISBN_PATTERN),
         Field("locator", "Where in the work (equation, section, page).", "line"),
+        Field("confirmed", "Where the bibliographic fields were confirmed: the address of a public "
+              "record of the work, or 'paper's own arXiv listing'.", "line"),
         Field(
             "unconfirmed",
             "Fields recalled but not confirmed against the publication; shown as such.",
