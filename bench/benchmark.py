@@ -7,7 +7,7 @@ Run from the repository root:
 
 Three measurements per metric, in one run:
 
-* "geometry": what ``generator.geometry.compute_geometry`` returns (inverse metric,
+* "geometry": what ``generator.geometry.curvature.compute_geometry`` returns (inverse metric,
   Christoffel symbols, Riemann, Ricci, scalar, Einstein, Weyl, the invariants R_abcd R^abcd,
   R_ab R^ab, C_abcd C^abcd in display form), best of several in-process runs;
 * "full check": what ``check`` does for the metric's catalog entry — load and validate the
@@ -49,9 +49,9 @@ from _known_metrics import (  # noqa: E402
     schwarzschild,
 )
 
-from generator.geometry import compute_geometry  # noqa: E402
+from generator.geometry.curvature import compute_geometry  # noqa: E402
 from generator.model import Spacetime  # noqa: E402
-from generator.pipeline import RunOptions, check_files  # noqa: E402
+from generator.run.pipeline import RunOptions, check_files  # noqa: E402
 
 METRICS: dict[str, Callable[[], Spacetime]] = {
     "Schwarzschild": schwarzschild,

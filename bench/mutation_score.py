@@ -4,7 +4,7 @@ Verification that accepts a wrong claim is worse than none, so each entry of the
 mutated — each scalar claim scaled by 8/7 and shifted by a 1/x term, a sign in the metric, each
 matter field, each Killing vector, each chart-map component, the Petrov type, the energy
 conditions — and the mutated YAML is checked through the in-process API
-(`generator.verify.check_loaded`). A mutant that still passes is a *survivor*: a hole in the
+(`generator.physics.verify.check_loaded`). A mutant that still passes is a *survivor*: a hole in the
 verification, printed with what was changed.
 
 The unmutated entry is first written back through the same YAML round trip and must pass (the
@@ -32,11 +32,11 @@ PROJECT = Path(__file__).resolve().parents[1]
 if str(PROJECT) not in sys.path:
     sys.path.insert(0, str(PROJECT))
 
-from generator import verify  # noqa: E402
-from generator.catalog import entry_files, load_all, vocabulary  # noqa: E402
-from generator.geometry import Limits, compute_geometry_and_weyl  # noqa: E402
-from generator.loader import LoadResult, load_entry  # noqa: E402
+from generator.entry.catalog import entry_files, load_all, vocabulary  # noqa: E402
+from generator.entry.loader import LoadResult, load_entry  # noqa: E402
+from generator.geometry.curvature import Limits, compute_geometry_and_weyl  # noqa: E402
 from generator.model import EntryReport  # noqa: E402
+from generator.physics import verify  # noqa: E402
 
 SCALARS = ("ricci_scalar", "kretschmann", "ricci_squared", "weyl_squared")
 OTHER_PETROV = {"I": "II", "II": "D", "D": "II", "III": "N", "N": "III", "O": "N"}

@@ -30,9 +30,9 @@ from typing import Any
 import sympy
 import yaml
 
-from generator.catalog import entry_files, vocabulary
-from generator.loader import LoadResult, load_entry, symbol_table
-from generator.mathparse import SymbolTable, parse_expression, parse_inequality
+from generator.entry.catalog import entry_files, vocabulary
+from generator.entry.loader import LoadResult, load_entry, symbol_table
+from generator.entry.mathparse import SymbolTable, parse_expression, parse_inequality
 
 TEMPLATES = Path(__file__).parent / "templates" / "catalog"
 SCALES = (Fraction(2), Fraction(3, 2), Fraction(1, 2), Fraction(5, 3), Fraction(7, 4),

@@ -12,7 +12,7 @@ import sys
 from collections.abc import Sequence
 from pathlib import Path
 
-from .errors import AlmanacError, UsageError
+from generator.errors import AlmanacError, UsageError
 
 EXIT_OK, EXIT_FAILED, EXIT_USAGE = 0, 1, 2
 DEFAULT_CACHE = Path(".almanac-cache")
@@ -79,11 +79,11 @@ def build_parser() -> argparse.ArgumentParser:
 def main(argv: Sequence[str] | None = None) -> int:
     args_list = list(sys.argv[1:] if argv is None else argv)
     if args_list[:1] == ["new"]:
-        from .scaffold import new_main
+        from generator.entry.scaffold import new_main
 
         return new_main(args_list[1:])
     if args_list[:1] == ["cite"]:
-        from .cite import cite_main
+        from generator.site.cite import cite_main
 
         return cite_main(args_list[1:])
     parser = build_parser()
@@ -108,24 +108,24 @@ def _dispatch(args: argparse.Namespace) -> int:
     if args.command == "check":
         return run_check(args)
     if args.command == "build":
-        from .build import build_site
-        from .catalog import entry_files
+        from generator.entry.catalog import entry_files
+        from generator.run.build import build_site
 
         on_done, on_running = _progress_printer(args, len(entry_files([args.catalog])))
         result = build_site(args.catalog, args.out, _options(args), args.publish_verified_only,
                             on_done, on_running, args.prune_cache)
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "serve":
-        from .build import serve_site
+        from generator.run.build import serve_site
 
         serve_site(args.catalog, args.out, args.port)
         return EXIT_OK
     if args.command == "schema":
-        from .jsonschema_export import write_schema
+        from generator.entry.jsonschema_export import write_schema
 
         print(write_schema(args.root))
         if args.docs:
-            from .schema import with_reference_table
+            from generator.entry.schema import with_reference_table
 
             guide = args.root / "DEVELOPERS.md"
             guide.write_text(with_reference_table(guide.read_text(encoding="utf-8")),
@@ -136,7 +136,7 @@ def _dispatch(args: argparse.Namespace) -> int:
 
 
 def _options(args: argparse.Namespace):
-    from .pipeline import RunOptions
+    from generator.run.pipeline import RunOptions
 
     return RunOptions(
         jobs=args.jobs,
@@ -147,8 +147,8 @@ def _options(args: argparse.Namespace):
 
 
 def run_check(args: argparse.Namespace) -> int:
-    from .catalog import entry_files, find_catalog_root
-    from .pipeline import check_files
+    from generator.entry.catalog import entry_files, find_catalog_root
+    from generator.run.pipeline import check_files
 
     base = Path.cwd()
     paths = list(args.paths) or [Path("catalog")]
@@ -156,7 +156,7 @@ def run_check(args: argparse.Namespace) -> int:
     root = find_catalog_root(paths[0].resolve() if paths[0].is_dir() else
                              paths[0].resolve().parent)
     if args.changed_since:
-        from .history import changed_entries
+        from generator.entry.history import changed_entries
 
         changed = {p.resolve() for p in changed_entries(base, args.changed_since,
                                                        root or Path("catalog"))}
@@ -198,7 +198,7 @@ def _progress_printer(args: argparse.Namespace, total: int):
 
 
 def _print_reports(reports, fmt: str, show_computed: bool) -> None:
-    from .export import check_document
+    from generator.site.export import check_document
 
     if fmt == "json":
         print(json.dumps(check_document(reports), indent=2, sort_keys=False))
@@ -220,7 +220,7 @@ def _print_reports(reports, fmt: str, show_computed: bool) -> None:
 def _computed_yaml(report) -> str:
     import yaml
 
-    from .export import report_json
+    from generator.site.export import report_json
 
     data = report_json(report)
     shown = {"id": data["id"], "file": data["file"], "computed": data["computed"]}

@@ -16,7 +16,7 @@ from typing import Literal
 
 import sympy
 
-from .errors import Diagnostic, SourcePos
+from generator.errors import Diagnostic, SourcePos
 
 # ---------------------------------------------------------------------------- entry (as written)
 

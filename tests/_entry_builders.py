@@ -9,16 +9,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 from generator.errors import SourcePos
-from generator.model import (
-    Claim,
-    Claims,
-    Curation,
-    Entry,
-    MathText,
-    Matter,
-    Parameter,
-    Reference,
-)
+from generator.model import Claim, Claims, Curation, Entry, MathText, Matter, Parameter, Reference
 
 FILE = "catalog/black-holes/schwarzschild-test.yaml"
 

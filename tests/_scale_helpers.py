@@ -11,10 +11,10 @@ from pathlib import Path
 import pytest
 import sympy
 
-from generator import pipeline
-from generator.catalog import entry_files
-from generator.loader import LoadResult
+from generator.entry.catalog import entry_files
+from generator.entry.loader import LoadResult
 from generator.model import EntryReport, Verdict
+from generator.run import tasks
 
 FIXTURE = Path(__file__).parent / "roots" / "scale-small" / "catalog"
 ENTRY_COUNT = 6
@@ -76,5 +76,5 @@ def install_counting_engine(monkeypatch: pytest.MonkeyPatch,
         return EntryReport(load.entry, load.file, load.spacetime, None, None, (verdict,),
                            diagnostics, "fake-hash", 0.0)
 
-    monkeypatch.setattr(pipeline, "check_loaded", fake_check)
+    monkeypatch.setattr(tasks, "check_loaded", fake_check)
     return calls

@@ -10,9 +10,9 @@ from dataclasses import replace
 
 from _entry_builders import schwarzschild
 
+from generator.entry.loader import build_spacetime
 from generator.errors import SourcePos
-from generator.geometry import compute_geometry
-from generator.loader import build_spacetime
+from generator.geometry.curvature import compute_geometry
 from generator.model import (
     Claims,
     Entry,

@@ -45,8 +45,8 @@ from sympy.diffgeom import (
 )
 from sympy.diffgeom import TensorProduct as TP
 
-from generator.equality import decide_equal
-from generator.geometry import compute_geometry
+from generator.geometry.curvature import compute_geometry
+from generator.geometry.equality import decide_equal
 from generator.model import Geometry, Spacetime
 
 # ---------------------------------------------------------------------------- sympy.diffgeom

@@ -9,7 +9,12 @@ from __future__ import annotations
 import pytest
 import sympy as sp
 
-from generator.algebra import FieldRequest, NotInField, RationalField, build_field
+from generator.geometry.algebra import (
+    FieldRequest,
+    NotInField,
+    RationalField,
+    build_field,
+)
 
 t, r, theta = sp.symbols("t r theta", real=True)
 M, k = sp.symbols("M k", positive=True)

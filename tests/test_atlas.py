@@ -16,9 +16,9 @@ from types import SimpleNamespace
 
 import pytest
 
-from generator.atlas import MAPS_HERE, THROUGH, ChartLink, chart_links
-from generator.catalog import Outline, chart_groups, outline_links
+from generator.entry.catalog import Outline, chart_groups, outline_links
 from generator.model import MathText, RelatedChart, SourcePos, Verdict
+from generator.site.atlas import MAPS_HERE, THROUGH, ChartLink, chart_links
 
 HERE = SourcePos("catalog/x.yaml", 1, 1)
 
@@ -91,7 +91,7 @@ def test_separate_spacetimes_stay_apart() -> None:
 
 @pytest.mark.slow
 def test_every_shipped_schwarzschild_chart_reaches_every_other() -> None:
-    from generator.pipeline import RunOptions, check_files
+    from generator.run.pipeline import RunOptions, check_files
 
     project = Path(__file__).resolve().parents[1]
     catalog = project / "catalog"
@@ -132,7 +132,7 @@ def test_an_entry_view_sees_only_the_entries_it_is_joined_to() -> None:
     """What a page shows of the rest of the catalog is part of its kept view's key: adding an
     unrelated entry must leave every other view's surroundings as they were; publishing an
     entry that this one maps to, or one that maps onto it, changes them."""
-    from generator.render import surroundings
+    from generator.site.entry_page import surroundings
 
     base = [report("a", ("b", True, "exact"), ("c", True, "exact")), report("b")]
     before = surroundings(base)

@@ -10,8 +10,8 @@ from pathlib import Path
 
 import pytest
 
-from generator.build import build_site
-from generator.pipeline import RunOptions
+from generator.run.build import build_site
+from generator.run.pipeline import RunOptions
 
 DEMO = Path(__file__).parent / "roots" / "demo-catalog" / "catalog"
 OPTIONS = RunOptions(jobs=1)
@@ -83,8 +83,8 @@ def test_entry_views_are_kept_and_remade_only_for_what_changed(project: Path,
     """With a cache folder, a rebuild takes each entry's rendered view from the cache unless
     something it is made from changed; the site stays byte-identical to a build without any
     cache."""
-    from generator import render
-    from generator.cache import SECRET_ENV
+    from generator.run.cache import SECRET_ENV
+    from generator.site import writer as render
 
     monkeypatch.setenv(SECRET_ENV, "build-test-secret")
     annex = add_a_second_entry(project)
@@ -120,12 +120,13 @@ def test_entry_views_are_kept_and_remade_only_for_what_changed(project: Path,
 def test_the_view_key_names_everything_a_view_is_made_from(project: Path) -> None:
     from dataclasses import replace
 
-    from generator.atlas import MAPS_HERE, ChartLink
-    from generator.build import catalog_meta
     from generator.errors import Diagnostic
     from generator.model import Family, Revision
-    from generator.pipeline import check_files
-    from generator.render import Surroundings, view_key
+    from generator.run.build import catalog_meta
+    from generator.run.pipeline import check_files
+    from generator.site.atlas import MAPS_HERE, ChartLink
+    from generator.site.common import Surroundings
+    from generator.site.writer import view_key
 
     [report] = check_files([project / "catalog" / "riemannian" / "lighthouse-dome.yaml"],
                            project / "catalog", project, OPTIONS)
@@ -152,8 +153,8 @@ def test_the_view_key_names_everything_a_view_is_made_from(project: Path) -> Non
 def test_a_pruned_cache_keeps_exactly_what_the_last_build_used(project: Path,
                                                                monkeypatch: pytest.MonkeyPatch
                                                                ) -> None:
-    from generator import render
-    from generator.cache import SECRET_ENV
+    from generator.run.cache import SECRET_ENV
+    from generator.site import writer as render
 
     monkeypatch.setenv(SECRET_ENV, "build-test-secret")
     cache = project / "cache"
@@ -186,8 +187,8 @@ def test_a_pruned_cache_keeps_exactly_what_the_last_build_used(project: Path,
 
 def test_the_command_line_prunes_on_request(project: Path, monkeypatch: pytest.MonkeyPatch,
                                             capsys: pytest.CaptureFixture[str]) -> None:
-    from generator.cache import SECRET_ENV
     from generator.cli import main
+    from generator.run.cache import SECRET_ENV
 
     monkeypatch.setenv(SECRET_ENV, "build-test-secret")
     stale = project / "cache" / "ab" / ("ab" + "0" * 62 + ".view")

@@ -21,8 +21,8 @@ from _scale_helpers import (
     install_counting_engine,
 )
 
-from generator.cache import FORMAT, SECRET_ENV, ResultCache
-from generator.pipeline import RunOptions, check_files
+from generator.run.cache import FORMAT, SECRET_ENV, ResultCache
+from generator.run.pipeline import RunOptions, check_files
 
 
 class CreatesFileWhenUnpickled:

@@ -18,11 +18,11 @@ import pytest
 import sympy as sp
 from test_against_diffgeom import DIGITS, close, engine_value, numeric_curvature
 
-from generator.catalog import entry_files, vocabulary
-from generator.geometry import compute_geometry
-from generator.loader import load_entry
+from generator.entry.catalog import entry_files, vocabulary
+from generator.entry.loader import load_entry
+from generator.geometry.curvature import compute_geometry
+from generator.geometry.sampling import sample_points
 from generator.model import Geometry
-from generator.sampling import sample_points
 
 CATALOG = Path(__file__).resolve().parent.parent / "catalog"
 ENTRIES = entry_files([CATALOG])

@@ -1,4 +1,4 @@
-"""Citations and content hashes (generator/cite.py).
+"""Citations and content hashes (generator/site/cite.py).
 
 External references: BibTeX output is parsed with bibtexparser 2.1.0 (a general-purpose
 reader); CSL-JSON output is validated with jsonschema against tests/data/csl-data.schema.json,
@@ -16,20 +16,19 @@ import jsonschema
 import pytest
 from _entry_builders import SCHWARZSCHILD_ORIGINAL, math, pos, schwarzschild
 
-from generator.cite import (
+from generator.entry.content_hash import content_hash, short_hash
+from generator.model import CatalogMeta, Claim, Claims, Matter, Parameter, Reference, Revision
+from generator.site.cite import (
     FORMATS,
     Venue,
     bibtex_escape,
     bibtex_key,
     cite_entry,
     cite_original,
-    content_hash,
-    short_hash,
     split_name,
     split_venue,
     standalone_report,
 )
-from generator.model import CatalogMeta, Claim, Claims, Matter, Parameter, Reference, Revision
 
 CSL_SCHEMA = json.loads((Path(__file__).parent / "data" / "csl-data.schema.json").read_text())
 BASE_URL = "https://almanac.test/"  # invented for the tests
@@ -412,7 +411,7 @@ def test_citation_cff_agrees_with_pyproject() -> None:
 
 
 def test_citation_cff_names_the_same_author_as_entry_citations() -> None:
-    from generator.cite import CATALOG_AUTHOR, CATALOG_NAME
+    from generator.site.cite import CATALOG_AUTHOR, CATALOG_NAME
 
     cff = _cff()
     assert cff["authors"] == [{"name": CATALOG_AUTHOR}]
@@ -423,7 +422,7 @@ def test_citation_cff_names_the_same_author_as_entry_citations() -> None:
 
 
 def _hash_of_text(text: str) -> str:
-    from generator.loader import Vocabulary, load_text
+    from generator.entry.loader import Vocabulary, load_text
 
     path = Path("catalog/demo/lantern.yaml")
     result = load_text(text, str(path), path, Vocabulary())

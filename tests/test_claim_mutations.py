@@ -13,11 +13,11 @@ from pathlib import Path
 import pytest
 import sympy as sp
 
-from generator.catalog import entry_files, vocabulary
-from generator.equality import decide_equal
-from generator.geometry import compute_geometry
-from generator.loader import load_entry, parse_at, symbol_table
-from generator.verify import computed_scalar
+from generator.entry.catalog import entry_files, vocabulary
+from generator.entry.loader import load_entry, parse_at, symbol_table
+from generator.geometry.curvature import compute_geometry
+from generator.geometry.equality import decide_equal
+from generator.physics.verify import computed_scalar
 
 CATALOG = Path(__file__).resolve().parent.parent / "catalog"
 ENTRIES = entry_files([CATALOG])

@@ -16,9 +16,9 @@ from classify_cases import (
     vector,
 )
 
-from generator.classify import classify
-from generator.matter import classify_matter
 from generator.model import Matter
+from generator.physics.classify import classify
+from generator.physics.matter import classify_matter
 
 
 def run(entry):

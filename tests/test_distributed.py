@@ -2,8 +2,8 @@
 
 The cluster is a real ``distributed.LocalCluster`` (two worker processes, one thread each, on
 127.0.0.1); the catalog is ``tests/roots/scale-small``. Making a worker fail needs the function
-the workers run to fail: the tests replace ``generator.distributed.check_shipped`` with a closure,
-which Dask pickles by value and runs on the worker.
+the workers run to fail: the tests replace ``generator.run.distributed.check_shipped`` with a
+closure, which Dask pickles by value and runs on the worker.
 """
 
 from __future__ import annotations
@@ -17,10 +17,11 @@ from pathlib import Path
 import pytest
 from _scale_helpers import ENTRY_COUNT, FAILING, catalog_files, comparable, copy_catalog
 
-from generator import distributed as on_cluster
-from generator.cache import SECRET_ENV
 from generator.errors import UsageError
-from generator.pipeline import RunOptions, Task, check_files, run_task
+from generator.run import distributed as on_cluster
+from generator.run.cache import SECRET_ENV
+from generator.run.pipeline import RunOptions, check_files
+from generator.run.tasks import Task, run_task
 
 dask = pytest.importorskip("dask")
 dask_distributed = pytest.importorskip("distributed")
@@ -63,7 +64,7 @@ def failing_for(stem: str, how: str):
             if how == "die":
                 os._exit(3)
             raise RuntimeError(f"simulated failure on {stem}")
-        from generator.distributed import check_shipped
+        from generator.run.distributed import check_shipped
 
         return check_shipped(shipped)
 

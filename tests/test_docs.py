@@ -5,7 +5,7 @@ from __future__ import annotations
 import re
 from pathlib import Path
 
-from generator.schema import ENTRY, walk, with_reference_table
+from generator.entry.schema import ENTRY, walk, with_reference_table
 
 ROOT = Path(__file__).resolve().parent.parent
 GUIDE = ROOT / "DEVELOPERS.md"

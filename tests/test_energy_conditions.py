@@ -18,8 +18,10 @@ from classify_cases import (
     vector,
 )
 
-from generator.classify import classify
-from generator.energy import (
+from generator.geometry.equality import decide_equal
+from generator.model import Claims, Matter
+from generator.physics.classify import classify
+from generator.physics.energy import (
     certainly_negative,
     certainly_positive,
     enclosure,
@@ -29,8 +31,6 @@ from generator.energy import (
     type_at_point,
     violation_at,
 )
-from generator.equality import decide_equal
-from generator.model import Claims, Matter
 
 
 def classified(entry):

@@ -25,8 +25,13 @@ from _known_metrics import (
     theta,
 )
 
-from generator.equality import canonical, decide_equal, decide_zero, exact_square_root
-from generator.geometry import compute_geometry
+from generator.geometry.curvature import compute_geometry
+from generator.geometry.equality import (
+    canonical,
+    decide_equal,
+    decide_zero,
+    exact_square_root,
+)
 
 SCHWARZSCHILD_K = (
     48 * M**2 / r**6

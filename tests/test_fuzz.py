@@ -3,7 +3,7 @@
 The contract under test (every entry is written by a stranger): any input ends either in a
 loaded entry or in positioned diagnostics (``file:line:col`` inside the file) — never an
 uncaught exception, never a hang, never unbounded memory. Each example runs under
-`generator.limits.run_limited`, so a hang or a memory blow-up fails the test with the input
+`generator.run.limits.run_limited`, so a hang or a memory blow-up fails the test with the input
 that caused it instead of stalling CI.
 
 The runs are derandomized (same examples on every run) so CI is deterministic; the example
@@ -21,12 +21,12 @@ import sympy
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from generator.catalog import vocabulary
+from generator.entry.catalog import vocabulary
+from generator.entry.loader import LoadResult, load_entry, load_text, parse_at, symbol_table
+from generator.entry.mathparse import MAX_DEPTH, parse_expression, parse_inequality
 from generator.errors import BudgetExceeded, Diagnostic, MathSyntaxError, SourcePos
-from generator.limits import run_limited
-from generator.loader import LoadResult, load_entry, load_text, parse_at, symbol_table
-from generator.mathparse import MAX_DEPTH, parse_expression, parse_inequality
 from generator.model import MathText
+from generator.run.limits import run_limited
 
 PROJECT = Path(__file__).resolve().parents[1]
 SEED_FILE = PROJECT / "tests/roots/hostile-valid/black-holes/schwarzschild.yaml"

@@ -1,8 +1,8 @@
-"""Curvature computed by generator.geometry against published values.
+"""Curvature computed by generator.geometry.curvature against published values.
 
 Every expected value names its source. "from memory" marks a value recalled rather than
 copied from the cited text; "common practice" marks a fact of the trade. Comparisons go
-through generator.equality.decide_equal, whose exactness is tested in test_equality.py.
+through generator.geometry.equality.decide_equal, whose exactness is tested in test_equality.py.
 """
 
 from __future__ import annotations
@@ -33,9 +33,14 @@ from _known_metrics import (
     theta,
 )
 
-from generator.equality import decide_equal, decide_zero
 from generator.errors import BudgetExceeded
-from generator.geometry import DegenerateMetric, Limits, compute_geometry, compute_geometry_with
+from generator.geometry.curvature import (
+    DegenerateMetric,
+    Limits,
+    compute_geometry,
+    compute_geometry_with,
+)
+from generator.geometry.equality import decide_equal, decide_zero
 from generator.model import Geometry, Spacetime
 
 
@@ -398,7 +403,7 @@ def test_display_forms_do_not_depend_on_the_hash_seed() -> None:
     script = (
         "import sys; sys.path.insert(0, 'tests')\n"
         "from _known_metrics import reissner_nordstrom\n"
-        "from generator.geometry import compute_geometry\n"
+        "from generator.geometry.curvature import compute_geometry\n"
         "g = compute_geometry(reissner_nordstrom())\n"
         "print(repr((g.kretschmann, g.riemann, g.christoffel, g.einstein_mixed)))\n"
     )

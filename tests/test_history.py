@@ -1,4 +1,5 @@
-"""Revision history and changed-entry selection (generator/history.py), on real git repositories.
+"""Revision history and changed-entry selection (generator/entry/history.py), on real git
+repositories.
 
 git itself (the reference implementation of its own history) decides what changed; the tests
 build small repositories with known commits and check that we read them back correctly.
@@ -12,9 +13,8 @@ from pathlib import Path
 import pytest
 from _git_sandbox import Sandbox, demo_entry
 
-from generator.cite import cite_main, content_hash
-from generator.errors import UsageError
-from generator.history import (
+from generator.entry.content_hash import content_hash
+from generator.entry.history import (
     catalog_revisions,
     changed_entries,
     describe_match,
@@ -22,7 +22,9 @@ from generator.history import (
     lookup_main,
     revisions,
 )
-from generator.loader import load_entry
+from generator.entry.loader import load_entry
+from generator.errors import UsageError
+from generator.site.cite import cite_main
 
 OLD = "catalog/demo-family/lantern.yaml"
 NEW = "catalog/other-family/lantern.yaml"

@@ -21,10 +21,10 @@ from pathlib import Path
 
 import pytest
 
-from generator.catalog import vocabulary
+from generator.entry.catalog import vocabulary
+from generator.entry.loader import LoadResult, load_entry, load_text
 from generator.errors import BudgetExceeded
-from generator.limits import run_limited
-from generator.loader import LoadResult, load_entry, load_text
+from generator.run.limits import run_limited
 from tests._hostile import PROJECT, ROOTS, almanac, make_catalog
 
 VOCABULARY = vocabulary(PROJECT / "catalog")

@@ -22,10 +22,10 @@ from pathlib import Path
 
 import pytest
 
-from generator import cache as cache_module
-from generator.build import recover_interrupted_swap
-from generator.cache import FORMAT, ResultCache
 from generator.model import EntryReport
+from generator.run import cache as cache_module
+from generator.run.build import recover_interrupted_swap
+from generator.run.cache import FORMAT, ResultCache
 from tests._hostile import PROJECT, almanac, make_catalog
 
 SECRET = {"ALMANAC_CACHE_SECRET": "secret-of-the-interrupted-build-tests"}

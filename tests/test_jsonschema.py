@@ -1,4 +1,4 @@
-"""The generated JSON Schema (generator/jsonschema_export.py, schema/entry.schema.json).
+"""The generated JSON Schema (generator/entry/jsonschema_export.py, schema/entry.schema.json).
 
 External reference: the `jsonschema` library (Draft 7 validator and meta-schema) decides
 validity; we only supply the documents.
@@ -13,8 +13,8 @@ from pathlib import Path
 import jsonschema
 import pytest
 
-from generator.jsonschema_export import SCHEMA_PATH, editor_view, render_schema
-from generator.schema import ENTRY, walk
+from generator.entry.jsonschema_export import SCHEMA_PATH, editor_view, render_schema
+from generator.entry.schema import ENTRY, walk
 
 ROOT = Path(__file__).resolve().parent.parent
 SCHEMA = json.loads((ROOT / SCHEMA_PATH).read_text(encoding="utf-8"))
@@ -51,7 +51,7 @@ def errors_of(data: object) -> list[str]:
 
 
 def test_committed_schema_is_up_to_date() -> None:
-    """Regenerate: python -m generator.jsonschema_export"""
+    """Regenerate: python -m generator.entry.jsonschema_export"""
     assert (ROOT / SCHEMA_PATH).read_text(encoding="utf-8") == render_schema(ROOT)
 
 

@@ -8,7 +8,7 @@ from classify_cases import killing_claims, prepared, schwarzschild_entry
 from sympy.diffgeom import CoordSystem, Manifold, Patch, TensorProduct
 from sympy.diffgeom import metric_to_Christoffel_2nd as christoffel_2nd
 
-from generator.classify import classify
+from generator.physics.classify import classify
 
 
 def checked(*vectors: dict[str, str]):

@@ -1,4 +1,4 @@
-"""Hard per-entry limits (generator/limits.py): the alarm, the memory cap and the CPU backstop.
+"""Hard per-entry limits (generator/run/limits.py): the alarm, the memory cap and the CPU backstop.
 
 The functions below are named like the pipeline's stages on purpose: `describe_stage` reads
 the interrupted call stack, so a busy loop inside a function called ``riemann_lower`` must be
@@ -19,8 +19,9 @@ from pathlib import Path
 
 import pytest
 
+from generator.entry.loader import LoadResult
 from generator.errors import BudgetExceeded, SourcePos
-from generator.limits import (
+from generator.run.limits import (
     BUDGET_CODE,
     DEFAULT_STAGE,
     STAGE_NAMES,
@@ -29,7 +30,6 @@ from generator.limits import (
     run_limited,
     stage_of_name,
 )
-from generator.loader import LoadResult
 
 MiB = 2**20
 
@@ -217,7 +217,7 @@ def test_limits_hold_in_a_worker_process() -> None:
     done = _run_python("""
         from concurrent.futures import ProcessPoolExecutor
         from generator.errors import BudgetExceeded
-        from generator.limits import run_limited
+        from generator.run.limits import run_limited
 
         def riemann_lower():
             while True:
@@ -251,7 +251,7 @@ def test_a_call_stuck_in_c_code_ends_the_worker_instead_of_hanging() -> None:
     process (SIGXCPU) rather than letting the build hang."""
     done = _run_python("""
         import flint
-        from generator.limits import run_limited
+        from generator.run.limits import run_limited
 
         def riemann_lower():
             return flint.fmpz(3) ** (10**9)
@@ -317,7 +317,8 @@ def test_a_pathological_entry_fails_alone_naming_its_stage(tmp_path: Path) -> No
         "catalog/black-holes/pathological-expansion.yaml", 15)
 
 
-# Stage names of the engine's own cooperative budget (generator/geometry.py) and of limits.py.
+# Stage names of the engine's own cooperative budget (generator/geometry/curvature.py) and of
+# limits.py.
 KNOWN_STAGES = frozenset({"inverse metric", "Christoffel symbols", "Riemann tensor",
                           "Ricci tensor", "invariants", "Weyl tensor", "display forms"}) | \
     frozenset(STAGE_NAMES.values())
@@ -340,9 +341,9 @@ def test_the_build_reports_the_pathological_entry_and_keeps_the_old_site(tmp_pat
 
 def _proposed_run_task_body(load: LoadResult, related: dict, seconds: float,
                             memory_bytes: int):
-    """The body proposed for generator.pipeline.run_task (kept identical to the report)."""
-    from generator.geometry import Limits
-    from generator.verify import check_loaded
+    """The body proposed for generator.run.pipeline.run_task (kept identical to the report)."""
+    from generator.geometry.curvature import Limits
+    from generator.physics.verify import check_loaded
 
     try:
         return run_limited(check_loaded, load, related, Limits(seconds=seconds),
@@ -354,8 +355,8 @@ def _proposed_run_task_body(load: LoadResult, related: dict, seconds: float,
 
 @pytest.mark.slow
 def test_the_proposed_wiring_turns_a_pathological_entry_into_a_report() -> None:
-    from generator.catalog import vocabulary
-    from generator.loader import load_entry
+    from generator.entry.catalog import vocabulary
+    from generator.entry.loader import load_entry
 
     root = Path(__file__).resolve().parent / "roots"
     path = root / "hostile-pathological/black-holes/pathological-expansion.yaml"

@@ -11,14 +11,14 @@ from pathlib import Path
 
 import pytest
 
-from generator.catalog import (
+from generator.entry.catalog import (
     cross_entry_diagnostics,
     outline_all,
     outline_of,
     peek_outline,
     vocabulary,
 )
-from generator.loader import LoadResult, isbn_checksum_ok, load_entry
+from generator.entry.loader import LoadResult, isbn_checksum_ok, load_entry
 
 DEMO = Path(__file__).parent / "roots" / "demo-catalog" / "catalog"
 DEMO_ENTRY = DEMO / "riemannian" / "lighthouse-dome.yaml"
@@ -143,7 +143,7 @@ def test_hostile_math_is_refused(catalog: Path, claim: str, message: str) -> Non
     result = load(path)
     # Claims are parsed when verified; the loader parses the metric and domain. Parse here the
     # way verify does, through the entry's own symbol table.
-    from generator.loader import parse_at, symbol_table
+    from generator.entry.loader import parse_at, symbol_table
 
     table, _ = symbol_table(result.entry)
     claim_text = next(c.value for c in result.entry.claims.scalars if c.name == "kretschmann")

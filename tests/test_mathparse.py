@@ -5,13 +5,8 @@ from __future__ import annotations
 import pytest
 import sympy
 
+from generator.entry.mathparse import SymbolTable, parse_expression, parse_inequality, valid_name
 from generator.errors import MathSyntaxError
-from generator.mathparse import (
-    SymbolTable,
-    parse_expression,
-    parse_inequality,
-    valid_name,
-)
 
 r, M, t, theta = sympy.symbols("r M t theta", real=True)
 a = sympy.Function("a")(t)

@@ -15,7 +15,7 @@ import xml.etree.ElementTree as ET
 import pytest
 import sympy
 
-from generator import mathtex
+from generator.site import mathtex
 
 t, r, theta, phi = sympy.symbols("t r theta phi", real=True)
 M, Q, a = sympy.symbols("M Q a", positive=True)

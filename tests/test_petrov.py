@@ -17,10 +17,11 @@ from classify_cases import (
     schwarzschild_entry,
 )
 
-from generator.classify import classify
-from generator.geometry import compute_geometry_and_weyl
+from generator.geometry.curvature import compute_geometry_and_weyl
+from generator.geometry.sampling import sample_points
 from generator.model import Claims
-from generator.petrov import (
+from generator.physics.classify import classify
+from generator.physics.petrov import (
     PAIRS,
     FieldAlgebra,
     decide_type,
@@ -30,7 +31,6 @@ from generator.petrov import (
     invariants,
     petrov_type,
 )
-from generator.sampling import sample_points
 
 
 def petrov_of(entry):

@@ -19,10 +19,10 @@ from _scale_helpers import (
     install_counting_engine,
 )
 
-from generator import pipeline
-from generator.cache import SECRET_ENV
 from generator.model import EntryReport
-from generator.pipeline import RunOptions, check_files
+from generator.run import tasks
+from generator.run.cache import SECRET_ENV
+from generator.run.pipeline import RunOptions, check_files
 
 
 @dataclass(frozen=True)
@@ -130,14 +130,14 @@ def test_an_entry_that_fails_to_load_still_gets_its_report(tmp_path, monkeypatch
 def test_an_unexpected_error_in_one_entry_does_not_end_the_run(tmp_path, monkeypatch):
     root = copy_catalog(tmp_path)
     real = install_counting_engine(monkeypatch)
-    fake = pipeline.check_loaded
+    fake = tasks.check_loaded
 
     def crashes_on_one(load, related, limits=None):
         if load.file.endswith("point-mass.yaml"):
             raise ZeroDivisionError("engine bug")
         return fake(load, related, limits)
 
-    monkeypatch.setattr(pipeline, "check_loaded", crashes_on_one)
+    monkeypatch.setattr(tasks, "check_loaded", crashes_on_one)
     run = checked(root, RunOptions(jobs=1))
     assert len(run.reports) == ENTRY_COUNT
     assert len(real) == ENTRY_COUNT - 1
@@ -151,8 +151,8 @@ def test_a_pull_request_check_loads_only_possible_twins_and_reuses_their_ranks(t
     """The duplicate search of a one-entry check reads small cards for the whole catalog and
     whole reports only of entries whose card matches; the functional ranks it computes are
     kept on the cards, so the next check computes only the new entry's own."""
-    from generator import twins
-    from generator.cache import ResultCache
+    from generator.physics import twins
+    from generator.run.cache import ResultCache
 
     monkeypatch.setenv(SECRET_ENV, "pipeline-test-secret")
     root = copy_catalog(tmp_path)

@@ -15,7 +15,7 @@ import numpy
 import sympy
 from _site_demo import load_demo
 
-from generator import plots
+from generator.site import plots
 
 ROOTS = Path(__file__).parent / "roots"
 

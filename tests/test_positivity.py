@@ -15,7 +15,7 @@ import pytest
 import sympy as sp
 from _known_metrics import spacetime
 
-from generator.positivity import proves_sign
+from generator.physics.positivity import proves_sign
 
 t, r, theta, phi, x = sp.symbols("t r theta phi x", real=True)
 M, R, g = sp.symbols("M R g", positive=True)
@@ -139,7 +139,7 @@ def test_tolman_iv_outside_the_star_is_not_proved() -> None:
 
 
 def test_only_lower_bounds_of_a_positive_square_are_used() -> None:
-    from generator.positivity import square_lower_bound
+    from generator.physics.positivity import square_lower_bound
 
     inside = sp.Lt(3 * r**2, Rt**2 - A_**2)
     assert square_lower_bound(inside, Rt) == ("lower", A_**2 + 3 * r**2, True)

@@ -5,9 +5,9 @@ from __future__ import annotations
 
 from classify_cases import POSITIONS, make_entry, prepared, schwarzschild_entry, vector
 
-from generator.classify import classify
 from generator.errors import SourcePos
 from generator.model import RelatedChart
+from generator.physics.classify import classify
 
 ISOTROPIC = ("-((1 - M/(2*rho))/(1 + M/(2*rho)))**2*dt**2 + (1 + M/(2*rho))**4*(drho**2"
              " + rho**2*(dtheta**2 + sin(theta)**2*dphi**2))")

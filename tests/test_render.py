@@ -236,7 +236,7 @@ def test_contributing_page_is_rendered_markdown(site: Path) -> None:
 
 
 def test_schema_is_published_when_the_repo_has_it(site: Path) -> None:
-    from generator.render import SCHEMA_FILE
+    from generator.site.common import SCHEMA_FILE
 
     assert (site / "schema/entry.schema.json").is_file() == SCHEMA_FILE.is_file()
 
@@ -314,7 +314,8 @@ def test_an_entry_without_content_hash_still_renders_and_says_why(tmp_path: Path
 def test_unsafe_page_names_are_refused(tmp_path: Path) -> None:
     from dataclasses import replace
 
-    from generator.render import RenderError, render_site
+    from generator.site.common import RenderError
+    from generator.site.writer import render_site
 
     report = demo.lantern_report()
     evil = replace(report, entry=replace(report.entry, id="../../escape"))

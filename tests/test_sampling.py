@@ -17,7 +17,7 @@ from _known_metrics import (
     theta,
 )
 
-from generator.sampling import (
+from generator.geometry.sampling import (
     angle_coordinates,
     inside_domain,
     linear_bound,
@@ -127,7 +127,7 @@ def test_repeated_requests_get_the_same_points_as_fresh_copies() -> None:
 
 def test_fast_numbers_agree_with_sympy_evalf() -> None:
     # Reference: SymPy's own error-controlled evalf (a general-purpose library).
-    from generator.sampling import numeric_value
+    from generator.geometry.sampling import numeric_value
 
     values = [
         sp.cos(sp.Rational(13, 7)) ** 2 * sp.cosh(sp.Rational(5, 3)) - sp.sqrt(2) / 3,
@@ -144,7 +144,7 @@ def test_fast_numbers_agree_with_sympy_evalf() -> None:
 
 
 def test_numeric_comparison_rejects_a_small_real_difference() -> None:
-    from generator.equality import _numerically_differ
+    from generator.geometry.equality import _numerically_differ
 
     one = sp.cos(sp.Rational(1, 3)) ** 2 + sp.sin(sp.Rational(1, 3)) ** 2
     assert _numerically_differ(one, sp.Integer(1)) is False

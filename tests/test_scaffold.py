@@ -1,4 +1,4 @@
-"""``python -m generator new`` (generator/scaffold.py): scaffolds load, TODOs block ``check``.
+"""``python -m generator new`` (generator/entry/scaffold.py): scaffolds load, TODOs block ``check``.
 
 The entries scaffolded here are a demo scenario of our own (the invented Harbourtown
 "lantern" spacetimes), except the Schwarzschild line element, which is the published metric
@@ -16,15 +16,9 @@ import jsonschema
 import pytest
 from _git_sandbox import Sandbox, demo_entry
 
-from generator.jsonschema_export import SCHEMA_PATH, editor_view
-from generator.loader import TODO_CODE, Vocabulary, find_todos, load_entry, load_text
-from generator.scaffold import (
-    Draft,
-    ParameterSpec,
-    ReferenceSpec,
-    new_main,
-    render,
-)
+from generator.entry.jsonschema_export import SCHEMA_PATH, editor_view
+from generator.entry.loader import TODO_CODE, Vocabulary, find_todos, load_entry, load_text
+from generator.entry.scaffold import Draft, ParameterSpec, ReferenceSpec, new_main, render
 
 ROOT = Path(__file__).resolve().parent.parent
 SCHWARZSCHILD = "-(1 - 2*M/r)*dt**2 + dr**2/(1 - 2*M/r) + r**2*(dtheta**2 + sin(theta)**2*dphi**2)"

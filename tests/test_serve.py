@@ -6,7 +6,7 @@ import threading
 import urllib.request
 from pathlib import Path
 
-from generator import serve
+from generator.run import serve
 
 
 def test_snapshot_sees_edits_and_new_files(tmp_path: Path) -> None:

@@ -13,7 +13,7 @@ import mpmath
 import pytest
 import sympy
 
-from generator.verify import _inertia, exact_inertia
+from generator.physics.verify import _inertia, exact_inertia
 
 
 def reference_signs(matrix: list[list[Fraction]]) -> list[str] | None:

@@ -1,4 +1,4 @@
-"""Duplicate detection (generator/twins.py) on hand-built reports.
+"""Duplicate detection (generator/physics/twins.py) on hand-built reports.
 
 Published metrics used (standard forms, common practice; from memory):
 - Schwarzschild in Schwarzschild, isotropic and ingoing Eddington–Finkelstein coordinates
@@ -19,9 +19,9 @@ import pytest
 import sympy as sp
 from _entry_builders import schwarzschild
 
-from generator.geometry import compute_geometry
+from generator.geometry.curvature import compute_geometry
 from generator.model import Classification, EntryReport, RelatedChart, Spacetime
-from generator.twins import (
+from generator.physics.twins import (
     find_all_twins,
     find_twins,
     fingerprint,

@@ -14,7 +14,8 @@ from pathlib import Path
 import pytest
 import yaml
 
-from generator import cli, jsonschema_export
+from generator import cli
+from generator.entry import jsonschema_export
 
 ROOT = Path(__file__).resolve().parent.parent
 WORKFLOW = yaml.safe_load((ROOT / ".github" / "workflows" / "catalog.yml").read_text())

@@ -108,7 +108,7 @@ def tide_geometry() -> Geometry:
 
 def build_demo_site(out: Path, reports: list[EntryReport] | None = None) -> Path:
     """Render the demo catalog (or the given reports) into ``out``."""
-    from generator.render import render_site
+    from generator.site.writer import render_site
 
     render_site(demo_reports() if reports is None else reports, demo_meta(), out)
     return out

@@ -1,0 +1,3 @@
+"""Stage 2, geometry: exact rational-function algebra, curvature, sample points and equality
+decisions.
+"""

@@ -1,0 +1,3 @@
+"""Stage 3, physics: matter content, energy conditions, Petrov type, symmetries, classification and
+the verification of claims.
+"""

@@ -1,0 +1,459 @@
+"""Classify & verify (1/4): what kind of matter supports the geometry, and is the declared source
+right?
+
+The geometry alone decides vacuum (R_ab = 0) and Λ-vacuum (R_ab = (R/n) g_ab, R constant).
+Any other spacetime needs a source: the declared one (Maxwell field, perfect fluid, null dust,
+anisotropic fluid) is rebuilt from its own data and must satisfy G_ab + Λ g_ab = 8π T_ab
+component by component. Every zero test goes through ``equality.decide_zero``.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, field
+
+import sympy
+
+from generator.entry.mathparse import parse_math
+from generator.errors import Diagnostic, MathSyntaxError
+from generator.geometry.equality import canonical_all, decide_equal
+from generator.geometry.exactvalues import coordinate_names, index_label, vanishes
+from generator.model import Entry, Geometry, MathText, Spacetime
+
+SOURCE_KINDS = ("electrovacuum", "perfect-fluid", "null-dust", "anisotropic-fluid")
+EINSTEIN_KINDS = ("vacuum", "lambda-vacuum")
+EIGHT_PI = 8 * sympy.pi
+
+
+@dataclass(frozen=True)
+class MatterResult:
+    """What `classify` needs from this stage: the computed kind, Λ, T and any problems."""
+
+    kind: str
+    cosmological_constant: sympy.Expr | None
+    stress_energy: sympy.ImmutableMatrix | None  # T_ab
+    stress_energy_mixed: sympy.ImmutableMatrix | None  # T^a_b
+    diagnostics: tuple[Diagnostic, ...] = ()
+    reasons: dict[str, str] = field(default_factory=dict)
+    source: SourceData | None = None
+
+
+@dataclass(frozen=True)
+class SourceData:
+    """Parsed declared source, kept so energy conditions can use e.g. the null-dust density."""
+
+    kind: str
+    density: sympy.Expr | None = None
+    vector: tuple[sympy.Expr, ...] | None = None  # u^a or k^a
+    pressures: tuple[sympy.Expr, ...] | None = None  # principal pressures when declared
+
+
+@dataclass(frozen=True)
+class Geometric:
+    """What the geometry alone says about the matter (vacuum, Λ-vacuum or neither)."""
+
+    kind: str  # vacuum | lambda-vacuum | non-vacuum | undecided
+    cosmological_constant: sympy.Expr | None
+    failing: tuple[str, ...] = ()  # components that fail the vacuum / Einstein test
+    undecided: tuple[str, ...] = ()
+
+
+class SourceProblem(Exception):
+    """A declared source cannot be built (unparsable text, unknown coordinate, missing data)."""
+
+    def __init__(self, diagnostic: Diagnostic) -> None:
+        super().__init__(diagnostic.message)
+        self.diagnostic = diagnostic
+
+
+# ---------------------------------------------------------------------------- geometry alone
+
+
+def pairs(n: int) -> list[tuple[int, int]]:
+    return [(a, b) for a in range(n) for b in range(a, n)]
+
+
+def failing_components(matrix: sympy.Matrix, spacetime: Spacetime, name: str,
+                       symmetric: bool = True) -> tuple[list[str], list[str]]:
+    """Labels of the components that are not zero, and of those that could not be decided."""
+    names = coordinate_names(spacetime)
+    n = spacetime.dimension
+    indices = pairs(n) if symmetric else [(a, b) for a in range(n) for b in range(n)]
+    failing, undecided = [], []
+    for a, b in indices:
+        decision = vanishes(matrix[a, b], spacetime)
+        label = name.format(index_label(names, (a,)), index_label(names, (b,)),
+                            index_label(names, (a, b)))
+        if decision.equal is False:
+            failing.append(label)
+        elif decision.equal is None:
+            undecided.append(label)
+    return failing, undecided
+
+
+def geometric_kind(geometry: Geometry, spacetime: Spacetime) -> Geometric:
+    """Vacuum, Λ-vacuum (with Λ = (n-2)R/(2n)) or neither, from the Ricci tensor alone."""
+    n = geometry.dimension
+    failing, undecided = failing_components(geometry.ricci, spacetime, "R_{2}")
+    if not failing and not undecided:
+        return Geometric("vacuum", None)
+    if n < 3:
+        return Geometric("non-vacuum", None, tuple(failing), tuple(undecided))
+    scalar = geometry.ricci_scalar
+    traceless = geometry.ricci - scalar / n * geometry.metric
+    off, unsure = failing_components(traceless, spacetime, "R_{2} - (R/n) g_{2}")
+    constant = all(vanishes(sympy.diff(scalar, x), spacetime).equal is True
+                   for x in spacetime.coordinates)
+    if not off and not unsure and constant:
+        return Geometric("lambda-vacuum", sympy.factor((n - 2) * scalar / (2 * n)))
+    if unsure or undecided:
+        return Geometric("undecided", None, tuple(off), tuple(unsure + undecided))
+    return Geometric("non-vacuum", None, tuple(failing), ())
+
+
+# ---------------------------------------------------------------------------- parsing the source
+
+
+def parse_field(entry: Entry, spacetime: Spacetime, key: str, text: MathText) -> sympy.Expr:
+    """Parse one math string of the matter block with the whitelisted parser."""
+    try:
+        return parse_math(text, spacetime.symbols)
+    except MathSyntaxError as exc:
+        raise SourceProblem(Diagnostic.at(text.pos_at(exc.offset), "error", exc.message,
+                                          "math.syntax", exc.hint)) from exc
+
+
+def parse_vector(entry: Entry, spacetime: Spacetime, key: str,
+                 items: Sequence[tuple[str, MathText]]) -> list[sympy.Expr]:
+    """Components by coordinate name into a list in index order (missing ones are zero)."""
+    names = coordinate_names(spacetime)
+    values = [sympy.Integer(0)] * len(names)
+    for name, text in items:
+        if name not in names:
+            raise SourceProblem(Diagnostic.at(
+                entry.pos(f"{key}.{name}"), "error",
+                f"'{name}' in {key} is not a coordinate of this entry", "matter.component",
+                f"use the coordinate names {', '.join(names)}"))
+        values[names.index(name)] = parse_field(entry, spacetime, f"{key}.{name}", text)
+    return values
+
+
+def require(entry: Entry, key: str, value: object, kind: str) -> None:
+    if value is None or value == ():
+        raise SourceProblem(Diagnostic.at(
+            entry.pos("matter.kind"), "error", f"matter kind '{kind}' needs '{key}'",
+            "matter.missing", f"add matter.{key} (see the entry format)"))
+
+
+def declared_lambda(entry: Entry, spacetime: Spacetime) -> sympy.Expr | None:
+    text = entry.matter.cosmological_constant
+    if text is None:
+        return None
+    return parse_field(entry, spacetime, "matter.cosmological_constant", text)
+
+
+# ---------------------------------------------------------------------------- sources
+
+
+def lower(vector: Sequence[sympy.Expr], metric: sympy.Matrix) -> list[sympy.Expr]:
+    n = len(vector)
+    return [sum((metric[a, b] * vector[b] for b in range(n)), sympy.Integer(0))
+            for a in range(n)]
+
+
+def norm(vector: Sequence[sympy.Expr], metric: sympy.Matrix) -> sympy.Expr:
+    return sum((v * w for v, w in zip(vector, lower(vector, metric), strict=True)),
+               sympy.Integer(0))
+
+
+def field_strength(potential: Sequence[sympy.Expr], coordinates: Sequence[sympy.Symbol]
+                   ) -> sympy.Matrix:
+    """F_ab = ∂_a A_b − ∂_b A_a."""
+    n = len(coordinates)
+    return sympy.Matrix(n, n, lambda a, b: sympy.diff(potential[b], coordinates[a])
+                        - sympy.diff(potential[a], coordinates[b]))
+
+
+def maxwell_divergence(F: sympy.Matrix, geometry: Geometry,
+                       coordinates: Sequence[sympy.Symbol]) -> list[sympy.Expr]:
+    """∇_a F^ab = ∂_a F^ab + Γ^a_ac F^cb, with Γ^a_ac = ∂_c(det g)/(2 det g).
+
+    Writing the contracted Christoffel symbol through det g itself (not √|g|) keeps the
+    divergence free of square roots and of the sign of the determinant.
+    """
+    ginv = geometry.inverse_metric
+    upper = ginv * F * ginv.T
+    det = geometry.metric.det()
+    n = len(coordinates)
+    trace_gamma = [sympy.diff(det, x) / (2 * det) for x in coordinates]
+    return [sum((sympy.diff(upper[a, b], coordinates[a]) + trace_gamma[a] * upper[a, b]
+                 for a in range(n)), sympy.Integer(0)) for b in range(n)]
+
+
+def maxwell_stress(F: sympy.Matrix, geometry: Geometry) -> sympy.Matrix:
+    """T_ab = (F_ac F_b^c − ¼ g_ab F_cd F^cd)/4π (Gaussian units, signature −+++)."""
+    g, ginv = geometry.metric, geometry.inverse_metric
+    mixed = F * ginv  # F_a^c
+    invariant = sum((F[c, d] * (ginv * F * ginv.T)[c, d] for c in range(g.rows)
+                     for d in range(g.rows)), sympy.Integer(0))
+    return (F * mixed.T - g * invariant / 4) / (4 * sympy.pi)
+
+
+def perfect_fluid(density: sympy.Expr, pressure: sympy.Expr, velocity: Sequence[sympy.Expr],
+                  metric: sympy.Matrix) -> sympy.Matrix:
+    u = lower(velocity, metric)
+    n = len(u)
+    return sympy.Matrix(n, n, lambda a, b: (density + pressure) * u[a] * u[b]) + pressure * metric
+
+
+def null_dust(density: sympy.Expr, direction: Sequence[sympy.Expr], metric: sympy.Matrix
+              ) -> sympy.Matrix:
+    k = lower(direction, metric)
+    n = len(k)
+    return sympy.Matrix(n, n, lambda a, b: density * k[a] * k[b])
+
+
+# ---------------------------------------------------------------------------- checking a source
+
+
+@dataclass(frozen=True)
+class Built:
+    """A declared source rebuilt from the entry: T_ab, or T^a_b for anisotropic fluids."""
+
+    stress: sympy.Matrix
+    mixed: bool
+    side_problems: tuple[Diagnostic, ...]
+    source: SourceData
+
+
+def build_electrovacuum(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> Built:
+    require(entry, "potential", entry.matter.potential, "electrovacuum")
+    potential = parse_vector(entry, spacetime, "matter.potential", entry.matter.potential)
+    F = field_strength(potential, spacetime.coordinates)
+    divergence = maxwell_divergence(F, geometry, spacetime.coordinates)
+    names = coordinate_names(spacetime)
+    bad = [f"∇_a F^a{index_label(names, (b,))}" for b, value in enumerate(divergence)
+           if vanishes(value, spacetime).equal is not True]
+    problems = ()
+    if bad:
+        problems = (Diagnostic.at(
+            entry.pos("matter.potential"), "error",
+            f"the declared potential does not solve Maxwell's equations: "
+            f"{', '.join(bad)} ≠ 0 (or undecided)", "matter.maxwell",
+            "check A_a (lower index) and its sign; sources outside the field are not allowed "
+            "in an electrovacuum"),)
+    return Built(maxwell_stress(F, geometry), False, problems, SourceData("electrovacuum"))
+
+
+def build_perfect_fluid(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> Built:
+    m = entry.matter
+    for key, value in (("density", m.density), ("pressure", m.pressure),
+                       ("velocity", m.velocity)):
+        require(entry, key, value, "perfect-fluid")
+    assert m.density is not None and m.pressure is not None
+    rho = parse_field(entry, spacetime, "matter.density", m.density)
+    p = parse_field(entry, spacetime, "matter.pressure", m.pressure)
+    u = parse_vector(entry, spacetime, "matter.velocity", m.velocity)
+    problems = ()
+    normalisation = vanishes(norm(u, geometry.metric) + 1, spacetime)
+    if normalisation.equal is not True:
+        verb = "is not" if normalisation.equal is False else "could not be shown to be"
+        problems = (Diagnostic.at(
+            entry.pos("matter.velocity"), "error",
+            f"the fluid velocity {verb} a unit timelike vector: g_ab u^a u^b + 1 ≠ 0"
+            f" (g_ab u^a u^b = {sympy.factor(norm(u, geometry.metric))})",
+            "matter.velocity", "give u^a (upper index) normalised to g_ab u^a u^b = -1"),)
+    pressures = (p,) * (len(u) - 1)
+    return Built(perfect_fluid(rho, p, u, geometry.metric), False, problems,
+                 SourceData("perfect-fluid", rho, tuple(u), pressures))
+
+
+def build_null_dust(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> Built:
+    m = entry.matter
+    require(entry, "density", m.density, "null-dust")
+    require(entry, "null_direction", m.null_direction, "null-dust")
+    assert m.density is not None
+    rho = parse_field(entry, spacetime, "matter.density", m.density)
+    k = parse_vector(entry, spacetime, "matter.null_direction", m.null_direction)
+    problems = ()
+    if vanishes(norm(k, geometry.metric), spacetime).equal is not True:
+        problems = (Diagnostic.at(
+            entry.pos("matter.null_direction"), "error",
+            f"the null direction is not null: g_ab k^a k^b = "
+            f"{sympy.factor(norm(k, geometry.metric))} ≠ 0", "matter.null-direction",
+            "give k^a (upper index) with g_ab k^a k^b = 0"),)
+    return Built(null_dust(rho, k, geometry.metric), False, problems,
+                 SourceData("null-dust", rho, tuple(k)))
+
+
+def build_anisotropic(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> Built:
+    """T^a_b = diag(−ρ, p_1, ...): the coordinate missing from principal_pressures is time."""
+    m = entry.matter
+    require(entry, "density", m.density, "anisotropic-fluid")
+    require(entry, "principal_pressures", m.principal_pressures, "anisotropic-fluid")
+    assert m.density is not None
+    names = coordinate_names(spacetime)
+    pressures = parse_vector(entry, spacetime, "matter.principal_pressures",
+                             m.principal_pressures)
+    listed = {name for name, _ in m.principal_pressures}
+    missing = [c for c in names if c not in listed]
+    if len(missing) != 1:
+        raise SourceProblem(Diagnostic.at(
+            entry.pos("matter.principal_pressures"), "error",
+            f"principal_pressures must name every coordinate but the time coordinate "
+            f"(names {len(listed)} of {len(names)})", "matter.pressures",
+            "list one pressure T^i_i for each spatial coordinate"))
+    rho = parse_field(entry, spacetime, "matter.density", m.density)
+    time = names.index(missing[0])
+    diagonal = [-rho if a == time else pressures[a] for a in range(len(names))]
+    spatial = tuple(pressures[a] for a in range(len(names)) if a != time)
+    return Built(sympy.diag(*diagonal), True, (), SourceData("anisotropic-fluid", rho,
+                                                             pressures=spatial))
+
+
+BUILDERS: dict[str, Callable[[Entry, Spacetime, Geometry], Built]] = {
+    "electrovacuum": build_electrovacuum,
+    "perfect-fluid": build_perfect_fluid,
+    "null-dust": build_null_dust,
+    "anisotropic-fluid": build_anisotropic,
+}
+
+
+def field_equation_residual(geometry: Geometry, Lambda: sympy.Expr | None, built: Built
+                            ) -> sympy.Matrix:
+    """G + Λ g − 8π T, lower indices (or mixed for a source given as T^a_b)."""
+    lam = Lambda if Lambda is not None else sympy.Integer(0)
+    if built.mixed:
+        identity = sympy.eye(geometry.dimension)
+        return geometry.einstein_mixed + lam * identity - EIGHT_PI * built.stress
+    return geometry.einstein + lam * geometry.metric - EIGHT_PI * built.stress
+
+
+def residual_message(kind: str, failing: list[str], undecided: list[str]) -> str:
+    parts = []
+    if failing:
+        parts.append(", ".join(failing) + " ≠ 0")
+    if undecided:
+        parts.append("undecided: " + ", ".join(undecided))
+    return (f"the declared {kind} source does not satisfy G_ab + Λ g_ab = 8π T_ab: "
+            + "; ".join(parts))
+
+
+def check_source(entry: Entry, spacetime: Spacetime, geometry: Geometry,
+                 Lambda: sympy.Expr | None) -> tuple[Built | None, list[Diagnostic]]:
+    """Rebuild the declared source and test each component of the field equations."""
+    kind = entry.matter.kind
+    try:
+        built = BUILDERS[kind](entry, spacetime, geometry)
+    except SourceProblem as problem:
+        return None, [problem.diagnostic]
+    residual = field_equation_residual(geometry, Lambda, built)
+    lam = " + Λ g_{2}" if Lambda is not None else ""
+    if built.mixed:
+        template = "G^{0}_{1}" + (" + Λ δ^{0}_{1}" if Lambda is not None else "") \
+            + " − 8π T^{0}_{1}"
+    else:
+        template = "G_{2}" + lam + " − 8π T_{2}"
+    failing, undecided = failing_components(residual, spacetime, template,
+                                            symmetric=not built.mixed)
+    diagnostics = list(built.side_problems)
+    if failing or undecided:
+        diagnostics.append(Diagnostic.at(
+            entry.pos("matter.kind"), "error", residual_message(kind, failing, undecided),
+            "matter.field-equations",
+            "check the density, pressure and vector fields (and their index positions) "
+            "against the reference"))
+    return built, diagnostics
+
+
+# ---------------------------------------------------------------------------- the stage
+
+
+def classify_matter(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> MatterResult:
+    """Computed matter kind, Λ and T^a_b, with a diagnostic for every disagreement."""
+    try:
+        Lambda = declared_lambda(entry, spacetime)
+    except SourceProblem as problem:
+        return MatterResult("undecided", None, None, None, (problem.diagnostic,),
+                            {"matter_kind": "the cosmological constant could not be read"})
+    found = geometric_kind(geometry, spacetime)
+    declared = entry.matter.kind
+    diagnostics: list[Diagnostic] = []
+    if declared in EINSTEIN_KINDS:
+        diagnostics += check_einstein_kind(entry, spacetime, found, Lambda)
+    built = None
+    if declared in BUILDERS:
+        built, problems = check_source(entry, spacetime, geometry, Lambda)
+        diagnostics += problems
+    kind = computed_kind(found, declared, built is not None and not diagnostics)
+    lam = found.cosmological_constant if kind == "lambda-vacuum" and Lambda is None else Lambda
+    stress = (geometry.einstein + (lam or 0) * geometry.metric) / EIGHT_PI
+    mixed = (geometry.einstein_mixed + (lam or 0) * sympy.eye(geometry.dimension)) / EIGHT_PI
+    reasons = {}
+    if geometry.dimension < 3:
+        reasons["matter_kind"] = "Einstein's equations are empty below three dimensions"
+    verified = built.source if built is not None and not diagnostics else None
+    return MatterResult(kind, lam, simplest(stress, spacetime), simplest(mixed, spacetime),
+                        tuple(diagnostics), reasons, verified)
+
+
+def simplest(matrix: sympy.Matrix, spacetime: Spacetime) -> sympy.ImmutableMatrix:
+    """Every component in display form, through one field for the whole matrix."""
+    return sympy.ImmutableMatrix(matrix.rows, matrix.cols,
+                                 canonical_all(list(matrix), spacetime))
+
+
+def computed_kind(found: Geometric, declared: str, source_ok: bool) -> str:
+    if found.kind in ("vacuum", "lambda-vacuum"):
+        return found.kind
+    if source_ok:
+        return declared
+    return found.kind
+
+
+def check_einstein_kind(entry: Entry, spacetime: Spacetime, found: Geometric,
+                        Lambda: sympy.Expr | None) -> list[Diagnostic]:
+    """A declared vacuum or Λ-vacuum must match what the Ricci tensor says."""
+    declared = entry.matter.kind
+    at = entry.pos("matter.kind")
+    if found.kind == "undecided":
+        return [Diagnostic.at(at, "error", f"matter.kind is {declared} but the Ricci tensor "
+                              f"could not be decided: {', '.join(found.undecided)}",
+                              "matter.kind", "simplify the metric or narrow the domain")]
+    if declared == "vacuum":
+        return check_vacuum(entry, spacetime, found, Lambda)
+    if found.kind != "lambda-vacuum":
+        what = ("Ricci-flat (Λ = 0)" if found.kind == "vacuum" else
+                f"not an Einstein space ({', '.join(found.failing)} ≠ 0)")
+        hint = "declare kind: vacuum" if found.kind == "vacuum" else \
+            "declare the matter source, or kind: unspecified"
+        return [Diagnostic.at(at, "error", f"matter.kind is lambda-vacuum but the geometry "
+                              f"is {what}", "matter.kind", hint)]
+    if Lambda is not None:
+        assert found.cosmological_constant is not None
+        decision = decide_equal(Lambda, found.cosmological_constant, spacetime)
+        if decision.equal is not True:
+            return [Diagnostic.at(entry.pos("matter.cosmological_constant"), "error",
+                                  f"declared Λ = {Lambda} but the geometry gives "
+                                  f"Λ = (n−2)R/(2n) = {found.cosmological_constant}",
+                                  "matter.cosmological-constant",
+                                  "check the sign convention: G_ab + Λ g_ab = 8π T_ab")]
+    return []
+
+
+def check_vacuum(entry: Entry, spacetime: Spacetime, found: Geometric,
+                 Lambda: sympy.Expr | None) -> list[Diagnostic]:
+    at = entry.pos("matter.kind")
+    if Lambda is not None and vanishes(Lambda, spacetime).equal is not True:
+        return [Diagnostic.at(entry.pos("matter.cosmological_constant"), "error",
+                              "matter.kind is vacuum but a nonzero cosmological constant is "
+                              "declared", "matter.kind", "declare kind: lambda-vacuum")]
+    if found.kind == "vacuum":
+        return []
+    if found.kind == "lambda-vacuum":
+        return [Diagnostic.at(at, "error", f"matter.kind is vacuum but R_ab ≠ 0: the geometry "
+                              f"is a Λ-vacuum with Λ = {found.cosmological_constant}",
+                              "matter.kind", "declare kind: lambda-vacuum")]
+    return [Diagnostic.at(at, "error", f"matter.kind is vacuum but R_ab ≠ 0: "
+                          f"{', '.join(found.failing)} ≠ 0", "matter.kind",
+                          "declare the matter source (e.g. perfect-fluid), or check the metric")]

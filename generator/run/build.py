@@ -1,0 +1,161 @@
+"""The whole build, top-down: load → compute → classify & verify → render.
+
+Reading this file should be enough to know what `python -m generator build` does.
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+import sys
+import tempfile
+from collections.abc import Callable
+from dataclasses import dataclass
+from importlib import metadata
+from pathlib import Path
+
+from generator import __version__
+from generator.entry.catalog import entry_files, read_families, read_tags
+from generator.errors import UsageError
+from generator.model import CatalogMeta, EntryReport
+from generator.run.pipeline import RunOptions, check_files
+from generator.site.cite import DEFAULT_BASE_URL, project_settings
+
+
+@dataclass(frozen=True)
+class BuildResult:
+    ok: bool
+    reports: tuple[EntryReport, ...]
+    refused: tuple[str, ...]  # files of entries that failed their checks
+
+
+def build_site(catalog: Path, out: Path, options: RunOptions,
+               publish_verified_only: bool = False,
+               on_done: Callable[[EntryReport], None] | None = None,
+               on_running: Callable[[list[str]], None] | None = None,
+               prune_cache: bool = False) -> BuildResult:
+    """Check every entry, then render the site into ``out`` atomically.
+
+    Any failed entry fails the build and leaves the previous site untouched, unless
+    ``publish_verified_only`` is set: then the site is written with the verified entries only.
+    ``on_done`` and ``on_running`` follow the checks (see ``pipeline.check_files``).
+    ``prune_cache``: once the site is written, delete the cached reports, cards and views this
+    build did not use (for a cache kept between CI runs; see ``cache.prune``).
+    """
+    if not (catalog / "tags.yaml").is_file():
+        raise UsageError(f"{catalog} is not a catalog folder (no tags.yaml)")
+    base = Path.cwd()
+    reports = check_files(entry_files([catalog]), catalog.resolve(), base, options,
+                          on_done, on_running)
+    refused = tuple(r.file for r in reports if not r.ok)
+    report_problems(reports)
+    if refused and not publish_verified_only:
+        print(f"build failed: {len(refused)} entries did not verify; site/ left unchanged",
+              file=sys.stderr)
+        return BuildResult(False, tuple(reports), refused)
+    meta = catalog_meta(catalog, options.cache_dir)
+    views = render_atomically(reports, meta, out, options.cache_dir)
+    if prune_cache and options.cache_dir is not None:
+        prune_unused(options.cache_dir, reports, views)
+    print(f"site written to {out}/ ({len(reports) - len(refused)} entries)", file=sys.stderr)
+    return BuildResult(not refused, tuple(reports), refused)
+
+
+def prune_unused(cache_dir: Path, reports: list[EntryReport], views: set[str]) -> None:
+    from generator.run.cache import REPORT_SUFFIX, prune
+    from generator.run.pipeline import TWIN_CARD_SUFFIX
+    from generator.site.writer import VIEW_SUFFIX
+
+    used = {r.inputs_key for r in reports if r.inputs_key}
+    removed = prune(cache_dir, {REPORT_SUFFIX: used, TWIN_CARD_SUFFIX: used, VIEW_SUFFIX: views})
+    print(f"cache pruned: {removed} unused files removed from {cache_dir}", file=sys.stderr)
+
+
+def report_problems(reports: list[EntryReport]) -> None:
+    for report in reports:
+        for diagnostic in report.diagnostics:
+            print(diagnostic.format_text(), file=sys.stderr)
+    failed = sum(not r.ok for r in reports)
+    print(f"{len(reports)} entries checked: {len(reports) - failed} verified, {failed} failed",
+          file=sys.stderr)
+
+
+def catalog_meta(catalog: Path, cache_dir: Path | None = None) -> CatalogMeta:
+    """Catalog-wide data: versions, vocabularies, the contributor guide, git revisions."""
+    project = catalog.resolve().parent
+    settings = project_settings(project)
+    guide = project / "DEVELOPERS.md"
+    return CatalogMeta(
+        version=settings.get("version", __version__),
+        generator_version=__version__,
+        sympy_version=metadata.version("sympy"),
+        families=read_families(catalog),
+        tags=read_tags(catalog),
+        contributing_markdown=guide.read_text(encoding="utf-8") if guide.is_file() else "",
+        base_url=settings.get("base_url", DEFAULT_BASE_URL),
+        revisions=_revisions(project, catalog, cache_dir),
+    )
+
+
+def _revisions(project: Path, catalog: Path, cache_dir: Path | None) -> dict:
+    from generator.entry.history import GitError, catalog_revisions, repo_root
+
+    if repo_root(project) is None:
+        return {}
+    cache_file = cache_dir / "content-hashes.json" if cache_dir is not None else None
+    try:
+        return catalog_revisions(project, catalog, cache_file=cache_file)
+    except (GitError, UsageError):
+        return {}
+
+
+def render_atomically(reports: list[EntryReport], meta: CatalogMeta, out: Path,
+                      cache_dir: Path | None = None) -> set[str]:
+    """Render into a fresh sibling folder, then swap it in, so readers never see half a site.
+    With a cache folder, entry views are kept there between builds (``site.writer.kept_view``);
+    returns the keys of the views used."""
+    from generator.run.cache import ResultCache
+    from generator.site.writer import VIEW_SUFFIX, render_site
+
+    kept = ResultCache(cache_dir, suffix=VIEW_SUFFIX) if cache_dir is not None else None
+
+    out = out.resolve()
+    out.parent.mkdir(parents=True, exist_ok=True)
+    old = out.parent / f".{out.name}.previous"
+    recover_interrupted_swap(out, old)
+    staging = Path(tempfile.mkdtemp(prefix=f".{out.name}.building-", dir=out.parent))
+    try:
+        views = render_site(reports, meta, staging, kept)
+    except BaseException:
+        shutil.rmtree(staging, ignore_errors=True)
+        raise
+    shutil.rmtree(old, ignore_errors=True)
+    if out.exists():
+        os.replace(out, old)
+    os.replace(staging, out)
+    os.chmod(out, 0o755)
+    shutil.rmtree(old, ignore_errors=True)
+    return views
+
+
+def recover_interrupted_swap(out: Path, old: Path) -> None:
+    """A build killed between the two renames leaves only the previous site: put it back."""
+    if old.is_dir() and not out.exists():
+        os.replace(old, out)
+    for leftover in out.parent.glob(f".{out.name}.building-*"):
+        shutil.rmtree(leftover, ignore_errors=True)
+
+
+def serve_site(catalog: Path, out: Path, port: int) -> None:
+    """Build once, then preview on 127.0.0.1 and rebuild when the catalog or templates change."""
+    from generator.run.serve import serve
+
+    options = RunOptions(cache_dir=Path(".almanac-cache"))
+
+    def rebuild() -> None:
+        build_site(catalog, out, options, publish_verified_only=True)
+
+    rebuild()
+    from generator.site.common import TEMPLATE_DIR
+
+    serve(out, rebuild, host="127.0.0.1", port=port, watch_paths=[catalog, TEMPLATE_DIR])

@@ -1,0 +1,317 @@
+"""Running load → compute → classify & verify over many entries.
+
+Entries are independent, so they run in separate processes (all cores by default), each with
+its own time budget; a content-addressed cache skips entries whose inputs have not changed.
+Workers receive file paths, not objects, and reload what they need: loading is cheap and this
+keeps what crosses process boundaries small and plain.
+"""
+
+from __future__ import annotations
+
+import multiprocessing
+import os
+from collections.abc import Callable, Sequence
+from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
+from concurrent.futures.process import BrokenProcessPool
+from dataclasses import dataclass, replace
+from pathlib import Path
+
+from generator.entry.catalog import (
+    Outline,
+    chart_groups,
+    cross_entry_diagnostics,
+    display_path,
+    entry_files,
+    outline_all,
+    outline_links,
+)
+from generator.errors import BudgetExceeded, Diagnostic
+from generator.model import EntryReport
+from generator.physics.twins import TwinCard, twin_card, worth_comparing
+from generator.run.cache import ResultCache, cache_key
+from generator.run.limits import run_limited
+from generator.run.tasks import MEMORY_PER_ENTRY, Task, internal_failure_report, run_task
+
+# The duplicate search compares invariants numerically and costs seconds per pair, so it runs
+# for a pull request's few entries, not for a whole-catalog build, and under a time limit.
+TWIN_SEARCH_MAX_ENTRIES = 8
+TWIN_SEARCH_SECONDS = 120.0
+TWIN_CARD_SUFFIX = ".card"  # the small file kept beside each cached report
+
+
+@dataclass(frozen=True)
+class RunOptions:
+    """How to run the checks: parallelism, budget and cache."""
+
+    jobs: int = 0  # 0 = all cores
+    seconds_per_entry: float = 300.0
+    cache_dir: Path | None = None
+    scheduler: str | None = None  # address of a Dask distributed scheduler
+
+
+def check_files(
+    selected: Sequence[Path],
+    root: Path | None,
+    base: Path,
+    options: RunOptions,
+    on_done: Callable[[EntryReport], None] | None = None,
+    on_running: Callable[[list[str]], None] | None = None,
+) -> list[EntryReport]:
+    """Check the selected entry files; the rest of the catalog is loaded for cross-references.
+
+    ``on_done`` sees every report as it comes (cached ones too); ``on_running`` the ids of the
+    entries being checked, each time a check ends (local runs; the pool takes tasks in order,
+    so these are the first unfinished ones — an entry that starts and ends between two looks
+    may go unnamed)."""
+    catalog_files = entry_files([root]) if root is not None else []
+    every = {p.resolve() for p in catalog_files} | {p.resolve() for p in selected}
+    # Workers load what they check; here only ids and links matter.
+    outlines = outline_all(sorted(every), root, base)
+    by_file = {outline.file: outline for outline in outlines}
+    by_id = {outline.id: outline for outline in outlines if outline.id is not None}
+    chosen = [by_file[display_path(p, base)] for p in selected]
+    cross = cross_entry_diagnostics(outlines, set(by_id))
+    tasks = [_task(outline, by_id, root, base, options) for outline in chosen]
+    reports = _run(tasks, options, Progress(on_done, on_running))
+    twins: dict[str, list[Diagnostic]] = {}
+    if len(reports) <= TWIN_SEARCH_MAX_ENTRIES:
+        groups = chart_groups(outline_links(outlines))
+        others = _twin_candidates(reports, outlines, set(chosen), by_id, root, base, options,
+                                  groups)
+        twins = twin_warnings(reports, [*reports, *others.reports], others.ranks,
+                              others.keep_ranks, groups)
+    return [_with_extra(report, cross.get(report.file, []) + twins.get(report.file, []))
+            for report in reports]
+
+
+@dataclass
+class _Candidates:
+    """Cached reports of unselected entries that might be twins of a selected one."""
+
+    reports: list[EntryReport]
+    ranks: dict[str, int]  # functional ranks already known, by entry id
+    cards: dict[str, tuple[str, TwinCard]]  # entry id -> (report key, card)
+    card_shelf: ResultCache | None
+
+    def keep_ranks(self, ranks: dict[str, int]) -> None:
+        """Remember ranks computed by this search on the entries' cards."""
+        if self.card_shelf is None:
+            return
+        for entry_id, rank in ranks.items():
+            if entry_id in self.cards:
+                key, card = self.cards[entry_id]
+                self.card_shelf.put(key, replace(card, rank=rank))
+
+
+def _twin_candidates(new: list[EntryReport], outlines: list[Outline], selected: set[Outline],
+                     by_id: dict[str, Outline], root: Path | None, base: Path,
+                     options: RunOptions, groups: dict[str, str]) -> _Candidates:
+    """Never computed here (a one-entry check stays quick, and CI keeps the cache of the last
+    full build): only entries already in the cache take part, and only those whose card shows
+    they could be a twin have their whole report loaded."""
+    found = _Candidates([], {}, {}, None)
+    if options.cache_dir is None:
+        return found
+    cache = ResultCache(options.cache_dir)
+    found.card_shelf = cards = card_shelf(options.cache_dir)
+    new_cards = [card for card in (twin_card(r) for r in new) if card is not None]
+    for outline in outlines:
+        if outline in selected or not new_cards:
+            continue
+        key = cache_key(_task(outline, by_id, root, base, options))
+        card = _card(cache, cards, key)
+        if card is None or not any(worth_comparing(mine, card, groups) for mine in new_cards):
+            continue
+        report = cache.get(key)
+        if report is not None:
+            found.reports.append(report)
+            found.cards[card.id] = (key, card)
+            if card.rank is not None:
+                found.ranks[card.id] = card.rank
+    return found
+
+
+def card_shelf(cache_dir: Path) -> ResultCache:
+    """Where the duplicate search's cards live: beside the reports, under the same keys."""
+    return ResultCache(cache_dir, suffix=TWIN_CARD_SUFFIX)
+
+
+def _card(cache: ResultCache, cards: ResultCache, key: str) -> TwinCard | None:
+    """The entry's card, made from its cached report (and kept) the first time it is asked."""
+    card = cards.get(key, TwinCard)
+    if card is None:
+        report = cache.get(key)
+        card = twin_card(report) if report is not None else None
+        if card is not None:
+            cards.put(key, card)
+    return card
+
+
+def _twin_search_stopped(report: EntryReport) -> Diagnostic:
+    assert report.entry is not None
+    return Diagnostic.at(report.entry.pos("id"), "note",
+                         f"the search for duplicate spacetimes stopped after "
+                         f"{TWIN_SEARCH_SECONDS:g} s without a result", "entry.duplicate",
+                         "compare with similar entries by hand")
+
+
+def twin_warnings(new: list[EntryReport], catalog: list[EntryReport],
+                  known_ranks: dict[str, int] | None = None,
+                  keep_ranks: Callable[[dict[str, int]], None] | None = None,
+                  groups: dict[str, str] | None = None,
+                  ) -> dict[str, list[Diagnostic]]:
+    """Warnings for entries whose spacetime is probably already in the catalog (never for
+    charts joined to it by ``related`` links, directly or through chains: ``groups``)."""
+    from generator.physics.twins import search_twins, twin_diagnostics
+
+    verified = [r for r in new if r.ok]
+    try:
+        search = run_limited(search_twins, verified, [r for r in catalog if r.ok],
+                             known_ranks or {}, groups, seconds=TWIN_SEARCH_SECONDS,
+                             memory_bytes=MEMORY_PER_ENTRY)
+    except BudgetExceeded:
+        return {r.file: [_twin_search_stopped(r)] for r in verified}
+    if keep_ranks is not None:
+        keep_ranks(search.ranks)
+    return {r.file: twin_diagnostics(r, search.found[r.entry.id]) for r in verified
+            if r.entry is not None and r.entry.id in search.found}
+
+
+def _task(outline: Outline, by_id: dict[str, Outline], root: Path | None, base: Path,
+          options: RunOptions) -> Task:
+    related = [_on_disk(by_id[target].file, base) for target, _ in outline.links
+               if target in by_id]
+    return Task(_on_disk(outline.file, base), outline.file, root, base, tuple(related),
+                options.seconds_per_entry)
+
+
+def _on_disk(file: str, base: Path) -> Path:
+    return Path(file) if Path(file).is_absolute() else base / file
+
+
+def _with_extra(report: EntryReport, extra: list[Diagnostic]) -> EntryReport:
+    if not extra:
+        return report
+    return replace(report, diagnostics=report.diagnostics + tuple(extra))
+
+
+@dataclass(frozen=True)
+class Progress:
+    """The callbacks of a run, both optional: each finished report, and what runs now."""
+
+    done: Callable[[EntryReport], None] | None = None
+    running: Callable[[list[str]], None] | None = None
+
+    def finished(self, report: EntryReport) -> None:
+        if self.done is not None:
+            self.done(report)
+
+    def now_running(self, tasks: Sequence[Task]) -> None:
+        if self.running is not None:
+            self.running([Path(task.display).stem for task in tasks])
+
+
+def _run(tasks: list[Task], options: RunOptions, progress: Progress) -> list[EntryReport]:
+    cache = ResultCache(options.cache_dir) if options.cache_dir else None
+    cards = card_shelf(options.cache_dir) if options.cache_dir else None
+    keys = [cache_key(task) for task in tasks]
+    results: dict[int, EntryReport] = {}
+    pending: list[int] = []
+    for i, key in enumerate(keys):
+        hit = cache.get(key) if cache else None
+        if hit is not None:
+            results[i] = replace(hit, inputs_key=key)
+            progress.finished(hit)
+        else:
+            pending.append(i)
+    for i, report in _compute(tasks, pending, options, progress):
+        results[i] = report = replace(report, inputs_key=keys[i])
+        if cache and cards and _cacheable(report):
+            cache.put(keys[i], report)
+            card = twin_card(report)
+            if card is not None:
+                cards.put(keys[i], card)
+    return [results[i] for i in range(len(tasks))]
+
+
+def _cacheable(report: EntryReport) -> bool:
+    """Budget, cluster and internal failures depend on the run, not the entry: never cache."""
+    transient = ("budget.exceeded", "distributed.worker", "internal.error")
+    return not any(d.code in transient for d in report.diagnostics)
+
+
+def _compute(tasks: list[Task], pending: list[int], options: RunOptions, progress: Progress):
+    if options.scheduler:
+        from generator.run.distributed import run_on_scheduler
+
+        yield from run_on_scheduler(options.scheduler, tasks, pending, progress.done)
+        return
+    jobs = options.jobs or os.cpu_count() or 1
+    if jobs == 1 or len(pending) <= 1:
+        for i in pending:
+            progress.now_running([tasks[i]])
+            report = run_task(tasks[i])
+            progress.finished(report)
+            yield i, report
+        return
+    yield from _compute_in_processes(tasks, pending, jobs, progress)
+
+
+def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
+                          progress: Progress):
+    """Run tasks on a process pool; if a worker is killed (e.g. at the CPU-time backstop) the
+    pool breaks, and the unfinished tasks are re-run one per fresh process so that only the
+    entry that kills its worker fails. The pool takes tasks in submission order, so the
+    first ``jobs`` unfinished ones are those being checked."""
+    unfinished = list(pending)
+    # No max_tasks_per_child: on Python 3.11 it can deadlock the pool when a worker retires.
+    with ProcessPoolExecutor(max_workers=jobs, mp_context=_spawn()) as pool:
+        futures: dict[Future, int] = {pool.submit(run_task, tasks[i]): i for i in pending}
+        remaining = set(futures)
+        while remaining:
+            progress.now_running([tasks[i] for i in unfinished[:jobs]])
+            done, remaining = wait(remaining, return_when=FIRST_COMPLETED)
+            broken = [f for f in done if isinstance(f.exception(), BrokenProcessPool)]
+            if broken:
+                break
+            for future in sorted(done, key=lambda f: futures[f]):
+                report = _result(future, tasks[futures[future]])
+                unfinished.remove(futures[future])
+                progress.finished(report)
+                yield futures[future], report
+    for i in unfinished:
+        progress.now_running([tasks[i]])
+        report = _run_alone(tasks[i])
+        progress.finished(report)
+        yield i, report
+
+
+def _result(future: Future, task: Task) -> EntryReport:
+    try:
+        return future.result()
+    except Exception as exc:
+        return internal_failure_report(task.display, exc)
+
+
+def _run_alone(task: Task) -> EntryReport:
+    """One task in its own worker process: if that process dies, only this entry fails."""
+    with ProcessPoolExecutor(max_workers=1, mp_context=_spawn()) as pool:
+        future = pool.submit(run_task, task)
+        try:
+            return future.result()
+        except BrokenProcessPool:
+            return worker_killed_report(task.display)
+        except Exception as exc:
+            return internal_failure_report(task.display, exc)
+
+
+def worker_killed_report(file: str) -> EntryReport:
+    diagnostic = Diagnostic(file, 1, 1, "error", "computation ran out of its budget: the "
+                            "worker process was ended at the CPU-time backstop",
+                            "budget.exceeded", "simplify the metric, or raise --seconds")
+    return EntryReport(None, file, None, None, None, (), (diagnostic,))
+
+
+def _spawn() -> multiprocessing.context.BaseContext:
+    """Fresh interpreters for workers: no inherited locks or library state from the parent."""
+    return multiprocessing.get_context("spawn")

@@ -1,0 +1,114 @@
+"""Preview server: serve the built site on 127.0.0.1 and rebuild when sources change.
+
+Watching is done by polling modification times of ``catalog/`` and ``site_templates/`` (no extra
+dependency, works on every filesystem). The server resolves each request against ``site_dir``
+afresh, so the build's atomic folder swap is picked up without a restart. A failed rebuild
+keeps serving the previous site and prints why.
+"""
+
+from __future__ import annotations
+
+import functools
+import sys
+import threading
+from collections.abc import Callable, Iterable, Sequence
+from http.server import SimpleHTTPRequestHandler, ThreadingHTTPServer
+from pathlib import Path
+
+from generator.errors import AlmanacError
+from generator.site.common import REPO_ROOT
+
+POLL_SECONDS = 1.0
+
+
+def watched_roots() -> tuple[Path, ...]:
+    return (Path.cwd() / "catalog", REPO_ROOT / "site_templates")
+
+
+def snapshot(roots: Iterable[Path]) -> tuple[tuple[str, int, int], ...]:
+    """(path, mtime_ns, size) of every file under the roots, sorted: equal means unchanged."""
+    state = []
+    for root in roots:
+        if not root.is_dir():
+            continue
+        for path in sorted(root.rglob("*")):
+            if path.is_file():
+                info = path.stat()
+                state.append((str(path), info.st_mtime_ns, info.st_size))
+    return tuple(state)
+
+
+class QuietHandler(SimpleHTTPRequestHandler):
+    """Static file handler for the preview: no caching, errors only in the log."""
+
+    def end_headers(self) -> None:
+        self.send_header("Cache-Control", "no-store")
+        super().end_headers()
+
+    def log_message(self, format: str, *args: object) -> None:
+        if args and str(args[1] if len(args) > 1 else "").startswith(("4", "5")):
+            super().log_message(format, *args)
+
+
+def make_server(site_dir: Path, host: str, port: int) -> ThreadingHTTPServer:
+    handler = functools.partial(QuietHandler, directory=str(site_dir))
+    return ThreadingHTTPServer((host, port), handler)
+
+
+def rebuild_safely(rebuild: Callable[[], None]) -> bool:
+    """Run one rebuild; report a failure instead of stopping the preview."""
+    try:
+        rebuild()
+    except (AlmanacError, OSError) as exc:
+        print(f"serve: rebuild failed, still serving the previous site: {exc}", file=sys.stderr)
+        return False
+    return True
+
+
+def watch(
+    rebuild: Callable[[], None],
+    stop: threading.Event,
+    roots: tuple[Path, ...],
+    interval: float = POLL_SECONDS,
+    initial: tuple[tuple[str, int, int], ...] | None = None,
+) -> None:
+    """Poll the roots until ``stop`` is set; rebuild after every change since ``initial``
+    (taken by the caller before starting the thread, so no edit can slip in between)."""
+    last = snapshot(roots) if initial is None else initial
+    while not stop.wait(interval):
+        current = snapshot(roots)
+        if current != last:
+            last = current
+            print("serve: change detected, rebuilding", file=sys.stderr)
+            rebuild_safely(rebuild)
+
+
+def serve(
+    site_dir: Path,
+    rebuild: Callable[[], None],
+    host: str = "127.0.0.1",
+    port: int = 8000,
+    watch_paths: Sequence[Path] | None = None,
+) -> None:
+    """Serve ``site_dir`` and rebuild on change until interrupted.
+
+    The caller builds first; if there is no site yet, one build runs here. ``watch_paths``
+    defaults to ./catalog and the templates folder.
+    """
+    if not site_dir.is_dir():
+        rebuild_safely(rebuild)
+    roots = tuple(watch_paths) if watch_paths is not None else watched_roots()
+    server = make_server(site_dir, host, port)
+    stop = threading.Event()
+    watcher = threading.Thread(target=watch, daemon=True,
+                               args=(rebuild, stop, roots, POLL_SECONDS, snapshot(roots)))
+    watcher.start()
+    print(f"serve: previewing {site_dir} at http://{host}:{server.server_port}/ "
+          "(Ctrl-C to stop)", file=sys.stderr)
+    try:
+        server.serve_forever()
+    except KeyboardInterrupt:
+        print("serve: stopped", file=sys.stderr)
+    finally:
+        stop.set()
+        server.server_close()

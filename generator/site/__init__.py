@@ -1,0 +1,3 @@
+"""Stage 4, site: the data of every page, typesetting, plots, downloads, citations and writing the
+files.
+"""

@@ -1,0 +1,440 @@
+"""Citations: how a reader cites a verified entry, and the entry's content hash.
+
+A citation must pin down *which mathematics* the reader relied on, not just which page: the
+entry id is stable but its metric may be corrected later. So every citation carries the catalog
+version and the entry's content hash, a sha256 over a canonical JSON form of the entry's
+mathematics (``content_hash``). The hash ignores how the YAML is laid out (whitespace, key
+order, comments, quoting) but changes whenever a formula, an assumption or a claim changes, so
+``python -m generator cite --hash H`` can find the exact revision a paper used.
+
+The access date is left to the user on purpose: output must be deterministic (same catalog,
+same bytes), and only the reader knows when they looked.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import re
+import sys
+import tomllib
+import unicodedata
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import TypeVar
+
+from generator.entry.content_hash import content_hash, short_hash
+from generator.model import (
+    CatalogMeta,
+    Entry,
+    EntryReport,
+    Reference,
+)
+
+FORMATS = ("bibtex", "csl-json", "text")
+CATALOG_NAME = "Metric Almanac"
+CATALOG_AUTHOR = "Metric Almanac contributors"
+DEFAULT_BASE_URL = "https://metric-almanac.org/"  # permanent URL prefix unless pyproject sets one
+ACCESS_DATE_PLACEHOLDER = "<date>"
+
+_T = TypeVar("_T")
+
+
+# ---------------------------------------------------------------------------- escaping
+
+_BIBTEX_SPECIALS = {
+    "\\": r"\textbackslash{}",
+    "{": r"\{",
+    "}": r"\}",
+    "&": r"\&",
+    "%": r"\%",
+    "$": r"\$",
+    "#": r"\#",
+    "_": r"\_",
+    "~": r"\textasciitilde{}",
+    "^": r"\textasciicircum{}",
+}
+
+
+def bibtex_escape(text: str) -> str:
+    """Escape LaTeX specials so any title or name is a balanced, literal BibTeX value."""
+    text = " ".join(text.split())
+    return "".join(_BIBTEX_SPECIALS.get(ch, ch) for ch in text)
+
+
+def bibtex_verbatim(text: str) -> str:
+    """For url/doi/eprint fields (read verbatim by biblatex): keep the text, but braces and
+    backslashes could unbalance the entry, so they are percent-encoded."""
+    text = "".join(text.split())
+    return text.replace("\\", "%5C").replace("{", "%7B").replace("}", "%7D")
+
+
+def bibtex_key(*parts: str) -> str:
+    """A key of ASCII letters, digits and hyphens only: safe in every BibTeX dialect."""
+    ascii_text = unicodedata.normalize("NFKD", "-".join(parts)).encode("ascii", "ignore")
+    key = re.sub(r"[^a-z0-9]+", "-", ascii_text.decode("ascii").lower()).strip("-")
+    return key or "entry"
+
+
+def _bibtex_record(kind: str, key: str, fields: Sequence[tuple[str, str]]) -> str:
+    lines = [f"@{kind}{{{key},"]
+    lines += [f"  {name} = {{{value}}}," for name, value in fields if value]
+    lines.append("}")
+    return "\n".join(lines) + "\n"
+
+
+# ---------------------------------------------------------------------------- citing an entry
+
+
+@dataclass(frozen=True)
+class EntryCitation:
+    """What every format of an entry citation says (one place, so formats cannot disagree)."""
+
+    key: str
+    title: str
+    catalog: str
+    version: str
+    entry_id: str
+    content_hash: str  # short form
+    url: str
+    year: str | None  # year of the latest revision, when history is known
+
+
+def entry_url(meta: CatalogMeta, entry_id: str) -> str:
+    """Permanent URL of an entry page: ``<base_url>entries/<id>/``."""
+    base = meta.base_url if meta.base_url.endswith("/") else meta.base_url + "/"
+    return f"{base}entries/{entry_id}/"
+
+
+def describe_entry(report: EntryReport, meta: CatalogMeta) -> EntryCitation:
+    entry = _require_entry(report)
+    revisions = meta.revisions.get(entry.id, ())
+    year = max((r.date[:4] for r in revisions), default=None)
+    return EntryCitation(
+        key=bibtex_key("almanac", entry.id),
+        title=f"{entry.title} ({entry.chart})",
+        catalog=CATALOG_NAME,
+        version=meta.version,
+        entry_id=entry.id,
+        content_hash=short_hash(report.content_hash),
+        url=entry_url(meta, entry.id),
+        year=year,
+    )
+
+
+def cite_entry(report: EntryReport, meta: CatalogMeta, fmt: str) -> str:
+    """Citation of a verified entry in ``fmt``: bibtex | csl-json | text."""
+    citation = describe_entry(report, meta)
+    return _dispatch(fmt, _entry_bibtex, _entry_csl, _entry_text)(citation)
+
+
+def _require_entry(report: EntryReport) -> Entry:
+    if report.entry is None:
+        raise ValueError(f"{report.file}: the entry could not be loaded, so it cannot be cited")
+    if not report.content_hash:
+        raise ValueError(f"{report.file}: the report carries no content hash")
+    return report.entry
+
+
+def _entry_note(c: EntryCitation) -> str:
+    return f"{c.catalog} entry {c.entry_id}, version {c.version}, content hash {c.content_hash}"
+
+
+def _entry_bibtex(c: EntryCitation) -> str:
+    fields = [
+        ("author", "{" + bibtex_escape(CATALOG_AUTHOR) + "}"),
+        ("title", "{" + bibtex_escape(c.title) + "}"),
+        ("howpublished", bibtex_escape(c.catalog)),
+        ("organization", bibtex_escape(c.catalog)),
+        ("version", bibtex_escape(c.version)),
+        ("year", c.year or ""),
+        ("url", bibtex_verbatim(c.url)),
+        ("note", bibtex_escape(_entry_note(c))),
+    ]
+    header = f"% Add urldate = {{YYYY-MM-DD}} with the day you accessed {c.entry_id}.\n"
+    return header + _bibtex_record("misc", c.key, fields)
+
+
+def _entry_csl(c: EntryCitation) -> str:
+    item: dict[str, object] = {
+        "id": c.key,
+        "type": "entry-encyclopedia",
+        "title": c.title,
+        "author": [{"literal": CATALOG_AUTHOR}],
+        "container-title": c.catalog,
+        "publisher": c.catalog,
+        "version": c.version,
+        "URL": c.url,
+        "note": _entry_note(c),
+    }
+    if c.year:
+        item["issued"] = {"date-parts": [[int(c.year)]]}
+    return _json([item])
+
+
+def _entry_text(c: EntryCitation) -> str:
+    year = f" ({c.year})" if c.year else ""
+    return (
+        f"{CATALOG_AUTHOR}{year}. {c.title}. {c.catalog}, version {c.version}, "
+        f"entry {c.entry_id}, content hash {c.content_hash}. {c.url} "
+        f"(accessed {ACCESS_DATE_PLACEHOLDER}).\n"
+    )
+
+
+def _json(data: object) -> str:
+    return json.dumps(data, ensure_ascii=False, indent=2, sort_keys=True) + "\n"
+
+
+def _dispatch(fmt: str, *writers: Callable[[_T], str]) -> Callable[[_T], str]:
+    """Pick the writer for ``fmt`` (writers are given in the order of ``FORMATS``)."""
+    if fmt not in FORMATS:
+        raise ValueError(f"unknown citation format {fmt!r}; expected one of {', '.join(FORMATS)}")
+    return writers[FORMATS.index(fmt)]
+
+
+# ---------------------------------------------------------------------------- the original source
+
+
+def original_reference(entry: Entry) -> Reference:
+    for reference in entry.references:
+        if reference.role == "original":
+            return reference
+    raise ValueError(f"{entry.file}: entry {entry.id} has no reference with role 'original'")
+
+
+def cite_original(entry: Entry, fmt: str) -> str:
+    """Citation of the publication the entry's metric comes from (role ``original``)."""
+    reference = original_reference(entry)
+    return _dispatch(fmt, _reference_bibtex, _reference_csl, _reference_text)(reference)
+
+
+_VENUE_PATTERN = re.compile(
+    r"^(?P<journal>.*?\D)\s+(?P<volume>\d+)(?:\s*\((?P<issue>[^()]+)\))?\s*,\s*"
+    r"(?P<pages>[\w.]+(?:\s*[-\u2013]+\s*[\w.]+)?)$"
+)
+
+
+@dataclass(frozen=True)
+class Venue:
+    """A journal venue split into its parts; empty strings where the text does not say."""
+
+    journal: str
+    volume: str = ""
+    issue: str = ""
+    pages: str = ""  # first-last with a plain hyphen
+
+
+def split_venue(venue: str, year: int | None = None) -> Venue:
+    """``"Phys. Rev. Lett. 11, 237"`` or ``"Ann. Phys. 355 (9), 106–120"`` -> parts, when the
+    venue has that shape; otherwise the whole venue is the journal (never guess more than the
+    text says). A number equal to the year is a year-as-volume convention
+    (``Sitzungsber. ... 1916, 189``) and is kept whole.
+    """
+    match = _VENUE_PATTERN.match(venue.strip())
+    if not match or match["volume"] == str(year):
+        return Venue(venue.strip())
+    pages = re.sub(r"\s*[-\u2013]+\s*", "-", match["pages"])
+    return Venue(match["journal"].strip(), match["volume"], match["issue"] or "", pages)
+
+
+def split_name(author: str) -> tuple[str, str]:
+    """``"R. P. Kerr"`` -> ("R. P.", "Kerr"); ``"Kerr, R. P."`` -> ("R. P.", "Kerr")."""
+    if "," in author:
+        family, given = (part.strip() for part in author.split(",", 1))
+        return given, family
+    given, _, family = author.strip().rpartition(" ")
+    return given, family
+
+
+def reference_key(reference: Reference) -> str:
+    family = split_name(reference.authors[0])[1] if reference.authors else "anonymous"
+    words = re.findall(r"[^\W\d_]{4,}", reference.title)
+    return bibtex_key(family, str(reference.year), words[0] if words else "")
+
+
+def _is_book(reference: Reference) -> bool:
+    return bool(reference.isbn) and not reference.doi
+
+
+def _reference_bibtex(r: Reference) -> str:
+    venue = Venue(r.venue) if _is_book(r) else split_venue(r.venue, r.year)
+    book = _is_book(r)
+    fields = [
+        ("author", " and ".join(bibtex_escape(a) for a in r.authors)),
+        ("title", "{" + bibtex_escape(r.title) + "}"),
+        ("publisher" if book else "journal", bibtex_escape(venue.journal)),
+        ("volume", venue.volume),
+        ("number", bibtex_escape(venue.issue)),
+        ("pages", venue.pages.replace("-", "--")),
+        ("year", str(r.year)),
+        ("doi", bibtex_verbatim(r.doi or "")),
+        ("isbn", bibtex_verbatim(r.isbn or "")),
+        ("eprint", bibtex_verbatim(r.arxiv or "")),
+        ("archiveprefix", "arXiv" if r.arxiv else ""),
+        ("note", bibtex_escape(_unconfirmed_note(r))),
+    ]
+    return _bibtex_record("book" if book else "article", reference_key(r), fields)
+
+
+def _unconfirmed_note(r: Reference) -> str:
+    if not r.unconfirmed:
+        return ""
+    return "Not confirmed against the publication: " + ", ".join(r.unconfirmed)
+
+
+def _reference_csl(r: Reference) -> str:
+    venue = split_venue(r.venue, r.year)
+    book = _is_book(r)
+    item: dict[str, object] = {
+        "id": reference_key(r),
+        "type": "book" if book else "article-journal",
+        "title": r.title,
+        "author": [_csl_name(a) for a in r.authors],
+        "issued": {"date-parts": [[r.year]]},
+    }
+    if book:
+        item["publisher"] = r.venue
+    else:
+        item["container-title"] = venue.journal
+        parts = (("volume", venue.volume), ("issue", venue.issue), ("page", venue.pages))
+        item.update({k: v for k, v in parts if v})
+    optional = {
+        "DOI": r.doi,
+        "ISBN": r.isbn,
+        "URL": _arxiv_url(r.arxiv),
+        "note": _unconfirmed_note(r),
+    }
+    item.update({k: v for k, v in optional.items() if v})
+    return _json([item])
+
+
+def _csl_name(author: str) -> dict[str, str]:
+    given, family = split_name(author)
+    return {"family": family, "given": given} if given else {"literal": family}
+
+
+def _arxiv_url(arxiv: str | None) -> str | None:
+    return f"https://arxiv.org/abs/{arxiv}" if arxiv else None
+
+
+def _reference_text(r: Reference) -> str:
+    authors = ", ".join(r.authors)
+    identifiers = [f"doi:{r.doi}" if r.doi else "", f"arXiv:{r.arxiv}" if r.arxiv else ""]
+    identifiers.append(f"ISBN {r.isbn}" if r.isbn else "")
+    tail = "".join(f" {i}." for i in identifiers if i)
+    note = f" [{_unconfirmed_note(r)}]" if r.unconfirmed else ""
+    return f"{authors} ({r.year}). {r.title}. {r.venue}.{tail}{note}\n"
+
+
+# ---------------------------------------------------------------------------- command line
+
+
+def cite_main(argv: list[str]) -> int:
+    """``python -m generator cite ID [--format F] [--original]`` or ``cite --hash H``.
+
+    Exit status: 0 printed, 2 bad usage or no such entry/hash (the CLI convention).
+    """
+    args = _parser().parse_args(argv)
+    catalog = Path(args.catalog)
+    if args.hash:
+        from generator.entry.history import lookup_main  # history imports this module; import late
+
+        return lookup_main(Path(args.repo), catalog, args.hash, sys.stdout, sys.stderr)
+    if not args.id:
+        print("error: give an entry id, or --hash H", file=sys.stderr)
+        return 2
+    return _print_citation(catalog, args)
+
+
+def _parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="python -m generator cite",
+        description="Print a citation for a catalog entry, or find which entry a hash belongs to.",
+    )
+    parser.add_argument("id", nargs="?", help="entry id, e.g. schwarzschild-curvature")
+    parser.add_argument("--format", choices=FORMATS, default="bibtex")
+    parser.add_argument(
+        "--original", action="store_true", help="cite the publication the metric comes from"
+    )
+    parser.add_argument("--hash", metavar="H", help="find the entry and commit of a content hash")
+    parser.add_argument("--catalog", default="catalog", help="catalog folder (default: catalog)")
+    parser.add_argument("--repo", default=".", help="git repository holding the catalog")
+    parser.add_argument("--base-url", help="site URL (default: [tool.almanac] base_url)")
+    return parser
+
+
+def find_entry_file(catalog: Path, entry_id: str) -> Path | None:
+    """The file ``catalog/<family>/<id>.yaml`` if exactly one exists."""
+    matches = sorted(catalog.glob(f"*/{entry_id}.yaml"))
+    return matches[0] if len(matches) == 1 else None
+
+
+def _print_citation(catalog: Path, args: argparse.Namespace) -> int:
+    from generator.entry.loader import load_entry
+
+    path = find_entry_file(catalog, args.id)
+    if path is None:
+        print(f"error: no entry with id {args.id!r} under {catalog}/", file=sys.stderr)
+        return 2
+    result = load_entry(path)
+    if result.entry is None:
+        for diagnostic in result.diagnostics:
+            print(diagnostic.format_text(), file=sys.stderr)
+        return 2
+    if args.original:
+        sys.stdout.write(cite_original(result.entry, args.format))
+        return 0
+    report = standalone_report(result.entry, str(path), result.diagnostics)
+    meta = standalone_meta(catalog, args.base_url, path, Path(args.repo))
+    sys.stdout.write(cite_entry(report, meta, args.format))
+    return 0
+
+
+def standalone_report(entry: Entry, file: str, diagnostics: Sequence[object] = ()) -> EntryReport:
+    """A report carrying only what a citation needs (no geometry: citing must be instant)."""
+    return EntryReport(
+        entry=entry,
+        file=file,
+        spacetime=None,
+        geometry=None,
+        classification=None,
+        verdicts=(),
+        diagnostics=tuple(diagnostics),  # type: ignore[arg-type]
+        content_hash=content_hash(entry),
+    )
+
+
+def standalone_meta(
+    catalog: Path, base_url: str | None, entry_path: Path, repo: Path
+) -> CatalogMeta:
+    """The part of the site's ``CatalogMeta`` a citation uses, read the same way the build
+    reads it (version and base URL from pyproject.toml, revisions from git), so the command
+    line prints exactly the citation shown on the entry's page."""
+    from generator import __version__
+    from generator.entry.history import revisions
+
+    settings = project_settings(catalog.resolve().parent)
+    return CatalogMeta(
+        version=settings.get("version", __version__),
+        generator_version=__version__,
+        sympy_version="",
+        families=(),
+        tags=(),
+        contributing_markdown="",
+        base_url=base_url or settings.get("base_url", DEFAULT_BASE_URL),
+        revisions={entry_path.stem: revisions(repo, entry_path)},
+    )
+
+
+def project_settings(project: Path) -> dict[str, str]:
+    """``[project].version`` and ``[tool.almanac]`` of the project's pyproject.toml."""
+    path = project / "pyproject.toml"
+    if not path.is_file():
+        return {}
+    data = tomllib.loads(path.read_text(encoding="utf-8"))
+    settings = {str(k): str(v) for k, v in data.get("tool", {}).get("almanac", {}).items()}
+    version = data.get("project", {}).get("version")
+    if version:
+        settings.setdefault("version", str(version))
+    return settings

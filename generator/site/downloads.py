@@ -1,0 +1,172 @@
+"""An entry's downloads: its JSON data, a SymPy script that rebuilds the metric and a LaTeX
+document.
+"""
+
+from __future__ import annotations
+
+import keyword
+from collections.abc import Sequence
+from typing import Any
+
+from generator.entry.content_hash import canonical_form
+from generator.model import (
+    CatalogMeta,
+    EntryReport,
+    Reference,
+)
+from generator.site import cite, export, mathtex
+from generator.site.common import NOWHERE, RenderError, Surroundings, expr_text, verdict_row
+
+
+def entry_json(report: EntryReport, meta: CatalogMeta,
+               around: Surroundings = NOWHERE) -> dict[str, Any]:
+    """The entry as written plus everything computed: the JSON download."""
+    entry = report.entry
+    assert entry is not None
+    return {
+        "format": "metric-almanac-entry-data-1",
+        "catalog_version": meta.version,
+        "generator_version": meta.generator_version,
+        "sympy_version": meta.sympy_version,
+        "content_hash": report.content_hash,
+        "url": cite.entry_url(meta, entry.id),
+        "id": entry.id,
+        "file": entry.file,
+        "mathematics": canonical_form(entry),
+        "family": entry.family,
+        "title": entry.title,
+        "chart": entry.chart,
+        "summary": entry.summary,
+        "notes": entry.notes,
+        "tags": list(entry.tags),
+        "references": [reference_json(r) for r in entry.references],
+        "computed": computed_json(report),
+        "verdicts": [verdict_row(v) for v in report.verdicts],
+        "same_spacetime": same_spacetime_json(around),
+        "revisions": [
+            {"commit": r.commit, "date": r.date, "content_hash": r.content_hash,
+             "summary": r.summary} for r in meta.revisions.get(entry.id, ())
+        ],
+    }
+
+
+def same_spacetime_json(around: Surroundings) -> list[dict[str, Any]]:
+    """The published charts of this spacetime, joined by verified maps: written here, written
+    there, or through a chain (``route``: the entries in between)."""
+    rows = [{"entry": entry_id, "route": []} for entry_id in around.published_links]
+    rows += [{"entry": link.entry, "route": list(link.route)} for link in around.charts]
+    return sorted(rows, key=lambda row: row["entry"])
+
+
+def reference_json(r: Reference) -> dict[str, Any]:
+    return {
+        "role": r.role, "authors": list(r.authors), "title": r.title, "venue": r.venue,
+        "year": r.year, "doi": r.doi, "arxiv": r.arxiv, "isbn": r.isbn, "locator": r.locator,
+        "unconfirmed": list(r.unconfirmed),
+    }
+
+
+def computed_json(report: EntryReport) -> dict[str, Any]:
+    """All computed data of an entry (one definition, shared with `check --json`)."""
+    if report.spacetime is None or report.geometry is None:
+        return {}
+    return export.computed_json(report.spacetime, report.geometry, report.classification)
+
+
+def python_literal(text: str) -> str:
+    """A string as a safe, ASCII-only Python literal (contributor text never becomes code)."""
+    return ascii(text)
+
+
+SCRIPT_NAMES = frozenset({"sympy", "metric", "coordinates", "ENTRY_ID", "TITLE",
+                          "CATALOG_VERSION", "CONTENT_HASH"})
+
+
+def require_identifiers(symbols: Sequence[Any]) -> None:
+    """Names written into the SymPy script as code must be plain, non-clashing identifiers."""
+    for symbol in symbols:
+        name = getattr(symbol, "__name__", None) or str(symbol)
+        if not name.isidentifier() or keyword.iskeyword(name) or name in SCRIPT_NAMES:
+            raise RenderError(f"symbol name {name!r} cannot be written into the SymPy script")
+
+
+def sympy_script(report: EntryReport, meta: CatalogMeta) -> str:
+    """A standalone script that rebuilds the metric with SymPy (catalog signature)."""
+    entry, st = report.entry, report.spacetime
+    assert entry is not None
+    lines = [
+        "# Metric Almanac: SymPy script that rebuilds one entry's metric.",
+        "# Conventions: signature -+++, G = c = 1. Check against the original literature.",
+        "import sympy",
+        "from sympy import (E, I, Abs, Derivative, LambertW, Rational, acos, acosh, acot, asin,",
+        "                   asinh, atan, atanh, cos, cosh, cot, csc, exp, log, pi, sec, sin,",
+        "                   sinh, sqrt, tan, tanh)",
+        "",
+        f"ENTRY_ID = {python_literal(entry.id)}",
+        f"TITLE = {python_literal(entry.title)}",
+        f"CATALOG_VERSION = {python_literal(meta.version)}",
+        f"CONTENT_HASH = {python_literal(report.content_hash)}",
+        "",
+    ]
+    if st is None:
+        return "\n".join([*lines, "metric = None", ""])
+    require_identifiers([*st.coordinates, *st.parameters, *(f.func for f in st.functions)])
+    assumptions = {p.name: p.assume for p in entry.parameters}
+    for symbol in st.coordinates:
+        lines.append(f"{symbol} = sympy.Symbol({python_literal(str(symbol))}, real=True)")
+    for symbol in st.parameters:
+        kind = assumptions.get(str(symbol), "real")
+        flag = kind if kind in SYMPY_ASSUMPTIONS else "real"
+        lines.append(f"{symbol} = sympy.Symbol({python_literal(str(symbol))}, {flag}=True)")
+    for applied in st.functions:
+        name = applied.func.__name__
+        lines.append(f"{name} = sympy.Function({python_literal(name)})")
+    n = st.dimension
+    lines += ["", f"coordinates = ({', '.join(str(c) for c in st.coordinates)},)",
+              f"metric = sympy.zeros({n}, {n})"]
+    for i in range(n):
+        for j in range(i, n):
+            if st.metric[i, j] != 0:
+                value = expr_text(st.metric[i, j])
+                target = f"metric[{i}, {j}]" if i == j else f"metric[{i}, {j}] = metric[{j}, {i}]"
+                lines.append(f"{target} = {value}")
+    lines += ["metric = sympy.ImmutableMatrix(metric)", "",
+              'if __name__ == "__main__":', "    sympy.pprint(metric)", ""]
+    return "\n".join(lines)
+
+
+SYMPY_ASSUMPTIONS = frozenset({"positive", "negative", "nonnegative", "nonzero", "real"})
+LATEX_SPECIALS = {
+    "\\": r"\textbackslash{}", "{": r"\{", "}": r"\}", "$": r"\$", "&": r"\&", "#": r"\#",
+    "%": r"\%", "_": r"\_", "^": r"\^{}", "~": r"\~{}",
+}
+
+
+def latex_escape(text: str) -> str:
+    return "".join(LATEX_SPECIALS.get(ch, ch) for ch in text.replace("\n", " "))
+
+
+def latex_document(report: EntryReport, meta: CatalogMeta) -> str:
+    """A small standalone LaTeX file with the line element and the components."""
+    entry, st = report.entry, report.spacetime
+    assert entry is not None
+    head = [
+        r"\documentclass{article}", r"\usepackage{amsmath}", r"\begin{document}",
+        rf"\section*{{{latex_escape(entry.title)} ({latex_escape(entry.chart)})}}",
+        rf"% Metric Almanac {latex_escape(meta.version)}, entry {latex_escape(entry.id)}",
+        r"% Conventions: signature $-+++$, $G = c = 1$.",
+    ]
+    body: list[str] = []
+    if st is not None:
+        line = mathtex.line_element_latex(st.metric, st.coordinates).replace(r"\text{d}",
+                                                                            r"\mathrm{d}")
+        body += [r"\begin{equation}", line, r"\end{equation}", r"\begin{align}"]
+        rows = []
+        for i in range(st.dimension):
+            for j in range(i, st.dimension):
+                if st.metric[i, j] != 0:
+                    rows.append(mathtex.component_latex(st.coordinates[i], st.coordinates[j],
+                                                        st.metric[i, j], st.coordinates)
+                                .replace(" = ", " &= ", 1))
+        body += [" \\\\\n".join(rows), r"\end{align}"]
+    return "\n".join([*head, *body, r"\end{document}", ""])

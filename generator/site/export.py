@@ -1,0 +1,120 @@
+"""Machine-readable form of an entry report (the `check --json` contract and site downloads).
+
+Expressions are written with `str()`, which SymPy's `parse_expr` reads back, in the entry's own
+symbol names. Values are given in the entry's own signature convention: for a "+---" entry the
+tool computed with g -> -g, so g, R, G^a_b and R_abcd are flipped back here (squares and
+Christoffel symbols do not change). The `check --json` output and the site's downloads both
+come from here.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+import sympy
+
+from generator.model import Classification, EntryReport, Geometry, Spacetime, Verdict
+
+
+def expr_text(expr: sympy.Basic | None) -> str | None:
+    return None if expr is None else str(expr)
+
+
+def report_json(report: EntryReport) -> dict[str, Any]:
+    """One entry of the `check --json` document."""
+    out: dict[str, Any] = {
+        "id": report.entry.id if report.entry else None,
+        "file": report.file,
+        "ok": report.ok,
+        "content_hash": report.content_hash,
+        "diagnostics": [d.as_json() for d in report.diagnostics],
+        "computed": None,
+        "verified": [verdict_json(v) for v in report.verdicts],
+    }
+    if report.geometry is not None and report.spacetime is not None:
+        out["computed"] = computed_json(report.spacetime, report.geometry, report.classification)
+    return out
+
+
+def computed_json(spacetime: Spacetime, geometry: Geometry,
+                  classification: Classification | None) -> dict[str, Any]:
+    """Everything computed for an entry: the contract keys first, then the full tensors."""
+    sign = spacetime.sign
+    names = [str(c) for c in spacetime.coordinates]
+    data: dict[str, Any] = {
+        "dimension": geometry.dimension,
+        "signature": spacetime.signature,
+        "signature_flipped": sign == -1,
+        "ricci_scalar": str(sign * geometry.ricci_scalar),
+        "kretschmann": str(geometry.kretschmann),
+        "ricci_squared": str(geometry.ricci_squared),
+        "weyl_squared": expr_text(geometry.weyl_squared),
+        "einstein_mixed": matrix_components(sign * geometry.einstein_mixed, names),
+        "matter_kind": None,
+        "cosmological_constant": None,
+        "petrov_type": None,
+        "engine": geometry.engine,
+        "metric": matrix_components(sign * spacetime.metric, names),
+        "inverse_metric": matrix_components(sign * geometry.inverse_metric, names),
+        "christoffel": indexed_components(geometry.christoffel, names),
+        "riemann_lower": indexed_components(_scaled(geometry.riemann, sign), names),
+        "ricci": matrix_components(geometry.ricci, names),
+        "weyl_lower": indexed_components(_scaled(geometry.weyl, sign), names),
+    }
+    if classification is not None:
+        data.update(classification_json(classification, names))
+    return data
+
+
+def _scaled(data: dict | None, sign: int) -> dict | None:
+    """R_abcd and C_abcd scale with g: give them back in the entry's own signature."""
+    return None if data is None else {k: sign * v for k, v in data.items()}
+
+
+def matrix_components(matrix: sympy.MatrixBase | None, names: list[str]) -> dict[str, str]:
+    """Nonzero components keyed "a b" by coordinate names."""
+    if matrix is None:
+        return {}
+    n, m = matrix.shape
+    return {f"{names[i]} {names[j]}": str(matrix[i, j])
+            for i in range(n) for j in range(m) if matrix[i, j] != 0}
+
+
+def indexed_components(data: dict[tuple[int, ...], sympy.Expr] | None,
+                       names: list[str]) -> dict[str, str]:
+    """Independent nonzero components keyed "a b c d" by coordinate names."""
+    if not data:
+        return {}
+    return {" ".join(names[i] for i in key): str(value) for key, value in sorted(data.items())}
+
+
+def classification_json(c: Classification, names: list[str]) -> dict[str, Any]:
+    return {
+        "matter_kind": c.matter_kind,
+        "cosmological_constant": expr_text(c.cosmological_constant),
+        "stress_energy_mixed": matrix_components(c.stress_energy_mixed, names),
+        "petrov_type": c.petrov_type,
+        "hawking_ellis_type": c.hawking_ellis_type,
+        "energy_density": expr_text(c.energy_density),
+        "principal_pressures": None if c.principal_pressures is None
+        else [str(p) for p in c.principal_pressures],
+        "energy_conditions": {
+            e.name: {"status": e.status, "how": e.how, "witness": e.witness}
+            for e in c.energy_conditions
+        },
+        "weyl_scalars": None if c.weyl_scalars is None
+        else {k: str(v) for k, v in sorted(c.weyl_scalars.items())},
+        "killing_vectors_checked": [verdict_json(v) for v in c.killing_vectors_checked],
+        "related_checked": [verdict_json(v) for v in c.related_checked],
+        "geodesic_equations": [str(g) for g in c.geodesic_equations],
+        "not_applicable": dict(sorted(c.reasons.items())),
+    }
+
+
+def verdict_json(v: Verdict) -> dict[str, Any]:
+    return {"subject": v.subject, "ok": v.ok, "method": v.method, "detail": v.detail,
+            "claimed": v.claimed, "computed": v.computed}
+
+
+def check_document(reports: list[EntryReport]) -> dict[str, Any]:
+    return {"entries": [report_json(r) for r in reports]}

@@ -1,0 +1,372 @@
+"""Plots for entry pages, drawn with matplotlib at build time as SVG.
+
+Two figures where they carry the physics: the curvature invariants along the radial-type
+coordinate (where singularities and asymptotic falloff are seen at a glance), and the metric
+functions -g_tt and g_rr (horizons are where they vanish or blow up). Parameters are set to
+stated sample values that satisfy the entry's domain, and every figure says which.
+
+SVG output is made deterministic: a fixed ``svg.hashsalt``, no date in the metadata, text kept
+as text (``svg.fonttype = none``), and matplotlib's global state is only touched inside an
+``rc_context``.
+"""
+
+from __future__ import annotations
+
+import io
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import matplotlib
+import numpy
+import sympy
+from matplotlib.figure import Figure
+from matplotlib.ticker import LogFormatter, NullFormatter
+
+from generator.model import EntryReport, Spacetime
+from generator.site.mathtex import ANGLE_NAMES, TIME_NAMES, radial_coordinate
+
+SAMPLE_COUNT = 241
+SVG_SETTINGS = {
+    "svg.hashsalt": "metric-almanac",
+    "svg.fonttype": "none",
+    "font.family": "sans-serif",
+    "font.size": 9.0,
+    "axes.grid": True,
+    "grid.alpha": 0.3,
+    "path.simplify": False,
+    "axes.formatter.use_mathtext": False,
+}
+INVARIANT_LABELS = (
+    ("ricci_scalar", "Ricci scalar R"),
+    ("kretschmann", "Kretschmann R_abcd R^abcd"),
+    ("ricci_squared", "Ricci square R_ab R^ab"),
+    ("weyl_squared", "Weyl square C_abcd C^abcd"),
+)
+SAMPLE_BY_ASSUMPTION = {
+    "positive": sympy.Integer(1),
+    "nonnegative": sympy.Rational(1, 2),
+    "negative": sympy.Integer(-1),
+    "nonzero": sympy.Integer(1),
+    "real": sympy.Rational(1, 2),
+}
+
+
+@dataclass(frozen=True)
+class Plot:
+    """One finished figure: SVG text, file name, alt text and a caption naming the values."""
+
+    file_name: str
+    svg: str
+    alt: str
+    caption: str
+
+
+def entry_plots(report: EntryReport) -> tuple[Plot, ...]:
+    """The figures for one entry: invariants and metric functions along a radial coordinate,
+    else the scale factors along time; none when no parameter values satisfy the domain."""
+    st, entry = report.spacetime, report.entry
+    if st is None or entry is None or report.geometry is None:
+        return ()
+    names = [str(c) for c in st.coordinates]
+    along = radial_coordinate(names) or next((n for n in names if n in TIME_NAMES), None)
+    if along is None:
+        return ()
+    setting = plot_setting(report, along)
+    if setting is None:
+        return ()
+    with matplotlib.rc_context(SVG_SETTINGS):
+        if along in TIME_NAMES:
+            figures = [scale_factor_plot(report, setting)]
+        else:
+            figures = [invariants_plot(report, setting), metric_functions_plot(report, setting)]
+    return tuple(f for f in figures if f is not None)
+
+
+@dataclass(frozen=True)
+class PlotSetting:
+    """Where a plot samples: radial symbol and range, values of everything else."""
+
+    radial: sympy.Symbol
+    values: dict[sympy.Symbol, sympy.Expr]  # parameters and other coordinates
+    low: float
+    high: float
+    parameters: tuple[sympy.Symbol, ...]
+
+
+def describe_values(setting: PlotSetting, plotted: Sequence[sympy.Expr]) -> str:
+    """``M = 1, a = 1/2, theta = pi/2``: every parameter, and the other coordinates only
+    where a plotted expression depends on them."""
+    used = set().union(*(e.free_symbols for e in plotted)) if plotted else set()
+    shown = [s for s in setting.values if s in setting.parameters or s in used]
+    return ", ".join(f"{s} = {setting.values[s]}" for s in sorted(shown, key=str))
+
+
+def parameter_values(report: EntryReport) -> dict[sympy.Symbol, sympy.Expr] | None:
+    """Simple exact sample values from each parameter's assumption, nudged into the domain;
+    None when no candidate satisfies it (then nothing is plotted rather than a non-solution)."""
+    st, entry = report.spacetime, report.entry
+    assert st is not None and entry is not None
+    by_name = {p.name: p.assume for p in entry.parameters}
+    values = {s: SAMPLE_BY_ASSUMPTION.get(by_name.get(str(s), "real"), sympy.Rational(1, 2))
+              for s in st.parameters}
+    for trial in _candidate_values(st.parameters, values):
+        if domain_holds_for_parameters(st, trial):
+            return trial
+    return None
+
+
+def _candidate_values(
+    parameters: Sequence[sympy.Symbol], values: dict[sympy.Symbol, sympy.Expr]
+) -> list[dict[sympy.Symbol, sympy.Expr]]:
+    """The plain values first, then the later parameters made smaller than the first (the
+    first parameter is usually the mass that sets the scale: ``a < M``, ``Q**2 < M**2``)."""
+    candidates = [values]
+    for scale in (sympy.Rational(1, 2), sympy.Rational(1, 4), sympy.Rational(1, 10)):
+        candidates.append({s: v * scale if k else v for k, (s, v) in enumerate(
+            (p, values[p]) for p in parameters)})
+    return candidates
+
+
+def _relations(st: Spacetime) -> list[sympy.Basic]:
+    out: list[sympy.Basic] = []
+    for relation in st.domain:
+        out.extend(relation.args if isinstance(relation, sympy.And) else (relation,))
+    return out
+
+
+def domain_holds_for_parameters(st: Spacetime, values: dict[sympy.Symbol, sympy.Expr]) -> bool:
+    """True when every domain inequality that involves only parameters holds."""
+    coords = set(st.coordinates)
+    for relation in _relations(st):
+        if relation.free_symbols & coords:
+            continue
+        if relation.subs(values) is not sympy.true:
+            return False
+    return True
+
+
+def plot_setting(report: EntryReport, radial_name: str) -> PlotSetting | None:
+    st = report.spacetime
+    assert st is not None
+    radial = next(c for c in st.coordinates if str(c) == radial_name)
+    values = parameter_values(report)
+    if values is None:
+        return None
+    for c in st.coordinates:
+        if c != radial:
+            values[c] = fixed_coordinate_value(str(c))
+    scale = max([abs(float(v)) for s, v in values.items() if s in st.parameters] or [1.0])
+    low, high = 0.0, 10.0 * max(scale, 1.0)
+    return PlotSetting(radial, values, low, high, tuple(st.parameters))
+
+
+def fixed_coordinate_value(name: str) -> sympy.Expr:
+    """Where other coordinates sit: theta on the equator, angles and times at zero."""
+    if name in ("theta", "vartheta"):
+        return sympy.pi / 2
+    if name in ANGLE_NAMES or name in TIME_NAMES:
+        return sympy.Integer(0)
+    return sympy.Integer(1)
+
+
+def sample(expr: sympy.Expr, setting: PlotSetting, st: Spacetime) -> numpy.ndarray | None:
+    """Values of ``expr`` along the radial range, NaN outside the domain; None if not numeric."""
+    reduced = sympy.sympify(expr).subs(setting.values)
+    if reduced.free_symbols - {setting.radial} or reduced.atoms(sympy.Function) - \
+            reduced.atoms(*_KNOWN_FUNCTIONS):
+        return None
+    radius = numpy.linspace(setting.low, setting.high, SAMPLE_COUNT)[1:]
+    function = sympy.lambdify(setting.radial, reduced, modules="numpy")
+    with numpy.errstate(all="ignore"):
+        values = numpy.asarray(function(radius), dtype=complex) * numpy.ones_like(radius)
+        values = numpy.where(numpy.abs(values.imag) < 1e-12, values.real, numpy.nan)
+    inside = domain_mask(st, setting, radius)
+    return numpy.where(inside, values, numpy.nan).astype(float)
+
+
+_KNOWN_FUNCTIONS = (
+    sympy.sin, sympy.cos, sympy.tan, sympy.sec, sympy.csc, sympy.cot, sympy.sinh, sympy.cosh,
+    sympy.tanh, sympy.exp, sympy.log, sympy.asin, sympy.acos, sympy.atan, sympy.asinh,
+    sympy.acosh, sympy.atanh, sympy.Abs, sympy.LambertW,
+)
+
+
+def domain_mask(st: Spacetime, setting: PlotSetting, radius: numpy.ndarray) -> numpy.ndarray:
+    """Which radial samples satisfy the entry's domain inequalities."""
+    mask = numpy.ones_like(radius, dtype=bool)
+    for relation in _relations(st):
+        if setting.radial not in relation.free_symbols:
+            continue
+        reduced = relation.subs(setting.values)
+        if reduced is sympy.false:  # the inequality fails for these parameter values
+            return numpy.zeros_like(radius, dtype=bool)
+        if not isinstance(reduced, sympy.Rel) or reduced.free_symbols - {setting.radial}:
+            continue  # true for every radius (decided by the assumptions), or not radial
+        test = sympy.lambdify(setting.radial, reduced.lhs - reduced.rhs, modules="numpy")
+        with numpy.errstate(all="ignore"):
+            difference = numpy.asarray(test(radius), dtype=float) * numpy.ones_like(radius)
+        op = reduced.rel_op
+        keep = {"<": difference < 0, "<=": difference <= 0, ">": difference > 0,
+                ">=": difference >= 0}.get(op, numpy.ones_like(mask))
+        mask &= keep
+    return mask
+
+
+def invariants_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:
+    st, g, entry = report.spacetime, report.geometry, report.entry
+    assert st is not None and g is not None and entry is not None
+    series, used = [], []
+    for key, label in INVARIANT_LABELS:
+        expr = getattr(g, key)
+        # Plotted against the radial coordinate only if it depends on it (a cheap test:
+        # SymPy's is_constant() would run simplify on the whole invariant).
+        if expr is None or setting.radial not in sympy.sympify(expr).free_symbols:
+            continue
+        values = sample(expr, setting, st)
+        if values is not None and numpy.isfinite(values).sum() >= 2:
+            series.append((label, values))
+            used.append(sympy.sympify(expr))
+    if not series:
+        return None
+    values_text = describe_values(setting, used)
+    r = str(setting.radial)
+    radius = numpy.linspace(setting.low, setting.high, SAMPLE_COUNT)[1:]
+    figure = _figure(len(series))
+    for axis, (label, values) in zip(figure.axes, series, strict=True):
+        _draw(axis, radius, values, label, log=_wants_log(values))
+    figure.axes[-1].set_xlabel(f"{r}  (G = c = 1)")
+    figure.suptitle(f"Curvature invariants along {r}; {values_text}")
+    names = ", ".join(label for label, _ in series)
+    return Plot(
+        file_name="invariants.svg",
+        svg=_svg(figure),
+        alt=f"{names} of {entry.title} plotted against {r} for {values_text}.",
+        caption=f"Curvature invariants against {r}, units G = c = 1, with "
+                f"{values_text}. Points outside the entry's domain are left out.",
+    )
+
+
+def metric_functions_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:
+    """-g_tt (the squared lapse for static charts) and g_rr, when both depend on r."""
+    st, entry = report.spacetime, report.entry
+    assert st is not None and entry is not None
+    names = [str(c) for c in st.coordinates]
+    time = next((c for c in st.coordinates if str(c) in TIME_NAMES), None)
+    r_index = names.index(str(setting.radial))
+    wanted: list[tuple[str, sympy.Expr]] = []
+    if time is not None:
+        t_index = names.index(str(time))
+        wanted.append((f"-g_{time}{time}", -st.metric[t_index, t_index]))
+    wanted.append((f"g_{setting.radial}{setting.radial}", st.metric[r_index, r_index]))
+    series, used = [], []
+    for label, expr in wanted:
+        expr = sympy.sympify(expr)
+        if expr == 0 or setting.radial not in expr.free_symbols:
+            continue
+        values = sample(expr, setting, st)
+        if values is not None and numpy.isfinite(values).sum() >= 2:
+            series.append((label, numpy.clip(values, -20.0, 20.0)))
+            used.append(expr)
+    if not series:
+        return None
+    values_text = describe_values(setting, used)
+    r = str(setting.radial)
+    radius = numpy.linspace(setting.low, setting.high, SAMPLE_COUNT)[1:]
+    figure = _figure(1)
+    axis = figure.axes[0]
+    for label, values in series:
+        axis.plot(radius, values, label=label, linewidth=1.4)
+    axis.axhline(0.0, color="0.5", linewidth=0.6)
+    axis.legend(loc="best", frameon=False)
+    axis.set_xlabel(f"{r}  (G = c = 1)")
+    axis.set_ylabel("metric component (clipped to ±20)")
+    figure.suptitle(f"Metric functions along {r}; {values_text}")
+    labels = " and ".join(label for label, _ in series)
+    return Plot(
+        file_name="metric-functions.svg",
+        svg=_svg(figure),
+        alt=f"{labels} of {entry.title} against {r} for {values_text}; "
+            "horizons show where -g_tt crosses zero.",
+        caption=f"Metric functions against {r}, units G = c = 1, with "
+                f"{values_text}; values clipped to ±20.",
+    )
+
+
+def scale_factor_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:
+    """sqrt(g_ii) against time for spatial directions whose metric depends on time only:
+    the scale factor of FLRW-type models, the separate ones of Kasner/Bianchi I."""
+    st, entry = report.spacetime, report.entry
+    assert st is not None and entry is not None
+    time = setting.radial
+    n = st.dimension
+    series, seen = [], []
+    for i, c in enumerate(st.coordinates):
+        g = sympy.sympify(st.metric[i, i])
+        off_diagonal = any(st.metric[i, j] != 0 for j in range(n) if j != i)
+        if c == time or off_diagonal or (g.free_symbols & set(st.coordinates)) != {time}:
+            continue
+        factor = sympy.sqrt(g)
+        if any(sympy.cancel(factor - other) == 0 for other in seen):
+            continue
+        values = sample(factor, setting, st)
+        if values is not None and numpy.isfinite(values).sum() >= 2:
+            seen.append(factor)
+            series.append((f"sqrt(g_{c}{c})", values))
+    if not series:
+        return None
+    values_text = describe_values(setting, seen)
+    x = numpy.linspace(setting.low, setting.high, SAMPLE_COUNT)[1:]
+    figure = _figure(1)
+    axis = figure.axes[0]
+    for label, values in series:
+        axis.plot(x, values, label=label, linewidth=1.4)
+    if all(_wants_log(v) for _, v in series):
+        axis.set_yscale("log")
+        axis.yaxis.set_major_formatter(LogFormatter())
+        axis.yaxis.set_minor_formatter(NullFormatter())
+    axis.legend(loc="best", frameon=False)
+    axis.set_xlabel(f"{time}  (G = c = 1)")
+    axis.set_ylabel("scale factor")
+    title = f"Scale factors along {time}" + (f"; {values_text}" if values_text else "")
+    figure.suptitle(title)
+    labels = ", ".join(label for label, _ in series)
+    return Plot(
+        file_name="scale-factors.svg",
+        svg=_svg(figure),
+        alt=f"{labels} of {entry.title} against {time}"
+            + (f" for {values_text}." if values_text else "."),
+        caption=f"Scale factors (square roots of the spatial metric components) against {time}, "
+                "units G = c = 1" + (f", with {values_text}" if values_text else "") + ".",
+    )
+
+
+def _wants_log(values: numpy.ndarray) -> bool:
+    finite = values[numpy.isfinite(values)]
+    if finite.size == 0 or (finite <= 0).any():
+        return False
+    return bool(finite.max() / max(finite.min(), 1e-300) > 1e3)
+
+
+def _figure(rows: int) -> Figure:
+    """Fixed margins instead of a layout engine: much faster, and the labels are short."""
+    height = 1.9 * rows + 1.0
+    figure = Figure(figsize=(6.4, height))
+    figure.subplots(rows, 1, sharex=True, squeeze=False)
+    figure.subplots_adjust(left=0.15, right=0.97, top=1 - 0.5 / height, bottom=0.45 / height,
+                           hspace=0.12)
+    return figure
+
+
+def _draw(axis: object, x: numpy.ndarray, y: numpy.ndarray, label: str, log: bool) -> None:
+    axis.plot(x, y, linewidth=1.4)  # type: ignore[attr-defined]
+    axis.set_ylabel(label, fontsize=8)  # type: ignore[attr-defined]
+    if log:
+        axis.set_yscale("log")  # type: ignore[attr-defined]
+        axis.yaxis.set_major_formatter(LogFormatter())  # type: ignore[attr-defined]
+        axis.yaxis.set_minor_formatter(NullFormatter())  # type: ignore[attr-defined]
+
+
+def _svg(figure: Figure) -> str:
+    buffer = io.StringIO()
+    figure.savefig(buffer, format="svg", metadata={"Date": None, "Creator": None})
+    return buffer.getvalue()
