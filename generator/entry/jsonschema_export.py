@@ -1,4 +1,4 @@
-"""The entry format as a JSON Schema, generated from ``generator/schema.py``.
+"""The entry format as a JSON Schema, generated from ``generator/entry/schema.py``.
 
 Editors (through the yaml-language-server line at the top of every entry) complete keys, show
 each key's one-line doc and flag typos while a contributor types. The schema is generated, never
@@ -56,8 +56,8 @@ def entry_schema(tags: Sequence[str] = ()) -> dict[str, object]:
     return {
         "$schema": DRAFT,
         "title": "Metric Almanac catalog entry",
-        "$comment": "Generated from generator/schema.py by generator/jsonschema_export.py; "
-        "do not edit by hand.",
+        "$comment": "Generated from generator/entry/schema.py by "
+        "generator/entry/jsonschema_export.py; do not edit by hand.",
         **body,
     }
 
@@ -225,7 +225,7 @@ def main(argv: list[str] | None = None) -> int:
     current = target.read_text(encoding="utf-8") if target.exists() else ""
     if current != render_schema(root):
         print(
-            f"{target}: out of date with generator/schema.py; "
+            f"{target}: out of date with generator/entry/schema.py; "
             "run python -m generator.entry.jsonschema_export (or python -m generator schema)",
             file=sys.stderr,
         )
