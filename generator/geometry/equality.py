@@ -1,57 +1,94 @@
 """Deciding whether an expression vanishes (or two expressions agree) on an entry's spacetime.
 
-Exact first: the expression is converted into the rational-function field of ``algebra``, whose
-normal form is zero exactly when the expression is. Every outcome is then confirmed
-independently by substituting exact random points of the domain (Schwartz–Zippel): a zero must
-vanish there too, and a non-zero normal form must show a witness point. Expressions outside the
-field are decided on sample points alone (exact rational arithmetic where possible, else 30
-digits with a 1e-20 tolerance), and the decision says so. Strings are never compared and
-``simplify`` is never trusted to decide.
+One procedure for every verdict (claims, matter, Killing vectors, chart maps, Petrov, energy):
+
+1. **Exact.** Both sides go into the rational-function field of ``algebra``. A zero normal form
+   of the difference is a proof of equality (the field's arithmetic is a homomorphism onto
+   functions). A non-zero one is a proof of difference whenever the form is canonical
+   (``canonicity``); a witness point where the difference does not vanish is then computed
+   from the difference itself, exactly at a rational point where possible. Sampling never
+   overrules an exact answer.
+2. **By cases.** Where the form is not canonical because of ``Abs`` or square roots of
+   products (whose value depends on the signs of their factors), the sign of each such
+   argument is proved on the domain by the sign prover (``positivity``) or, failing that, the
+   domain is split (argument > 0, argument < 0) and each case is decided exactly.
+3. **Sampled.** Only where neither applies: SAMPLED_POINTS fresh points drawn from the run's
+   unpredictable stream (``decisions``) over the whole domain, many decades wide
+   (``sampling.wide_points``), compared in mpmath at two precisions chosen from the size of
+   the constants involved, so nothing overflows and a non-finite value is never "equal".
+   DEVELOPERS.md §5 gives the probability argument for the number of points.
+
+Every decision says which of the three reached it; an "equal" is recorded in the active
+decision log so that each verdict's label is the weakest method it rests on.
 """
 
 from __future__ import annotations
+
+import dataclasses
+import math
+import random
 
 import mpmath
 import sympy
 from sympy.core.function import AppliedUndef
 
+from generator.geometry import decisions
 from generator.geometry.algebra import (
     FieldRequest,
     Frac,
     NotInField,
     RationalField,
     build_field,
+    generators_of,
 )
+from generator.geometry.canonicity import canonical_reason
+from generator.geometry.positivity import proves_sign
 from generator.geometry.sampling import (
     Point,
     angle_coordinates,
     entry_points,
-    numeric_value,
+    numeric_memo,
+    numeric_tree,
+    sample_points,
     substitute,
     through_sin_cos,
+    wide_points,
 )
 from generator.model import Decision, Spacetime
 
-CONFIRM_POINTS = 3
-SAMPLED_POINTS = 8
-MINIMUM_SAMPLED = 5
+CONFIRM_POINTS = 3  # deterministic points tried first for a witness
+WITNESS_POINTS = 12  # points searched for a witness of a canonical difference
+WITNESS_SEED = 20261203  # the witness search is deterministic: a page shows the same point
+# Fresh points of the sampling fallback: a wrong claim whose difference is non-zero on a part
+# of the domain holding a tenth of the sampling distribution survives all of them with
+# probability 0.9**263 < 1e-12 (DEVELOPERS.md §5).
+SAMPLED_POINTS = 263
+BASE_DIGITS = 50  # working precision before the constants of the expressions are counted
+MAX_DIGITS = 4000  # expressions needing more are not sampled ("could not decide")
+MAX_CASE_DEPTH = 3  # sign splits in a row (at most 2**3 cases)
+QUESTION_LIMIT = 200  # operations in an argument whose sign is asked
 DIGITS = 30
-TOLERANCE = sympy.Float("1e-20", DIGITS)
 
 
 def decide_zero(expr: sympy.Expr, spacetime: Spacetime) -> Decision:
     """Is ``expr`` identically zero on the spacetime's domain?"""
-    return _decide(sympy.sympify(expr), sympy.Integer(0), spacetime)
+    return _recorded(_decide(sympy.sympify(expr), sympy.Integer(0), spacetime))
 
 
 def decide_equal(claimed: sympy.Expr, computed: sympy.Expr, spacetime: Spacetime) -> Decision:
     """Is ``claimed`` equal to ``computed`` everywhere on the domain?"""
-    return _decide(sympy.sympify(claimed), sympy.sympify(computed), spacetime)
+    return _recorded(_decide(sympy.sympify(claimed), sympy.sympify(computed), spacetime))
 
 
 def sampled_zero(expr: sympy.Expr, spacetime: Spacetime) -> bool:
     """True when ``expr`` is decided to vanish (used by the SymPy fallback engine)."""
     return decide_zero(expr, spacetime).equal is True
+
+
+def _recorded(decision: Decision) -> Decision:
+    if decision.equal is True:
+        decisions.record(decision.method)
+    return decision
 
 
 def canonical(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr:
@@ -90,21 +127,10 @@ def exact_square_root(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr | No
 def nonzero_in_field(field: RationalField, value: Frac, spacetime: Spacetime,
                      count: int = CONFIRM_POINTS) -> bool:
     """True when ``value`` is certainly not identically zero: it is non-zero at one of the
-    first ``count`` sample points, evaluated exactly in the field (points where a generator is
-    irrational, such as a square root, are skipped). A cheap witness for a non-zero normal
+    first ``count`` sample points (exactly, or far outside the rounding error of a 60-digit
+    evaluation where a generator is irrational there). A cheap witness for a non-zero normal
     form; False means only "no witness here", never "zero"."""
-    angles = angle_coordinates(spacetime)
-    # Only the generators in ``value`` need a rational value: an angle θ is a generator of a
-    # field closed under derivatives, yet a value written in sin θ and cos θ never holds it.
-    used = [max(n, d) > 0 for n, d in zip(value.num.degrees(), value.den.degrees(), strict=True)]
-    for point in entry_points(spacetime, count):
-        values = [substitute(spec.meaning, point, angles) if needed else sympy.Integer(0)
-                  for spec, needed in zip(field.specs, used, strict=True)]
-        if all(v.is_Rational for v in values):
-            found = field.value_at(value, values)
-            if found is not None and found != 0:
-                return True
-    return False
+    return _witness_point(field, value, entry_points(spacetime, count), spacetime) is not None
 
 
 def _field_of(
@@ -121,50 +147,400 @@ def _field_of(
 
 def _decide(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decision:
     left, right = (_without_subs(_aligned(e, spacetime)) for e in (left, right))
+    exact = _decide_exact(left, right, spacetime)
+    if exact.equal is not None:
+        return exact
+    cases = _decide_by_cases(left, right, spacetime)
+    if cases is not None:
+        return cases
+    return _decide_sampled(left, right, spacetime, exact.detail)
+
+
+def _decide_exact(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decision:
+    """Equal or different by the normal form of the difference (with a witness point for a
+    difference); equal None with the reason when the normal form cannot decide."""
     try:
         field, (a, b) = _field_of((left, right), spacetime)
-        normal_zero = field.equal(a, b)
+        difference = field.sub(a, b)
+    except (NotInField, ZeroDivisionError) as exc:
+        return Decision(None, "failed", f"outside the exact field ({exc})")
+    if difference.is_zero():
+        return Decision(True, "exact", "normal form of the difference is zero")
+    point = _witness_point(field, difference, entry_points(spacetime, CONFIRM_POINTS), spacetime)
+    if point is not None:
+        return Decision(False, "exact", "normal forms differ; the difference is non-zero at "
+                        "the witness point", _witness(point, spacetime))
+    reason = canonical_reason(field, difference, spacetime.parameters)
+    if reason is not None:
+        return Decision(None, "failed", f"normal form not canonical here ({reason})")
+    point = _witness_point(field, difference, _witness_candidates(spacetime), spacetime)
+    detail = "the normal form of the difference is not zero and the form is canonical here"
+    if point is None:
+        return Decision(False, "exact", detail + " (no witness point found in the domain)")
+    return Decision(False, "exact", detail + "; the difference is non-zero at the witness "
+                    "point", _witness(point, spacetime))
+
+
+def _witness_candidates(spacetime: Spacetime) -> list[Point]:
+    """Deterministic points for a witness: the entry's stream, then wide ones."""
+    points = sample_points(spacetime, WITNESS_POINTS, WITNESS_SEED)
+    return points + wide_points(spacetime, WITNESS_POINTS,
+                                random.Random(WITNESS_SEED))
+
+
+def _witness_point(field: RationalField, value: Frac, points: list[Point],
+                   spacetime: Spacetime) -> Point | None:
+    """The first of ``points`` where ``value`` is certainly non-zero (and defined)."""
+    angles = angle_coordinates(spacetime)
+    used = generators_of(field, value)
+    for point in points:
+        values = _generator_values(field, used, point, angles)
+        if values is None:
+            continue
+        if all(v.is_Rational for v in values):
+            found = field.value_at(value, values)
+            if found is not None and found != 0:
+                return point
+        elif _numerically_nonzero(field, value, values):
+            return point
+    return None
+
+
+def _generator_values(field: RationalField, used: set[int], point: Point,
+                      angles: tuple[sympy.Symbol, ...]) -> list[sympy.Expr] | None:
+    values = []
+    for k, spec in enumerate(field.specs):
+        if k not in used:
+            values.append(sympy.Integer(0))
+            continue
+        try:
+            value = substitute(spec.meaning, point, angles)
+        except (ZeroDivisionError, ValueError):
+            return None
+        if value.free_symbols or value.has(sympy.zoo, sympy.nan, sympy.oo, -sympy.oo):
+            return None
+        values.append(value)
+    return values
+
+
+def _numerically_nonzero(field: RationalField, value: Frac, values: list[sympy.Expr]) -> bool:
+    """The fraction is non-zero at these generator values: its numerator exceeds, by a wide
+    margin, the rounding error of a 60-digit evaluation (bounded by the sum of the absolute
+    values of its terms), and its denominator likewise. mpmath's exponent range is unbounded,
+    so nothing overflows."""
+    with mpmath.workdps(60):
+        numbers = []
+        for v in values:
+            number = _to_mpc(v, 60)
+            if number is None:
+                return False
+            numbers.append(number)
+        return all(_poly_clearly_nonzero(p, numbers) for p in (value.num, value.den))
+
+
+def _poly_clearly_nonzero(poly, numbers: list[mpmath.mpc]) -> bool:
+    total, bound = mpmath.mpc(0), mpmath.mpf(0)
+    for monomial, coefficient in poly.terms():
+        term = mpmath.mpf(int(coefficient.p)) / int(coefficient.q)
+        for k, e in enumerate(monomial):
+            if e:
+                term *= numbers[k] ** int(e)
+        total += term
+        bound += abs(term)
+    if not (mpmath.isfinite(total.real) and mpmath.isfinite(total.imag)):
+        return False
+    return bool(abs(total) > bound * mpmath.mpf(10) ** -40)
+
+
+def _to_mpc(value: sympy.Expr, digits: int) -> mpmath.mpc | None:
+    """A constant SymPy expression as an mpmath number at ``digits`` digits (None if it is not
+    a finite number)."""
+    try:
+        number = mpmath.mpc(_numeric_tree(value, {}, digits))
+    except (KeyError, TypeError, ValueError, ZeroDivisionError, OverflowError):
+        number = _evalf_mpc(value, digits)
+    if number is None or not (mpmath.isfinite(number.real) and mpmath.isfinite(number.imag)):
+        return None
+    return number
+
+
+def _evalf_mpc(value: sympy.Expr, digits: int) -> mpmath.mpc | None:
+    """SymPy's evaluation, for heads mpmath is not given here; never a Python float (which
+    would overflow to inf)."""
+    try:
+        numeric = value.evalf(digits)
+        re, im = numeric.as_real_imag()
+        if not (re.is_number and im.is_number) or re.has(sympy.zoo, sympy.nan, sympy.oo) \
+                or im.has(sympy.zoo, sympy.nan, sympy.oo):
+            return None
+        return mpmath.mpc(mpmath.mpf(sympy.Float(re, digits)), mpmath.mpf(sympy.Float(im, digits)))
+    except (TypeError, ValueError, ZeroDivisionError, AttributeError):
+        return None
+
+
+def _numeric_tree(e: sympy.Basic, memo: dict, digits: int) -> mpmath.mpc:
+    with mpmath.workdps(digits):
+        return numeric_tree(e, memo)
+
+
+# ---------------------------------------------------------------------------- by cases
+
+
+def _decide_by_cases(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime
+                     ) -> Decision | None:
+    """Decide by the signs of the arguments of Abs and of the factors of square-root
+    radicands (None when there are none, or a case cannot be decided exactly)."""
+    if not sign_questions(left, right):
+        return None
+    return _cases(left, right, spacetime, {}, 0)
+
+
+def sign_questions(*exprs: sympy.Expr) -> list[sympy.Expr]:
+    """The expressions whose signs decide how Abs and square roots of products evaluate:
+    the argument of each Abs, and each non-constant factor of a radicand that is not a
+    single factor to the first power. Real arguments only (coordinates, parameters and free
+    functions are real)."""
+    found: list[sympy.Expr] = []
+    for expr in exprs:
+        for atom in sorted(expr.atoms(sympy.Abs), key=sympy.count_ops):
+            argument = atom.args[0]
+            if sympy.count_ops(argument) <= QUESTION_LIMIT and not argument.has(sympy.I):
+                found.append(argument)
+        for power in expr.atoms(sympy.Pow):
+            found += _radicand_questions(power)
+    unique: list[sympy.Expr] = []
+    for q in found:
+        if q not in unique and not q.is_number:
+            unique.append(q)
+    return unique
+
+
+def _radicand_factors(power: sympy.Pow):
+    """(constant, [(factor, exponent)]) of a square root's radicand (negative exponents for
+    the denominator), or None when it is no candidate for a rewrite."""
+    base, exponent = power.as_base_exp()
+    if not (exponent.is_Rational and exponent.q == 2) or base.is_number or base.has(sympy.I):
+        return None
+    if sympy.count_ops(base) > QUESTION_LIMIT or not _is_rational_in_atoms(base):
+        return None
+    num, den = sympy.fraction(sympy.cancel(base))
+    try:
+        c_num, top = sympy.factor_list(num)
+        c_den, bottom = sympy.factor_list(den)
+    except (sympy.PolynomialError, NotImplementedError):
+        return None
+    factors = [(f, int(e)) for f, e in top] + [(f, -int(e)) for f, e in bottom]
+    if len(factors) == 1 and factors[0][1] == 1:
+        return None  # one factor to the first power: already as simple as it gets
+    return c_num / c_den, factors
+
+
+def _is_rational_in_atoms(expr: sympy.Expr) -> bool:
+    stand_ins = {a: sympy.Dummy() for a in expr.atoms(AppliedUndef, sympy.Derivative)}
+    replaced = expr.xreplace(stand_ins)
+    return not replaced.atoms(sympy.Function) and replaced.is_rational_function()
+
+
+def _radicand_questions(power: sympy.Pow) -> list[sympy.Expr]:
+    found = _radicand_factors(power)
+    return [] if found is None else [f for f, _ in found[1]]
+
+
+def _proved_sign(question: sympy.Expr, spacetime: Spacetime) -> int | None:
+    if proves_sign(question, spacetime):
+        return 1
+    if proves_sign(-question, spacetime):
+        return -1
+    return None
+
+
+def _cases(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime,
+           signs: dict[sympy.Expr, int], depth: int) -> Decision | None:
+    open_questions = [q for q in sign_questions(left, right) if q not in signs]
+    if not open_questions:
+        return _exact_in_case(with_signs(left, signs), with_signs(right, signs), spacetime)
+    question = open_questions[0]
+    sign = _proved_sign(question, spacetime)
+    if sign is not None:
+        return _cases(left, right, spacetime, {**signs, question: sign}, depth)
+    if depth >= MAX_CASE_DEPTH:
+        return None
+    outcomes = []
+    for sign, relation in ((1, sympy.StrictGreaterThan(question, 0)),
+                           (-1, sympy.StrictLessThan(question, 0))):
+        case = dataclasses.replace(spacetime, domain=(*spacetime.domain, relation))
+        outcome = _cases(left, right, case, {**signs, question: sign}, depth + 1)
+        if outcome is not None and outcome.equal is False:
+            return dataclasses.replace(outcome, detail=f"where {relation}: {outcome.detail}")
+        outcomes.append(outcome)
+    if all(o is not None and o.equal is True for o in outcomes):
+        return Decision(True, "by cases", f"equal exactly where {question} > 0 and where "
+                        f"{question} < 0")
+    return None
+
+
+def with_signs(expr: sympy.Expr, signs: dict[sympy.Expr, int]) -> sympy.Expr:
+    """``expr`` with each Abs and each square root of a product written for the given signs
+    of their arguments' factors: Abs(u) = s·u; for w = c·Π f_i**e_i with s_i f_i ≥ 0,
+    w**(p/2) = (c·Π s_i**e_i)**(p/2) · Π (s_i f_i)**(e_i p/2) (principal roots of
+    non-negative reals multiply; a negative constant carries the factor i)."""
+    table: dict[sympy.Basic, sympy.Expr] = {}
+    for atom in expr.atoms(sympy.Abs):
+        sign = signs.get(atom.args[0])
+        if sign is not None:
+            table[atom] = sign * atom.args[0]
+    for power in expr.atoms(sympy.Pow):
+        found = _radicand_factors(power)
+        if found is None or any(f not in signs for f, _ in found[1]):
+            continue
+        constant, factors = found
+        p = power.exp * 2
+        value = sympy.Integer(1)
+        for f, e in factors:
+            constant *= signs[f] ** e
+            value *= (signs[f] * f) ** (e * p / 2)
+        table[power] = sympy.Pow(constant, p / 2) * value
+    if not table:
+        return expr
+    rewritten = expr.xreplace(table)
+    return rewritten if rewritten == expr else with_signs(rewritten, signs)
+
+
+def _exact_in_case(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime
+                   ) -> Decision | None:
+    """Within one case: equal by a zero normal form; different only with a witness point
+    inside the case (a case may be empty: a non-zero form alone proves nothing there)."""
+    try:
+        field, (a, b) = _field_of((left, right), spacetime)
+        difference = field.sub(a, b)
     except (NotInField, ZeroDivisionError):
-        return _decide_sampled(left, right, spacetime, "outside the exact field")
-    if normal_zero:
-        return _confirm_zero(left, right, spacetime)
-    return _find_witness(left, right, spacetime)
+        return None
+    if difference.is_zero():
+        return Decision(True, "by cases", "normal form of the difference is zero once Abs and "
+                        "square roots are written for the signs of their arguments on the domain")
+    point = _witness_point(field, difference, _witness_candidates(spacetime), spacetime)
+    if point is None:
+        return None
+    return Decision(False, "by cases", "the difference is non-zero at the witness point",
+                    _witness(point, spacetime))
 
 
-def _confirm_zero(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decision:
-    """The normal form says equal; a disagreeing point would mean a branch problem (a root
-    or Abs taken on the wrong sheet), and then the point wins."""
-    witness, usable = _first_difference(left, right, spacetime, CONFIRM_POINTS)
-    if witness is not None:
-        detail = "normal form is zero but a sample point disagrees (branch of a root?)"
-        return Decision(False, "sampled", detail, _witness(witness, spacetime))
-    return Decision(True, "exact", f"normal form is zero; confirmed at {usable} points")
+# ---------------------------------------------------------------------------- sampled
 
 
-def _find_witness(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decision:
-    """The normal form says different; show a point where the two sides differ. If none is
-    found the normal form was not canonical here (e.g. radicals of related bases), and the
-    sample points decide, saying so."""
-    witness, usable = _first_difference(left, right, spacetime, SAMPLED_POINTS)
-    if witness is not None:
-        detail = "normal forms differ; witness point found"
-        return Decision(False, "exact", detail, _witness(witness, spacetime))
-    return _sampled_verdict(usable, "normal form not canonical here")
-
-
-def _first_difference(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime, count: int
-                      ) -> tuple[Point | None, int]:
-    """The first of ``count`` sample points where the sides differ (None if there is none),
-    and how many points were usable (both sides defined) before it."""
+def _decide_sampled(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime, why: str
+                    ) -> Decision:
+    """The fallback: SAMPLED_POINTS fresh wide points of the domain, each compared at two
+    precisions. A point where the sides certainly differ is a witness; a point where either
+    side is not a finite number, or where the precisions disagree, is not counted."""
+    digits = working_digits(left, right)
+    if digits is None:
+        return Decision(None, "failed", f"{why}; the constants are too large to compare "
+                        f"numerically")
     angles = angle_coordinates(spacetime)
     left, right = through_sin_cos(left, angles), through_sin_cos(right, angles)
+    points = wide_points(spacetime, SAMPLED_POINTS, decisions.sampling_rng())
     usable = 0
-    for point in entry_points(spacetime, count):
-        differs = _differs_at(left, right, point)
-        if differs:
-            return point, usable
-        usable += differs is not None
-    return None, usable
+    for point in points:
+        verdict = compare_at(left, right, point, digits)
+        if verdict is True:
+            return Decision(False, "sampled", f"{why}; differs at a random point of the "
+                            f"domain", _witness(point, spacetime))
+        usable += verdict is False
+    if usable < SAMPLED_POINTS:
+        return Decision(None, "failed", f"{why}; only {usable} usable random points in the "
+                        f"domain (need {SAMPLED_POINTS})")
+    return Decision(True, "sampled", f"{why}; equal at {usable} random points of the domain "
+                    f"(fresh for each run, spread over many decades; {digits} and "
+                    f"{2 * digits} digits)")
+
+
+def working_digits(*exprs: sympy.Expr) -> int | None:
+    """Digits to carry so that constants written into the expressions cannot hide below the
+    rounding error: BASE_DIGITS plus the digits of every rational and float, plus the decimal
+    exponent of every exponential of a number. None when that exceeds MAX_DIGITS."""
+    digits = BASE_DIGITS
+    for expr in exprs:
+        for atom in expr.atoms(sympy.Rational):
+            digits += len(str(abs(atom.p))) + len(str(atom.q)) - 2
+        for atom in expr.atoms(sympy.Float):
+            digits += atom._prec // 3
+        for atom in expr.atoms(sympy.exp):
+            if atom.args[0].is_number:
+                size = _to_mpc(atom.args[0], 30)
+                if size is None or abs(size) > MAX_DIGITS * 3:
+                    return None
+                digits += int(abs(size) / math.log(10)) + 1
+        for power in expr.atoms(sympy.Pow):
+            digits += _power_digits(power)
+        if digits > MAX_DIGITS:
+            return None
+    return digits
+
+
+def _power_digits(power: sympy.Pow) -> int:
+    """Decimal orders of magnitude of a number raised to a number ((1 - √2)**10000 is about
+    1e-3828: it must not vanish below the rounding error of the rest)."""
+    base, exponent = power.as_base_exp()
+    if not (base.is_number and exponent.is_number):
+        return 0
+    b, e = _to_mpc(base, 30), _to_mpc(exponent, 30)
+    if b is None or e is None or b == 0:
+        return MAX_DIGITS
+    with mpmath.workdps(30):
+        return int(abs(e) * abs(mpmath.log10(abs(b)))) + 1
+
+
+def compare_at(left: sympy.Expr, right: sympy.Expr, point: Point, digits: int) -> bool | None:
+    """True: the sides certainly differ at the point; False: they agree to the working
+    precision; None: not usable (a side is undefined or not finite, or the two precisions
+    disagree about the difference)."""
+    first = _difference_at(left, right, point, digits)
+    second = _difference_at(left, right, point, 2 * digits)
+    if first is None or second is None:
+        return None
+    (d1, _), (d2, scale2) = first, second
+    with mpmath.workdps(2 * digits):
+        if d2 == 0:
+            return False
+        if abs(d1 - d2) <= abs(d2) * mpmath.mpf(10) ** (-digits // 2):
+            return True  # the same non-zero difference at both precisions
+        if abs(d2) <= abs(d1) * mpmath.mpf(10) ** (-digits // 2) or \
+                abs(d2) <= scale2 * mpmath.mpf(10) ** (-digits):
+            return False  # rounding noise that shrank with the precision
+    return None
+
+
+def _difference_at(left: sympy.Expr, right: sympy.Expr, point: Point, digits: int
+                   ) -> tuple[mpmath.mpc, mpmath.mpf] | None:
+    with mpmath.workdps(digits):
+        try:
+            memo = numeric_memo(point)
+        except (KeyError, TypeError, ValueError, ZeroDivisionError):
+            return None
+        values = []
+        for side in (left, right):
+            value = _side_value(side, point, memo, digits)
+            if value is None:
+                return None
+            values.append(value)
+        x, y = values
+        return x - y, max(abs(x), abs(y))
+
+
+def _side_value(side: sympy.Expr, point: Point, memo: dict, digits: int) -> mpmath.mpc | None:
+    try:
+        number = mpmath.mpc(_numeric_tree(side, dict(memo), digits))
+    except ZeroDivisionError:
+        return None
+    except (KeyError, TypeError, ValueError, OverflowError):
+        try:
+            number = _evalf_mpc(side.xreplace(point), digits)
+        except (ZeroDivisionError, ValueError):
+            return None
+    if number is None or not (mpmath.isfinite(number.real) and mpmath.isfinite(number.imag)):
+        return None
+    return number
 
 
 def _aligned(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr:
@@ -194,65 +570,6 @@ def _without_subs(expr: sympy.Expr) -> sympy.Expr:
     if not expr.has(sympy.Subs):
         return expr
     return expr.replace(lambda e: isinstance(e, sympy.Subs), lambda e: e.doit())
-
-
-def _decide_sampled(
-    left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime, why: str
-) -> Decision:
-    witness, usable = _first_difference(left, right, spacetime, SAMPLED_POINTS)
-    if witness is not None:
-        return Decision(
-            False, "sampled", f"{why}; differs at a sample point", _witness(witness, spacetime)
-        )
-    return _sampled_verdict(usable, why)
-
-
-def _sampled_verdict(usable: int, why: str) -> Decision:
-    if usable < MINIMUM_SAMPLED:
-        return Decision(None, "failed", f"{why}; only {usable} usable sample points in the domain")
-    return Decision(
-        True,
-        "sampled",
-        f"{why}; equal at {usable} exact random points of the domain (tolerance 1e-20 at "
-        f"{DIGITS} digits where a value was not rational)",
-    )
-
-
-def _differs_at(left: sympy.Expr, right: sympy.Expr, point: Point) -> bool | None:
-    """True/False when the two sides differ/agree at the point, None if undefined there.
-    The sides are already written through sin and cos of the angles (``through_sin_cos``)."""
-    try:
-        a = substitute(left, point)
-        b = substitute(right, point)
-    except (ZeroDivisionError, ValueError):
-        return None
-    if any(v.has(sympy.zoo, sympy.nan, sympy.oo, -sympy.oo) for v in (a, b)):
-        return None
-    if a.is_Rational and b.is_Rational:
-        return a != b
-    return _numerically_differ(a, b)
-
-
-def _numerically_differ(a: sympy.Expr, b: sympy.Expr) -> bool | None:
-    """Agreement to the tolerance decides "equal here"; anything else is decided by SymPy's
-    error-controlled evalf. Plain mpmath at twice the digits is tried first: agreement to
-    1e-20 with 60 digits carried cannot come from rounding, and it is far cheaper."""
-    x, y = numeric_value(a, 2 * DIGITS), numeric_value(b, 2 * DIGITS)
-    if x is not None and y is not None:
-        with mpmath.workdps(2 * DIGITS):
-            scale = max(mpmath.mpf(1), abs(x), abs(y))
-            if abs(x - y) <= mpmath.mpf(float(TOLERANCE)) * scale:
-                return False
-    try:
-        x, y = complex(a.evalf(DIGITS)), complex(b.evalf(DIGITS))
-    except (TypeError, ValueError):
-        return None
-    scale = max(1.0, abs(x), abs(y))
-    difference = (a - b).evalf(DIGITS + 20)
-    try:
-        return abs(complex(difference)) > float(TOLERANCE) * scale
-    except (TypeError, ValueError):
-        return None
 
 
 def _witness(point: Point, spacetime: Spacetime) -> dict[str, str]:

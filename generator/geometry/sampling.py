@@ -445,6 +445,12 @@ def numeric_memo(point: Point) -> dict[sympy.Basic, mpmath.mpc]:
     return {key: _numeric(sympy.sympify(value), {}) for key, value in point.items()}
 
 
+def numeric_tree(e: sympy.Basic, memo: dict[sympy.Basic, mpmath.mpc]) -> mpmath.mpc:
+    """``expr``'s value in mpmath at the current precision, the point's values in ``memo``
+    (raises like ``numeric_memo``)."""
+    return _numeric(e, memo)
+
+
 def _numeric(e: sympy.Basic, memo: dict[sympy.Basic, mpmath.mpc]) -> mpmath.mpc:
     if e in memo:
         return memo[e]
@@ -465,3 +471,116 @@ def _numeric(e: sympy.Basic, memo: dict[sympy.Basic, mpmath.mpc]) -> mpmath.mpc:
         found = head(*(_numeric(a, memo) for a in e.args))
     memo[e] = found
     return found
+
+
+# ---------------------------------------------------------------------------- wide points
+
+# The sampling fallback of the equality decision draws from the whole declared domain, not
+# from a box: every unbounded parameter or coordinate gets magnitudes spread log-uniformly over
+# WIDE_DECADES decades each side of 1 (mixed with plain values up to 10), so a claim that is
+# wrong only for large or small values meets such values. See DEVELOPERS.md §5.
+WIDE_DECADES = 12
+WIDE_ATTEMPTS_PER_POINT = 60
+
+
+def wide_points(spacetime: Spacetime, count: int, rng: random.Random) -> list[Point]:
+    """Up to ``count`` exact points of the domain drawn from ``rng`` over many decades.
+
+    Unlike ``sample_points`` these are not required to be regular points of the metric (a
+    degenerate point is met with probability zero, and a side that is undefined there is
+    skipped by the caller); the domain's inequalities are required, exactly where rational."""
+    plan = domain_plan(spacetime)
+    points: list[Point] = []
+    for _ in range(count * WIDE_ATTEMPTS_PER_POINT):
+        if len(points) >= count:
+            break
+        point = _wide_point(spacetime, plan, rng)
+        if point is None or not _holds_everywhere(plan.relations, point, plan.angles):
+            continue
+        for f in spacetime.functions:
+            point.update(_wide_function_values(f, rng))
+        points.append(point)
+    return points
+
+
+def wide_rational(rng: random.Random, sign: str = "any") -> sympy.Rational:
+    """A rational whose magnitude is log-uniform over ±WIDE_DECADES decades (three draws in
+    four) or uniform in (0, 10) (one in four), with seven significant digits."""
+    mantissa = sympy.Rational(rng.randint(10**6, 10**7 - 1), 10**6)
+    if rng.random() < 0.25:
+        value = mantissa
+    else:
+        value = mantissa * sympy.Rational(10) ** rng.randint(-WIDE_DECADES, WIDE_DECADES - 1)
+    if sign in ("nonnegative", "nonpositive") and rng.random() < 0.02:
+        return sympy.Integer(0)
+    if sign in ("negative", "nonpositive") or (sign == "any" and rng.random() < 0.5):
+        return -value
+    return value
+
+
+def _wide_parameter(symbol: sympy.Symbol, rng: random.Random) -> sympy.Rational:
+    if symbol.is_integer:
+        magnitude = sympy.Integer(int(10 ** rng.uniform(0, 6)))
+        if symbol.is_positive or symbol.is_nonnegative:
+            return magnitude
+        return -magnitude if symbol.is_negative or rng.random() < 0.5 else magnitude
+    return wide_rational(rng, _symbol_sign(symbol))
+
+
+def _symbol_sign(symbol: sympy.Basic) -> str:
+    for sign in ("positive", "negative", "nonnegative", "nonpositive"):
+        if getattr(symbol, f"is_{sign}"):
+            return sign
+    return "any"
+
+
+def _wide_point(spacetime: Spacetime, plan: DomainPlan, rng: random.Random) -> Point | None:
+    point: Point = {p: _wide_parameter(p, rng) for p in spacetime.parameters}
+    if not _holds_everywhere(plan.parameter_relations, point, ()):
+        return None
+    for x in spacetime.coordinates:
+        if x in plan.angles:
+            q = wide_rational(rng, "positive" if rng.random() < 0.9 else "any")
+            point[sympy.sin(x)] = 2 * q / (1 + q**2)
+            point[sympy.cos(x)] = (1 - q**2) / (1 + q**2)
+            point[x] = 2 * sympy.atan(q)
+            continue
+        bounded = _wide_between(plan.bounds[x], point, rng)
+        point[x] = bounded if bounded is not None else _wide_parameter(x, rng)
+    return point
+
+
+def _wide_between(bounds: tuple[tuple[str, sympy.Expr], ...], point: Point,
+                  rng: random.Random) -> sympy.Rational | None:
+    """A value inside the direct bounds of a coordinate: near either end or anywhere between
+    for an interval, at any distance above a lower or below an upper bound."""
+    low = high = None
+    for side, bound in bounds:
+        value = _rational_bound(bound, point, side)
+        if value is None:
+            continue
+        if side == ">":
+            low = value if low is None else max(low, value)
+        else:
+            high = value if high is None else min(high, value)
+    if low is None and high is None:
+        return None
+    if low is not None and high is not None:
+        if high <= low:
+            return low
+        fraction = (wide_rational(rng, "positive") % 1) or sympy.Rational(1, 2)
+        if rng.random() < 0.5:  # close to an end, at a log-uniform relative distance
+            fraction = sympy.Rational(10) ** -rng.randint(1, WIDE_DECADES) * fraction
+            if rng.random() < 0.5:
+                fraction = 1 - fraction
+        return low + (high - low) * fraction
+    step = wide_rational(rng, "positive")
+    return low + step if low is not None else high - step
+
+
+def _wide_function_values(f: sympy.Expr, rng: random.Random) -> Point:
+    values: Point = {f: wide_rational(rng, _sign_of(f))}
+    for order in range(1, FUNCTION_DERIVATIVE_ORDER + 1):
+        for combo in itertools.combinations_with_replacement(f.args, order):
+            values[sympy.Derivative(f, *combo)] = wide_rational(rng)
+    return values
