@@ -28,6 +28,13 @@ def _add_run_options(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--no-cache", action="store_true", help="recompute everything")
     parser.add_argument("--scheduler", metavar="ADDRESS",
                         help="spread entries over a Dask distributed scheduler (tcp://host:port)")
+    parser.add_argument("--seed", type=int, default=None, metavar="N",
+                        help="seed of the random points where a claim is decided by sampling "
+                        "(default: fresh from the system each run; give the seed a run printed "
+                        "to replay it)")
+    parser.add_argument("--refuse-sampled", action="store_true",
+                        help="treat a verdict reached only by sampling as a failure (for CI "
+                        "that publishes proved statements only)")
     parser.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
                         help="show a progress bar naming the entries being checked (default: "
                         "when standard error is a terminal)")
@@ -138,11 +145,17 @@ def _dispatch(args: argparse.Namespace) -> int:
 def _options(args: argparse.Namespace):
     from generator.run.pipeline import RunOptions
 
+    if args.seed is None:
+        import secrets
+
+        args.seed = secrets.randbits(63)
     return RunOptions(
         jobs=args.jobs,
         seconds_per_entry=args.seconds,
         cache_dir=None if args.no_cache else args.cache_dir,
         scheduler=args.scheduler,
+        seed=args.seed,
+        refuse_sampled=args.refuse_sampled,
     )
 
 
@@ -164,6 +177,7 @@ def run_check(args: argparse.Namespace) -> int:
     reports = check_files(files, root, base, _options(args), *_progress_printer(args, len(files)))
     fmt = "json" if args.json else args.format
     _print_reports(reports, fmt, args.show_computed)
+    _print_sampling_note(reports, args.seed)
     if any(not r.ok for r in reports):
         unreadable = any(d.code.startswith("file.") for r in reports for d in r.diagnostics)
         return EXIT_USAGE if unreadable else EXIT_FAILED
@@ -215,6 +229,15 @@ def _print_reports(reports, fmt: str, show_computed: bool) -> None:
     summary = (f"{len(reports)} entries checked: {len(reports) - failed} verified, "
                f"{failed} failed ({errors} errors)")
     print(summary, file=sys.stderr)
+
+
+def _print_sampling_note(reports, seed: int) -> None:
+    """Name the entries decided only by sampling, and the seed that replays their points."""
+    sampled = sorted({r.entry.id for r in reports if r.entry is not None
+                      for v in r.verdicts if v.ok and v.method == "sampled"})
+    if sampled:
+        print(f"decided by sampling only (not proved): {', '.join(sampled)}; sampling seed "
+              f"{seed} (replay with --seed {seed} --no-cache)", file=sys.stderr)
 
 
 def _computed_yaml(report) -> str:

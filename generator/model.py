@@ -230,7 +230,9 @@ class Geometry:
     seconds: float = 0.0
 
 
-Method = Literal["exact", "sampled", "failed"]
+# Which method decided: "exact" (normal forms), "by cases" (exact within each case of a sign
+# split, signs proved on the domain), "sampled" (agreement at random points only), "failed".
+Method = Literal["exact", "by cases", "sampled", "failed"]
 
 
 @dataclass(frozen=True)

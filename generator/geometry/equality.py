@@ -47,6 +47,7 @@ from generator.geometry.sampling import (
     Point,
     angle_coordinates,
     entry_points,
+    iter_wide_points,
     numeric_memo,
     numeric_tree,
     sample_points,
@@ -397,8 +398,9 @@ def with_signs(expr: sympy.Expr, signs: dict[sympy.Expr, int]) -> sympy.Expr:
         p = power.exp * 2
         value = sympy.Integer(1)
         for f, e in factors:
-            constant *= signs[f] ** e
-            value *= (signs[f] * f) ** (e * p / 2)
+            sign = sympy.Integer(signs[f])
+            constant *= sign**e
+            value *= (sign * f) ** (e * p / 2)
         table[power] = sympy.Pow(constant, p / 2) * value
     if not table:
         return expr
@@ -439,7 +441,7 @@ def _decide_sampled(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime, w
                         f"numerically")
     angles = angle_coordinates(spacetime)
     left, right = through_sin_cos(left, angles), through_sin_cos(right, angles)
-    points = wide_points(spacetime, SAMPLED_POINTS, decisions.sampling_rng())
+    points = iter_wide_points(spacetime, SAMPLED_POINTS, decisions.sampling_rng())
     usable = 0
     for point in points:
         verdict = compare_at(left, right, point, digits)
@@ -503,11 +505,11 @@ def compare_at(left: sympy.Expr, right: sympy.Expr, point: Point, digits: int) -
     with mpmath.workdps(2 * digits):
         if d2 == 0:
             return False
-        if abs(d1 - d2) <= abs(d2) * mpmath.mpf(10) ** (-digits // 2):
+        noise = scale2 * mpmath.mpf(10) ** (10 - 2 * digits)
+        if abs(d1 - d2) <= abs(d2) / 1000 and abs(d2) > noise:
             return True  # the same non-zero difference at both precisions
-        if abs(d2) <= abs(d1) * mpmath.mpf(10) ** (-digits // 2) or \
-                abs(d2) <= scale2 * mpmath.mpf(10) ** (-digits):
-            return False  # rounding noise that shrank with the precision
+        if abs(d2) <= abs(d1) * mpmath.mpf(10) ** (-digits // 2) or abs(d2) <= noise:
+            return False  # rounding noise: it shrank with the precision
     return None
 
 

@@ -17,6 +17,7 @@ from __future__ import annotations
 import functools
 import itertools
 import random
+from collections.abc import Iterator
 from dataclasses import dataclass
 
 import mpmath
@@ -484,23 +485,31 @@ WIDE_ATTEMPTS_PER_POINT = 60
 
 
 def wide_points(spacetime: Spacetime, count: int, rng: random.Random) -> list[Point]:
-    """Up to ``count`` exact points of the domain drawn from ``rng`` over many decades.
+    """Up to ``count`` exact points of the domain drawn from ``rng`` over many decades
+    (``iter_wide_points``)."""
+    return list(itertools.islice(iter_wide_points(spacetime, count, rng), count))
+
+
+def iter_wide_points(spacetime: Spacetime, count: int, rng: random.Random
+                     ) -> Iterator[Point]:
+    """Exact points of the domain drawn from ``rng`` over many decades, one at a time (a
+    caller that finds a witness early stops drawing), at most ``count`` of them.
 
     Unlike ``sample_points`` these are not required to be regular points of the metric (a
     degenerate point is met with probability zero, and a side that is undefined there is
     skipped by the caller); the domain's inequalities are required, exactly where rational."""
     plan = domain_plan(spacetime)
-    points: list[Point] = []
+    found = 0
     for _ in range(count * WIDE_ATTEMPTS_PER_POINT):
-        if len(points) >= count:
-            break
+        if found >= count:
+            return
         point = _wide_point(spacetime, plan, rng)
         if point is None or not _holds_everywhere(plan.relations, point, plan.angles):
             continue
         for f in spacetime.functions:
             point.update(_wide_function_values(f, rng))
-        points.append(point)
-    return points
+        found += 1
+        yield point
 
 
 def wide_rational(rng: random.Random, sign: str = "any") -> sympy.Rational:

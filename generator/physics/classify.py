@@ -14,6 +14,7 @@ from dataclasses import replace
 import sympy
 
 from generator.errors import Diagnostic
+from generator.geometry import decisions
 from generator.geometry.curvature import WeylOperator
 from generator.geometry.sampling import Point, entry_points
 from generator.model import Classification, EnergyCondition, Entry, Geometry, Spacetime
@@ -23,6 +24,7 @@ from generator.physics.petrov import PetrovResult, petrov_type
 from generator.physics.symmetry import check_all_related, check_killing_vector, geodesic_equations
 
 SAMPLE_COUNT = 10
+STRESS_ENERGY = "stress-energy"  # the subject of the Hawking–Ellis type and energy conditions
 NO_MATTER = ("vacuum", "lambda-vacuum")
 # SymPy's ways of giving up on an expression; they make a result "undecided", not a crash.
 ALGEBRA_FAILURES = (ValueError, TypeError, ZeroDivisionError, NotImplementedError,
@@ -40,12 +42,16 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     points = entry_points(spacetime, SAMPLE_COUNT)
     diagnostics: list[Diagnostic] = []
     reasons: dict[str, str] = {}
-    matter = classify_matter(entry, spacetime, geometry)
+    with decisions.subject("matter.kind"):
+        matter = classify_matter(entry, spacetime, geometry)
     diagnostics += matter.diagnostics
     reasons.update(matter.reasons)
     try:
-        spectrum, conditions = stress_energy_physics(matter, spacetime, geometry, points,
-                                                     reasons)
+        with decisions.subject(STRESS_ENERGY):
+            spectrum, conditions = stress_energy_physics(matter, spacetime, geometry, points,
+                                                         reasons)
+            if spectrum is not None and spectrum.method == "sampled":
+                decisions.record("sampled")  # the type was read off sample points only
     except ALGEBRA_FAILURES as exc:
         why = f"the computer algebra failed ({type(exc).__name__}: {exc})"
         reasons["hawking_ellis_type"] = reasons["energy_conditions"] = why
@@ -53,16 +59,20 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
         conditions = tuple(EnergyCondition(name, "undecided", why) for name in CONDITIONS)
     diagnostics += check_stress_claims(entry, spectrum, conditions, matter)
     try:
-        petrov = petrov_type(geometry, spacetime, points, weyl_operator)
+        with decisions.subject("claims.petrov_type"):
+            petrov = petrov_type(geometry, spacetime, points, weyl_operator)
     except ALGEBRA_FAILURES as exc:
         petrov = PetrovResult("undecided", f"the computer algebra failed "
                               f"({type(exc).__name__}: {exc})")
     record_petrov_reasons(petrov, reasons)
     diagnostics += check_petrov_claim(entry, petrov)
-    killing = [check_killing_vector(entry, spacetime, i, claim)
-               for i, claim in enumerate(entry.claims.killing_vectors)]
+    killing = []
+    for i, claim in enumerate(entry.claims.killing_vectors):
+        with decisions.subject(f"claims.killing_vectors.{i}"):
+            killing.append(check_killing_vector(entry, spacetime, i, claim))
     diagnostics += [problem for _, problem in killing if problem is not None]
-    linked, link_problems = check_all_related(entry, spacetime, related)
+    with decisions.subject("related"):
+        linked, link_problems = check_all_related(entry, spacetime, related)
     diagnostics += link_problems
     classification = Classification(
         matter_kind=matter.kind,

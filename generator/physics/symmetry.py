@@ -14,6 +14,7 @@ import sympy
 
 from generator.entry.mathparse import parse_math
 from generator.errors import Diagnostic, MathSyntaxError
+from generator.geometry.decisions import weakest
 from generator.geometry.equality import decide_equal
 from generator.geometry.exactvalues import coordinate_names, index_label, vanishes
 from generator.model import (
@@ -76,8 +77,9 @@ def lie_derivative_metric(xi: Sequence[sympy.Expr], metric: sympy.Matrix,
 def tally_symmetric(n: int, decide: Callable[[int, int], Decision],
                     label: Callable[[int, int], str]) -> tuple[list[str], list[str], str]:
     """Decide each component a <= b of a symmetric n×n tensor equation: the labels of the
-    components that fail and of those left undecided, and "sampled" if any passing component
-    was decided at sample points only (else "exact"), so a verdict says how it was reached."""
+    components that fail and of those left undecided, and the weakest method by which a
+    passing component was decided ("exact", "by cases" or "sampled"), so a verdict says how
+    it was reached."""
     failing, undecided, method = [], [], "exact"
     for a in range(n):
         for b in range(a, n):
@@ -86,9 +88,19 @@ def tally_symmetric(n: int, decide: Callable[[int, int], Decision],
                 failing.append(label(a, b))
             elif decision.equal is None:
                 undecided.append(label(a, b))
-            elif decision.method == "sampled":
-                method = "sampled"
+            else:
+                method = weakest(method, decision.method)
     return failing, undecided, method
+
+
+def how_shown(method: str, equation: str) -> str:
+    """The verdict's statement, worded by how strong the decision was: a sampled identity is
+    not stated as proved."""
+    if method == "sampled":
+        return f"{equation} at every random sample point (not proved)"
+    if method == "by cases":
+        return f"{equation}, proved case by case on the signs of its arguments"
+    return equation
 
 
 def check_killing_vector(entry: Entry, spacetime: Spacetime, index: int, claim: VectorClaim
@@ -106,7 +118,8 @@ def check_killing_vector(entry: Entry, spacetime: Spacetime, index: int, claim: 
         len(names), lambda a, b: vanishes(lie[a, b], spacetime),
         lambda a, b: f"(L_ξ g)_{index_label(names, (a, b))}")
     if not failing and not undecided:
-        return Verdict(subject, True, method, "L_ξ g_ab = 0", shown, "Killing"), None
+        return Verdict(subject, True, method, how_shown(method, "L_ξ g_ab = 0"), shown,
+                       "Killing"), None
     detail = (", ".join(failing) + " ≠ 0") if failing else ""
     if undecided:
         detail += ("; " if detail else "") + "undecided: " + ", ".join(undecided)
@@ -181,8 +194,9 @@ def compare_metrics(entry: Entry, subject: str, link: RelatedChart, other_entry:
         len(other_names), lambda i, j: decide_equal(pulled[i, j], other.metric[i, j], other),
         lambda i, j: f"g_{index_label(other_names, (i, j))}")
     if not failing and not undecided:
-        return Verdict(subject, True, method, f"pull-back equals the metric of "
-                       f"{other_entry.id}", other_entry.id, "equal"), None
+        return Verdict(subject, True, method, how_shown(method, f"pull-back equals the metric "
+                                                        f"of {other_entry.id}"),
+                       other_entry.id, "equal"), None
     detail = ", ".join(failing) + " differ" if failing else ""
     if undecided:
         detail += ("; " if detail else "") + "undecided: " + ", ".join(undecided)

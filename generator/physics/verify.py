@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import time
 from collections.abc import Mapping
+from dataclasses import replace
 from fractions import Fraction
 
 import mpmath
@@ -17,6 +18,7 @@ import sympy
 
 from generator.entry.loader import LoadResult, parse_at, symbol_table
 from generator.errors import BudgetExceeded, Diagnostic
+from generator.geometry import decisions
 from generator.geometry.curvature import (
     DegenerateMetric,
     Limits,
@@ -38,7 +40,44 @@ def check_loaded(
     related: Mapping[str, LoadResult],
     limits: Limits | None = None,
 ) -> EntryReport:
-    """Run geometry, classification and claim checks for one loaded entry."""
+    """Run geometry, classification and claim checks for one loaded entry.
+
+    Every decision made on the way is logged (``decisions``), so that each verdict is labelled
+    with the weakest method it rests on, including the zero tests inside the engine."""
+    entry_id = load.entry.id if load.entry is not None else load.file
+    with decisions.open_log(entry_id) as log:
+        report = _check_loaded(load, related, limits)
+    return replace(report, verdicts=labelled(report.verdicts, log))
+
+
+def labelled(verdicts: tuple[Verdict, ...], log: decisions.DecisionLog) -> tuple[Verdict, ...]:
+    """Each passing verdict's method weakened to the weakest decision it rests on."""
+    out = []
+    for verdict in verdicts:
+        if verdict.ok and verdict.method != "failed":
+            method = decisions.weakest(verdict.method, *(log.method_for(scope) for scope in
+                                                         scopes_of(verdict.subject)))
+            if method != verdict.method:
+                verdict = replace(verdict, method=method)
+        out.append(verdict)
+    return tuple(out)
+
+
+def scopes_of(subject: str) -> tuple[str, ...]:
+    """The logged subjects a verdict depends on (the geometry is always among them)."""
+    if subject.startswith(("claims.hawking_ellis_type", "claims.energy_conditions")):
+        return (STRESS_ENERGY, "matter.kind")
+    return (subject,)
+
+
+STRESS_ENERGY = "stress-energy"
+
+
+def _check_loaded(
+    load: LoadResult,
+    related: Mapping[str, LoadResult],
+    limits: Limits | None = None,
+) -> EntryReport:
     started = time.perf_counter()
     entry, spacetime = load.entry, load.spacetime
     diagnostics = list(load.diagnostics)
@@ -225,7 +264,8 @@ def check_scalar_claims(entry: Entry, spacetime: Spacetime, geometry: Geometry
             verdicts.append(Verdict(subject, False, "failed", "the claim does not parse",
                                     claim.value.text, str(computed)))
             continue
-        decision = decide_equal(claimed, computed, spacetime)
+        with decisions.subject(subject):
+            decision = decide_equal(claimed, computed, spacetime)
         verdicts.append(Verdict(subject, decision.equal is True, decision.method,
                                 decision.detail, claim.value.text, str(computed)))
         if decision.equal is not True:

@@ -30,6 +30,7 @@ from generator.entry.catalog import display_path, load_all, vocabulary
 from generator.entry.loader import LoadResult, Vocabulary, load_entry
 from generator.entry.yamlcheck import MAX_FILE_BYTES
 from generator.errors import AlmanacError, Diagnostic, UsageError
+from generator.geometry.decisions import set_run_seed
 from generator.model import EntryReport
 from generator.run.tasks import Task, check_within_limits, run_task
 from generator.versions import library_versions
@@ -59,6 +60,7 @@ class ShippedTask:
     vocabulary: Vocabulary
     seconds: float
     versions: str  # the client's generator and library versions
+    seed: int | None = None  # the run's sampling seed
 
 
 class VersionMismatch(AlmanacError):
@@ -84,6 +86,7 @@ def check_shipped(shipped: ShippedTask) -> EntryReport:
                  for k, item in enumerate((shipped.entry, *shipped.related))]
     # Dask runs tasks in worker threads, where the hard limits cannot apply: the engine's own
     # time budget still does, and `dask worker --memory-limit` bounds memory.
+    set_run_seed(shipped.seed)
     return check_within_limits(loads, shipped.seconds)
 
 
@@ -152,7 +155,7 @@ def ship_task(task: Task, words: Vocabulary) -> ShippedTask | None:
         return None
     related = (_ship_file(p, display_path(p, task.base)) for p in task.related_files)
     return ShippedTask(entry, tuple(r for r in related if r is not None), words, task.seconds,
-                       environment_versions())
+                       environment_versions(), task.seed)
 
 
 def _ship_file(path: Path, display: str) -> ShippedFile | None:

@@ -47,6 +47,8 @@ class RunOptions:
     seconds_per_entry: float = 300.0
     cache_dir: Path | None = None
     scheduler: str | None = None  # address of a Dask distributed scheduler
+    seed: int | None = None  # the sampling fallback's seed (None: drawn by each worker)
+    refuse_sampled: bool = False  # a verdict reached by sampling only is a failure
 
 
 def check_files(
@@ -80,8 +82,23 @@ def check_files(
                                   groups)
         twins = twin_warnings(reports, [*reports, *others.reports], others.ranks,
                               others.keep_ranks, groups)
-    return [_with_extra(report, cross.get(report.file, []) + twins.get(report.file, []))
+    return [_with_extra(report, cross.get(report.file, []) + twins.get(report.file, [])
+                        + (sampled_refusals(report) if options.refuse_sampled else []))
             for report in reports]
+
+
+def sampled_refusals(report: EntryReport) -> list[Diagnostic]:
+    """An error for each passing verdict that only sampling reached (``--refuse-sampled``):
+    for CI that wants every published statement proved."""
+    if report.entry is None:
+        return []
+    return [Diagnostic.at(report.entry.pos(v.subject), "error",
+                          f"{v.subject} was decided by sampling only, and sampled verdicts are "
+                          f"refused in this run", "verdict.sampled",
+                          "write the claim in a form the exact test decides (a rational "
+                          "function, square roots of independent radicands), or run without "
+                          "--refuse-sampled")
+            for v in report.verdicts if v.ok and v.method == "sampled"]
 
 
 @dataclass
@@ -182,7 +199,7 @@ def _task(outline: Outline, by_id: dict[str, Outline], root: Path | None, base: 
     related = [_on_disk(by_id[target].file, base) for target, _ in outline.links
                if target in by_id]
     return Task(_on_disk(outline.file, base), outline.file, root, base, tuple(related),
-                options.seconds_per_entry)
+                options.seconds_per_entry, options.seed)
 
 
 def _on_disk(file: str, base: Path) -> Path:

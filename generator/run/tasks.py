@@ -11,6 +11,7 @@ from generator.entry.catalog import load_all
 from generator.entry.loader import LoadResult
 from generator.errors import BudgetExceeded, Diagnostic
 from generator.geometry.curvature import Limits
+from generator.geometry.decisions import set_run_seed
 from generator.model import EntryReport
 from generator.physics.verify import check_loaded
 from generator.run.limits import budget_failure_report, run_limited
@@ -28,10 +29,12 @@ class Task:
     base: Path
     related_files: tuple[Path, ...]
     seconds: float
+    seed: int | None = None  # sampling seed of the run (not part of the cache key)
 
 
 def run_task(task: Task) -> EntryReport:
     """Check one entry (runs inside a worker process) under a hard time and memory limit."""
+    set_run_seed(task.seed)
     try:
         loads = load_all([task.file, *task.related_files], task.root, task.base)
         return check_within_limits(loads, task.seconds)

@@ -64,9 +64,18 @@ MATTER_LABELS = {
 }
 METHOD_LABELS = {
     "exact": "exact (normal form)",
-    "sampled": "sampled at exact rational points",
+    "by cases": "by cases (exact for each sign of an argument)",
+    "sampled": "sampled at random points (not proved)",
     "failed": "could not be decided",
 }
+
+
+def decided_by(verdicts) -> str:
+    """The weakest method among an entry's passing verdicts ("exact" when there are none):
+    an entry that rests on a sampled verdict is marked as such on its page and in JSON."""
+    order = ("exact", "by cases", "sampled")
+    methods = [v.method for v in verdicts if v.ok and v.method in order]
+    return max(methods, key=order.index, default="exact")
 ROLE_LABELS = {
     "original": "original paper",
     "claims": "source of the stated values",

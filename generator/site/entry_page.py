@@ -37,6 +37,7 @@ from generator.site.common import (
     Surroundings,
     arxiv_url,
     coordinate_symbols,
+    decided_by,
     doi_url,
     markdown_html,
     math_block,
@@ -142,6 +143,7 @@ def entry_page_data(
         "charts_through": [chart_link_row(c) for c in around.charts if c.kind != MAPS_HERE],
         "references": [reference_data(r) for r in entry.references],
         "checks": [verdict_row(v) for v in report.verdicts],
+        "decided_by": decided_by(report.verdicts),
         "provenance": {
             "generator_version": meta.generator_version,
             "sympy_version": meta.sympy_version,

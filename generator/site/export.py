@@ -14,6 +14,7 @@ from typing import Any
 import sympy
 
 from generator.model import Classification, EntryReport, Geometry, Spacetime, Verdict
+from generator.site.common import decided_by
 
 
 def expr_text(expr: sympy.Basic | None) -> str | None:
@@ -30,6 +31,7 @@ def report_json(report: EntryReport) -> dict[str, Any]:
         "diagnostics": [d.as_json() for d in report.diagnostics],
         "computed": None,
         "verified": [verdict_json(v) for v in report.verdicts],
+        "decided_by": decided_by(report.verdicts),
     }
     if report.geometry is not None and report.spacetime is not None:
         out["computed"] = computed_json(report.spacetime, report.geometry, report.classification)
