@@ -46,6 +46,7 @@ def set_run_seed(seed: int | None) -> None:
     global _RUN_SEED
     _RUN_SEED = seed
     _UNLOGGED.clear()
+    _UNLOGGED_POINTS.clear()
 
 
 def run_seed() -> int:
@@ -69,6 +70,9 @@ class DecisionLog:
     rng: random.Random
     methods: dict[str, set[str]] = field(default_factory=dict)
     current: str = BASE_SUBJECT
+    # Fallback points drawn so far, per spacetime: every sampled decision of the check uses
+    # them (drawing points is most of the fallback's cost), drawing more when it needs more.
+    points: dict[object, list] = field(default_factory=dict)
 
     def record(self, method: str) -> None:
         self.methods.setdefault(self.current, set()).add(method)
@@ -124,6 +128,19 @@ def record(method: str) -> None:
     log = _LOG.get()
     if log is not None:
         log.record(method)
+
+
+_UNLOGGED_POINTS: dict[object, list] = {}
+
+
+def drawn_points(key: object) -> list:
+    """The list of fallback points already drawn for ``key`` (a spacetime) in this check
+    (outside a check: in this process, since the last ``set_run_seed``)."""
+    log = _LOG.get()
+    store = log.points if log is not None else _UNLOGGED_POINTS
+    if log is None and len(store) > 64:
+        store.clear()
+    return store.setdefault(key, [])
 
 
 def sampling_rng() -> random.Random:

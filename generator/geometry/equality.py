@@ -27,6 +27,7 @@ from __future__ import annotations
 import dataclasses
 import math
 import random
+from collections.abc import Callable, Iterator
 
 import mpmath
 import sympy
@@ -51,10 +52,10 @@ from generator.geometry.sampling import (
     numeric_memo,
     numeric_tree,
     sample_points,
-    substitute,
     through_sin_cos,
     wide_points,
 )
+from generator.geometry.tracked import Program, tracked_value
 from generator.model import Decision, Spacetime
 
 CONFIRM_POINTS = 3  # deterministic points tried first for a witness
@@ -64,8 +65,11 @@ WITNESS_SEED = 20261203  # the witness search is deterministic: a page shows the
 # of the domain holding a tenth of the sampling distribution survives all of them with
 # probability 0.9**263 < 1e-12 (DEVELOPERS.md §5).
 SAMPLED_POINTS = 263
+DRAWS_PER_USABLE = 3  # points drawn per point needed (some are undefined or too costly)
 BASE_DIGITS = 50  # working precision before the constants of the expressions are counted
 MAX_DIGITS = 4000  # expressions needing more are not sampled ("could not decide")
+MARGIN_DIGITS = 20  # digits kept beyond the estimated loss
+MAX_LOSS_DIGITS = 600  # a point losing more to cancellation is skipped
 MAX_CASE_DEPTH = 3  # sign splits in a row (at most 2**3 cases)
 QUESTION_LIMIT = 200  # operations in an argument whose sign is asked
 DIGITS = 30
@@ -157,6 +161,17 @@ def _decide(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decisi
     return _decide_sampled(left, right, spacetime, exact.detail)
 
 
+def _fallback_difference(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime
+                         ) -> tuple[RationalField, Frac] | None:
+    """The difference in the field, when both sides fit (it is far smaller to evaluate than
+    the two sides, and its terms bound the rounding error)."""
+    try:
+        field, (a, b) = _field_of((left, right), spacetime)
+        return field, field.sub(a, b)
+    except (NotInField, ZeroDivisionError):
+        return None
+
+
 def _decide_exact(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime) -> Decision:
     """Equal or different by the normal form of the difference (with a witness point for a
     difference); equal None with the reason when the normal form cannot decide."""
@@ -202,44 +217,82 @@ def _witness_point(field: RationalField, value: Frac, points: list[Point],
             found = field.value_at(value, values)
             if found is not None and found != 0:
                 return point
-        elif _numerically_nonzero(field, value, values):
+        elif _numerically_nonzero(value, values, point):
             return point
     return None
 
 
 def _generator_values(field: RationalField, used: set[int], point: Point,
                       angles: tuple[sympy.Symbol, ...]) -> list[sympy.Expr] | None:
+    """Each used generator's value at the point: the point's own (rational) value for
+    coordinates, parameters, free functions and sin/cos of angles, else the generator's
+    meaning, to be evaluated numerically (not substituted: SymPy's own evaluation of a large
+    argument can take long)."""
     values = []
     for k, spec in enumerate(field.specs):
         if k not in used:
             values.append(sympy.Integer(0))
-            continue
-        try:
-            value = substitute(spec.meaning, point, angles)
-        except (ZeroDivisionError, ValueError):
-            return None
-        if value.free_symbols or value.has(sympy.zoo, sympy.nan, sympy.oo, -sympy.oo):
-            return None
-        values.append(value)
+        elif spec.key in point:
+            values.append(point[spec.key])
+        else:
+            meaning = through_sin_cos(spec.meaning, angles)
+            values.append(meaning if meaning.free_symbols or meaning.atoms(AppliedUndef)
+                          else meaning.xreplace(point))
     return values
 
 
-def _numerically_nonzero(field: RationalField, value: Frac, values: list[sympy.Expr]) -> bool:
-    """The fraction is non-zero at these generator values: its numerator exceeds, by a wide
-    margin, the rounding error of a 60-digit evaluation (bounded by the sum of the absolute
-    values of its terms), and its denominator likewise. mpmath's exponent range is unbounded,
-    so nothing overflows."""
-    with mpmath.workdps(60):
-        numbers = []
-        for v in values:
-            number = _to_mpc(v, 60)
-            if number is None:
-                return False
-            numbers.append(number)
-        return all(_poly_clearly_nonzero(p, numbers) for p in (value.num, value.den))
+def _numerically_nonzero(value: Frac, values: list[sympy.Expr], point: Point) -> bool:
+    """The fraction is certainly non-zero at these generator values (``frac_at``)."""
+    return frac_at(value, values, point, 60) is True
 
 
-def _poly_clearly_nonzero(poly, numbers: list[mpmath.mpc]) -> bool:
+def frac_at(value: Frac, values: list[sympy.Expr], point: Point, digits: int) -> bool | None:
+    """True: numerator and denominator are certainly non-zero; False: the denominator is
+    and the numerator is zero to the precision carried; None: not usable here.
+
+    "Certainly": beyond MARGIN_DIGITS above the error of the evaluation, which is the sum of
+    the absolute values of the terms times the precision left after the digits lost in the
+    generators' own values (``tracked``); the precision is raised to cover the loss, up to
+    MAX_DIGITS. mpmath's exponent range is unbounded, so nothing overflows."""
+    while digits <= MAX_DIGITS:
+        with mpmath.workdps(digits):
+            numbers = _tracked_numbers(values, point)
+            if numbers is None:
+                return None
+            lost = max((loss for _, loss in numbers), default=0.0)
+            if lost > digits - 2 * MARGIN_DIGITS:
+                if lost + digits > min(MAX_DIGITS, digits + MAX_LOSS_DIGITS):
+                    return None
+                digits += math.ceil(lost)
+                continue
+            plain = [v for v, _ in numbers]
+            if _poly_size(value.den, plain, lost) is not True:
+                return None
+            return _poly_size(value.num, plain, lost)
+    return None
+
+
+def _tracked_numbers(values: list[sympy.Expr], point: Point
+                     ) -> list[tuple[mpmath.mpc, float]] | None:
+    try:
+        memo = {k: (mpmath.mpc(v), 0.0) for k, v in numeric_memo(point).items()}
+    except (KeyError, TypeError, ValueError, ZeroDivisionError):
+        return None
+    out = []
+    for v in values:
+        if v.is_Rational:
+            out.append((mpmath.mpc(mpmath.mpf(int(v.p)) / int(v.q)), 0.0))
+            continue
+        found = _side_value(v, point, memo, mpmath.mp.dps)
+        if found is None:
+            return None
+        out.append(found)
+    return out
+
+
+def _poly_size(poly, numbers: list[mpmath.mpc], lost: float) -> bool | None:
+    """True: the polynomial is certainly non-zero at ``numbers``; False: it is zero to the
+    precision carried; None: not a finite number."""
     total, bound = mpmath.mpc(0), mpmath.mpf(0)
     for monomial, coefficient in poly.terms():
         term = mpmath.mpf(int(coefficient.p)) / int(coefficient.q)
@@ -249,8 +302,9 @@ def _poly_clearly_nonzero(poly, numbers: list[mpmath.mpc]) -> bool:
         total += term
         bound += abs(term)
     if not (mpmath.isfinite(total.real) and mpmath.isfinite(total.imag)):
-        return False
-    return bool(abs(total) > bound * mpmath.mpf(10) ** -40)
+        return None
+    exponent = lost + MARGIN_DIGITS - mpmath.mp.dps
+    return bool(abs(total) > bound * mpmath.mpf(10) ** exponent)
 
 
 def _to_mpc(value: sympy.Expr, digits: int) -> mpmath.mpc | None:
@@ -432,29 +486,142 @@ def _exact_in_case(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime
 
 def _decide_sampled(left: sympy.Expr, right: sympy.Expr, spacetime: Spacetime, why: str
                     ) -> Decision:
-    """The fallback: SAMPLED_POINTS fresh wide points of the domain, each compared at two
-    precisions. A point where the sides certainly differ is a witness; a point where either
-    side is not a finite number, or where the precisions disagree, is not counted."""
+    """The fallback: SAMPLED_POINTS usable points out of fresh wide points of the domain. A
+    point where the sides certainly differ is a witness; a point where either side is not a
+    finite number, or where the evaluation would need more than MAX_DIGITS, is not counted.
+    The difference is evaluated in the field when both sides fit (``frac_at``), else both
+    sides at two precisions (``compare_at``)."""
     digits = working_digits(left, right)
     if digits is None:
         return Decision(None, "failed", f"{why}; the constants are too large to compare "
                         f"numerically")
     angles = angle_coordinates(spacetime)
-    left, right = through_sin_cos(left, angles), through_sin_cos(right, angles)
-    points = iter_wide_points(spacetime, SAMPLED_POINTS, decisions.sampling_rng())
+    in_field = _fallback_difference(left, right, spacetime)
+    if in_field is None:
+        left, right = through_sin_cos(left, angles), through_sin_cos(right, angles)
+    test = _PointTest(left, right, in_field, angles)
     usable = 0
-    for point in points:
-        verdict = compare_at(left, right, point, digits)
+    for point in fallback_points(spacetime, SAMPLED_POINTS * DRAWS_PER_USABLE):
+        verdict = test.verdict(point, digits)
         if verdict is True:
             return Decision(False, "sampled", f"{why}; differs at a random point of the "
                             f"domain", _witness(point, spacetime))
         usable += verdict is False
+        if usable >= SAMPLED_POINTS:
+            break
     if usable < SAMPLED_POINTS:
         return Decision(None, "failed", f"{why}; only {usable} usable random points in the "
                         f"domain (need {SAMPLED_POINTS})")
     return Decision(True, "sampled", f"{why}; equal at {usable} random points of the domain "
-                    f"(fresh for each run, spread over many decades; {digits} and "
-                    f"{2 * digits} digits)")
+                    f"(fresh for each run, spread over many decades; at least {digits} "
+                    f"digits beyond those lost to cancellation)")
+
+
+def fallback_points(spacetime: Spacetime, count: int) -> Iterator[Point]:
+    """Up to ``count`` fallback points: those this check already drew for the spacetime,
+    then fresh ones from the run's stream (kept for the next decision)."""
+    drawn = decisions.drawn_points(spacetime)
+    yield from list(drawn[:count])
+    if len(drawn) >= count:
+        return
+    for point in iter_wide_points(spacetime, count - len(drawn), decisions.sampling_rng()):
+        drawn.append(point)
+        yield point
+
+
+class _PointTest:
+    """Tells, point by point, whether the two sides differ, with the expressions compiled
+    once (``tracked.Program``): the difference in the field when both sides fit (its
+    generators evaluated numerically where a point does not give them), else the two sides.
+    A head the compiler does not know is evaluated by SymPy instead (slower)."""
+
+    def __init__(self, left: sympy.Expr, right: sympy.Expr,
+                 in_field: tuple[RationalField, Frac] | None,
+                 angles: tuple[sympy.Symbol, ...]) -> None:
+        self.left, self.right, self.in_field, self.angles = left, right, in_field, angles
+        self.program: Program | None = None
+        self.compiled = False
+        self.numeric: list[int] = []
+
+    def verdict(self, point: Point, digits: int) -> bool | None:
+        if not self.compiled:
+            self._compile(point)
+        if self.in_field is not None:
+            return self._field_verdict(point, digits)
+        if self.program is None:
+            return compare_at(self.left, self.right, point, digits)
+        return _compare(lambda d: self._sides_at(point, d), digits)
+
+    def _compile(self, point: Point) -> None:
+        self.compiled = True
+        leaves = set(point)
+        if self.in_field is not None:
+            field, difference = self.in_field
+            used = sorted(generators_of(field, difference))
+            self.numeric = [k for k in used if field.specs[k].key not in point]
+            exprs = [through_sin_cos(field.specs[k].meaning, self.angles)
+                     for k in self.numeric]
+        else:
+            exprs = [self.left, self.right]
+        try:
+            self.program = Program(exprs, leaves)
+        except KeyError:
+            self.program = None
+            self.in_field = None  # evaluate the two sides by SymPy, point by point
+
+    def _sides_at(self, point: Point, digits: int) -> Difference | None:
+        assert self.program is not None
+        with mpmath.workdps(digits):
+            try:
+                (x, x_lost), (y, y_lost) = self.program.run(numeric_memo(point))
+            except (ZeroDivisionError, ValueError, TypeError):
+                return None
+            if not all(mpmath.isfinite(v.real) and mpmath.isfinite(v.imag) for v in (x, y)):
+                return None
+            return x - y, max(abs(x), abs(y)), max(x_lost, y_lost)
+
+    def _field_verdict(self, point: Point, digits: int) -> bool | None:
+        assert self.in_field is not None and self.program is not None
+        field, difference = self.in_field
+        if not self.numeric:
+            values = _generator_values(field, generators_of(field, difference), point,
+                                       self.angles)
+            found = field.value_at(difference, values) if values is not None else None
+            return None if found is None else found != 0
+        while digits <= MAX_DIGITS:
+            with mpmath.workdps(digits):
+                numbers = self._generator_numbers(point)
+                if numbers is None:
+                    return None
+                lost = max((loss for _, loss in numbers), default=0.0)
+                if lost > digits - 2 * MARGIN_DIGITS:
+                    if lost > MAX_LOSS_DIGITS or lost + digits > MAX_DIGITS:
+                        return None
+                    digits += math.ceil(lost)
+                    continue
+                plain = [v for v, _ in numbers]
+                if _poly_size(difference.den, plain, lost) is not True:
+                    return None
+                return _poly_size(difference.num, plain, lost)
+        return None
+
+    def _generator_numbers(self, point: Point) -> list[tuple[mpmath.mpc, float]] | None:
+        assert self.in_field is not None and self.program is not None
+        field, _ = self.in_field
+        try:
+            memo = numeric_memo(point)
+            computed = self.program.run(memo)
+        except (ZeroDivisionError, ValueError, TypeError, KeyError):
+            return None
+        if not all(mpmath.isfinite(v.real) and mpmath.isfinite(v.imag) for v, _ in computed):
+            return None
+        numbers = [(mpmath.mpc(0), 0.0)] * len(field.specs)
+        for k, spec in enumerate(field.specs):
+            if spec.key in point:
+                numbers[k] = (memo[spec.key], 0.0)
+        for k, found in zip(self.numeric, computed, strict=True):
+            numbers[k] = found
+        return numbers
 
 
 def working_digits(*exprs: sympy.Expr) -> int | None:
@@ -495,29 +662,47 @@ def _power_digits(power: sympy.Pow) -> int:
 
 def compare_at(left: sympy.Expr, right: sympy.Expr, point: Point, digits: int) -> bool | None:
     """True: the sides certainly differ at the point; False: they agree to the working
-    precision; None: not usable (a side is undefined or not finite, or the two precisions
-    disagree about the difference)."""
-    first = _difference_at(left, right, point, digits)
-    second = _difference_at(left, right, point, 2 * digits)
-    if first is None or second is None:
+    precision; None: not usable (a side is undefined or not finite there, the digits lost to
+    cancellation (``tracked``) exceed MAX_LOSS_DIGITS, or two precisions disagree)."""
+    return _compare(lambda d: _difference_at(left, right, point, d), digits)
+
+
+Difference = tuple[mpmath.mpc, mpmath.mpf, float]  # left − right, larger magnitude, loss
+
+
+def _compare(difference: Callable[[int], Difference | None], digits: int) -> bool | None:
+    first = difference(digits)
+    if first is None:
         return None
-    (d1, _), (d2, scale2) = first, second
+    if first[2] > digits - MARGIN_DIGITS:  # keep ``digits`` good digits after the loss
+        if first[2] > MAX_LOSS_DIGITS or first[2] + digits > MAX_DIGITS:
+            return None
+        digits += math.ceil(first[2])
+        first = difference(digits)
+        if first is None or first[2] > digits - MARGIN_DIGITS:
+            return None
+    second = difference(2 * digits)
+    if second is None:
+        return None
+    (d1, _, _), (d2, scale2, lost2) = first, second
     with mpmath.workdps(2 * digits):
         if d2 == 0:
             return False
-        noise = scale2 * mpmath.mpf(10) ** (10 - 2 * digits)
-        if abs(d1 - d2) <= abs(d2) / 1000 and abs(d2) > noise:
+        if abs(d2) <= scale2 * mpmath.mpf(10) ** (lost2 + MARGIN_DIGITS - 2 * digits):
+            return False  # zero to the precision carried
+        if abs(d1 - d2) <= abs(d2) * mpmath.mpf(10) ** -10:
             return True  # the same non-zero difference at both precisions
-        if abs(d2) <= abs(d1) * mpmath.mpf(10) ** (-digits // 2) or abs(d2) <= noise:
+        if abs(d2) <= abs(d1) * mpmath.mpf(10) ** (-digits // 2):
             return False  # rounding noise: it shrank with the precision
     return None
 
 
 def _difference_at(left: sympy.Expr, right: sympy.Expr, point: Point, digits: int
-                   ) -> tuple[mpmath.mpc, mpmath.mpf] | None:
+                   ) -> tuple[mpmath.mpc, mpmath.mpf, float] | None:
+    """(left − right, the larger magnitude, digits lost) at ``digits`` digits."""
     with mpmath.workdps(digits):
         try:
-            memo = numeric_memo(point)
+            memo = {k: (mpmath.mpc(v), 0.0) for k, v in numeric_memo(point).items()}
         except (KeyError, TypeError, ValueError, ZeroDivisionError):
             return None
         values = []
@@ -526,23 +711,24 @@ def _difference_at(left: sympy.Expr, right: sympy.Expr, point: Point, digits: in
             if value is None:
                 return None
             values.append(value)
-        x, y = values
-        return x - y, max(abs(x), abs(y))
+        (x, x_lost), (y, y_lost) = values
+        return x - y, max(abs(x), abs(y)), max(x_lost, y_lost)
 
 
-def _side_value(side: sympy.Expr, point: Point, memo: dict, digits: int) -> mpmath.mpc | None:
+def _side_value(side: sympy.Expr, point: Point, memo: dict, digits: int
+                ) -> tuple[mpmath.mpc, float] | None:
     try:
-        number = mpmath.mpc(_numeric_tree(side, dict(memo), digits))
+        number, lost = tracked_value(side, dict(memo))
     except ZeroDivisionError:
         return None
     except (KeyError, TypeError, ValueError, OverflowError):
         try:
-            number = _evalf_mpc(side.xreplace(point), digits)
+            number, lost = _evalf_mpc(side.xreplace(point), digits), 0.0
         except (ZeroDivisionError, ValueError):
             return None
     if number is None or not (mpmath.isfinite(number.real) and mpmath.isfinite(number.imag)):
         return None
-    return number
+    return number, lost
 
 
 def _aligned(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr:

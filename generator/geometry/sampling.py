@@ -407,7 +407,7 @@ def _regular_by_substitution(spacetime: Spacetime, point: Point,
 # ---------------------------------------------------------------------------- fast numbers
 
 # SymPy heads evaluated by mpmath in ``numeric_value`` (principal branches on both sides).
-_MPMATH_HEADS = {
+MPMATH_HEADS = {
     sympy.sin: mpmath.sin, sympy.cos: mpmath.cos, sympy.tan: mpmath.tan,
     sympy.cot: mpmath.cot, sympy.sec: mpmath.sec, sympy.csc: mpmath.csc,
     sympy.sinh: mpmath.sinh, sympy.cosh: mpmath.cosh, sympy.tanh: mpmath.tanh,
@@ -417,7 +417,7 @@ _MPMATH_HEADS = {
     sympy.exp: mpmath.exp, sympy.log: mpmath.log, sympy.Abs: abs,
     sympy.LambertW: mpmath.lambertw,
 }
-_MPMATH_CONSTANTS = {sympy.pi: mpmath.pi, sympy.E: mpmath.e, sympy.I: mpmath.j}
+MPMATH_CONSTANTS = {sympy.pi: mpmath.pi, sympy.E: mpmath.e, sympy.I: mpmath.j}
 
 
 def numeric_value(value: sympy.Expr, digits: int) -> mpmath.mpc | None:
@@ -459,8 +459,8 @@ def _numeric(e: sympy.Basic, memo: dict[sympy.Basic, mpmath.mpc]) -> mpmath.mpc:
         found = mpmath.mpf(int(e.p)) / int(e.q)
     elif e.is_Float:
         found = mpmath.mpf(e)
-    elif e in _MPMATH_CONSTANTS:
-        found = +_MPMATH_CONSTANTS[e]
+    elif e in MPMATH_CONSTANTS:
+        found = +MPMATH_CONSTANTS[e]
     elif e.is_Add:
         found = mpmath.fsum(_numeric(a, memo) for a in e.args)
     elif e.is_Mul:
@@ -468,7 +468,7 @@ def _numeric(e: sympy.Basic, memo: dict[sympy.Basic, mpmath.mpc]) -> mpmath.mpc:
     elif e.is_Pow:
         found = mpmath.power(_numeric(e.base, memo), _numeric(e.exp, memo))
     else:
-        head = _MPMATH_HEADS[type(e)]  # KeyError: not handled here
+        head = MPMATH_HEADS[type(e)]  # KeyError: not handled here
         found = head(*(_numeric(a, memo) for a in e.args))
     memo[e] = found
     return found
@@ -504,12 +504,49 @@ def iter_wide_points(spacetime: Spacetime, count: int, rng: random.Random
         if found >= count:
             return
         point = _wide_point(spacetime, plan, rng)
-        if point is None or not _holds_everywhere(plan.relations, point, plan.angles):
+        if point is None or not _holds_quickly(plan.relations, point, plan.angles):
             continue
         for f in spacetime.functions:
             point.update(_wide_function_values(f, rng))
         found += 1
         yield point
+
+
+def _holds_quickly(relations: tuple[sympy.Basic, ...], point: Point,
+                   angles: tuple[sympy.Symbol, ...]) -> bool:
+    """``_holds_everywhere`` with relations that hold roots or functions judged in mpmath
+    (30 digits, the same 1e-25 margin) instead of SymPy's evalf, which is most of the cost of
+    a wide point."""
+    rest = []
+    for relation in relations:
+        if not (isinstance(relation, sympy.core.relational.Relational)
+                and relation.rel_op in _MARGINS):
+            rest.append(relation)
+            continue
+        difference = relation.lhs - relation.rhs
+        if difference.is_rational_function():
+            exact = difference.xreplace(point)
+            if exact.is_Rational:
+                if not _EXACT[relation.rel_op](exact):
+                    return False  # compared as a number: SymPy's relational calls evalf
+                continue
+        with mpmath.workdps(30):
+            try:
+                value = mpmath.mpc(_numeric(through_sin_cos(difference, angles),
+                                            numeric_memo(point)))
+            except (KeyError, TypeError, ValueError, ZeroDivisionError):
+                rest.append(relation)
+                continue
+            if abs(value.imag) > mpmath.mpf(10) ** -25 or \
+                    not _MARGINS[relation.rel_op](value.real, mpmath.mpf(10) ** -25):
+                return False
+    return _holds_everywhere(tuple(rest), point, angles)
+
+
+_MARGINS = {">": lambda d, m: d > m, "<": lambda d, m: d < -m,
+            ">=": lambda d, m: d > -m, "<=": lambda d, m: d < m}
+_EXACT = {">": lambda d: d.p > 0, "<": lambda d: d.p < 0, ">=": lambda d: d.p >= 0,
+          "<=": lambda d: d.p <= 0}
 
 
 def wide_rational(rng: random.Random, sign: str = "any") -> sympy.Rational:
@@ -545,7 +582,7 @@ def _symbol_sign(symbol: sympy.Basic) -> str:
 
 def _wide_point(spacetime: Spacetime, plan: DomainPlan, rng: random.Random) -> Point | None:
     point: Point = {p: _wide_parameter(p, rng) for p in spacetime.parameters}
-    if not _holds_everywhere(plan.parameter_relations, point, ()):
+    if not _holds_quickly(plan.parameter_relations, point, ()):
         return None
     for x in spacetime.coordinates:
         if x in plan.angles:
