@@ -71,8 +71,7 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
         with decisions.subject(f"claims.killing_vectors.{i}"):
             killing.append(check_killing_vector(entry, spacetime, i, claim))
     diagnostics += [problem for _, problem in killing if problem is not None]
-    with decisions.subject("related"):
-        linked, link_problems = check_all_related(entry, spacetime, related)
+    linked, link_problems = check_all_related(entry, spacetime, related)
     diagnostics += link_problems
     classification = Classification(
         matter_kind=matter.kind,

@@ -14,6 +14,7 @@ import sympy
 
 from generator.entry.mathparse import parse_math
 from generator.errors import Diagnostic, MathSyntaxError
+from generator.geometry import decisions
 from generator.geometry.decisions import weakest
 from generator.geometry.equality import decide_equal
 from generator.geometry.exactvalues import coordinate_names, index_label, vanishes
@@ -218,7 +219,8 @@ def check_all_related(entry: Entry, spacetime: Spacetime,
         if link.entry not in related:
             continue  # a missing entry is reported by the catalog stage
         other_entry, other = related[link.entry]
-        verdict, problem = check_related(entry, spacetime, index, link, other_entry, other)
+        with decisions.subject(related_subject(index)):
+            verdict, problem = check_related(entry, spacetime, index, link, other_entry, other)
         verdicts.append(verdict)
         if problem:
             diagnostics.append(problem)
