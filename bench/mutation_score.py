@@ -12,13 +12,27 @@ control), so a kill is never caused by the round trip itself. Mutants that leave
 alone reuse the control's geometry, which keeps the run short.
 
     python bench/mutation_score.py [catalog/black-holes/schwarzschild.yaml ...] [--json]
+
+With ``--code`` it mutates the verification code instead of the entries: every comparison
+of the equality decision (``generator/geometry/equality.py``, ``canonicity.py``,
+``tracked.py``, ``decisions.py``) is flipped, every ``and``/``or`` swapped, every ``not``
+dropped and every returned True/False inverted, one at a time, in a copy of the project; the
+soundness and equality tests then run against the copy. A mutant the tests do not notice is a
+survivor: a comparison whose breaking no test would see.
+
+    python bench/mutation_score.py --code [--limit N] [--json]
 """
 
 from __future__ import annotations
 
 import argparse
+import ast
 import copy
 import json
+import os
+import random
+import shutil
+import subprocess
 import sys
 import tempfile
 from collections.abc import Callable, Iterator
@@ -271,12 +285,131 @@ def _mutate_one(file: Path, folder: Path, by_id: dict[str, LoadResult], catalog:
     return outcomes
 
 
+# ---------------------------------------------------------------------------- code mutants
+
+CODE_FILES = ("generator/geometry/equality.py", "generator/geometry/canonicity.py",
+              "generator/geometry/tracked.py", "generator/geometry/decisions.py")
+CODE_TESTS = ("tests/test_soundness.py", "tests/test_equality.py")
+FLIPS = {ast.Lt: ast.GtE, ast.GtE: ast.Lt, ast.Gt: ast.LtE, ast.LtE: ast.Gt,
+         ast.Eq: ast.NotEq, ast.NotEq: ast.Eq, ast.Is: ast.IsNot, ast.IsNot: ast.Is,
+         ast.In: ast.NotIn, ast.NotIn: ast.In}
+MUTANT_SECONDS = 600
+
+
+@dataclass(frozen=True)
+class CodeMutant:
+    file: str
+    line: int
+    change: str
+    source: str  # the whole mutated file
+
+
+def code_mutants(relative: str) -> list[CodeMutant]:
+    """One mutant per comparison operator, boolean operator, ``not`` and returned bool."""
+    text = (PROJECT / relative).read_text(encoding="utf-8")
+    count = sum(1 for _ in _sites(ast.parse(text)))
+    out = []
+    for k in range(count):
+        tree = ast.parse(text)
+        node, change = _mutate_site(tree, k)
+        out.append(CodeMutant(relative, getattr(node, "lineno", 0), change,
+                              ast.unparse(tree)))
+    return out
+
+
+def _sites(tree: ast.AST) -> Iterator[tuple[ast.AST, int]]:
+    for node in ast.walk(tree):
+        if isinstance(node, ast.Compare):
+            for i, op in enumerate(node.ops):
+                if type(op) in FLIPS:
+                    yield node, i
+        elif _is_site(node):
+            yield node, 0
+
+
+def _is_site(node: ast.AST) -> bool:
+    if isinstance(node, ast.BoolOp):
+        return True
+    if isinstance(node, ast.UnaryOp):
+        return isinstance(node.op, ast.Not)
+    return isinstance(node, ast.Return) and isinstance(node.value, ast.Constant) \
+        and isinstance(node.value.value, bool)
+
+
+def _mutate_site(tree: ast.AST, k: int) -> tuple[ast.AST, str]:
+    node, i = next(site for j, site in enumerate(_sites(tree)) if j == k)
+    if isinstance(node, ast.Compare):
+        old = type(node.ops[i])
+        node.ops[i] = FLIPS[old]()
+        return node, f"{old.__name__} -> {FLIPS[old].__name__}"
+    if isinstance(node, ast.BoolOp):
+        old = type(node.op)
+        node.op = ast.Or() if old is ast.And else ast.And()
+        return node, f"{old.__name__} -> {type(node.op).__name__}"
+    if isinstance(node, ast.UnaryOp):
+        node.op = ast.UAdd()  # `not x` -> `+x` is not valid for every x: use a bool()
+        node.__class__ = ast.Call
+        node.func, node.args, node.keywords = ast.Name("bool", ast.Load()), [node.operand], []
+        return node, "not x -> x"
+    assert isinstance(node, ast.Return)
+    node.value.value = not node.value.value
+    return node, f"return {not node.value.value} -> return {node.value.value}"
+
+
+def run_code_mutant(mutant: CodeMutant, examples: int) -> tuple[bool, str]:
+    """(killed, how): the tests run on a copy of the project holding the mutant."""
+    with tempfile.TemporaryDirectory(prefix="almanac-mutant-") as folder:
+        root = Path(folder)
+        for part in ("generator", "tests", "catalog"):
+            shutil.copytree(PROJECT / part, root / part)
+        (root / mutant.file).write_text(mutant.source, encoding="utf-8")
+        env = dict(os.environ, PYTHONPATH=str(root), ALMANAC_EXAMPLES=str(examples))
+        command = [sys.executable, "-m", "pytest", "-q", "-x", "-m", "not slow",
+                   "-p", "no:cacheprovider", *CODE_TESTS]
+        try:
+            done = subprocess.run(command, cwd=root, env=env, capture_output=True, text=True,
+                                  timeout=MUTANT_SECONDS)
+        except subprocess.TimeoutExpired:
+            return True, "timed out"
+        if done.returncode == 0:
+            return False, "tests passed"
+        lines = [x for x in done.stdout.splitlines() if x.startswith("FAILED")]
+        return True, (lines[0] if lines else f"exit {done.returncode}")[:120]
+
+
+def code_main(args: argparse.Namespace) -> int:
+    mutants = [m for f in CODE_FILES for m in code_mutants(f)]
+    if args.limit:
+        mutants = random.Random(args.seed).sample(mutants, min(args.limit, len(mutants)))
+    results = []
+    for n, mutant in enumerate(mutants, 1):
+        killed, how = run_code_mutant(mutant, args.examples)
+        results.append((mutant, killed, how))
+        print(f"[{n}/{len(mutants)}] {'killed' if killed else 'SURVIVED'} "
+              f"{mutant.file}:{mutant.line} {mutant.change}  {how}", file=sys.stderr)
+    killed = sum(k for _, k, _ in results)
+    if args.json:
+        print(json.dumps({"killed": killed, "total": len(results), "survivors": [
+            f"{m.file}:{m.line} {m.change}" for m, k, _ in results if not k]}, indent=2))
+    print(f"code mutation score: {killed}/{len(results)} mutants killed", file=sys.stderr)
+    return 0 if killed == len(results) else 1
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("files", nargs="*", type=Path, help="entry files (default: all)")
     parser.add_argument("--catalog", type=Path, default=PROJECT / "catalog")
     parser.add_argument("--json", action="store_true", help="print outcomes as JSON")
+    parser.add_argument("--code", action="store_true",
+                        help="mutate the equality/verification code, not the entries")
+    parser.add_argument("--limit", type=int, default=0,
+                        help="--code: a random sample of this many mutants (0: all)")
+    parser.add_argument("--seed", type=int, default=1, help="--code: seed of that sample")
+    parser.add_argument("--examples", type=int, default=4,
+                        help="--code: property-test examples per test and mutant")
     args = parser.parse_args(argv)
+    if args.code:
+        return code_main(args)
     files = args.files or entry_files([args.catalog])
     outcomes, skipped = run(files, args.catalog, progress=lambda s: print(s, file=sys.stderr))
     killed = sum(o.killed for o in outcomes)

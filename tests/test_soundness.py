@@ -12,6 +12,7 @@ property tests, to vanish at the very points a given seed produces.
 
 from __future__ import annotations
 
+import os
 import random
 import shutil
 from pathlib import Path
@@ -40,7 +41,8 @@ from generator.physics.verify import check_loaded
 CATALOG = Path(__file__).resolve().parent.parent / "catalog"
 SCHWARZSCHILD_FILE = CATALOG / "black-holes" / "schwarzschild.yaml"
 KRETSCHMANN = 48 * M**2 / r**6  # Cherubini et al. 2002 (from memory)
-SETTINGS = settings(max_examples=12, deadline=None,
+# bench/mutation_score.py --code lowers the number of examples per mutant (ALMANAC_EXAMPLES).
+SETTINGS = settings(max_examples=int(os.environ.get("ALMANAC_EXAMPLES", "12")), deadline=None,
                     suppress_health_check=[HealthCheck.too_slow])
 
 
