@@ -290,6 +290,7 @@ def _mutate_one(file: Path, folder: Path, by_id: dict[str, LoadResult], catalog:
 CODE_FILES = ("generator/geometry/equality.py", "generator/geometry/canonicity.py",
               "generator/geometry/tracked.py", "generator/geometry/decisions.py")
 CODE_TESTS = ("tests/test_soundness.py", "tests/test_equality.py")
+QUICK_TESTS = ("tests/test_soundness.py",)  # --quick: the soundness tests alone
 FLIPS = {ast.Lt: ast.GtE, ast.GtE: ast.Lt, ast.Gt: ast.LtE, ast.LtE: ast.Gt,
          ast.Eq: ast.NotEq, ast.NotEq: ast.Eq, ast.Is: ast.IsNot, ast.IsNot: ast.Is,
          ast.In: ast.NotIn, ast.NotIn: ast.In}
@@ -356,7 +357,8 @@ def _mutate_site(tree: ast.AST, k: int) -> tuple[ast.AST, str]:
     return node, f"return {not node.value.value} -> return {node.value.value}"
 
 
-def run_code_mutant(mutant: CodeMutant, examples: int) -> tuple[bool, str]:
+def run_code_mutant(mutant: CodeMutant, examples: int, tests: tuple[str, ...] = CODE_TESTS
+                    ) -> tuple[bool, str]:
     """(killed, how): the tests run on a copy of the project holding the mutant."""
     with tempfile.TemporaryDirectory(prefix="almanac-mutant-") as folder:
         root = Path(folder)
@@ -365,7 +367,7 @@ def run_code_mutant(mutant: CodeMutant, examples: int) -> tuple[bool, str]:
         (root / mutant.file).write_text(mutant.source, encoding="utf-8")
         env = dict(os.environ, PYTHONPATH=str(root), ALMANAC_EXAMPLES=str(examples))
         command = [sys.executable, "-m", "pytest", "-q", "-x", "-m", "not slow",
-                   "-p", "no:cacheprovider", *CODE_TESTS]
+                   "-p", "no:cacheprovider", *tests]
         try:
             done = subprocess.run(command, cwd=root, env=env, capture_output=True, text=True,
                                   timeout=MUTANT_SECONDS)
@@ -383,7 +385,8 @@ def code_main(args: argparse.Namespace) -> int:
         mutants = random.Random(args.seed).sample(mutants, min(args.limit, len(mutants)))
     results = []
     for n, mutant in enumerate(mutants, 1):
-        killed, how = run_code_mutant(mutant, args.examples)
+        killed, how = run_code_mutant(mutant, args.examples,
+                                      QUICK_TESTS if args.quick else CODE_TESTS)
         results.append((mutant, killed, how))
         print(f"[{n}/{len(mutants)}] {'killed' if killed else 'SURVIVED'} "
               f"{mutant.file}:{mutant.line} {mutant.change}  {how}", file=sys.stderr)
@@ -405,6 +408,8 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--limit", type=int, default=0,
                         help="--code: a random sample of this many mutants (0: all)")
     parser.add_argument("--seed", type=int, default=1, help="--code: seed of that sample")
+    parser.add_argument("--quick", action="store_true",
+                        help="--code: run the soundness tests only against each mutant")
     parser.add_argument("--examples", type=int, default=4,
                         help="--code: property-test examples per test and mutant")
     args = parser.parse_args(argv)

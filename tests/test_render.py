@@ -143,8 +143,10 @@ def test_check_log_lists_every_verdict_with_its_method(site: Path) -> None:
     for subject in ["claims.ricci_scalar", "claims.kretschmann", "claims.petrov_type",
                     "matter.kind"]:
         assert subject in parsed.text
-    assert "sampled at exact rational points" in parsed.text
+    assert "sampled at random points (not proved)" in parsed.text
     assert "exact (normal form)" in parsed.text
+    # the demo rests on a sampled verdict: the page says so at the top and in the log
+    assert "decided by sampling only" in parsed.text and "Not fully proved" in parsed.text
 
 
 def test_other_charts_link_only_to_published_entries(site: Path) -> None:
