@@ -160,6 +160,17 @@ class Entry:
     positions: dict[str, SourcePos] = field(default_factory=dict, compare=False, hash=False)
     source_text: str = field(default="", compare=False, hash=False, repr=False)
 
+    def published_source(self, subject: str) -> str | None:
+        """The reference role that prints the value claimed under ``subject`` (a verdict
+        subject such as ``claims.kretschmann``), or None when the entry names no publication
+        for it: ``computed-here``, the short form without a source, and structural facts."""
+        name = subject.removeprefix("claims.")
+        sources = {c.name: c.source for c in self.claims.scalars}
+        sources.update({label: source for label, source, _ in self.claims.label_sources})
+        role = sources.get(name) if subject.startswith("claims.") else None
+        roles = {r.role for r in self.references}
+        return role if role in roles else None
+
     def pos(self, key: str) -> SourcePos:
         """Position of a dotted key path (e.g. ``claims.kretschmann``), else of the file start."""
         while key:
@@ -243,6 +254,9 @@ class Decision:
     witness: dict[str, str] | None = None  # a sample point where the two sides differ
 
 
+VerdictStatus = Literal["agrees", "computed-only", "disagrees"]
+
+
 @dataclass(frozen=True)
 class Verdict:
     """Result of verifying one claim or one structural fact of an entry."""
@@ -253,6 +267,17 @@ class Verdict:
     detail: str
     claimed: str = ""
     computed: str = ""
+    # Role of the entry's reference that prints the claimed value; None when no published value
+    # is named (a ``computed-here`` or unsourced claim, or a structural check of the entry).
+    source: str | None = None
+
+    @property
+    def status(self) -> VerdictStatus:
+        """Agreement with a cited publication is kept apart from the tool agreeing with itself:
+        a value nobody published can only be "computed-only", never "agrees"."""
+        if not self.ok:
+            return "disagrees"
+        return "agrees" if self.source else "computed-only"
 
 
 def related_subject(index: int) -> str:
@@ -310,6 +335,11 @@ class EntryReport:
     @property
     def ok(self) -> bool:
         return not any(d.severity == "error" for d in self.diagnostics)
+
+    @property
+    def agreements(self) -> int:
+        """How many checked values agree with a value printed in a cited publication."""
+        return sum(v.status == "agrees" for v in self.verdicts)
 
 
 # ---------------------------------------------------------------------------- catalog as a whole

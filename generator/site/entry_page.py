@@ -26,6 +26,7 @@ from generator.model import (
 from generator.site import cite, mathtex, plots
 from generator.site.atlas import MAPS_HERE, ChartLink, chart_links
 from generator.site.common import (
+    EVIDENCE_LABELS,
     INVARIANTS,
     MATTER_LABELS,
     METHOD_LABELS,
@@ -113,6 +114,9 @@ def entry_card(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "matter": kind,
         "matter_label": MATTER_LABELS.get(kind, kind),
         "petrov": (c.petrov_type if c else None) or "",
+        "agreements": report.agreements,
+        "evidence": "literature" if report.agreements else "computed-only",
+        "evidence_label": EVIDENCE_LABELS["literature" if report.agreements else "computed-only"],
         "authors": authors,
         "years": sorted({ref.year for ref in entry.references}),
         "href": f"entries/{entry.id}/index.html",
@@ -246,15 +250,17 @@ def invariant_rows(report: EntryReport, verdicts: Mapping[str, Verdict]) -> list
     return rows
 
 
+COMPUTED_ONLY_WORDS = "computed by this tool; no published value to compare"
+
+
 def claim_source(claim_source_role: str | None, entry: Entry) -> dict[str, Any]:
-    """Who the claimed value comes from; ``computed-here`` means the tool's own result."""
-    if claim_source_role == "computed-here":
-        return {"computed_here": True,
-                "label": "the tool's own result: no published value was found to compare with"}
-    roles = {r.role for r in entry.references}
-    role = claim_source_role or ("claims" if "claims" in roles else "original")
-    refs = [r for r in entry.references if r.role == role]
-    label = "; ".join(f"{short_authors(r.authors)} {r.year}" for r in refs) or role
+    """Who the claimed value comes from. Only a reference the claim names counts: a value
+    without one (``computed-here``, or the short form) is shown as the tool's own result,
+    never attributed to a paper by default."""
+    refs = [r for r in entry.references if r.role == claim_source_role]
+    if claim_source_role == "computed-here" or not refs:
+        return {"computed_here": True, "label": COMPUTED_ONLY_WORDS}
+    label = "; ".join(f"{short_authors(r.authors)} {r.year}" for r in refs)
     return {"computed_here": False, "label": label}
 
 

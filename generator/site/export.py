@@ -112,8 +112,8 @@ def classification_json(c: Classification, names: list[str]) -> dict[str, Any]:
 
 
 def verdict_json(v: Verdict) -> dict[str, Any]:
-    return {"subject": v.subject, "ok": v.ok, "method": v.method, "detail": v.detail,
-            "claimed": v.claimed, "computed": v.computed}
+    return {"subject": v.subject, "ok": v.ok, "status": v.status, "source": v.source,
+            "method": v.method, "detail": v.detail, "claimed": v.claimed, "computed": v.computed}
 
 
 def check_document(reports: list[EntryReport]) -> dict[str, Any]:

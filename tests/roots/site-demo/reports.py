@@ -172,7 +172,7 @@ def lantern_report(title: str = "Harbour lantern (demo)", **text: str) -> EntryR
         components=(),
         matter=Matter("electrovacuum"),
         claims=Claims(
-            scalars=(Claim("ricci_scalar", math("0"), None, None, pos(file)),
+            scalars=(Claim("ricci_scalar", math("0"), "original", "eq. (2)", pos(file)),
                      Claim("kretschmann", math(str(geometry.kretschmann)), "computed-here", None,
                            pos(file))),
             petrov_type="D",
@@ -192,7 +192,8 @@ def lantern_report(title: str = "Harbour lantern (demo)", **text: str) -> EntryR
                  RelatedChart("demo-broken-buoy", (("t", math("t")),), pos(file))),
     )
     verdicts = (
-        Verdict("claims.ricci_scalar", True, "exact", "both sides reduce to 0", "0", "0"),
+        Verdict("claims.ricci_scalar", True, "exact", "both sides reduce to 0", "0", "0",
+                "original"),
         Verdict("claims.kretschmann", True, "sampled", text.get("detail", "agree at 12 points"),
                 "", ""),
         Verdict("claims.petrov_type", True, "exact", "Weyl scalars of type D", "D", "D"),
