@@ -370,6 +370,19 @@ class Revision:
 
 
 @dataclass(frozen=True)
+class Publication:
+    """How a catalog is published and cited: its own settings (``publication.yaml`` beside
+    ``families.yaml``), never a built-in address, so that a research group publishing its
+    own catalog with this tool never cites somebody else's site."""
+
+    title: str = "Metric Almanac"
+    authors: str = "Metric Almanac contributors"
+    version: str | None = None  # else the project's version (see entry.publication)
+    site_address: str | None = None  # public address of the built site, e.g. https://…/
+    repository: str | None = None  # public address of the catalog's source repository
+
+
+@dataclass(frozen=True)
 class CatalogMeta:
     """Catalog-wide data the site needs besides the entries (loaded once per build)."""
 
@@ -379,5 +392,5 @@ class CatalogMeta:
     families: tuple[Family, ...]
     tags: tuple[Tag, ...]
     contributing_markdown: str  # DEVELOPERS.md, rendered as the contributing page
-    base_url: str  # permanent URL prefix used in citations
+    publication: Publication
     revisions: dict[str, tuple[Revision, ...]] = field(default_factory=dict)

@@ -10,6 +10,7 @@ from typing import Any
 import sympy
 from markupsafe import Markup
 
+from generator.entry.content_hash import short_hash
 from generator.entry.mathparse import parse_inequality, table_from_symbols
 from generator.errors import AlmanacError
 from generator.model import (
@@ -414,6 +415,7 @@ def reference_data(reference: Reference) -> dict[str, Any]:
         "unconfirmed": {f: f in unconfirmed for f in
                         ("authors", "title", "venue", "year", "doi", "arxiv", "isbn", "locator")},
         "any_unconfirmed": bool(unconfirmed),
+        "confirmed": reference.confirmed or "",
     }
 
 
@@ -428,14 +430,24 @@ def entry_conventions(entry: Entry, st: Spacetime | None) -> dict[str, Any]:
     }
 
 
-def citations(report: EntryReport, meta: CatalogMeta) -> dict[str, str]:
+def citations(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
+    """The citations, and what a reader of a paper needs to check that the entry they open is
+    the one that was cited: the content hash, the revision, and the page that looks it up."""
     entry = report.entry
     assert entry is not None
+    latest = meta.revisions.get(entry.id, ())[-1:]
+    original = next((r for r in entry.references if r.role == "original"), None)
     return {
         "entry_bibtex": cite_or_reason(lambda: cite.cite_entry(report, meta, "bibtex")),
         "entry_text": cite_or_reason(lambda: cite.cite_entry(report, meta, "text")),
         "original_bibtex": cite_or_reason(lambda: cite.cite_original(entry, "bibtex")),
-        "url": cite.entry_url(meta, entry.id),
+        "url": cite.entry_url(meta, entry.id) or "",
+        "repository": meta.publication.repository or "",
+        "content_hash": report.content_hash,
+        "short_hash": short_hash(report.content_hash) if report.content_hash else "",
+        "revision": {"date": latest[0].date, "commit": latest[0].commit[:12]} if latest else None,
+        "original_confirmed": original.confirmed or "" if original else "",
+        "original_unconfirmed": list(original.unconfirmed) if original else [],
     }
 
 

@@ -24,6 +24,7 @@ from generator.model import (
     MathText,
     Matter,
     Parameter,
+    Publication,
     Reference,
     RelatedChart,
     Revision,
@@ -131,7 +132,7 @@ def demo_meta() -> CatalogMeta:
         ),
         contributing_markdown="# Contributing\n\nAdd one YAML file per entry, then run "
                               "`python -m generator check`.\n",
-        base_url="https://almanac.example/",
+        publication=Publication(site_address="https://almanac.example/"),
         revisions={"demo-harbour-lantern": (
             Revision("0" * 40, "2026-11-30", "ab" * 32, "Demo: first version of the lantern.",
                      source="id: demo-harbour-lantern\n# the demo text of this revision\n"),
