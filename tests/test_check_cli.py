@@ -193,3 +193,14 @@ def test_a_computed_here_claim_is_never_counted_as_agreement(
     assert status == 0, err
     (report,) = json.loads(out)["entries"]
     assert {v["status"] for v in report["verified"]} == {"computed-only"}
+
+
+def test_a_two_dimensional_metric_has_no_matter_kind(catalog: Path,
+                                                    capsys: pytest.CaptureFixture[str]) -> None:
+    """G_ab vanishes identically in two dimensions (common practice), so the dome is neither
+    vacuum nor "non-vacuum": its matter kind is null, with the reason beside it."""
+    status, out, err = run(["check", "catalog/riemannian/lighthouse-dome.yaml", "--json"], capsys)
+    assert status == 0, err
+    computed = json.loads(out)["entries"][0]["computed"]
+    assert computed["matter_kind"] is None
+    assert "empty below three dimensions" in computed["not_applicable"]["matter_kind"]

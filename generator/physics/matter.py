@@ -391,6 +391,8 @@ def classify_matter(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> M
     mixed = (geometry.einstein_mixed + (lam or 0) * sympy.eye(geometry.dimension)) / EIGHT_PI
     reasons = {}
     if geometry.dimension < 3:
+        # G_ab vanishes identically in two dimensions: no metric there is "non-vacuum".
+        kind = NOT_APPLICABLE
         reasons["matter_kind"] = "Einstein's equations are empty below three dimensions"
     verified = built.source if built is not None and not diagnostics else None
     return MatterResult(kind, lam, simplest(stress, spacetime), simplest(mixed, spacetime),
@@ -401,6 +403,9 @@ def simplest(matrix: sympy.Matrix, spacetime: Spacetime) -> sympy.ImmutableMatri
     """Every component in display form, through one field for the whole matrix."""
     return sympy.ImmutableMatrix(matrix.rows, matrix.cols,
                                  canonical_all(list(matrix), spacetime))
+
+
+NOT_APPLICABLE = "not-applicable"
 
 
 def computed_kind(found: Geometric, declared: str, source_ok: bool) -> str:

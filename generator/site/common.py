@@ -61,6 +61,8 @@ MATTER_LABELS = {
     "anisotropic-fluid": "anisotropic fluid",
     "null-dust": "null dust",
     "unspecified": "no declared source",
+    "non-vacuum": "unidentified source",
+    "not-applicable": "no field equations (2D)",
 }
 METHOD_LABELS = {
     "exact": "exact (normal form)",
