@@ -81,6 +81,8 @@ class Matter:
     null_direction: tuple[tuple[str, MathText], ...] = ()  # k^a, upper index
     pos: SourcePos | None = None
     principal_pressures: tuple[tuple[str, MathText], ...] = ()  # anisotropic fluid: T^i_i
+    scalar: MathText | None = None  # scalar field φ
+    scalar_potential: MathText | None = None  # V(φ) along the solution; None: massless
 
 
 @dataclass(frozen=True)

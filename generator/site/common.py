@@ -60,6 +60,7 @@ MATTER_LABELS = {
     "perfect-fluid": "perfect fluid",
     "anisotropic-fluid": "anisotropic fluid",
     "null-dust": "null dust",
+    "scalar-field": "scalar field",
     "unspecified": "no declared source",
     "non-vacuum": "unidentified source",
     "not-applicable": "no field equations (2D)",
