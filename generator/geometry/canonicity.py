@@ -29,8 +29,8 @@ from sympy.core.function import AppliedUndef
 
 from generator.geometry.algebra import Frac, RationalField, generators_of
 
-PRIME_LIMIT = 10**6  # trial division bound when reading a rational radicand's square class
-MAX_PRIME_DIGITS = 30  # a cofactor longer than this is not factored: not canonical
+TRIAL_PRIMES = 10**4  # trial division bound when reading a rational radicand's square class
+MAX_FACTOR_DIGITS = 24  # a composite cofactor longer than this is not factored: not canonical
 
 
 def canonical_reason(field: RationalField, value: Frac,
@@ -108,6 +108,7 @@ def independent_square_classes(radicands: list[sympy.Expr]) -> bool:
 def square_class(radicand: sympy.Expr) -> set[object] | None:
     """The factors of odd multiplicity of a rational function (its class modulo squares):
     irreducible polynomials, primes, and -1; None where this cannot be worked out."""
+    radicand = sympy.sympify(radicand)
     symbols = {a: sympy.Dummy() for a in radicand.atoms(AppliedUndef, sympy.Derivative)}
     radicand = radicand.xreplace(symbols)
     if radicand.atoms(sympy.NumberSymbol) or not radicand.is_rational_function():
@@ -133,22 +134,27 @@ def square_class(radicand: sympy.Expr) -> set[object] | None:
 
 
 def _odd_primes(n: int) -> set[object] | None:
-    """The primes of odd multiplicity in n (None if n is too large to factor reliably)."""
-    found = sympy.factorint(n, limit=PRIME_LIMIT)
+    """The primes of odd multiplicity in n; None when n has a cofactor too large to factor
+    quickly (SymPy's factorint can spend minutes on a 40-digit semiprime, and a claim is
+    written by a stranger)."""
     odd: set[object] = set()
-    for p, e in found.items():
-        if not sympy.isprime(p):
-            if len(str(p)) > MAX_PRIME_DIGITS:
-                return None
-            return _odd_primes_full(n)
-        if e % 2:
+    for p in sympy.primerange(2, TRIAL_PRIMES):
+        if p * p > n:
+            break
+        exponent = 0
+        while n % p == 0:
+            n //= p
+            exponent += 1
+        if exponent % 2:
             odd.add(("prime", int(p)))
-    return odd
-
-
-def _odd_primes_full(n: int) -> set[object] | None:
+    if n == 1:
+        return odd
+    if sympy.isprime(n):
+        return odd | {("prime", int(n))}
+    if len(str(n)) > MAX_FACTOR_DIGITS:
+        return None
     found = sympy.factorint(n)
-    return {("prime", int(p)) for p, e in found.items() if e % 2}
+    return odd | {("prime", int(p)) for p, e in found.items() if e % 2}
 
 
 def _gf2_rank(vectors: list[int]) -> int:
