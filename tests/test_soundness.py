@@ -266,3 +266,11 @@ def test_a_sampled_killing_verdict_does_not_claim_a_proof() -> None:
 
     assert "not proved" in how_shown("sampled", "L_ξ g_ab = 0")
     assert how_shown("exact", "L_ξ g_ab = 0") == "L_ξ g_ab = 0"
+
+
+def test_a_witness_is_found_where_a_generator_is_irrational(geometry) -> None:
+    # e**1000 and sqrt(2)·10**320 are irrational at every point: the witness comes from a
+    # 60-digit evaluation far outside its rounding error, not from exact arithmetic.
+    for claim in (sp.exp(1000), sp.sqrt(2) * sp.Integer(10) ** 320, sp.sqrt(r) - sp.sqrt(M)):
+        decision = decide_equal(claim, geometry.ricci_scalar, schwarzschild())
+        assert decision.equal is False and decision.witness is not None, claim
