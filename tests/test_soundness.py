@@ -274,3 +274,19 @@ def test_a_witness_is_found_where_a_generator_is_irrational(geometry) -> None:
     for claim in (sp.exp(1000), sp.sqrt(2) * sp.Integer(10) ** 320, sp.sqrt(r) - sp.sqrt(M)):
         decision = decide_equal(claim, geometry.ricci_scalar, schwarzschild())
         assert decision.equal is False and decision.witness is not None, claim
+
+
+def test_a_sampled_claim_is_labelled_and_refused_on_request(tmp_path) -> None:
+    # log(r**2) − 2 log r = 0 for r > 0 (common practice): true, but only sampling decides it.
+    from generator.run.pipeline import sampled_refusals
+    from generator.site.export import report_json
+
+    report = _check_with_claim(tmp_path, "ricci_scalar: 0", "ricci_scalar: log(r**2) - 2*log(r)")
+    verdict = next(v for v in report.verdicts if v.subject == "claims.ricci_scalar")
+    assert verdict.ok and verdict.method == "sampled" and report.ok
+    data = report_json(report)
+    assert data["decided_by"] == "sampled"
+    assert {"subject": "claims.ricci_scalar", "method": "sampled"}.items() <= next(
+        v for v in data["verified"] if v["subject"] == "claims.ricci_scalar").items()
+    refusals = sampled_refusals(report)
+    assert [d.code for d in refusals] == ["verdict.sampled"] and refusals[0].line == 31
