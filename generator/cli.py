@@ -12,7 +12,7 @@ import sys
 from collections.abc import Sequence
 from pathlib import Path
 
-from generator.errors import AlmanacError, UsageError
+from generator.errors import AlmanacError, UsageError, printable
 
 EXIT_OK, EXIT_FAILED, EXIT_USAGE = 0, 1, 2
 DEFAULT_CACHE = Path(".almanac-cache")
@@ -94,13 +94,13 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         return _dispatch(args)
     except UsageError as exc:
-        print(f"almanac: error: {exc}", file=sys.stderr)
+        print(f"almanac: error: {printable(str(exc))}", file=sys.stderr)
         return EXIT_USAGE
     except KeyboardInterrupt:
         print("almanac: interrupted", file=sys.stderr)
         return 130
     except AlmanacError as exc:
-        print(f"almanac: error: {exc}", file=sys.stderr)
+        print(f"almanac: error: {printable(str(exc))}", file=sys.stderr)
         return EXIT_USAGE
 
 

@@ -14,6 +14,7 @@ import signal
 import subprocess
 import sys
 import textwrap
+import operator
 import threading
 from pathlib import Path
 
@@ -194,13 +195,33 @@ def test_cpu_backstop_is_removed_afterwards() -> None:
     assert resource.getrlimit(resource.RLIMIT_CPU) == before
 
 
-def test_outside_the_main_thread_fn_still_runs() -> None:
-    results: list[int] = []
-    worker = threading.Thread(target=lambda: results.append(
-        run_limited(lambda: 7, seconds=1, memory_bytes=MiB)))
+def _in_a_thread(fn, *args, **limits) -> list[object]:
+    """Call ``run_limited(fn, *args, **limits)`` from a thread that is not the main one (as a
+    preview server's rebuild once did); returns [result] or [the exception]."""
+    outcome: list[object] = []
+
+    def call() -> None:
+        try:
+            outcome.append(run_limited(fn, *args, **limits))
+        except BaseException as exc:  # noqa: BLE001 - handed to the test
+            outcome.append(exc)
+
+    worker = threading.Thread(target=call)
     worker.start()
     worker.join()
-    assert results == [7]
+    return outcome
+
+
+def test_outside_the_main_thread_fn_still_runs() -> None:
+    assert _in_a_thread(operator.mul, 6, 7, seconds=5, memory_bytes=64 * MiB) == [42]
+
+
+def test_outside_the_main_thread_the_limits_still_apply() -> None:
+    """A thread cannot take signals; the call goes to a child process whose main thread sets
+    the alarm, so an endless loop still ends with the stage named (it used to run unbounded)."""
+    [outcome] = _in_a_thread(spin_forever, seconds=0.2, memory_bytes=0, hard_grace=5)
+    assert isinstance(outcome, BudgetExceeded)
+    assert "time limit" in outcome.limit
 
 
 # ---------------------------------------------------------------------------- worker processes
@@ -326,11 +347,13 @@ KNOWN_STAGES = frozenset({"inverse metric", "Christoffel symbols", "Riemann tens
 
 @pytest.mark.slow
 def test_the_build_reports_the_pathological_entry_and_keeps_the_old_site(tmp_path: Path) -> None:
+    from generator.run.build import SITE_MARKER
     from tests._hostile import almanac, make_catalog
 
     make_catalog(tmp_path, "hostile-valid", "hostile-pathological")
     (tmp_path / "site").mkdir()
     (tmp_path / "site" / "index.html").write_text("previous site")
+    (tmp_path / "site" / SITE_MARKER).write_text("")  # a site this tool wrote
     done = almanac(tmp_path, "build", "--seconds", "3", "--no-cache", "--jobs", "2")
     assert done.returncode == 1
     assert "pathological-expansion.yaml:15:3: error: computation ran out of its budget" in \

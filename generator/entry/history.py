@@ -210,7 +210,8 @@ def catalog_revisions(
 
 def entry_files(catalog: Path) -> list[Path]:
     """Entry files: ``catalog/<family>/<id>.yaml`` (not catalog-level files like tags.yaml)."""
-    return sorted(catalog.glob("*/*.yaml"))
+    return sorted(p for p in catalog.glob("*/*.yaml")
+                  if not p.is_symlink() and not p.parent.is_symlink())
 
 
 # ---------------------------------------------------------------------------- changed entries

@@ -16,8 +16,9 @@ Limits:
 - The alarm repeats every `REPEAT_SECONDS` after the first, so code that swallows the
   exception (``except Exception`` in a library) is interrupted again.
 - Signals and resource limits belong to the process and its main thread. Called from another
-  thread (e.g. a threaded scheduler), `run_limited` runs ``fn`` under no limit of its own and
-  the caller's other safeguards (the engine's cooperative budget) remain.
+  thread, `run_limited` runs ``fn`` in a fresh child process whose main thread sets the
+  limits (``fn`` and its arguments must then be picklable); a child ended by the backstop
+  raises `BudgetExceeded` here. Running unbounded is never the fallback.
 """
 
 from __future__ import annotations
@@ -148,7 +149,7 @@ def run_limited(
     call, the process is ended by SIGXCPU after ``seconds + hard_grace`` CPU seconds.
     """
     if threading.current_thread() is not threading.main_thread():
-        return fn(*args)
+        return _run_limited_in_child(fn, args, seconds, memory_bytes, stage_of, hard_grace)
     backstop = seconds + hard_grace if seconds > 0 else 0.0
     with _Alarm(seconds, stage_of), _AddressSpaceCap(memory_bytes), _CpuBackstop(backstop):
         try:
@@ -159,6 +160,33 @@ def run_limited(
         except RecursionError as exc:
             stage = stage_of(innermost_frame(exc.__traceback__))
             raise BudgetExceeded(stage, "expression nested too deeply") from None
+
+
+def _run_limited_in_child(fn: Callable[..., T], args: tuple[Any, ...], seconds: float,
+                          memory_bytes: int, stage_of: Callable[[FrameType | None], str],
+                          hard_grace: float) -> T:
+    """`run_limited` for a caller outside the main thread: the limits are set in the main
+    thread of a spawned child process, and its result or exception comes back here."""
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor
+    from concurrent.futures.process import BrokenProcessPool
+
+    context = multiprocessing.get_context("spawn")
+    with ProcessPoolExecutor(max_workers=1, mp_context=context) as pool:
+        future = pool.submit(_limited_call, fn, args, seconds, memory_bytes, stage_of,
+                             hard_grace)
+        try:
+            return future.result()
+        except BrokenProcessPool:
+            raise BudgetExceeded(DEFAULT_STAGE, "the child process was ended (CPU-time "
+                                 "backstop or out of memory)") from None
+
+
+def _limited_call(fn: Callable[..., T], args: tuple[Any, ...], seconds: float,
+                  memory_bytes: int, stage_of: Callable[[FrameType | None], str],
+                  hard_grace: float) -> T:
+    return run_limited(fn, *args, seconds=seconds, memory_bytes=memory_bytes,
+                       stage_of=stage_of, hard_grace=hard_grace)
 
 
 def _mebibytes(count: int) -> str:
