@@ -38,8 +38,8 @@ class CreatesFileWhenUnpickled:
 @pytest.fixture(autouse=True)
 def cache_secret(monkeypatch: pytest.MonkeyPatch) -> str:
     """A fixed secret, so the tests never create a key file in the user's home."""
-    monkeypatch.setenv(SECRET_ENV, "secret-of-this-machine")
-    return "secret-of-this-machine"
+    monkeypatch.setenv(SECRET_ENV, "secret-of-this-machine-32-characters-long")
+    return "secret-of-this-machine-32-characters-long"
 
 
 def run(root: Path, cache: Path, files: list[Path] | None = None, seconds: float = 300.0):
@@ -147,20 +147,25 @@ def test_damaged_cache_files_are_recomputed(tmp_path, monkeypatch, damage):
     assert ResultCache(cache).get(cached.stem) is not None, "the damaged file was not replaced"
 
 
-def test_the_planted_payload_really_has_a_side_effect(tmp_path, cache_secret):
-    """Control: the payload touches its file when unpickled, and a correctly signed file *is*
-    unpickled, so the tests below pass only because the signature check refuses."""
+def test_the_planted_payload_really_has_a_side_effect(tmp_path):
+    """Control: the payload touches its file when unpickled by plain pickle, so the tests
+    below pass only because the cache refuses it."""
     payload = pickle.dumps(CreatesFileWhenUnpickled(tmp_path / "plain"))
     pickle.loads(payload)
     assert (tmp_path / "plain").exists()
+
+
+def test_even_a_correctly_signed_planted_pickle_runs_nothing(tmp_path, cache_secret):
+    """A leaked key (or one left empty by an older version) must not be enough to run code:
+    the cache's unpickler builds only the project's data classes and SymPy objects."""
     cache = ResultCache(tmp_path / "cache")
     key = "ab" + "0" * 62
     marker = tmp_path / "through-the-cache"
     cache._path(key).parent.mkdir(parents=True)
     cache._path(key).write_bytes(signed(cache_secret, key,
                                         pickle.dumps(CreatesFileWhenUnpickled(marker))))
-    assert cache.get(key) is None  # not a report...
-    assert marker.exists()  # ...but it was unpickled
+    assert cache.get(key) is None
+    assert not marker.exists()
 
 
 @pytest.mark.parametrize("forgery", ["unsigned", "wrong-signature", "other-secret",
@@ -173,7 +178,7 @@ def test_forged_cache_files_are_never_unpickled(tmp_path, monkeypatch, cache_sec
     cached.write_bytes({
         "unsigned": payload,
         "wrong-signature": FORMAT + bytes(32) + payload,
-        "other-secret": signed("secret-of-another-machine", key, payload),
+        "other-secret": signed("secret-of-another-machine-32-characters-long", key, payload),
         "signed-for-another-key": signed(cache_secret, "f" * 64, payload),
     }[forgery])
     assert ResultCache(cache).get(key) is None
@@ -188,9 +193,9 @@ def test_a_cache_written_under_another_secret_is_ignored(tmp_path, monkeypatch):
     root, cache = copy_catalog(tmp_path), tmp_path / "cache"
     files = [root / "maximally-symmetric" / "flat-spherical.yaml"]
     calls = install_counting_engine(monkeypatch)
-    monkeypatch.setenv(SECRET_ENV, "secret-of-another-machine")
+    monkeypatch.setenv(SECRET_ENV, "secret-of-another-machine-32-characters-long")
     run(root, cache, files)
-    monkeypatch.setenv(SECRET_ENV, "secret-of-this-machine")
+    monkeypatch.setenv(SECRET_ENV, "secret-of-this-machine-32-characters-long")
     run(root, cache, files)
     assert len(calls) == 2
     run(root, cache, files)

@@ -107,7 +107,7 @@ def test_the_linked_entry_is_checked_against_the_entry_it_links_to(serial_and_pa
 
 
 def test_progress_also_reports_entries_taken_from_the_cache(tmp_path, monkeypatch):
-    monkeypatch.setenv(SECRET_ENV, "pipeline-test-secret")
+    monkeypatch.setenv(SECRET_ENV, "pipeline-test-secret-of-32-characters")
     root = copy_catalog(tmp_path)
     calls = install_counting_engine(monkeypatch)
     options = RunOptions(jobs=1, cache_dir=tmp_path / "cache")
@@ -154,7 +154,7 @@ def test_a_pull_request_check_loads_only_possible_twins_and_reuses_their_ranks(t
     from generator.physics import twins
     from generator.run.cache import ResultCache
 
-    monkeypatch.setenv(SECRET_ENV, "pipeline-test-secret")
+    monkeypatch.setenv(SECRET_ENV, "pipeline-test-secret-of-32-characters")
     root = copy_catalog(tmp_path)
     options = RunOptions(jobs=1, cache_dir=tmp_path / "cache")
     checked(root, options)  # the last full build, as CI keeps it

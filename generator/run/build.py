@@ -136,9 +136,12 @@ def _revisions(project: Path, catalog: Path, cache_dir: Path | None) -> dict:
 
     if repo_root(project) is None:
         return {}
+    from generator.run.cache import cache_secret
+
     cache_file = cache_dir / "content-hashes.json" if cache_dir is not None else None
+    secret = cache_secret() if cache_dir is not None else None
     try:
-        return catalog_revisions(project, catalog, cache_file=cache_file)
+        return catalog_revisions(project, catalog, cache_file=cache_file, secret=secret)
     except (GitError, UsageError):
         return {}
 
