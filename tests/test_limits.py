@@ -33,6 +33,7 @@ from generator.run.limits import (
 )
 
 MiB = 2**20
+ROOTS = Path(__file__).resolve().parent / "roots"
 
 
 def spin_forever() -> None:
@@ -392,3 +393,93 @@ def test_the_proposed_wiring_turns_a_pathological_entry_into_a_report() -> None:
     (budget,) = [d for d in report.diagnostics if d.code == BUDGET_CODE]
     assert (budget.line, budget.column) == (15, 3)
     assert "time limit of 3 s" in budget.message
+
+
+# ---------------------------------------------------------------------------- backstop reports
+# A red-team pass found a one-entry check ended silently by the CPU-time backstop (SIGXCPU in
+# the main process), and a build that re-ran the entry that had killed its worker. The worker
+# below ends its own process with SIGXCPU (tests/_backstop_worker.py), so these tests depend
+# on state (which entry, what the recorded stack says), never on how long anything takes.
+
+
+def _backstop_tasks(tmp_path: Path, names: list[str]) -> list:
+    from dataclasses import replace
+
+    from generator.run.tasks import Task
+
+    source = (ROOTS / "hostile-valid/black-holes/schwarzschild.yaml").read_text()
+    stacks = tmp_path / "stacks"
+    stacks.mkdir()
+    tasks = []
+    for i, name in enumerate(names):
+        path = tmp_path / "catalog" / "black-holes" / f"{name}.yaml"
+        path.parent.mkdir(parents=True, exist_ok=True)
+        path.write_text(source)
+        task = Task(path, f"catalog/black-holes/{name}.yaml", None, tmp_path, (), 5.0)
+        tasks.append(replace(task, backstop_file=stacks / f"{i}.stack"))
+    return tasks
+
+
+@pytest.mark.parametrize("jobs, names", [
+    (1, ["heavy"]),  # a one-entry check: the case that used to end with nothing printed
+    (1, ["light-a", "heavy", "light-b"]),
+    (2, ["heavy", "light-a", "light-b", "light-c"]),
+])
+def test_a_backstop_stop_is_reported_with_its_stage_and_not_run_again(
+        tmp_path: Path, jobs: int, names: list[str]) -> None:
+    from _backstop_worker import calls, logged_worker
+
+    from generator.run.pipeline import Progress, _compute_in_processes
+
+    tasks = _backstop_tasks(tmp_path, names)
+    done = dict(_compute_in_processes(tasks, list(range(len(tasks))), jobs, Progress(),
+                                      logged_worker))
+    assert sorted(done) == list(range(len(tasks)))
+    heavy = names.index("heavy")
+    [diagnostic] = [d for d in done[heavy].diagnostics if d.code == "budget.exceeded"]
+    # at the metric of the entry (its value starts on line 17), naming the stage it was in
+    assert (diagnostic.file, diagnostic.line) == (tasks[heavy].display, 17)
+    assert "stage 'Riemann tensor'" in diagnostic.message
+    assert "worker process was ended" in diagnostic.message
+    log = calls(tmp_path / "stacks")
+    assert log.count(tasks[heavy].display) == 1, "the entry that hit its budget ran again"
+    for i in range(len(names)):
+        if i != heavy:
+            assert done[i].diagnostics == () and tasks[i].display in log
+
+
+def test_backstop_stage_reads_the_innermost_named_function(tmp_path: Path) -> None:
+    from generator.run.tasks import backstop_stage
+
+    stack = tmp_path / "stack"
+    assert backstop_stage(None) is None
+    assert backstop_stage(tmp_path / "missing") is None
+    stack.write_text("")
+    assert backstop_stage(stack) is None  # the backstop never fired
+    stack.write_text('Current thread 0x1 (most recent call first):\n'
+                     '  File "/x/flint.py", line 3 in gcd\n'
+                     '  File "/x/curvature.py", line 9 in christoffel_symbols\n'
+                     '  File "/x/loader.py", line 5 in load_entry\n')
+    assert backstop_stage(stack) == "Christoffel symbols"
+    stack.write_text('  File "/x/a.py", line 1 in helper\n')
+    assert backstop_stage(stack) == "checking the entry"
+
+
+def test_loading_runs_inside_the_entry_budget(tmp_path: Path,
+                                              monkeypatch: pytest.MonkeyPatch) -> None:
+    """Loading used to run before the limits were set: a line element built to blow up its
+    expansion ran for minutes. Here the metric builder never returns; only the alarm set
+    around loading can end it, and the report names the loading stage at the metric."""
+    from generator.entry import loader
+    from generator.run import tasks
+
+    def build_spacetime(entry):  # named like the loader's step, so the stage is named
+        spin_forever()
+
+    monkeypatch.setattr(loader, "build_spacetime", build_spacetime)
+    monkeypatch.setattr(tasks, "alarm_seconds", lambda seconds: 0.3)
+    [task] = _backstop_tasks(tmp_path, ["schwarzschild"])
+    report = tasks.load_and_check_within_limits(task)
+    [diagnostic] = [d for d in report.diagnostics if d.code == "budget.exceeded"]
+    assert "stage 'building the metric'" in diagnostic.message
+    assert diagnostic.line == 17

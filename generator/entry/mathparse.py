@@ -451,7 +451,8 @@ def term_bound(expr: sympy.Basic) -> int:
         memo[node] = value = min(value, _TERM_CAP)
         return value
 
-    return max(largest[0], terms(expr))
+    whole = terms(expr)  # first: it records the largest inner expansion on the way
+    return max(largest[0], whole)
 
 
 def _multinomial_terms(count: int, power: int) -> int:

@@ -298,17 +298,18 @@ def _compute(tasks: list[Task], pending: list[int], options: RunOptions, progres
 
 
 def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
-                          progress: Progress):
+                          progress: Progress,
+                          worker: Callable[[Task], EntryReport] = run_task):
     """Run tasks on a process pool; if a worker is killed (e.g. at the CPU-time backstop) the
     pool breaks. The entry whose worker the backstop ended (its ``backstop_file`` holds a
     call stack) is reported with its stage and not run again; the other unfinished tasks are
     re-run one per fresh process so that only the entry that kills its worker fails. The pool
     takes tasks in submission order, so the first ``jobs`` unfinished ones are those being
-    checked."""
+    checked. ``worker`` is `run_task` (another module-level function in tests)."""
     unfinished = list(pending)
     # No max_tasks_per_child: on Python 3.11 it can deadlock the pool when a worker retires.
     with ProcessPoolExecutor(max_workers=jobs, mp_context=_spawn()) as pool:
-        futures: dict[Future, int] = {pool.submit(run_task, tasks[i]): i for i in pending}
+        futures: dict[Future, int] = {pool.submit(worker, tasks[i]): i for i in pending}
         remaining = set(futures)
         while remaining:
             progress.now_running([tasks[i] for i in unfinished[:jobs]])
@@ -327,7 +328,7 @@ def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
             report = backstop_report(tasks[i], stage)
         else:
             progress.now_running([tasks[i]])
-            report = _run_alone(tasks[i])
+            report = _run_alone(tasks[i], worker)
         progress.finished(report)
         yield i, report
 
@@ -339,10 +340,10 @@ def _result(future: Future, task: Task) -> EntryReport:
         return internal_failure_report(task.display, exc)
 
 
-def _run_alone(task: Task) -> EntryReport:
+def _run_alone(task: Task, worker: Callable[[Task], EntryReport] = run_task) -> EntryReport:
     """One task in its own worker process: if that process dies, only this entry fails."""
     with ProcessPoolExecutor(max_workers=1, mp_context=_spawn()) as pool:
-        future = pool.submit(run_task, task)
+        future = pool.submit(worker, task)
         try:
             return future.result()
         except BrokenProcessPool:
