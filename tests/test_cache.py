@@ -200,3 +200,147 @@ def test_a_cache_written_under_another_secret_is_ignored(tmp_path, monkeypatch):
     assert len(calls) == 2
     run(root, cache, files)
     assert len(calls) == 2, "the file rewritten under this machine's secret was not reused"
+
+
+# ---------------------------------------------------------------------------- the key
+# A red-team pass forged the cache with an empty key: the key file was created and then
+# written in two steps (a kill in between left it empty), and HMAC(b"") signed a pickle that
+# was then executed.
+
+
+@pytest.mark.parametrize("secret", ["x", "short-secret", "a" * 31])
+def test_a_short_secret_in_the_environment_is_refused(monkeypatch, tmp_path, secret) -> None:
+    from generator.errors import UsageError
+
+    monkeypatch.setenv(SECRET_ENV, secret)
+    with pytest.raises(UsageError, match="at least 32"):
+        ResultCache(tmp_path / "cache")
+
+
+@pytest.mark.parametrize("left", [b"", b"\n", b"abc", b"0" * 31])
+def test_an_empty_or_short_key_file_is_replaced_by_a_real_key(monkeypatch, tmp_path,
+                                                               left) -> None:
+    from generator.run.cache import MIN_SECRET_CHARS, cache_secret
+
+    monkeypatch.delenv(SECRET_ENV)
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path))
+    key_file = tmp_path / "metric-almanac" / "cache-key"
+    key_file.parent.mkdir()
+    key_file.write_bytes(left)
+    key = cache_secret()
+    assert len(key) >= MIN_SECRET_CHARS and key_file.read_bytes() == key
+    assert cache_secret() == key  # kept, not made again
+
+
+def test_an_empty_secret_in_the_environment_falls_back_to_the_key_file(monkeypatch,
+                                                                      tmp_path) -> None:
+    """An unset CI secret arrives as an empty variable: it must not become the key."""
+    from generator.run.cache import cache_secret
+
+    monkeypatch.setenv(SECRET_ENV, "")
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path))
+    assert cache_secret() == (tmp_path / "metric-almanac" / "cache-key").read_bytes() != b""
+
+
+def _first_key(config: str) -> bytes:
+    import os
+
+    from generator.run.cache import cache_secret
+
+    os.environ.pop(SECRET_ENV, None)
+    os.environ["XDG_CONFIG_HOME"] = config
+    return cache_secret()
+
+
+def test_first_runs_at_the_same_time_agree_on_one_key(tmp_path) -> None:
+    """The key is linked into place whole, so of several first runs one writes it and the
+    others read that same key (never an empty or half-written file)."""
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor
+
+    with ProcessPoolExecutor(4, mp_context=multiprocessing.get_context("spawn")) as pool:
+        keys = list(pool.map(_first_key, [str(tmp_path)] * 8))
+    assert len(set(keys)) == 1 and len(keys[0]) >= 32
+    assert keys[0] == (tmp_path / "metric-almanac" / "cache-key").read_bytes()
+    assert [p.name for p in (tmp_path / "metric-almanac").iterdir()] == ["cache-key"]
+
+
+def test_a_linked_key_file_is_not_read(monkeypatch, tmp_path) -> None:
+    from generator.run.cache import cache_secret
+
+    monkeypatch.delenv(SECRET_ENV)
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path))
+    planted = tmp_path / "planted"
+    planted.write_bytes(b"k" * 64)
+    (tmp_path / "metric-almanac").mkdir()
+    (tmp_path / "metric-almanac" / "cache-key").symlink_to(planted)
+    assert cache_secret() != b"k" * 64
+
+
+# ---------------------------------------------------------------------------- safe unpickling
+
+
+class _Reduces:
+    """Pickles as a call of ``target(*args)``: the shape of every code-running pickle."""
+
+    def __init__(self, target, *args) -> None:
+        self.target, self.args = target, args
+
+    def __reduce__(self) -> tuple:
+        return (self.target, self.args)
+
+
+def _payloads(marker: Path) -> dict[str, bytes]:
+    import os
+    import subprocess
+
+    import sympy
+
+    code = f"__import__('pathlib').Path({str(marker)!r}).touch()"
+    return {
+        "os.system": pickle.dumps(_Reduces(os.system, f"touch {marker}")),
+        "Path.touch": pickle.dumps(_Reduces(Path.touch, marker)),
+        "eval": pickle.dumps(_Reduces(eval, code)),
+        "sympify": pickle.dumps(_Reduces(sympy.sympify, code)),
+        "parse_expr": pickle.dumps(_Reduces(sympy.parsing.sympy_parser.parse_expr, code)),
+        "sin(text)": pickle.dumps(_Reduces(sympy.sin, code)),
+        "Tuple(text)": pickle.dumps(_Reduces(sympy.Tuple, code)),
+        "Matrix(text)": pickle.dumps(_Reduces(sympy.Matrix, [[code]])),
+        "Popen": pickle.dumps(_Reduces(subprocess.Popen, ["touch", str(marker)])),
+        "protocol 0": pickle.dumps(_Reduces(os.system, f"touch {marker}"), protocol=0),
+        "a project function": pickle.dumps(_Reduces(__import__(
+            "generator.entry.catalog", fromlist=["x"]).entry_files, [marker])),
+    }
+
+
+@pytest.mark.parametrize("name", list(_payloads(Path("x"))))
+def test_signed_code_running_pickles_are_refused(tmp_path, name) -> None:
+    from generator.run.safepickle import safe_loads
+
+    marker = tmp_path / "ran"
+    payload = _payloads(marker)[name]
+    with pytest.raises(pickle.UnpicklingError):
+        safe_loads(payload)
+    assert not marker.exists()
+
+
+def test_real_reports_round_trip_through_the_safe_unpickler() -> None:
+    """Control: what the cache stores (a report with SymPy expressions, free functions,
+    matrices, Floats) reads back equal, so the refusals above are not a blanket refusal."""
+    import sympy
+
+    from generator.entry.catalog import vocabulary
+    from generator.entry.loader import load_entry
+    from generator.run.safepickle import safe_loads
+
+    project = Path(__file__).resolve().parents[1]
+    words = vocabulary(project / "catalog")
+    loaded = [load_entry(path, path.name, words)
+              for path in sorted((project / "catalog").glob("*/*.yaml"))[:40]]
+    assert any(load.entry and load.entry.functions for load in loaded)
+    for load in loaded:
+        assert safe_loads(pickle.dumps(load, protocol=pickle.HIGHEST_PROTOCOL)) == load
+    r, v = sympy.symbols("r v", positive=True)
+    odd = (sympy.Function("m")(v) * sympy.Float("1.5") + sympy.Dummy("d"),
+           sympy.ImmutableMatrix([[r, 1], [2, sympy.pi]]), frozenset({1}), complex(1, 2))
+    assert safe_loads(pickle.dumps(odd, protocol=pickle.HIGHEST_PROTOCOL)) == odd
