@@ -47,10 +47,11 @@ def read_catalog_file(path: Path, file: str, max_bytes: int) -> tuple[str, Diagn
             return "", link_diagnostic(file)
         return "", Diagnostic(file, 1, 1, "error", f"cannot read file: {exc.strerror}",
                               "file.unreadable")
+    if not stat.S_ISREG(os.fstat(fd).st_mode):  # a folder, a FIFO, a device
+        os.close(fd)
+        return "", Diagnostic(file, 1, 1, "error", "is not a regular file", "file.unreadable",
+                              "catalog files are plain YAML files")
     with os.fdopen(fd, "rb") as handle:
-        if not stat.S_ISREG(os.fstat(handle.fileno()).st_mode):
-            return "", Diagnostic(file, 1, 1, "error", "is not a regular file",
-                                  "file.unreadable", "catalog files are plain YAML files")
         raw = handle.read(max_bytes + 1)
     if len(raw) > max_bytes:
         return "", Diagnostic(file, 1, 1, "error",
