@@ -20,7 +20,7 @@ from _scale_helpers import (
 )
 
 from generator.model import EntryReport
-from generator.run import tasks
+from generator.run import pipeline, tasks
 from generator.run.cache import SECRET_ENV
 from generator.run.pipeline import RunOptions, check_files
 
@@ -180,6 +180,9 @@ def test_a_pull_request_check_loads_only_possible_twins_and_reuses_their_ranks(t
 
     monkeypatch.setattr(ResultCache, "get", recording_get)
     monkeypatch.setattr(twins, "functional_rank", counting_rank)
+    # A real run searches in a child process (its backstop must not end `check`); kept in
+    # this process here so that the counting spy sees the ranks computed.
+    monkeypatch.setattr(pipeline, "run_limited_in_child", pipeline.run_limited)
     (first,) = check_files([copy], root, root.parent, options)
     warnings = [d.message for d in first.diagnostics if d.code == "entry.duplicate"]
     assert any("same spacetime as entry 'point-mass'" in w for w in warnings), warnings

@@ -149,7 +149,8 @@ def run_limited(
     call, the process is ended by SIGXCPU after ``seconds + hard_grace`` CPU seconds.
     """
     if threading.current_thread() is not threading.main_thread():
-        return _run_limited_in_child(fn, args, seconds, memory_bytes, stage_of, hard_grace)
+        return run_limited_in_child(fn, *args, seconds=seconds, memory_bytes=memory_bytes,
+                                    stage_of=stage_of, hard_grace=hard_grace)
     backstop = seconds + hard_grace if seconds > 0 else 0.0
     with _Alarm(seconds, stage_of), _AddressSpaceCap(memory_bytes), _CpuBackstop(backstop):
         try:
@@ -162,11 +163,18 @@ def run_limited(
             raise BudgetExceeded(stage, "expression nested too deeply") from None
 
 
-def _run_limited_in_child(fn: Callable[..., T], args: tuple[Any, ...], seconds: float,
-                          memory_bytes: int, stage_of: Callable[[FrameType | None], str],
-                          hard_grace: float) -> T:
-    """`run_limited` for a caller outside the main thread: the limits are set in the main
-    thread of a spawned child process, and its result or exception comes back here."""
+def run_limited_in_child(
+    fn: Callable[..., T],
+    *args: Any,
+    seconds: float,
+    memory_bytes: int,
+    stage_of: Callable[[FrameType | None], str] = describe_stage,
+    hard_grace: float = HARD_GRACE_SECONDS,
+) -> T:
+    """`run_limited` in a spawned child process, whose main thread sets the limits; its result
+    or exception comes back here. For callers outside the main thread, and for work whose
+    CPU-time backstop must end a child rather than the calling process (``fn`` and its
+    arguments must be picklable)."""
     import multiprocessing
     from concurrent.futures import ProcessPoolExecutor
     from concurrent.futures.process import BrokenProcessPool

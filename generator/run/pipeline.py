@@ -31,7 +31,12 @@ from generator.errors import BudgetExceeded, Diagnostic
 from generator.model import EntryReport
 from generator.physics.twins import TwinCard, twin_card, worth_comparing
 from generator.run.cache import ResultCache, cache_key
-from generator.run.limits import DEFAULT_STAGE, budget_failure_report, run_limited
+from generator.run.limits import (
+    DEFAULT_STAGE,
+    budget_failure_report,
+    run_limited,
+    run_limited_in_child,
+)
 from generator.run.tasks import (
     MEMORY_PER_ENTRY,
     Task,
@@ -191,10 +196,14 @@ def twin_warnings(new: list[EntryReport], catalog: list[EntryReport],
     from generator.physics.twins import search_twins, twin_diagnostics
 
     verified = [r for r in new if r.ok]
+    others = [r for r in catalog if r.ok and all(r is not v for v in verified)]
+    # With candidates to compare, the search runs in a child process: its CPU-time backstop
+    # must end that child, never `check` itself (which would end with nothing printed).
+    limited = run_limited_in_child if verified and others else run_limited
     try:
-        search = run_limited(search_twins, verified, [r for r in catalog if r.ok],
-                             known_ranks or {}, groups, seconds=TWIN_SEARCH_SECONDS,
-                             memory_bytes=MEMORY_PER_ENTRY)
+        search = limited(search_twins, verified, [r for r in catalog if r.ok],
+                         known_ranks or {}, groups, seconds=TWIN_SEARCH_SECONDS,
+                         memory_bytes=MEMORY_PER_ENTRY)
     except BudgetExceeded:
         return {r.file: [_twin_search_stopped(r)] for r in verified}
     if keep_ranks is not None:
