@@ -220,3 +220,28 @@ def test_a_one_entry_check_reports_a_link_to_a_missing_entry(tmp_path, monkeypat
     [report] = check_files([linking], root, root.parent, RunOptions(jobs=1))
     assert [d.message for d in report.diagnostics if d.code == "catalog.related"] == [
         "related entry 'nowhere-else' does not exist"]
+
+
+@pytest.mark.parametrize("candidates, isolated", [(1, True), (0, False)])
+def test_the_duplicate_search_runs_in_a_child_when_it_has_work(monkeypatch, candidates,
+                                                               isolated):
+    """The search runs in the calling process's main thread; stuck in one C call, its CPU-time
+    backstop would end `check` itself with nothing printed. With candidates to compare it runs
+    in a child process instead; with none, nothing is spawned."""
+    from types import SimpleNamespace
+
+    calls: list[str] = []
+
+    def spy(name):
+        def limited(fn, *args, **limits):
+            calls.append(name)
+            return SimpleNamespace(ranks={}, found={})
+        return limited
+
+    monkeypatch.setattr(pipeline, "run_limited_in_child", spy("child"))
+    monkeypatch.setattr(pipeline, "run_limited", spy("here"))
+    new = EntryReport(None, "catalog/a/new.yaml", None, None, None, (), ())
+    others = [EntryReport(None, f"catalog/a/{i}.yaml", None, None, None, (), ())
+              for i in range(candidates)]
+    assert pipeline.twin_warnings([new], [new, *others]) == {}
+    assert calls == (["child"] if isolated else ["here"])

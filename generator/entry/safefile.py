@@ -38,6 +38,31 @@ def is_link(path: Path) -> bool:
         return False
 
 
+def read_capped_bytes(path: Path, max_bytes: int) -> bytes | None:
+    """At most ``max_bytes + 1`` bytes of a regular file, never through a link (None if it is
+    a link, not a regular file, or unreadable): for hashing and shipping catalog files, where
+    a link to ``/dev/zero`` must not become an endless read."""
+    try:
+        fd = os.open(path, os.O_RDONLY | _NO_FOLLOW)
+    except OSError:
+        return None
+    try:
+        if not stat.S_ISREG(os.fstat(fd).st_mode):
+            return None
+        chunks, left = [], max_bytes + 1
+        while left > 0:
+            chunk = os.read(fd, min(left, 1 << 16))
+            if not chunk:
+                break
+            chunks.append(chunk)
+            left -= len(chunk)
+        return b"".join(chunks)
+    except OSError:
+        return None
+    finally:
+        os.close(fd)
+
+
 def read_catalog_file(path: Path, file: str, max_bytes: int) -> tuple[str, Diagnostic | None]:
     """The text of ``path`` (shown as ``file``), or a diagnostic saying why it cannot be read."""
     try:

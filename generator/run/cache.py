@@ -25,6 +25,8 @@ import tempfile
 from pathlib import Path
 from typing import Any
 
+from generator.entry.safefile import read_capped_bytes
+from generator.entry.yamlcheck import MAX_FILE_BYTES
 from generator.errors import UsageError
 from generator.model import EntryReport
 from generator.run.safepickle import safe_loads
@@ -42,10 +44,9 @@ def cache_key(task: Any) -> str:
                   f"{task.display}".encode())
     for path in (task.file, *task.related_files):
         digest.update(b"\0" + str(Path(path).name).encode() + b"\0")
-        try:
-            digest.update(Path(path).read_bytes())
-        except OSError:
-            digest.update(b"<unreadable>")
+        # Capped and never through a link: a link to /dev/zero must not be read forever.
+        content = read_capped_bytes(Path(path), MAX_FILE_BYTES)
+        digest.update(b"<unreadable>" if content is None else content)
     return digest.hexdigest()
 
 

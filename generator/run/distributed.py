@@ -28,6 +28,7 @@ from typing import Any
 from generator import __version__
 from generator.entry.catalog import display_path, load_all, vocabulary
 from generator.entry.loader import LoadResult, Vocabulary, load_entry
+from generator.entry.safefile import read_capped_bytes
 from generator.entry.yamlcheck import MAX_FILE_BYTES
 from generator.errors import AlmanacError, BudgetExceeded, Diagnostic, UsageError
 from generator.geometry.curvature import Limits
@@ -174,11 +175,8 @@ def ship_task(task: Task, words: Vocabulary) -> ShippedTask | None:
 
 
 def _ship_file(path: Path, display: str) -> ShippedFile | None:
-    try:
-        if path.stat().st_size > MAX_FILE_BYTES:
-            return None
-        content = path.read_bytes()
-    except OSError:
+    content = read_capped_bytes(path, MAX_FILE_BYTES)  # no link, no endless read
+    if content is None or len(content) > MAX_FILE_BYTES:
         return None
     return ShippedFile(display, path.parent.name, path.name, content)
 
