@@ -50,19 +50,22 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--catalogs", type=int, default=None, help="default: entries / 10")
     parser.add_argument("--claims", type=int, default=200,
                         help="entries with overflowing claims given the full check")
+    parser.add_argument("--claim-seconds", type=float, default=120.0,
+                        help="wall-clock limit of one claim's full check (its own process)")
     parser.add_argument("--seed", type=int, default=20261203)
     parser.add_argument("--out", type=Path, default=ROOT / "bench" / "fuzz-results.json")
     parser.add_argument("--findings", type=Path, default=ROOT / "bench" / "fuzz-findings")
     args = parser.parse_args(argv)
     catalogs = args.entries // 10 if args.catalogs is None else args.catalogs
     rng = random.Random(args.seed)
-    summary = {
-        "seed": args.seed,
-        "entries": run_entries(rng, args.entries, args.findings),
-        "catalogs": run_catalogs(rng, catalogs, args.findings),
-        "claims": run_claims(rng, args.claims, args.findings),
-    }
-    args.out.write_text(json.dumps(summary, indent=2) + "\n", encoding="utf-8")
+    summary: dict = {"seed": args.seed}
+    phases = (("entries", lambda: run_entries(rng, args.entries, args.findings)),
+              ("catalogs", lambda: run_catalogs(rng, catalogs, args.findings)),
+              ("claims", lambda: run_claims(rng, args.claims, args.findings,
+                                            args.claim_seconds)))
+    for name, phase in phases:
+        summary[name] = phase()
+        args.out.write_text(json.dumps(summary, indent=2) + "\n", encoding="utf-8")
     print(json.dumps(summary, indent=2))
     found = sum(part["findings"] for part in summary.values() if isinstance(part, dict))
     return 1 if found else 0
@@ -123,42 +126,73 @@ def run_catalogs(rng: random.Random, count: int, keep: Path) -> dict:
             "error_codes_seen": dict(outcomes.most_common(30)), **_timing(seconds)}
 
 
-def run_claims(rng: random.Random, count: int, keep: Path) -> dict:
+def run_claims(rng: random.Random, count: int, keep: Path, wall_seconds: float) -> dict:
     """Full checks of entries whose claims overflow floating point. The truth is decided by
     SymPy exactly, for the claims that load: a verified claim that differs from the truth, or
-    a refused one that equals it, is counted."""
+    a refused one that equals it, is counted. Each check runs in its own process, ended after
+    ``wall_seconds`` (a check still running then is counted, and is a finding: a hang)."""
+    import multiprocessing
+
     import sympy
 
-    from generator.entry.catalog import vocabulary
-    from generator.entry.loader import load_text
-    from generator.run.tasks import check_within_limits
-
-    words = vocabulary(ROOT / "catalog")
     M, r = sympy.symbols("M r", positive=True)
     tally: Counter[str] = Counter()
     seconds: list[float] = []
     findings = 0
+    context = multiprocessing.get_context("spawn")
     for i in range(count):
         source = _with_overflowing_claim(rng, SEED_ENTRY)
-        load = load_text(source, SEED_FILE, Path(SEED_FILE), words)
         claim, value = _the_overflowing_claim(source)
-        if not load.ok:
-            tally["refused while loading"] += 1
-            continue
         start = time.perf_counter()
-        report = check_within_limits([load], 60.0)
+        verdict = _check_in_child(context, source, claim, wall_seconds)
         seconds.append(time.perf_counter() - start)
-        verdicts = [v for v in report.verdicts if v.subject.endswith(claim)]
-        accepted = bool(verdicts) and all(v.ok for v in verdicts)
+        if verdict in ("refused while loading", "still running", "no verdict"):
+            tally[verdict] += 1
+            if verdict == "still running":
+                findings += 1
+                _keep(keep, "claim", i, source, [f"check still running after {wall_seconds} s"])
+            _progress("claims", i + 1, count)
+            continue
+        accepted = verdict == "verified"
         truth = sympy.simplify(sympy.sympify(value, locals={"M": M, "r": r}) -
                                sympy.sympify(TRUE_VALUES[claim], locals={"M": M, "r": r})) == 0
-        tally[f"{'true' if truth else 'false'} claim {'verified' if accepted else 'refused'}"] += 1
+        tally[f"{'true' if truth else 'false'} claim {verdict}"] += 1
         if accepted and not truth:
             findings += 1
             _keep(keep, "claim", i, source, [f"false claim {claim}: {value} was verified"])
         _progress("claims", i + 1, count)
     return {"inputs": count, "findings": findings, "outcomes": dict(tally), **_timing(seconds),
-            "values": len(OVERFLOW_VALUES)}
+            "wall_limit_s": wall_seconds, "values": len(OVERFLOW_VALUES)}
+
+
+def _check_in_child(context, source: str, claim: str, wall_seconds: float) -> str:
+    receive, send = context.Pipe(duplex=False)
+    child = context.Process(target=_claim_verdict, args=(source, claim, send))
+    child.start()
+    send.close()
+    verdict = receive.recv() if receive.poll(wall_seconds) else "still running"
+    if child.is_alive():
+        child.kill()
+    child.join()
+    return verdict
+
+
+def _claim_verdict(source: str, claim: str, send) -> None:
+    """In the child: load and check the entry; send 'verified', 'refused', ... back."""
+    from generator.entry.catalog import vocabulary
+    from generator.entry.loader import load_text
+    from generator.run.tasks import check_within_limits
+
+    load = load_text(source, SEED_FILE, Path(SEED_FILE), vocabulary(ROOT / "catalog"))
+    if not load.ok:
+        send.send("refused while loading")
+        return
+    report = check_within_limits([load], 30.0)
+    verdicts = [v for v in report.verdicts if v.subject.endswith(claim)]
+    if not verdicts:
+        send.send("no verdict")
+    else:
+        send.send("verified" if all(v.ok for v in verdicts) else "refused")
 
 
 def _the_overflowing_claim(source: str) -> tuple[str, str]:

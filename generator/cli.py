@@ -192,7 +192,8 @@ def _progress_printer(args: argparse.Namespace, total: int):
         bar.update(1)
 
     def running(ids: list[str]) -> None:
-        bar.set_postfix_str("checking " + ", ".join(ids) if ids else "")
+        # file names come from the pull request: shown escaped, like every diagnostic
+        bar.set_postfix_str("checking " + ", ".join(map(printable, ids)) if ids else "")
 
     return advance, running
 
