@@ -22,7 +22,8 @@ from generator.errors import Diagnostic, SourcePos, UsageError
 from generator.model import Family, Tag
 
 ENTRY_SUFFIXES = (".yaml", ".yml")
-VOCABULARY_FILES = ("tags.yaml", "families.yaml")
+VOCABULARY_FILES = ("tags.yaml", "families.yaml", "publication.yaml")  # not entries
+NAME_LISTS = ("tags.yaml", "families.yaml")  # the vocabularies entries are checked against
 
 
 def find_catalog_root(start: Path) -> Path | None:
@@ -155,12 +156,51 @@ def vocabulary_problems(root: Path | None, base: Path) -> dict[str, tuple[Diagno
     if root is None:
         return {}
     found = {}
-    for name in VOCABULARY_FILES:
+    for name in NAME_LISTS:
         display = display_path(root / name, base)
         problems = read_vocabulary_file(root / name, display).diagnostics
         if problems:
             found[display] = problems
     return found
+
+
+def _read_mapping(path: Path) -> dict[str, object]:
+    """A small settings file (e.g. publication.yaml) as {key: text, or a list/dict of texts},
+    read like every catalog file: no link, size cap, no anchors, aliases or tags. Problems
+    raise UsageError with the file's line and column (the caller cannot go on without it)."""
+    if not path.exists() and not is_link(path):
+        return {}
+    file = path.as_posix()
+    source, problem = read_catalog_file(path, file, MAX_VOCABULARY_BYTES)
+    problems = [problem] if problem is not None else []
+    node = None
+    if not problems:
+        node, problems = read_nodes(file, source)
+    if problems:
+        raise UsageError(problems[0].format_text())
+    if node is None:
+        return {}
+    if not isinstance(node, yaml.MappingNode):
+        raise UsageError(Diagnostic.at(node_position(file, node), "error", "expected a mapping "
+                                       "of keys to values", "settings.type").format_text())
+    data: dict[str, object] = {}
+    for key, value in node.value:
+        if not _is_plain_text(key):
+            raise UsageError(Diagnostic.at(node_position(file, key), "error",
+                                           "keys must be plain names", "settings.key"
+                                           ).format_text())
+        data[key.value] = _plain(value)
+    return data
+
+
+def _plain(node: yaml.Node) -> object:
+    """Scalars stay text; collections become lists and dicts of text (to be refused by the
+    caller where text is expected)."""
+    if isinstance(node, yaml.MappingNode):
+        return {str(k.value): _plain(v) for k, v in node.value}
+    if isinstance(node, yaml.SequenceNode):
+        return [_plain(item) for item in node.value]
+    return node.value
 
 
 def read_families(root: Path) -> tuple[Family, ...]:

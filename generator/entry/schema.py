@@ -61,6 +61,7 @@ MATTER_KINDS = (
     "perfect-fluid",
     "null-dust",
     "anisotropic-fluid",
+    "scalar-field",
     "unspecified",
 )
 PETROV_TYPES = ("I", "II", "III", "D", "N", "O")
@@ -168,6 +169,9 @@ MATTER = Field(
             "principal_pressures",
             "Anisotropic fluid: T^i_i by coordinate, for T^a_b diagonal in this chart.",
         ),
+        Field("scalar", "Scalar field: the field φ as a function of the coordinates.", "math"),
+        Field("scalar_potential", "Scalar field: the potential V(φ) along the solution, as a "
+              "function of the coordinates (omit for a massless field).", "math"),
     ),
 )
 

@@ -20,7 +20,8 @@ from generator.geometry.equality import canonical_all, decide_equal
 from generator.geometry.exactvalues import coordinate_names, index_label, vanishes
 from generator.model import Entry, Geometry, MathText, Spacetime
 
-SOURCE_KINDS = ("electrovacuum", "perfect-fluid", "null-dust", "anisotropic-fluid")
+SOURCE_KINDS = ("electrovacuum", "perfect-fluid", "null-dust", "anisotropic-fluid",
+                "scalar-field")
 EINSTEIN_KINDS = ("vacuum", "lambda-vacuum")
 EIGHT_PI = 8 * sympy.pi
 
@@ -311,11 +312,87 @@ def build_anisotropic(entry: Entry, spacetime: Spacetime, geometry: Geometry) ->
                                                              pressures=spatial))
 
 
+def gradient(field: sympy.Expr, coordinates: Sequence[sympy.Symbol]) -> list[sympy.Expr]:
+    return [sympy.diff(field, x) for x in coordinates]
+
+
+def wave_operator(field: sympy.Expr, geometry: Geometry,
+                  coordinates: Sequence[sympy.Symbol]) -> sympy.Expr:
+    """□φ = ∂_a(g^ab ∂_b φ) + Γ^a_ac g^cb ∂_b φ, with Γ^a_ac = ∂_c(det g)/(2 det g) (no root
+    of the determinant, as in ``maxwell_divergence``)."""
+    ginv = geometry.inverse_metric
+    det = geometry.metric.det()
+    n = len(coordinates)
+    up = [sum((ginv[a, b] * sympy.diff(field, coordinates[b]) for b in range(n)),
+              sympy.Integer(0)) for a in range(n)]
+    return sum((sympy.diff(up[a], coordinates[a]) + sympy.diff(det, coordinates[a])
+                / (2 * det) * up[a] for a in range(n)), sympy.Integer(0))
+
+
+def scalar_stress(field: sympy.Expr, potential: sympy.Expr, geometry: Geometry,
+                  coordinates: Sequence[sympy.Symbol]) -> sympy.Matrix:
+    """T_ab = ∇_aφ ∇_bφ − g_ab (½ ∇^cφ ∇_cφ + V), the minimally coupled field whose action is
+    ∫ √−g (R/16π − ½ ∇φ·∇φ − V) (signature −+++)."""
+    d = gradient(field, coordinates)
+    g, ginv = geometry.metric, geometry.inverse_metric
+    n = len(d)
+    kinetic = sum((ginv[a, b] * d[a] * d[b] for a in range(n) for b in range(n)),
+                  sympy.Integer(0))
+    return sympy.Matrix(n, n, lambda a, b: d[a] * d[b] - g[a, b] * (kinetic / 2 + potential))
+
+
+def scalar_field_problems(entry: Entry, spacetime: Spacetime, geometry: Geometry,
+                          field: sympy.Expr, potential: sympy.Expr | None
+                          ) -> tuple[Diagnostic, ...]:
+    """The field equation □φ = V'(φ), with V known only along the solution: V must be a
+    function of φ alone (dV ∧ dφ = 0) and □φ ∂_aφ = ∂_aV for every a, which is □φ = V'(φ)
+    wherever dφ ≠ 0 — decided exactly, without dividing by a derivative of φ."""
+    x = spacetime.coordinates
+    names = coordinate_names(spacetime)
+    box = wave_operator(field, geometry, x)
+    d = gradient(field, x)
+    if potential is None:
+        residuals = {"□φ": box}
+    else:
+        dv = gradient(potential, x)
+        residuals = {f"□φ ∂_{names[a]}φ − ∂_{names[a]}V": box * d[a] - dv[a]
+                     for a in range(len(x))}
+        residuals.update({f"∂_{names[a]}V ∂_{names[b]}φ − ∂_{names[b]}V ∂_{names[a]}φ":
+                          dv[a] * d[b] - dv[b] * d[a]
+                          for a in range(len(x)) for b in range(a + 1, len(x))})
+    bad = [label for label, value in residuals.items()
+           if vanishes(value, spacetime).equal is not True]
+    if not bad:
+        return ()
+    key = "matter.scalar_potential" if potential is not None and "□φ" not in bad else \
+        "matter.scalar"
+    return (Diagnostic.at(
+        entry.pos(key), "error",
+        f"the declared scalar field does not solve its field equation □φ = V′(φ): "
+        f"{', '.join(bad)} ≠ 0 (or undecided)", "matter.scalar-field",
+        "check φ and V (V is the potential along the solution, a function of φ alone; "
+        "omit it for a massless field)"),)
+
+
+def build_scalar_field(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> Built:
+    m = entry.matter
+    require(entry, "scalar", m.scalar, "scalar-field")
+    assert m.scalar is not None
+    field = parse_field(entry, spacetime, "matter.scalar", m.scalar)
+    potential = None if m.scalar_potential is None else \
+        parse_field(entry, spacetime, "matter.scalar_potential", m.scalar_potential)
+    problems = scalar_field_problems(entry, spacetime, geometry, field, potential)
+    stress = scalar_stress(field, potential if potential is not None else sympy.Integer(0),
+                           geometry, spacetime.coordinates)
+    return Built(stress, False, problems, SourceData("scalar-field"))
+
+
 BUILDERS: dict[str, Callable[[Entry, Spacetime, Geometry], Built]] = {
     "electrovacuum": build_electrovacuum,
     "perfect-fluid": build_perfect_fluid,
     "null-dust": build_null_dust,
     "anisotropic-fluid": build_anisotropic,
+    "scalar-field": build_scalar_field,
 }
 
 
@@ -391,6 +468,8 @@ def classify_matter(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> M
     mixed = (geometry.einstein_mixed + (lam or 0) * sympy.eye(geometry.dimension)) / EIGHT_PI
     reasons = {}
     if geometry.dimension < 3:
+        # G_ab vanishes identically in two dimensions: no metric there is "non-vacuum".
+        kind = NOT_APPLICABLE
         reasons["matter_kind"] = "Einstein's equations are empty below three dimensions"
     verified = built.source if built is not None and not diagnostics else None
     return MatterResult(kind, lam, simplest(stress, spacetime), simplest(mixed, spacetime),
@@ -401,6 +480,9 @@ def simplest(matrix: sympy.Matrix, spacetime: Spacetime) -> sympy.ImmutableMatri
     """Every component in display form, through one field for the whole matrix."""
     return sympy.ImmutableMatrix(matrix.rows, matrix.cols,
                                  canonical_all(list(matrix), spacetime))
+
+
+NOT_APPLICABLE = "not-applicable"
 
 
 def computed_kind(found: Geometric, declared: str, source_ok: bool) -> str:
