@@ -8,7 +8,7 @@ that caused it instead of stalling CI.
 
 The runs are derandomized (same examples on every run) so CI is deterministic; the example
 counts are printed by ``pytest -s`` via Hypothesis statistics (``--hypothesis-show-statistics``).
-A longer, unbounded run lives in bench/fuzz_atheris.py.
+The nightly-scale run of the whole-input generators is bench/fuzz_catalog.py (bench/README.md).
 """
 
 from __future__ import annotations
