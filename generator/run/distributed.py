@@ -83,8 +83,9 @@ def check_shipped(shipped: ShippedTask) -> EntryReport:
     if here != shipped.versions:
         raise VersionMismatch(f"this worker has {here} but the client has {shipped.versions}; "
                               "install the same versions on every worker")
-    # Dask runs tasks in worker threads; `run_limited` then runs the loading and the check in
-    # a child process whose main thread sets the alarm and the memory cap.
+    # Dask runs tasks in worker threads of daemonic processes, where neither signals nor child
+    # processes are available: `run_limited` then relies on the engine's cooperative budget
+    # and `dask worker --memory-limit`. Loading is inside that call too.
     try:
         return run_limited(_load_and_check_shipped, shipped,
                            seconds=alarm_seconds(shipped.seconds), memory_bytes=MEMORY_PER_ENTRY)

@@ -18,11 +18,14 @@ Limits:
 - Signals and resource limits belong to the process and its main thread. Called from another
   thread, `run_limited` runs ``fn`` in a fresh child process whose main thread sets the
   limits (``fn`` and its arguments must then be picklable); a child ended by the backstop
-  raises `BudgetExceeded` here. Running unbounded is never the fallback.
+  raises `BudgetExceeded` here. The one exception is a daemonic process (a Dask worker),
+  which may not start children: there Dask's ``--memory-limit`` and the engine's cooperative
+  time budget are the bounds, as the distributed guide says.
 """
 
 from __future__ import annotations
 
+import multiprocessing
 import resource
 import signal
 import threading
@@ -149,6 +152,10 @@ def run_limited(
     call, the process is ended by SIGXCPU after ``seconds + hard_grace`` CPU seconds.
     """
     if threading.current_thread() is not threading.main_thread():
+        if multiprocessing.current_process().daemon:
+            # A daemonic process (a Dask worker) may not start children: Dask's own
+            # --memory-limit and the engine's cooperative budget bound the work there.
+            return fn(*args)
         return run_limited_in_child(fn, *args, seconds=seconds, memory_bytes=memory_bytes,
                                     stage_of=stage_of, hard_grace=hard_grace)
     backstop = seconds + hard_grace if seconds > 0 else 0.0
@@ -175,7 +182,6 @@ def run_limited_in_child(
     or exception comes back here. For callers outside the main thread, and for work whose
     CPU-time backstop must end a child rather than the calling process (``fn`` and its
     arguments must be picklable)."""
-    import multiprocessing
     from concurrent.futures import ProcessPoolExecutor
     from concurrent.futures.process import BrokenProcessPool
 
