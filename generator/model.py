@@ -83,6 +83,8 @@ class Matter:
     principal_pressures: tuple[tuple[str, MathText], ...] = ()  # anisotropic fluid: T^i_i
     scalar: MathText | None = None  # scalar field φ
     scalar_potential: MathText | None = None  # V(φ) along the solution; None: massless
+    lagrangian: MathText | None = None  # nonlinear electrodynamics: L(F) along the solution
+    lagrangian_derivative: MathText | None = None  # dL/dF along the solution
 
 
 @dataclass(frozen=True)

@@ -199,6 +199,8 @@ def _build_matter(data: dict[str, Any], pos: SourcePos) -> Matter:
         pos=pos,
         scalar=data.get("scalar"),
         scalar_potential=data.get("scalar_potential"),
+        lagrangian=data.get("lagrangian"),
+        lagrangian_derivative=data.get("lagrangian_derivative"),
     )
 
 

@@ -21,7 +21,7 @@ from generator.geometry.exactvalues import coordinate_names, index_label, vanish
 from generator.model import Entry, Geometry, MathText, Spacetime
 
 SOURCE_KINDS = ("electrovacuum", "perfect-fluid", "null-dust", "anisotropic-fluid",
-                "scalar-field")
+                "scalar-field", "nonlinear-electrodynamics")
 EINSTEIN_KINDS = ("vacuum", "lambda-vacuum")
 EIGHT_PI = 8 * sympy.pi
 
@@ -387,12 +387,77 @@ def build_scalar_field(entry: Entry, spacetime: Spacetime, geometry: Geometry) -
     return Built(stress, False, problems, SourceData("scalar-field"))
 
 
+def invariant_f(F: sympy.Matrix, geometry: Geometry) -> sympy.Expr:
+    """F = ¼ F_ab F^ab (positive for a magnetic field, negative for an electric one)."""
+    ginv = geometry.inverse_metric
+    upper = ginv * F * ginv.T
+    n = F.rows
+    return sum((F[a, b] * upper[a, b] for a in range(n) for b in range(n)),
+               sympy.Integer(0)) / 4
+
+
+def nonlinear_stress(F: sympy.Matrix, lagrangian: sympy.Expr, slope: sympy.Expr,
+                     geometry: Geometry) -> sympy.Matrix:
+    """T_ab = (L_F F_ac F_b^c − g_ab L)/4π for the action ∫ √−g (R/16π − L(F)/4π); with
+    L = F this is the Maxwell tensor of ``maxwell_stress``."""
+    g, ginv = geometry.metric, geometry.inverse_metric
+    return (slope * F * (F * ginv).T - g * lagrangian) / (4 * sympy.pi)
+
+
+def nonlinear_problems(entry: Entry, spacetime: Spacetime, geometry: Geometry,
+                       F: sympy.Matrix, lagrangian: sympy.Expr, slope: sympy.Expr
+                       ) -> tuple[Diagnostic, ...]:
+    """The declared L and L_F must belong together (∂_a L = L_F ∂_a F) and the field must
+    solve ∇_a(L_F F^ab) = 0; both decided exactly."""
+    x = spacetime.coordinates
+    names = coordinate_names(spacetime)
+    invariant = invariant_f(F, geometry)
+    problems = []
+    bad = [f"∂_{names[a]}L − L_F ∂_{names[a]}F" for a in range(len(x))
+           if vanishes(sympy.diff(lagrangian, x[a]) - slope * sympy.diff(invariant, x[a]),
+                       spacetime).equal is not True]
+    if bad:
+        problems.append(Diagnostic.at(
+            entry.pos("matter.lagrangian_derivative"), "error",
+            f"the declared L and dL/dF do not belong together: {', '.join(bad)} ≠ 0 "
+            f"(F = ¼ F_ab F^ab = {sympy.factor(invariant)} here)", "matter.lagrangian",
+            "give L(F) and dL/dF both evaluated on this field, with F = ¼ F_ab F^ab"))
+    divergence = maxwell_divergence(slope * F, geometry, x)
+    bad = [f"∇_a(L_F F^a{index_label(names, (b,))})" for b, value in enumerate(divergence)
+           if vanishes(value, spacetime).equal is not True]
+    if bad:
+        problems.append(Diagnostic.at(
+            entry.pos("matter.potential"), "error",
+            f"the field does not solve the nonlinear field equations: {', '.join(bad)} ≠ 0 "
+            "(or undecided)", "matter.nonlinear-field",
+            "check A_a (lower index) and dL/dF"))
+    return tuple(problems)
+
+
+def build_nonlinear(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> Built:
+    m = entry.matter
+    kind = "nonlinear-electrodynamics"
+    for key, value in (("potential", m.potential), ("lagrangian", m.lagrangian),
+                       ("lagrangian_derivative", m.lagrangian_derivative)):
+        require(entry, key, value, kind)
+    assert m.lagrangian is not None and m.lagrangian_derivative is not None
+    potential = parse_vector(entry, spacetime, "matter.potential", m.potential)
+    lagrangian = parse_field(entry, spacetime, "matter.lagrangian", m.lagrangian)
+    slope = parse_field(entry, spacetime, "matter.lagrangian_derivative",
+                        m.lagrangian_derivative)
+    F = field_strength(potential, spacetime.coordinates)
+    problems = nonlinear_problems(entry, spacetime, geometry, F, lagrangian, slope)
+    return Built(nonlinear_stress(F, lagrangian, slope, geometry), False, problems,
+                 SourceData(kind))
+
+
 BUILDERS: dict[str, Callable[[Entry, Spacetime, Geometry], Built]] = {
     "electrovacuum": build_electrovacuum,
     "perfect-fluid": build_perfect_fluid,
     "null-dust": build_null_dust,
     "anisotropic-fluid": build_anisotropic,
     "scalar-field": build_scalar_field,
+    "nonlinear-electrodynamics": build_nonlinear,
 }
 
 

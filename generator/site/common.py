@@ -61,6 +61,7 @@ MATTER_LABELS = {
     "anisotropic-fluid": "anisotropic fluid",
     "null-dust": "null dust",
     "scalar-field": "scalar field",
+    "nonlinear-electrodynamics": "nonlinear electrodynamics",
     "unspecified": "no declared source",
     "non-vacuum": "unidentified source",
     "not-applicable": "no field equations (2D)",
