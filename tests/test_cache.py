@@ -336,10 +336,13 @@ def test_real_reports_round_trip_through_the_safe_unpickler() -> None:
     project = Path(__file__).resolve().parents[1]
     words = vocabulary(project / "catalog")
     loaded = [load_entry(path, path.name, words)
-              for path in sorted((project / "catalog").glob("*/*.yaml"))[:40]]
+              for path in sorted((project / "catalog").glob("*/*.yaml"))]
     assert any(load.entry and load.entry.functions for load in loaded)
     for load in loaded:
-        assert safe_loads(pickle.dumps(load, protocol=pickle.HIGHEST_PROTOCOL)) == load
+        blob = pickle.dumps(load, protocol=pickle.HIGHEST_PROTOCOL)
+        # compared with plain pickle: SymPy itself does not round-trip every expression to an
+        # equal one (janis-newman-winicour's (1 - b/r)**gamma), and that is not ours to judge
+        assert safe_loads(blob) == pickle.loads(blob)
     r, v = sympy.symbols("r v", positive=True)
     odd = (sympy.Function("m")(v) * sympy.Float("1.5") + sympy.Dummy("d"),
            sympy.ImmutableMatrix([[r, 1], [2, sympy.pi]]), frozenset({1}), complex(1, 2))
