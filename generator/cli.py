@@ -12,6 +12,7 @@ import sys
 from collections.abc import Sequence
 from pathlib import Path
 
+from generator.argv import join_dash_values
 from generator.errors import AlmanacError, UsageError
 
 EXIT_OK, EXIT_FAILED, EXIT_USAGE = 0, 1, 2
@@ -73,6 +74,8 @@ def build_parser() -> argparse.ArgumentParser:
     schema.add_argument("--root", type=Path, default=Path("."), help="project folder")
     schema.add_argument("--docs", action="store_true",
                         help="also refresh the key table in DEVELOPERS.md")
+    schema.add_argument("--check", action="store_true",
+                        help="write nothing; exit 1 if schema/entry.schema.json is out of date")
     return parser
 
 
@@ -88,7 +91,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         return cite_main(args_list[1:])
     parser = build_parser()
     try:
-        args = parser.parse_args(args_list)
+        args = parser.parse_args(join_dash_values(args_list, parser))
     except SystemExit as exc:
         return EXIT_USAGE if exc.code else EXIT_OK
     try:
@@ -121,7 +124,11 @@ def _dispatch(args: argparse.Namespace) -> int:
         serve_site(args.catalog, args.out, args.port)
         return EXIT_OK
     if args.command == "schema":
+        from generator.entry.jsonschema_export import main as schema_main
         from generator.entry.jsonschema_export import write_schema
+
+        if args.check:
+            return schema_main(["--check", str(args.root)])
 
         print(write_schema(args.root))
         if args.docs:
@@ -161,7 +168,8 @@ def run_check(args: argparse.Namespace) -> int:
         changed = {p.resolve() for p in changed_entries(base, args.changed_since,
                                                        root or Path("catalog"))}
         files = [f for f in files if f.resolve() in changed]
-    reports = check_files(files, root, base, _options(args), *_progress_printer(args, len(files)))
+    reports = check_files(files, root, base, _options(args), *_progress_printer(args, len(files)),
+                          changed_only=bool(args.changed_since))
     fmt = "json" if args.json else args.format
     _print_reports(reports, fmt, args.show_computed)
     if any(not r.ok for r in reports):
@@ -210,11 +218,19 @@ def _print_reports(reports, fmt: str, show_computed: bool) -> None:
             print(text, file=sys.stdout if fmt == "github" else sys.stderr)
         if show_computed:
             print(_computed_yaml(report))
-    failed = sum(not r.ok for r in reports)
+    print(check_summary(reports), file=sys.stderr)
+
+
+def check_summary(reports) -> str:
+    """'3 entries checked: 1 verified, 1 with nothing claimed, 1 failed (2 errors)'."""
+    from generator.physics.verify import entry_state
+
+    states = [entry_state(r) for r in reports]
     errors = sum(d.severity == "error" for r in reports for d in r.diagnostics)
-    summary = (f"{len(reports)} entries checked: {len(reports) - failed} verified, "
-               f"{failed} failed ({errors} errors)")
-    print(summary, file=sys.stderr)
+    empty = states.count("nothing-claimed")
+    nothing = f"{empty} with nothing claimed, " if empty else ""
+    return (f"{len(reports)} entries checked: {states.count('verified')} verified, {nothing}"
+            f"{states.count('failed')} failed ({errors} errors)")
 
 
 def _computed_yaml(report) -> str:

@@ -253,6 +253,7 @@ class Verdict:
     detail: str
     claimed: str = ""
     computed: str = ""
+    witness: dict[str, str] | None = None  # for a "different" verdict: where the sides differ
 
 
 def related_subject(index: int) -> str:

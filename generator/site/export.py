@@ -14,6 +14,7 @@ from typing import Any
 import sympy
 
 from generator.model import Classification, EntryReport, Geometry, Spacetime, Verdict
+from generator.physics.verify import entry_state
 
 
 def expr_text(expr: sympy.Basic | None) -> str | None:
@@ -26,6 +27,7 @@ def report_json(report: EntryReport) -> dict[str, Any]:
         "id": report.entry.id if report.entry else None,
         "file": report.file,
         "ok": report.ok,
+        "state": entry_state(report),
         "content_hash": report.content_hash,
         "diagnostics": [d.as_json() for d in report.diagnostics],
         "computed": None,
@@ -113,7 +115,7 @@ def classification_json(c: Classification, names: list[str]) -> dict[str, Any]:
 
 def verdict_json(v: Verdict) -> dict[str, Any]:
     return {"subject": v.subject, "ok": v.ok, "method": v.method, "detail": v.detail,
-            "claimed": v.claimed, "computed": v.computed}
+            "claimed": v.claimed, "computed": v.computed, "witness": v.witness}
 
 
 def check_document(reports: list[EntryReport]) -> dict[str, Any]:
