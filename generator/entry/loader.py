@@ -7,6 +7,7 @@ positioned diagnostic; nothing here raises for bad input.
 
 from __future__ import annotations
 
+import keyword
 import re
 from collections.abc import Iterable
 from dataclasses import dataclass, field
@@ -84,13 +85,23 @@ def load_text(source: str, file: str, path: Path, vocabulary: Vocabulary,
     if not _has_required(data):
         return LoadResult(file, None, None, tuple(diagnostics))
     entry = _build_entry(data, file, path, validated.positions, source)
-    diagnostics += _check_entry(entry, path, vocabulary)
+    diagnostics += _without_follow_ons(_check_entry(entry, path, vocabulary), diagnostics)
     if not with_math or any(d.severity == "error" and d.code != TODO_CODE
                             for d in diagnostics):
         return LoadResult(file, entry, None, tuple(diagnostics))
     spacetime, math_problems = build_spacetime(entry)
     diagnostics += math_problems
     return LoadResult(file, entry, spacetime, tuple(diagnostics))
+
+
+def _without_follow_ons(found: Iterable[Diagnostic], earlier: list[Diagnostic]
+                        ) -> list[Diagnostic]:
+    """Drop a signature-length error when a coordinate was already refused (a 'θ' is left
+    out of the coordinates, so the signature seems one sign too long: a false error)."""
+    refused_coordinate = any(d.message.startswith("'coordinates.") for d in earlier)
+    return [d for d in found
+            if not (refused_coordinate and d.code == "entry.signature" and "signs but" in
+                    d.message)]
 
 
 TODO_CODE = "entry.todo"
@@ -283,6 +294,13 @@ def _check_identity(entry: Entry, path: Path, vocabulary: Vocabulary) -> Iterabl
                      f"rename the file to {entry.id}.yaml or set id: {path.stem}")
 
 
+def _reserved_hint(name: str) -> str:
+    if keyword.iskeyword(name):
+        return (f"'{name}' is a keyword the math grammar keeps out; call it e.g. '{name}_' or "
+                f"'{name[:3]}' (the page can still show the Greek letter)")
+    return "it is a reserved word of the math grammar (a function or constant)"
+
+
 def _check_names(entry: Entry, path: Path, vocabulary: Vocabulary) -> Iterable[Diagnostic]:
     seen: dict[str, str] = {}
     declared = [(c, "coordinates", entry.pos("coordinates")) for c in entry.coordinates]
@@ -291,7 +309,7 @@ def _check_names(entry: Entry, path: Path, vocabulary: Vocabulary) -> Iterable[D
     for name, where, pos in declared:
         if not valid_name(name):
             yield _error(pos, f"'{name}' cannot be used as a name in {where}", "entry.name",
-                         "it is a reserved word of the math grammar (a function or constant)")
+                         _reserved_hint(name))
         elif name in seen:
             yield _error(pos, f"'{name}' is declared twice (in {seen[name]} and {where})",
                          "entry.name", "give each coordinate, parameter and function its own name")

@@ -83,7 +83,7 @@ class _Checker:
             return None
         if spec.pattern and not re.match(spec.pattern, value):
             self.error(node, f"'{path}' has an invalid value {value!r}", "entry.format",
-                       _pattern_hint(spec))
+                       _greek_hint(value) or _pattern_hint(spec))
             return None
         return value
 
@@ -240,6 +240,17 @@ def _shape(node: yaml.Node) -> str:
     if isinstance(node, yaml.SequenceNode):
         return "list"
     return "single value"
+
+
+def _greek_hint(value: str) -> str:
+    """'write theta for θ' when a name is a Greek letter (names are written out in ASCII)."""
+    from generator.entry.mathparse import spelled_out
+
+    words = [(char, spelled_out(char)) for char in value if not char.isascii()]
+    if words and all(word for _, word in words):
+        fixed = "".join(spelled_out(c) or c for c in value)
+        return f"write Greek letters out in names: {fixed} for {value}"
+    return ""
 
 
 def _pattern_hint(spec: Field) -> str:
