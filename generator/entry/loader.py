@@ -203,7 +203,7 @@ def _build_entry(data: dict[str, Any], file: str, path: Path,
             for i, item in enumerate(data.get("related", ()))
             if "entry" in item
         ),
-        positions=dict(positions),
+        positions=_condition_positions(positions),
         source_text=source,
     )
 
@@ -222,6 +222,24 @@ def _build_matter(data: dict[str, Any], pos: SourcePos) -> Matter:
     )
 
 
+_CONDITION_NAMES = {key: name for name, key in schema.ENERGY_CONDITION_KEYS.items()}
+
+
+def _energy_conditions(data: dict[str, str]) -> tuple[tuple[str, str], ...]:
+    """(condition, state) pairs under the conditions' own names (null, weak, ...): the
+    entry's keys carry a suffix only so that YAML reads them as strings."""
+    return tuple(sorted((_CONDITION_NAMES.get(key, key), state) for key, state in data.items()))
+
+
+def _condition_positions(positions: dict[str, SourcePos]) -> dict[str, SourcePos]:
+    """Positions of ``claims.energy_conditions.null_condition`` also under ``...null``, the
+    name the physics stage reports a disagreement at."""
+    prefix = "claims.energy_conditions."
+    extra = {f"{prefix}{name}": positions[f"{prefix}{key}"]
+             for key, name in _CONDITION_NAMES.items() if f"{prefix}{key}" in positions}
+    return {**positions, **extra}
+
+
 def _build_claims(data: dict[str, Any], pos: Any) -> Claims:
     scalars = tuple(
         Claim(name, data[name]["value"], data[name].get("source"), data[name].get("locator"),
@@ -236,7 +254,7 @@ def _build_claims(data: dict[str, Any], pos: Any) -> Claims:
         petrov_type=petrov.get("value"),
         petrov_pos=pos("claims.petrov_type") if petrov else None,
         hawking_ellis_type=hawking_ellis.get("value"),
-        energy_conditions=tuple(sorted(data.get("energy_conditions", {}).items())),
+        energy_conditions=_energy_conditions(data.get("energy_conditions", {})),
         killing_vectors=tuple(
             VectorClaim(tuple(vector.items()), pos(f"claims.killing_vectors.{i}"))
             for i, vector in enumerate(data.get("killing_vectors", ()))

@@ -222,7 +222,8 @@ def _reference_block(r: ReferenceSpec) -> str:
 
 def _curation_block(d: Draft) -> str:
     by = d.by or "TODO: your name"
-    return f"curation:\n  added: {d.added or _today()}\n  by: {_value(by)}\n"
+    # Quoted: a YAML 1.1 reader (PyYAML, many editors) makes a bare 2026-12-02 a date object.
+    return f'curation:\n  added: "{d.added or _today()}"\n  by: {_value(by)}\n'
 
 
 def _today() -> str:
