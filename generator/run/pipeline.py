@@ -57,6 +57,7 @@ def check_files(
     on_done: Callable[[EntryReport], None] | None = None,
     on_running: Callable[[list[str]], None] | None = None,
     changed_only: bool = False,
+    search_duplicates: bool = True,
 ) -> list[EntryReport]:
     """Check the selected entry files; the rest of the catalog is loaded for cross-references.
 
@@ -79,7 +80,7 @@ def check_files(
     tasks = [_task(outline, by_id, root, base, options) for outline in chosen]
     reports = _run(tasks, options, Progress(on_done, on_running))
     twins: dict[str, list[Diagnostic]] = {}
-    if changed_only or len(reports) <= TWIN_SEARCH_MAX_ENTRIES:
+    if search_duplicates and (changed_only or len(reports) <= TWIN_SEARCH_MAX_ENTRIES):
         groups = chart_groups(outline_links(outlines))
         others = _twin_candidates(reports, outlines, set(chosen), by_id, root, base, options,
                                   groups)
