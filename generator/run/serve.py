@@ -18,13 +18,13 @@ from http.server import SimpleHTTPRequestHandler, ThreadingHTTPServer
 from pathlib import Path
 
 from generator.errors import AlmanacError
-from generator.site.common import REPO_ROOT
+from generator.site.common import TEMPLATE_DIR
 
 POLL_SECONDS = 1.0
 
 
 def watched_roots() -> tuple[Path, ...]:
-    return (Path.cwd() / "catalog", REPO_ROOT / "site_templates")
+    return (Path.cwd() / "catalog", TEMPLATE_DIR)
 
 
 def snapshot(roots: Iterable[Path]) -> tuple[tuple[str, int, int], ...]:
