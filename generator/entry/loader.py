@@ -384,8 +384,9 @@ def _check_references(entry: Entry, path: Path, vocabulary: Vocabulary) -> Itera
 def _check_claim_sources(entry: Entry, path: Path, vocabulary: Vocabulary
                          ) -> Iterable[Diagnostic]:
     roles = {r.role for r in entry.references} | {schema.COMPUTED_HERE}
-    sources = [(c.source, c.pos) for c in entry.claims.scalars]
-    sources += [(s, entry.pos(f"claims.{n}")) for n, s, _ in entry.claims.label_sources]
+    # At the `source:` line itself (entry.pos falls back to the claim for the short form).
+    sources = [(c.source, entry.pos(f"claims.{c.name}.source")) for c in entry.claims.scalars]
+    sources += [(s, entry.pos(f"claims.{n}.source")) for n, s, _ in entry.claims.label_sources]
     for source, pos in sources:
         if source is not None and source not in roles:
             yield _error(pos, f"claim source '{source}' is not the role of any reference",

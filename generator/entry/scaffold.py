@@ -489,7 +489,7 @@ class _Abort(Exception):
 
 def _parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(
-        prog="python -m generator new",
+        prog="almanac new",
         description="Start a new catalog entry that passes the schema, with TODO markers for "
         "what is still to fill in. Missing answers are asked for with --interactive.",
     )

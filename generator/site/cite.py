@@ -233,9 +233,26 @@ def split_venue(venue: str, year: int | None = None) -> Venue:
     """
     match = _VENUE_PATTERN.match(venue.strip())
     if not match or match["volume"] == str(year):
+        pages_only = _PAGES_ONLY.match(venue.strip())
+        if pages_only and not re.search(r"\d", pages_only["journal"]):
+            return Venue(_journal(pages_only["journal"]), pages=_pages(pages_only["pages"]))
         return Venue(venue.strip())
-    pages = re.sub(r"\s*[-\u2013]+\s*", "-", match["pages"])
-    return Venue(match["journal"].strip(), match["volume"], match["issue"] or "", pages)
+    return Venue(_journal(match["journal"]), match["volume"], match["issue"] or "",
+                 _pages(match["pages"]))
+
+
+# "Journal name, 189": a journal without a volume number, then the pages.
+_PAGES_ONLY = re.compile(r"^(?P<journal>[^,]+(?:,[^,\d]+)*),\s*"
+                         r"(?P<pages>\d+(?:\s*[-\u2013]+\s*\d+)?)$")
+
+
+def _journal(text: str) -> str:
+    """The journal without the comma that separated it from the volume ("..., Serie II,")."""
+    return text.strip().rstrip(",;").strip()
+
+
+def _pages(text: str) -> str:
+    return re.sub(r"\s*[-\u2013]+\s*", "-", text)
 
 
 def split_name(author: str) -> tuple[str, str]:
@@ -349,10 +366,10 @@ def cite_main(argv: list[str]) -> int:
 
 def _parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
-        prog="python -m generator cite",
+        prog="almanac cite",
         description="Print a citation for a catalog entry, or find which entry a hash belongs to.",
     )
-    parser.add_argument("id", nargs="?", help="entry id, e.g. schwarzschild-curvature")
+    parser.add_argument("id", nargs="?", help="entry id, e.g. kerr-boyer-lindquist")
     parser.add_argument("--format", choices=FORMATS, default="bibtex")
     parser.add_argument(
         "--original", action="store_true", help="cite the publication the metric comes from"

@@ -70,6 +70,10 @@ MATTER_LABELS = {
     "anisotropic-fluid": "anisotropic fluid",
     "null-dust": "null dust",
     "unspecified": "no declared source",
+    # What the geometry alone says when no source was declared or verified (never a bare
+    # internal word on a page):
+    "non-vacuum": "matter present (source not declared)",
+    "undecided": "matter content undecided",
 }
 METHOD_LABELS = {
     "exact": "exact (normal form)",
