@@ -9,7 +9,8 @@ plus a positioned diagnostic for each failure. A claim passes only when equality
 from __future__ import annotations
 
 import time
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
+from dataclasses import replace
 from fractions import Fraction
 
 import mpmath
@@ -72,8 +73,15 @@ def check_loaded(
         diagnostics.append(_budget_diagnostic(entry, exc))
     if classification is not None and not compared_anything(verdicts):
         diagnostics.append(_nothing_claimed(entry))
-    return EntryReport(entry, load.file, spacetime, geometry, classification, tuple(verdicts),
-                       tuple(diagnostics), _hash(entry), time.perf_counter() - started)
+    return EntryReport(entry, load.file, spacetime, geometry, classification,
+                       with_published_sources(entry, verdicts), tuple(diagnostics), _hash(entry),
+                       time.perf_counter() - started)
+
+
+def with_published_sources(entry: Entry, verdicts: Sequence[Verdict]) -> tuple[Verdict, ...]:
+    """Each verdict with the reference that prints its claimed value (if the entry names one),
+    so that "agrees with the literature" is decided in one place from the entry itself."""
+    return tuple(replace(v, source=entry.published_source(v.subject)) for v in verdicts)
 
 
 NOTHING_CLAIMED = "entry.nothing-claimed"
@@ -298,7 +306,7 @@ def check_scalar_claims(entry: Entry, spacetime: Spacetime, geometry: Geometry
         decision = decide_equal(claimed, computed, spacetime)
         verdicts.append(Verdict(subject, decision.equal is True, decision.method,
                                 decision.detail, claim.value.text, str(computed),
-                                decision.witness if decision.equal is False else None))
+                                witness=decision.witness if decision.equal is False else None))
         if decision.equal is not True:
             diagnostics.append(_verdict_diagnostic(entry, verdicts[-1], decision.equal is None))
     return verdicts, diagnostics
