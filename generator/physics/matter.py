@@ -499,7 +499,8 @@ def check_source(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     failing, undecided = failing_components(residual, spacetime, template,
                                             symmetric=not built.mixed)
     diagnostics = list(built.side_problems)
-    wrong_fields = field_diagnostics(entry, spacetime, geometry, Lambda, built) \
+    wrong_fields = field_diagnostics(entry, spacetime, geometry, Lambda, built,
+                                     residual_message(kind, failing, undecided)) \
         if failing or undecided else []
     diagnostics += wrong_fields
     if (failing or undecided) and not wrong_fields:
@@ -512,7 +513,8 @@ def check_source(entry: Entry, spacetime: Spacetime, geometry: Geometry,
 
 
 def field_diagnostics(entry: Entry, spacetime: Spacetime, geometry: Geometry,
-                      Lambda: sympy.Expr | None, built: Built) -> list[Diagnostic]:
+                      Lambda: sympy.Expr | None, built: Built, residual: str
+                      ) -> list[Diagnostic]:
     """An error at each declared density or pressure line that differs from the value the
     field equations imply, with that value.
 
@@ -548,12 +550,13 @@ def field_diagnostics(entry: Entry, spacetime: Spacetime, geometry: Geometry,
             continue
         shown = canonical_all([value], spacetime)[0]
         label = key.removeprefix("matter.")
+        given = "velocity" if source.kind == "perfect-fluid" else "source"
         out.append(Diagnostic.at(
             entry.pos(key), "error",
-            f"{label} does not satisfy G_ab + Λ g_ab = 8π T_ab with the declared "
-            f"{'velocity' if source.kind == 'perfect-fluid' else 'source'}; the field "
-            f"equations give {label} = {shown}", "matter.field-equations",
-            f"write {shown}, or check the metric and the reference's conventions"))
+            f"{residual}; with the declared {given} the field equations give {label} = "
+            f"{shown}", "matter.field-equations",
+            f"write {label.rpartition('.')[2]}: {shown}, or check the metric and the "
+            f"reference's conventions"))
     return out
 
 
