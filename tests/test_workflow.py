@@ -179,3 +179,13 @@ def test_the_pull_request_step_warns_about_a_renamed_copy(tmp_path: Path, monkey
     assert len(warnings) == 1, out
     assert "file=catalog/black-holes/lamp-hole.yaml,line=2" in warnings[0]
     assert "schwarzschild" in warnings[0] and "entry.duplicate" in warnings[0]
+
+
+def test_the_cache_ci_restores_can_verify() -> None:
+    """Cache files are signed; CI used to set no secret, so a restored cache never verified.
+    The key comes from a repository secret, and the run says so when it is missing."""
+    from generator.run.cache import SECRET_ENV
+
+    assert WORKFLOW["env"][SECRET_ENV] == "${{ secrets.ALMANAC_CACHE_SECRET }}"
+    assert any(SECRET_ENV in step.get("run", "") and "::notice" in step["run"]
+               for step in steps("catalog"))
