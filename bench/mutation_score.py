@@ -289,8 +289,8 @@ def _mutate_one(file: Path, folder: Path, by_id: dict[str, LoadResult], catalog:
 
 CODE_FILES = ("generator/geometry/equality.py", "generator/geometry/canonicity.py",
               "generator/geometry/tracked.py", "generator/geometry/decisions.py")
-CODE_TESTS = ("tests/test_soundness.py", "tests/test_equality.py")
-QUICK_TESTS = ("tests/test_soundness.py",)  # --quick: the soundness tests alone
+CODE_TESTS = ("tests/test_soundness.py", "tests/test_canonicity.py", "tests/test_equality.py")
+QUICK_TESTS = ("tests/test_soundness.py", "tests/test_canonicity.py")  # --quick
 FLIPS = {ast.Lt: ast.GtE, ast.GtE: ast.Lt, ast.Gt: ast.LtE, ast.LtE: ast.Gt,
          ast.Eq: ast.NotEq, ast.NotEq: ast.Eq, ast.Is: ast.IsNot, ast.IsNot: ast.Is,
          ast.In: ast.NotIn, ast.NotIn: ast.In}
