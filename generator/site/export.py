@@ -14,8 +14,8 @@ from typing import Any
 import sympy
 
 from generator.model import Classification, EntryReport, Geometry, Spacetime, Verdict
-from generator.site.common import decided_by
 from generator.physics.verify import entry_state
+from generator.site.common import decided_by
 
 
 def expr_text(expr: sympy.Basic | None) -> str | None:
