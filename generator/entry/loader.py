@@ -218,6 +218,12 @@ def _build_claims(data: dict[str, Any], pos: Any) -> Claims:
         for name in schema.SCALAR_CLAIMS
         if name in data and "value" in data[name]
     )
+    physical = tuple(
+        Claim(name, data[name]["value"], data[name].get("source"), data[name].get("locator"),
+              pos(f"claims.{name}"))
+        for name in schema.PHYSICAL_CLAIMS
+        if name in data and "value" in data[name]
+    )
     petrov = data.get("petrov_type", {})
     hawking_ellis = data.get("hawking_ellis_type", {})
     return Claims(
@@ -232,6 +238,7 @@ def _build_claims(data: dict[str, Any], pos: Any) -> Claims:
         ),
         pos=pos("claims"),
         label_sources=_label_sources(data),
+        physical=physical,
     )
 
 
@@ -348,7 +355,7 @@ def _check_references(entry: Entry, path: Path, vocabulary: Vocabulary) -> Itera
 def _check_claim_sources(entry: Entry, path: Path, vocabulary: Vocabulary
                          ) -> Iterable[Diagnostic]:
     roles = {r.role for r in entry.references} | {schema.COMPUTED_HERE}
-    sources = [(c.source, c.pos) for c in entry.claims.scalars]
+    sources = [(c.source, c.pos) for c in (*entry.claims.scalars, *entry.claims.physical)]
     sources += [(s, entry.pos(f"claims.{n}")) for n, s, _ in entry.claims.label_sources]
     for source, pos in sources:
         if source is not None and source not in roles:

@@ -70,6 +70,21 @@ ENERGY_CONDITIONS = ("null", "weak", "strong", "dominant")
 REFERENCE_ROLES = ("original", "independent", "claims", "textbook", "review", "erratum")
 REFERENCE_FIELDS = ("authors", "title", "venue", "year", "doi", "arxiv", "isbn", "locator")
 SCALAR_CLAIMS = ("ricci_scalar", "kretschmann", "ricci_squared", "weyl_squared")
+# Claims about physical data computed from the metric (generator.physics.physical). Horizon
+# claims name the principal horizon: the event horizon, else the outermost cosmological one.
+PHYSICAL_CLAIM_DOCS = (
+    ("horizon_location", "Where the principal horizon is (the value of its coordinate)."),
+    ("surface_gravity", "The principal horizon's surface gravity κ (κ ≥ 0)."),
+    ("horizon_area", "The area of the principal horizon's cross-section t = const."),
+    ("horizon_angular_velocity", "The principal horizon's angular velocity Ω_H."),
+    ("photon_sphere", "Radius of the outermost circular null orbit (static, spherical)."),
+    ("isco", "Radius of the innermost stable circular timelike orbit (static, spherical)."),
+    ("expansion", "Expansion θ of the observers (declared fluid velocity, else at rest)."),
+    ("shear_squared", "σ_ab σ^ab of the observers (no factor ½)."),
+    ("vorticity_squared", "ω_ab ω^ab of the observers (no factor ½)."),
+    ("acceleration_squared", "a_a a^a of the observers."),
+)
+PHYSICAL_CLAIMS = tuple(name for name, _ in PHYSICAL_CLAIM_DOCS)
 COMPUTED_HERE = "computed-here"
 
 
@@ -180,6 +195,7 @@ CLAIMS = Field(
         _scalar_claim("kretschmann", "The Kretschmann scalar R_abcd R^abcd."),
         _scalar_claim("ricci_squared", "The square of the Ricci tensor R_ab R^ab."),
         _scalar_claim("weyl_squared", "The square of the Weyl tensor C_abcd C^abcd."),
+        *(_scalar_claim(name, doc) for name, doc in PHYSICAL_CLAIM_DOCS),
         Field(
             "petrov_type",
             "The Petrov type (4D Lorentzian only).",

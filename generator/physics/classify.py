@@ -20,6 +20,7 @@ from generator.model import Classification, EnergyCondition, Entry, Geometry, Sp
 from generator.physics.energy import CONDITIONS, Spectrum, energy_conditions, hawking_ellis
 from generator.physics.matter import MatterResult, classify_matter
 from generator.physics.petrov import PetrovResult, petrov_type
+from generator.physics.physical import check_physical_claims, physical_data
 from generator.physics.symmetry import check_all_related, check_killing_vector, geodesic_equations
 
 SAMPLE_COUNT = 10
@@ -64,6 +65,11 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     diagnostics += [problem for _, problem in killing if problem is not None]
     linked, link_problems = check_all_related(entry, spacetime, related)
     diagnostics += link_problems
+    source = matter.source
+    declared = source.vector if source is not None and source.kind == "perfect-fluid" else None
+    physical = physical_data(spacetime, geometry, declared)
+    physical_verdicts, physical_problems = check_physical_claims(entry, spacetime, physical)
+    diagnostics += physical_problems
     classification = Classification(
         matter_kind=matter.kind,
         cosmological_constant=matter.cosmological_constant,
@@ -78,6 +84,8 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
         related_checked=tuple(linked),
         geodesic_equations=geodesic_equations(geometry, spacetime.coordinates),
         reasons=reasons,
+        physical=physical,
+        physical_checked=tuple(physical_verdicts),
     )
     return classification, diagnostics
 
