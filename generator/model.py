@@ -126,6 +126,8 @@ class RelatedChart:
     entry: str
     map: tuple[tuple[str, MathText], ...]  # this entry's coordinates in the other's coordinates
     pos: SourcePos
+    kind: str = "chart"  # chart: same spacetime | limit: the other entry is a limit of this one
+    limit: tuple[tuple[str, MathText], ...] = ()  # parameter -> value it tends to (kind limit)
 
 
 @dataclass(frozen=True)

@@ -188,7 +188,8 @@ def _build_entry(data: dict[str, Any], file: str, path: Path,
         curation=Curation(data["curation"].get("added", ""), data["curation"].get("by", "")),
         related=tuple(
             RelatedChart(item["entry"], tuple(item.get("map", {}).items()),
-                         pos(f"related.{i}"))
+                         pos(f"related.{i}"), item.get("kind", "chart"),
+                         tuple(item.get("limit", {}).items()))
             for i, item in enumerate(data.get("related", ()))
             if "entry" in item
         ),

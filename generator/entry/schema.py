@@ -79,6 +79,8 @@ PHYSICAL_CLAIM_DOCS = (
     ("horizon_angular_velocity", "The principal horizon's angular velocity Ω_H."),
     ("photon_sphere", "Radius of the outermost circular null orbit (static, spherical)."),
     ("isco", "Radius of the innermost stable circular timelike orbit (static, spherical)."),
+    ("komar_mass", "Komar mass at infinity, M = −(n−2)/(16π(n−3)) ∮ ∇^a ξ^b dS_ab, ξ = ∂_t."),
+    ("komar_angular_momentum", "Komar angular momentum at infinity, J = (1/16π) ∮ ∇^a ψ^b dS_ab."),
     ("expansion", "Expansion θ of the observers (declared fluid velocity, else at rest)."),
     ("shear_squared", "σ_ab σ^ab of the observers (no factor ½)."),
     ("vorticity_squared", "ω_ab ω^ab of the observers (no factor ½)."),
@@ -86,6 +88,7 @@ PHYSICAL_CLAIM_DOCS = (
 )
 PHYSICAL_CLAIMS = tuple(name for name, _ in PHYSICAL_CLAIM_DOCS)
 COMPUTED_HERE = "computed-here"
+RELATED_KINDS = ("chart", "limit")
 
 
 def _vector(name: str, doc: str) -> Field:
@@ -326,6 +329,12 @@ ENTRY = Field(
                         "map",
                         "This entry's coordinates as functions of the other entry's.",
                     ),
+                    Field("kind", "chart (default): another chart of the same spacetime; "
+                          "limit: the other entry is this metric in a limit of its "
+                          "parameters.", "choice", choices=RELATED_KINDS),
+                    Field("limit", "Kind limit: each parameter of this entry and the value it "
+                          "tends to (e.g. a: 0); the map, if given, then applies.", "dict",
+                          key_pattern=NAME_PATTERN, item=Field("value", "", "math")),
                 ),
             ),
         ),

@@ -40,9 +40,14 @@ def natural_observer(spacetime: Spacetime, geometry: Geometry, points: Sequence[
         if number is None or not number.real < 0:
             return None, (f"no declared fluid velocity, and {spacetime.coordinates[0]} = const "
                           "is not spacelike everywhere in the domain")
-    lapse = 1 / sympy.sqrt(-g00)
-    u = [sympy.factor(-geometry.inverse_metric[a, 0] * lapse)
-         for a in range(spacetime.dimension)]
+    top, bottom = sympy.fraction(sympy.cancel(-g00))
+    # 1/sqrt(N/D) = sqrt(N D)/|N|, with the radicand expanded so that SymPy does not split
+    # off factors such as sqrt(r**2) = Abs(r) (not differentiable in the exact field).
+    value = numeric_value(substitute(top, points[0], angles), DIGITS)
+    sign = -1 if value is not None and value.real < 0 else 1
+    lapse = sympy.sqrt(sympy.expand(top * bottom)) / (sign * top)
+    u = [-geometry.inverse_metric[a, 0] * lapse if geometry.inverse_metric[a, 0] != 0
+         else sympy.Integer(0) for a in range(spacetime.dimension)]
     return u, f"unit normal to {spacetime.coordinates[0]} = const (observers at rest in the chart)"
 
 
@@ -78,7 +83,7 @@ def kinematics(spacetime: Spacetime, velocity: Sequence[sympy.Expr], source: str
     accel_squared = field.sum([field.mul(ginv[a][b], field.mul(accel[a], accel[b]))
                                for a in range(n) for b in range(n)])
     out = Kinematics(
-        observer=tuple((str(x), sympy.factor(v)) for x, v in zip(spacetime.coordinates,
+        observer=tuple((str(x), v) for x, v in zip(spacetime.coordinates,
                                                                   velocity, strict=True)
                        if v != 0),
         source=source,

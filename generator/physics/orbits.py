@@ -18,7 +18,7 @@ from collections.abc import Sequence
 import mpmath
 import sympy
 
-from generator.geometry.sampling import Point
+from generator.geometry.sampling import Point, numeric_value
 from generator.model import Horizon, Spacetime
 from generator.physics.horizons import closed_form_roots, cyclic_coordinates, polar_range
 
@@ -72,9 +72,11 @@ def orbit_radius(condition: sympy.Expr, r: sympy.Symbol, outside: float,
                 continue
             closed = None
             for candidate in closed_form_roots(base, r) or []:
-                number = mpmath.mpf(sympy.N(candidate.xreplace(params), DIGITS).as_real_imag()[0])
-                if abs(number - value) < mpmath.mpf(10) ** (10 - DIGITS) * (1 + abs(value)):
-                    closed = candidate
+                number = numeric_value(candidate.xreplace(params), DIGITS)
+                with mpmath.workdps(DIGITS):
+                    if number is not None and abs(number - value) < mpmath.mpf(10) ** (
+                            10 - DIGITS) * (1 + abs(value)):
+                        closed = candidate
             best = (value, closed, base)
     if best is None:
         return None, f"no {what} outside the horizons"

@@ -20,11 +20,11 @@ from generator.geometry.sampling import entry_points
 from generator.model import Entry, Geometry, Horizon, PhysicalData, Spacetime, Verdict
 from generator.physics.horizons import H, find_horizons
 from generator.physics.kinematics import observer_kinematics
+from generator.physics.komar import komar_charges
 from generator.physics.orbits import ergosurface, photon_sphere_and_isco
 
 FAILURES = (ValueError, TypeError, ZeroDivisionError, NotImplementedError, ArithmeticError,
             sympy.PolynomialError, RecursionError, BudgetExceeded)
-KOMAR_REASON = ("Komar integrals are not computed by this version of the tool")
 
 
 def physical_data(spacetime: Spacetime, geometry: Geometry,
@@ -54,8 +54,16 @@ def physical_data(spacetime: Spacetime, geometry: Geometry,
                             ("ergosurface", ergo, ergo_why), ("kinematics", kinematics, kin_why)):
         if value is None:
             reasons[key] = why
-    reasons["komar_mass"] = reasons["komar_angular_momentum"] = KOMAR_REASON
-    return PhysicalData(horizons, note, extremal, ergo, photon, isco, None, None, kinematics,
+    try:
+        mass, mass_why, spin, spin_why = komar_charges(spacetime, points)
+    except FAILURES as exc:
+        mass = spin = None
+        mass_why = spin_why = f"the computer algebra failed ({type(exc).__name__})"
+    if mass is None:
+        reasons["komar_mass"] = mass_why
+    if spin is None:
+        reasons["komar_angular_momentum"] = spin_why
+    return PhysicalData(horizons, note, extremal, ergo, photon, isco, mass, spin, kinematics,
                         reasons)
 
 
@@ -69,8 +77,10 @@ HORIZON_CLAIMS = {
     "horizon_angular_velocity": "angular_velocity",
 }
 ORBIT_CLAIMS = ("photon_sphere", "isco")
+CHARGE_CLAIMS = {"komar_mass": "komar_mass", "komar_angular_momentum": "komar_angular_momentum"}
 KINEMATIC_CLAIMS = ("expansion", "shear_squared", "vorticity_squared", "acceleration_squared")
-assert set(PHYSICAL_CLAIMS) == set(HORIZON_CLAIMS) | set(ORBIT_CLAIMS) | set(KINEMATIC_CLAIMS)
+assert set(PHYSICAL_CLAIMS) == (set(HORIZON_CLAIMS) | set(ORBIT_CLAIMS) | set(CHARGE_CLAIMS)
+                                | set(KINEMATIC_CLAIMS))
 
 
 def principal_horizon(data: PhysicalData) -> Horizon | None:
@@ -92,7 +102,7 @@ def computed_claim(name: str, data: PhysicalData) -> tuple[sympy.Expr | None, st
             return None, ("the horizon has no closed-form location here, so the claim is not "
                           "compared exactly")
         return value, horizon.reasons.get(HORIZON_CLAIMS[name], "not computed")
-    if name in ORBIT_CLAIMS:
+    if name in ORBIT_CLAIMS or name in CHARGE_CLAIMS:
         return getattr(data, name), data.reasons.get(name, "")
     if data.kinematics is None:
         return None, data.reasons.get("kinematics", "no observer field")
