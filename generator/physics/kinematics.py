@@ -6,8 +6,8 @@ With B_ab = ∇_b u_a + a_a u_b (the gradient projected orthogonally to u, a_a =
 (the normalisation of u may add a square root as a generator).
 
 The observer is the declared (and verified) fluid velocity when there is one; otherwise the
-unit normal to the surfaces x⁰ = const when they are spacelike (g^{00} < 0 at every sample
-point), i.e. the observers at rest in a static or comoving chart (Eulerian observers).
+unit normal to the surfaces x⁰ = const when the chart is static or comoving (no g_0a cross
+terms) and they are spacelike (g^{00} < 0 at every sample point): the observers at rest.
 """
 
 from __future__ import annotations
@@ -35,6 +35,9 @@ def natural_observer(spacetime: Spacetime, geometry: Geometry, points: Sequence[
     """u^a = −g^{a0}/sqrt(−g^{00}) when x⁰ = const is spacelike at every sample point."""
     g00 = geometry.inverse_metric[0, 0]
     angles = angle_coordinates(spacetime)
+    if any(spacetime.metric[0, a] != 0 for a in range(1, spacetime.dimension)):
+        return None, (f"no declared fluid velocity, and the chart is neither static nor "
+                      f"comoving ({spacetime.coordinates[0]} has cross terms in the metric)")
     for point in points:
         number = numeric_value(substitute(g00, point, angles), DIGITS)
         if number is None or not number.real < 0:
