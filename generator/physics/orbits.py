@@ -79,7 +79,9 @@ def orbit_radius(condition: sympy.Expr, r: sympy.Symbol, outside: float,
                         closed = candidate
             best = (value, closed, base)
     if best is None:
-        return None, f"no {what} outside the horizons"
+        at = ", ".join(f"{k} = {v}" for k, v in sorted(params.items(), key=str))
+        return None, (f"no {what} outside the horizons at the first sample parameters "
+                      f"({at}); it may exist elsewhere in the parameter range")
     if best[1] is None:
         return None, (f"the {what} is the root r ≈ {mpmath.nstr(best[0], 10)} (at the first "
                       f"sample parameters) of {best[2]} = 0, which has no closed form here")

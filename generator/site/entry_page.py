@@ -48,6 +48,7 @@ from generator.site.common import (
     verdict_row,
 )
 from generator.site.downloads import entry_json, latex_document, sympy_script
+from generator.site.physical_page import limit_rows, physical_section
 
 # ---------------------------------------------------------------------------- one entry
 
@@ -138,6 +139,8 @@ def entry_page_data(
         "matter": matter_data(report, verdicts),
         "symmetry": symmetry_data(report, verdicts),
         "related": related_rows(report, around.published_links),
+        "physical": physical_section(report),
+        "limits": limit_rows(report, around.published_links),
         "maps_onto_here": [chart_link_row(c) for c in around.charts if c.kind == MAPS_HERE],
         "charts_through": [chart_link_row(c) for c in around.charts if c.kind != MAPS_HERE],
         "references": [reference_data(r) for r in entry.references],
@@ -367,6 +370,8 @@ def related_rows(report: EntryReport, published: Sequence[str]) -> list[dict[str
     checks = {v.subject: v for v in (c.related_checked if c else ())}
     rows = []
     for k, rel in enumerate(entry.related):
+        if rel.kind == "limit":
+            continue  # shown with the limits (physical_page.limit_rows), not as a chart
         verdict = checks.get(related_subject(k))
         rows.append({
             "entry": rel.entry,
