@@ -35,7 +35,7 @@ from generator.geometry.sampling import Point, angle_coordinates, entry_points, 
 from generator.model import Geometry, Horizon, Spacetime
 from generator.physics.rootfield import RootField, root_field
 
-H = sympy.Symbol("h_root", positive=True)
+H = sympy.Symbol("h_root", real=True)
 DIGITS = 30
 PERIOD_NOTE = "cyclic angles taken with period 2π"
 
@@ -524,6 +524,20 @@ def positive_root(square: sympy.Expr, spacetime: Spacetime, points: Sequence[Poi
     return root if signs == {True} else canonical(-root, spacetime)
 
 
+def split_in_radical(expr: sympy.Expr, z: sympy.Symbol, d: sympy.Expr
+                     ) -> tuple[sympy.Expr, sympy.Expr]:
+    """(E, O) with expr = E + O z once z² = d (E, O free of z)."""
+    parts = sympy.collect(sympy.expand(expr), z, evaluate=False)
+    even, odd = sympy.Integer(0), sympy.Integer(0)
+    for power, coeff in parts.items():
+        k = 0 if power == 1 else sympy.degree(power, z)
+        if k % 2:
+            odd += coeff * d ** ((k - 1) // 2)
+        else:
+            even += coeff * d ** (k // 2)
+    return even, odd
+
+
 def denested_root(square: sympy.Expr, spacetime: Spacetime) -> sympy.Expr | None:
     """sqrt(A + B√d) = x + y√d when A² − B²d and (A ± √(A² − B²d))/2 are squares."""
     radicals = [r for r in square.atoms(sympy.Pow) if r.exp == sympy.Rational(1, 2)]
@@ -533,15 +547,11 @@ def denested_root(square: sympy.Expr, spacetime: Spacetime) -> sympy.Expr | None
     d = radical.base
     z = sympy.Dummy("z")
     num, den = sympy.fraction(sympy.together(square.xreplace({radical: z})))
-    if sympy.Poly(den, z).degree() > 0:
-        conjugate = sympy.Poly(den, z).as_expr().xreplace({z: -z})
-        num, den = sympy.expand(num * conjugate), sympy.expand(den * conjugate)
-    relation = sympy.Poly(z**2 - d, z)
-    num = sympy.Poly(num, z).rem(relation).as_expr()
-    den = sympy.Poly(den, z).rem(relation).as_expr()
-    poly = sympy.Poly(num, z)
-    b = poly.coeff_monomial(z) / den
-    a = poly.coeff_monomial(1) / den
+    top_even, top_odd = split_in_radical(num, z, d)
+    bottom_even, bottom_odd = split_in_radical(den, z, d)
+    norm = sympy.expand(bottom_even**2 - bottom_odd**2 * d)
+    a = sympy.cancel((top_even * bottom_even - top_odd * bottom_odd * d) / norm)
+    b = sympy.cancel((top_odd * bottom_even - top_even * bottom_odd) / norm)
     if b == 0:
         return None
     inner = exact_square_root(sympy.cancel(a**2 - b**2 * d), spacetime)
@@ -554,8 +564,7 @@ def denested_root(square: sympy.Expr, spacetime: Spacetime) -> sympy.Expr | None
             continue
         y = sympy.cancel(b / (2 * x))
         candidate = x + y * radical
-        check = sympy.expand(candidate**2 - square)
-        if canonical(check, spacetime) == 0:
+        if canonical(candidate**2 - square, spacetime) == 0:
             return canonical(candidate, spacetime)
     return None
 

@@ -12,6 +12,7 @@ import sympy
 from markupsafe import Markup
 
 from generator.model import EntryReport, Horizon, Verdict, related_subject
+from generator.physics.horizons import H
 from generator.site import mathtex
 from generator.site.common import math_inline, verdict_row
 
@@ -58,9 +59,8 @@ def horizon_row(h: Horizon, coordinates: tuple, verdicts: Mapping[str, dict[str,
         generator = " + ".join(f"{value}·∂_{name}" if value != 1 else f"∂_{name}"
                                for name, value in h.normal_killing_vector)
     return {"kind": h.kind, "coordinate": h.coordinate, "generator": generator,
-            "polynomial": str(h.polynomial) if h.location.has(sympy.Symbol("h_root",
-                                                                           positive=True))
-            else "", "how": h.how, "rows": rows}
+            "polynomial": str(h.polynomial) if h.location.has(H) else "",
+            "how": h.how, "rows": rows}
 
 
 def physical_section(report: EntryReport) -> dict[str, Any] | None:
