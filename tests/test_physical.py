@@ -220,6 +220,20 @@ def test_entries_without_horizons_say_so(entry_id: str) -> None:
     assert data.reasons["horizons"].startswith("none found")
 
 
+def test_unsolved_factors_are_not_reported_as_no_horizon() -> None:
+    """Bardeen's g^{rr} = 1 − 2Mr²/(r² + g²)^{3/2} vanishes at radii this version does not
+    locate (a radical in r): the entry must not claim there is no horizon."""
+    data = data_of("bardeen")
+    assert data.horizons == ()
+    assert data.reasons["horizons"].startswith("not determined")
+
+
+def test_axes_are_not_horizons() -> None:
+    """The C-metric's g^{xx} vanishes on the axes x = const, where ∂_φ degenerates and no
+    Killing vector ∂_t + Ω∂_φ is normal: only the y = const roots remain (common practice)."""
+    assert {h.coordinate for h in data_of("c-metric").horizons} == {"y"}
+
+
 # ---------------------------------------------------------------------------- kinematics
 
 

@@ -43,8 +43,10 @@ PERIOD_NOTE = "cyclic angles taken with period 2π"
 # ---------------------------------------------------------------------------- candidates
 
 
-def horizon_factors(spacetime: Spacetime, geometry: Geometry) -> list[tuple[int, sympy.Expr]]:
-    """(coordinate index, factor of g^{xx}'s numerator in x and the parameters only)."""
+def horizon_factors(spacetime: Spacetime, geometry: Geometry
+                    ) -> tuple[list[tuple[int, sympy.Expr]], list[sympy.Expr]]:
+    """(coordinate index, factor of g^{xx}'s numerator in x and the parameters only), and
+    the factors in x that also hold radicals or functions (not solved here)."""
     n = spacetime.dimension
     diagonal = tuple(geometry.inverse_metric[i, i] for i in range(n))
     request = FieldRequest(spacetime.coordinates, spacetime.parameters, spacetime.functions,
@@ -52,9 +54,10 @@ def horizon_factors(spacetime: Spacetime, geometry: Geometry) -> list[tuple[int,
     try:
         field, values = build_field(request)
     except (NotInField, ZeroDivisionError):
-        return []
+        return [], []
     parameter_vars = {field.index[p] for p in spacetime.parameters if p in field.index}
-    found = []
+    coordinate_vars = {field.index[x] for x in spacetime.coordinates if x in field.index}
+    found, unsolved = [], []
     for i, value in enumerate(values):
         x = spacetime.coordinates[i]
         if value.is_zero() or x not in field.index:
@@ -66,7 +69,10 @@ def horizon_factors(spacetime: Spacetime, geometry: Geometry) -> list[tuple[int,
             used = {k for k, d in enumerate(degrees) if d}
             if degrees[x_var] >= 1 and used <= parameter_vars | {x_var}:
                 found.append((i, field.poly_to_sympy(factor)))
-    return found
+            elif used and not used <= parameter_vars | coordinate_vars and any(
+                    spec.meaning.has(x) for k, spec in enumerate(field.specs) if k in used):
+                unsolved.append(field.poly_to_sympy(factor))
+    return found, unsolved
 
 
 def closed_form_roots(polynomial: sympy.Expr, x: sympy.Symbol) -> list[sympy.Expr] | None:
@@ -99,7 +105,7 @@ def find_horizons(spacetime: Spacetime, geometry: Geometry
     points = entry_points(spacetime, 3)
     if not points:
         return (), "no sample point in the domain to locate roots", ()
-    factors = horizon_factors(spacetime, geometry)
+    factors, unsolved = horizon_factors(spacetime, geometry)
     horizons: list[Horizon] = []
     extremal: list[str] = []
     for x_index, factor in factors:
@@ -107,12 +113,22 @@ def find_horizons(spacetime: Spacetime, geometry: Geometry
         horizons += found
         extremal += [condition] if condition else []
     horizons = classify_kinds(spacetime, geometry, horizons, points[0])
+    unsolved_note = ""
+    if unsolved:
+        shown = "; ".join(str(f) for f in unsolved[:3])
+        unsolved_note = (f"; g^{{xx}} also has factors with radicals or functions ({shown}) "
+                         "whose zeros this version does not locate, so horizons there are "
+                         "not listed")
     if not horizons:
+        if unsolved:
+            return (), "not determined" + unsolved_note, ()
         return (), ("none found: no factor of any g^{xx} (x a coordinate) vanishes at a real "
                     "value inside the chart's range; a horizon this chart does not reach in "
                     "that form (e.g. isotropic or Kruskal-type charts) is not excluded"), ()
     note = ("null surfaces x = const where a factor of g^{xx} in x and the parameters "
-            "vanishes; every such root is listed, including those outside the entry's domain")
+            "vanishes; every such root is listed, including those outside the entry's "
+            "domain; roots where no Killing vector ∂_t + Ω ∂_φ is normal (such as an axis) "
+            "are left out" + unsolved_note)
     return tuple(horizons), note, tuple(extremal)
 
 
@@ -134,6 +150,9 @@ def horizons_of_factor(spacetime: Spacetime, geometry: Geometry, x_index: int,
         data = HorizonAlgebra(spacetime, x_index, polynomial, points)
     except (NotInField, ZeroDivisionError):
         data = None
+    if data is not None and data.time is not None and not data.chi and \
+            data.reasons.get("normal_killing_vector", "").startswith("no Killing vector"):
+        return [], None  # e.g. an axis of symmetry, where a rotation vector vanishes
     found = []
     for value in numeric:
         location = match_root(explicit, value, params)
@@ -431,7 +450,7 @@ def make_horizon(spacetime: Spacetime, geometry: Geometry, x_index: int,
     vector = None
     if data.omega is not None:
         vector = ((names[data.time], sympy.Integer(1)),
-                  *((names[j], omega) for j in data.rotating))
+                  *((names[j], omega) for j in data.rotating if omega != 0))
         if not data.rotating and not data.rotations:
             omega = None
             reasons["angular_velocity"] = "no axial Killing coordinate"

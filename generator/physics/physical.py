@@ -15,6 +15,8 @@ import sympy
 from generator.entry.loader import parse_at, symbol_table
 from generator.entry.schema import PHYSICAL_CLAIMS
 from generator.errors import BudgetExceeded, Diagnostic
+from generator.geometry.algebra import NotInField
+from generator.geometry.curvature import DegenerateMetric
 from generator.geometry.equality import decide_equal
 from generator.geometry.sampling import entry_points
 from generator.model import Entry, Geometry, Horizon, PhysicalData, Spacetime, Verdict
@@ -24,7 +26,7 @@ from generator.physics.komar import komar_charges
 from generator.physics.orbits import ergosurface, photon_sphere_and_isco
 
 FAILURES = (ValueError, TypeError, ZeroDivisionError, NotImplementedError, ArithmeticError,
-            sympy.PolynomialError, RecursionError, BudgetExceeded)
+            sympy.PolynomialError, RecursionError, BudgetExceeded, NotInField, DegenerateMetric)
 
 
 def physical_data(spacetime: Spacetime, geometry: Geometry,
