@@ -5,7 +5,7 @@ reason, never a number."""
 
 from __future__ import annotations
 
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from typing import Any
 
 import sympy
@@ -129,3 +129,72 @@ def limit_rows(report: EntryReport, published: tuple[str, ...]) -> list[dict[str
             "verdict": verdict_row(verdict) if verdict else None,
         })
     return rows
+
+
+def verified_limit_links(report: EntryReport) -> list[tuple[str, str]]:
+    """(target id, limit shown) of this entry's limit links that verified."""
+    entry, c = report.entry, report.classification
+    if entry is None or c is None:
+        return []
+    checks = {v.subject: v for v in c.related_checked}
+    out = []
+    for k, link in enumerate(entry.related):
+        verdict = checks.get(related_subject(k))
+        if link.kind == "limit" and verdict is not None and verdict.ok:
+            out.append((link.entry, ", ".join(f"{name} → {value.text}"
+                                              for name, value in link.limit)))
+    return out
+
+
+def family_limit_tree(cards: Sequence[Mapping[str, Any]]) -> list[dict[str, Any]]:
+    """The limit tree of a family page: verified limit links between its published entries,
+    with links relative to the families/ folder."""
+    ids = {card["id"] for card in cards}
+    edges = [(card["id"], target, shown) for card in cards
+             for target, shown in card.get("limit_links", ()) if target in ids]
+    return limit_tree(edges, "", prefix="../entries/")
+
+
+def limit_families(published: Sequence[EntryReport]) -> dict[str, tuple[tuple[str, str, str], ...]]:
+    """Entry id → the verified limit links (from, to, limit) of its family: the entries joined
+    to it by limit links in either direction, all published."""
+    ids = {r.entry.id for r in published if r.entry is not None}
+    edges = [(report.entry.id, target, shown) for report in published
+             if report.entry is not None
+             for target, shown in verified_limit_links(report) if target in ids]
+    parent = {i: i for i in ids}
+
+    def root(i: str) -> str:
+        while parent[i] != i:
+            parent[i] = parent[parent[i]]
+            i = parent[i]
+        return i
+
+    for a, b, _ in edges:
+        ra, rb = root(a), root(b)
+        parent[max(ra, rb)] = min(ra, rb)
+    by_root: dict[str, list[tuple[str, str, str]]] = {}
+    for edge in edges:
+        by_root.setdefault(root(edge[0]), []).append(edge)
+    return {i: tuple(sorted(by_root.get(root(i), ()))) for i in sorted(ids)
+            if by_root.get(root(i))}
+
+
+def limit_tree(edges: Sequence[tuple[str, str, str]], here: str, prefix: str = "../"
+               ) -> list[dict[str, Any]]:
+    """The family as nested nodes from its most general members down (an entry reached along
+    two paths appears under both), for the page's nested list."""
+    children: dict[str, list[tuple[str, str]]] = {}
+    targets = set()
+    for a, b, shown in edges:
+        children.setdefault(a, []).append((b, shown))
+        targets.add(b)
+    tops = sorted({a for a, _, _ in edges} - targets)
+
+    def node(entry_id: str, shown: str, seen: frozenset[str]) -> dict[str, Any]:
+        below = [node(b, how, seen | {entry_id}) for b, how in sorted(children.get(entry_id, []))
+                 if b not in seen]
+        return {"entry": entry_id, "href": f"{prefix}{entry_id}/index.html", "limit": shown,
+                "here": entry_id == here, "children": below}
+
+    return [node(top, "", frozenset()) for top in tops]
