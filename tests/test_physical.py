@@ -414,3 +414,37 @@ def test_check_json_has_the_contract_keys() -> None:
     for key in ("ergosurface", "photon_sphere", "isco", "kinematics"):
         assert key in computed
     assert computed["photon_sphere"] is None and "photon_sphere" in computed["physical_reasons"]
+
+
+# ---------------------------------------------------------------------------- page and groups
+
+
+def test_limit_tree_nests_from_the_most_general_entry() -> None:
+    """Kerr–Newman → Kerr → Schwarzschild and Kerr–Newman → RN → Schwarzschild (common
+    practice): one top, Schwarzschild reached along both paths, this entry marked."""
+    from generator.site.physical_page import limit_tree
+
+    edges = [("kerr-newman", "kerr", "Q → 0"), ("kerr-newman", "rn", "a → 0"),
+             ("kerr", "schwarzschild", "a → 0"), ("rn", "schwarzschild", "Q → 0")]
+    tree = limit_tree(edges, "kerr")
+    assert [n["entry"] for n in tree] == ["kerr-newman"]
+    kerr, rn = tree[0]["children"]
+    assert kerr["here"] and kerr["limit"] == "Q → 0" and not rn["here"]
+    assert [n["entry"] for n in kerr["children"]] == ["schwarzschild"]
+    assert [n["entry"] for n in rn["children"]] == ["schwarzschild"]
+
+
+def test_limit_links_do_not_join_chart_groups() -> None:
+    """Kerr and Schwarzschild are different spacetimes: a limit link must not make them
+    charts of one spacetime for the duplicate search, while a chart link still does."""
+    from generator.entry.catalog import Outline, chart_groups, outline_links
+    from generator.errors import SourcePos
+
+    at = SourcePos("x.yaml", 1, 1)
+    outlines = [Outline("a.yaml", "kerr", at, (("schwarzschild", at),),
+                        frozenset({"schwarzschild"})),
+                Outline("b.yaml", "kerr-ks", at, (("kerr", at),)),
+                Outline("c.yaml", "schwarzschild", at, ())]
+    groups = chart_groups(outline_links(outlines))
+    assert groups["kerr"] == groups["kerr-ks"]
+    assert groups["kerr"] != groups["schwarzschild"]
