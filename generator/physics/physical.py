@@ -138,7 +138,7 @@ def check_physical_claims(entry: Entry, spacetime: Spacetime, data: PhysicalData
         decision = decide_equal(claimed, computed, spacetime)
         ok = decision.equal is True
         verdicts.append(Verdict(subject, ok, decision.method, decision.detail, claim.value.text,
-                                str(computed)))
+                                str(computed), entry.published_source(subject)))
         if not ok:
             verb = "does not match" if decision.equal is False else "could not be matched with"
             problems.append(Diagnostic.at(claim.pos, "error", f"claimed {label} {verb} the "
