@@ -448,3 +448,22 @@ def test_limit_links_do_not_join_chart_groups() -> None:
     groups = chart_groups(outline_links(outlines))
     assert groups["kerr"] == groups["kerr-ks"]
     assert groups["kerr"] != groups["schwarzschild"]
+
+
+@pytest.mark.parametrize("entry_id", ["rindler", "melvin", "kasner", "bardeen"])
+def test_komar_is_refused_where_there_is_no_sphere_at_infinity_to_read(entry_id: str) -> None:
+    """No Komar value is invented: Rindler and Melvin have no sphere of angles around a radius
+    (cyclic planar coordinates), Kasner no timelike Killing coordinate, and Bardeen's
+    integrand holds a radical in r whose leading term is not read here (common practice: the
+    Komar mass needs a stationary, asymptotically flat region)."""
+    data = data_of(entry_id)
+    assert data.komar_mass is None and data.reasons["komar_mass"]
+
+
+def test_horizons_that_depend_on_the_parameters_are_not_denied() -> None:
+    """Hayward's g^{rr} numerator r³ − 2Mr² + 2Ml² has real roots only for M large enough
+    against l (S. A. Hayward, Formation and evaporation of nonsingular black holes, Phys. Rev.
+    Lett. 96, 031103 (2006) — from memory): without roots at the sample parameters the entry
+    says so instead of "none"."""
+    reason = data_of("hayward").reasons.get("horizons", "")
+    assert data_of("hayward").horizons or reason.startswith("none at the first sample")

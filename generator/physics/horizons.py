@@ -37,7 +37,10 @@ from generator.physics.rootfield import RootField, root_field
 
 H = sympy.Symbol("h_root", real=True)
 DIGITS = 30
-PERIOD_NOTE = "cyclic angles taken with period 2π"
+PERIOD_NOTE = "azimuthal angles taken with period 2π"
+# Cyclic coordinates read as azimuthal angles of period 2π (others, such as a cyclic z or y of
+# a planar chart, have no known range and give no area).
+AZIMUTHS = ("phi", "varphi", "psi")
 
 
 # ---------------------------------------------------------------------------- candidates
@@ -108,10 +111,14 @@ def find_horizons(spacetime: Spacetime, geometry: Geometry
     factors, unsolved = horizon_factors(spacetime, geometry)
     horizons: list[Horizon] = []
     extremal: list[str] = []
+    rootless: list[sympy.Expr] = []
     for x_index, factor in factors:
-        found, condition = horizons_of_factor(spacetime, geometry, x_index, factor, points)
+        found, condition, has_roots = horizons_of_factor(spacetime, geometry, x_index, factor,
+                                                         points)
         horizons += found
         extremal += [condition] if condition else []
+        if not has_roots and factor.free_symbols & set(spacetime.parameters):
+            rootless.append(factor)
     horizons = classify_kinds(spacetime, geometry, horizons, points[0])
     unsolved_note = ""
     if unsolved:
@@ -122,6 +129,13 @@ def find_horizons(spacetime: Spacetime, geometry: Geometry
     if not horizons:
         if unsolved:
             return (), "not determined" + unsolved_note, ()
+        if rootless:
+            at = ", ".join(f"{k} = {v}" for k, v in sorted(
+                ((p, points[0][p]) for p in spacetime.parameters if p in points[0]), key=str))
+            shown = "; ".join(str(f) for f in rootless[:3])
+            return (), (f"none at the first sample parameters ({at}): the factor(s) {shown} "
+                        "of g^{xx} have no real root in the chart's range there, but may for "
+                        "other parameter values"), ()
         return (), ("none found: no factor of any g^{xx} (x a coordinate) vanishes at a real "
                     "value inside the chart's range; a horizon this chart does not reach in "
                     "that form (e.g. isotropic or Kruskal-type charts) is not excluded"), ()
@@ -134,7 +148,9 @@ def find_horizons(spacetime: Spacetime, geometry: Geometry
 
 def horizons_of_factor(spacetime: Spacetime, geometry: Geometry, x_index: int,
                        factor: sympy.Expr, points: Sequence[Point]
-                       ) -> tuple[list[Horizon], str | None]:
+                       ) -> tuple[list[Horizon], str | None, bool]:
+    """The horizons of one factor, the extremality condition, and whether it has real roots
+    in range at the first sample parameters."""
     x = spacetime.coordinates[x_index]
     polynomial = sympy.expand(factor.xreplace({x: H}))
     params = {p: points[0][p] for p in spacetime.parameters if p in points[0]}
@@ -143,22 +159,22 @@ def horizons_of_factor(spacetime: Spacetime, geometry: Geometry, x_index: int,
     if positive:
         numeric = [v for v in numeric if v > 0]
     if not numeric:
-        return [], None
+        return [], None, False
     explicit = closed_form_roots(polynomial, H)
-    condition = extremality(polynomial) if len(numeric) > 1 else None
+    condition = extremality(polynomial, params) if len(numeric) > 1 else None
     try:
         data = HorizonAlgebra(spacetime, x_index, polynomial, points)
     except (NotInField, ZeroDivisionError):
         data = None
     if data is not None and data.time is not None and not data.chi and \
             data.reasons.get("normal_killing_vector", "").startswith("no Killing vector"):
-        return [], None  # e.g. an axis of symmetry, where a rotation vector vanishes
+        return [], None, True  # e.g. an axis of symmetry, where a rotation vector vanishes
     found = []
     for value in numeric:
         location = match_root(explicit, value, params)
         found.append(make_horizon(spacetime, geometry, x_index, polynomial, location, value,
                                   data, points))
-    return found, condition
+    return found, condition, True
 
 
 def real_roots(polynomial: sympy.Expr, params: dict) -> list[mpmath.mpf]:
@@ -182,8 +198,9 @@ def match_root(explicit: list[sympy.Expr] | None, value: mpmath.mpf, params: dic
     return None
 
 
-def extremality(polynomial: sympy.Expr) -> str:
-    """Where two roots merge: the discriminant of P vanishes (in x² for a biquadratic P)."""
+def extremality(polynomial: sympy.Expr, params: dict) -> str:
+    """Where two roots merge: the discriminant D of P vanishes (in x² for a biquadratic P);
+    the side of D = 0 the sample parameters are on is where the roots are distinct."""
     poly = sympy.Poly(polynomial, H)
     coeffs = poly.all_coeffs()
     if poly.degree() == 4 and coeffs[1] == 0 and coeffs[3] == 0:
@@ -191,7 +208,13 @@ def extremality(polynomial: sympy.Expr) -> str:
         discriminant = sympy.discriminant(coeffs[0] * u**2 + coeffs[2] * u + coeffs[4], u)
     else:
         discriminant = sympy.discriminant(polynomial, H)
-    return f"two roots merge (extremal) where {sympy.factor(discriminant)} = 0"
+    shown = sympy.factor(discriminant)
+    value = discriminant.xreplace(params)
+    side = ">" if value.is_positive else "<" if value.is_negative else None
+    if side is None:
+        return f"two roots merge (extremal) where {shown} = 0"
+    return (f"distinct roots while {shown} {side} 0 (as at the first sample parameters); two "
+            f"roots merge (extremal) where {shown} = 0")
 
 
 def even_in(spacetime: Spacetime, x: sympy.Symbol) -> bool:
@@ -395,8 +418,8 @@ def cyclic_coordinates(spacetime: Spacetime) -> list[int]:
 
 def killing_coordinates(spacetime: Spacetime, points: Sequence[Point]
                         ) -> tuple[int | None, list[int]]:
-    """The time coordinate (cyclic, g_tt < 0 at most sample points, else the first cyclic
-    one) and the other cyclic coordinates (rotations)."""
+    """The time coordinate (cyclic, g_tt < 0 at the most sample points; None when no cyclic
+    coordinate is timelike at any) and the other cyclic coordinates (rotations)."""
     cyclic = cyclic_coordinates(spacetime)
     if not cyclic:
         return None, []
@@ -412,8 +435,9 @@ def killing_coordinates(spacetime: Spacetime, points: Sequence[Point]
 
     scores = {i: timelike_votes(i) for i in cyclic}
     best = max(cyclic, key=lambda i: (scores[i], -i))
-    time = best if scores[best] else cyclic[0]
-    return time, [i for i in cyclic if i != time]
+    if not scores[best]:
+        return None, []  # no cyclic coordinate is timelike anywhere sampled
+    return best, [i for i in cyclic if i != best]
 
 
 # ---------------------------------------------------------------------------- per root
@@ -604,7 +628,7 @@ def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Exp
         bounds = polar_range(spacetime, y)
         if bounds is not None:
             ranges.append((y, *bounds))
-        elif a in cyclic:
+        elif a in cyclic and str(y) in AZIMUTHS:
             ranges.append((y, sympy.Integer(0), 2 * sympy.pi))
         else:
             return None, (f"the cross-section is not compact in {y} (no range known): an area "
@@ -633,7 +657,7 @@ def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Exp
     parts = []
     if any(polar_range(spacetime, y) for y in angles):
         parts.append("polar angles over (0, π) from the domain")
-    if any(spacetime.coordinates.index(y) in cyclic for y in angles):
+    if any(str(y) in AZIMUTHS for y in angles):
         parts.append(PERIOD_NOTE)
     return area, "exact" + (": " + "; ".join(parts) if parts else "")
 

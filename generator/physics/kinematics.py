@@ -24,6 +24,7 @@ from generator.geometry.curvature import (
     christoffel_symbols,
     inverse_matrix,
 )
+from generator.geometry.equality import exact_square_root
 from generator.geometry.sampling import Point, angle_coordinates, numeric_value, substitute
 from generator.model import Geometry, Kinematics, Spacetime
 
@@ -48,7 +49,12 @@ def natural_observer(spacetime: Spacetime, geometry: Geometry, points: Sequence[
     # off factors such as sqrt(r**2) = Abs(r) (not differentiable in the exact field).
     value = numeric_value(substitute(top, points[0], angles), DIGITS)
     sign = -1 if value is not None and value.real < 0 else 1
-    lapse = sympy.sqrt(sympy.expand(top * bottom)) / (sign * top)
+    radicand = sympy.expand(top * bottom)
+    root = exact_square_root(radicand, spacetime)
+    if root is not None:
+        value = numeric_value(substitute(root, points[0], angles), DIGITS)
+        root = -root if value is not None and value.real < 0 else root
+    lapse = (root if root is not None else sympy.sqrt(radicand)) / (sign * top)
     u = [-geometry.inverse_metric[a, 0] * lapse if geometry.inverse_metric[a, 0] != 0
          else sympy.Integer(0) for a in range(spacetime.dimension)]
     return u, f"unit normal to {spacetime.coordinates[0]} = const (observers at rest in the chart)"

@@ -25,6 +25,7 @@ from generator.geometry.curvature import Budget, FieldArithmetic, Limits, invers
 from generator.geometry.sampling import Point, inside_domain
 from generator.model import Spacetime
 from generator.physics.horizons import (
+    AZIMUTHS,
     cyclic_coordinates,
     density_root,
     field_det,
@@ -63,6 +64,9 @@ def komar_charges(spacetime: Spacetime, points: Sequence[Point]
     for i in angles:
         y = spacetime.coordinates[i]
         bounds = polar_range(spacetime, y)
+        if bounds is None and str(y) not in AZIMUTHS:
+            why = f"{y} is neither a polar angle nor an azimuth: no sphere around {r}"
+            return None, why, None, why
         ranges.append((y, *(bounds or (sympy.Integer(0), 2 * sympy.pi))))
     entries = tuple(spacetime.metric[a, b] for a in range(n) for b in range(n))
     field, values = build_field(FieldRequest(spacetime.coordinates, spacetime.parameters,
@@ -100,7 +104,11 @@ def charge(field: RationalField, g: list[list[Frac]], ginv: list[list[Frac]], mi
     integrand = field.scale(upper, 2)  # ∇^t ξ^r − ∇^r ξ^t
     if integrand.is_zero():
         return sympy.Integer(0), ""
-    r_var = field.index[spacetime.coordinates[r_index]]
+    r = spacetime.coordinates[r_index]
+    r_var = field.index[r]
+    if not only_through(field, (integrand, minus_det), r_var, r):
+        return None, (f"the integrand depends on {r} through functions or radicals, so its "
+                      "leading term is not read off here")
     e_power, e_lead = leading(field, integrand, r_var)
     d_power, d_lead = leading(field, minus_det, r_var)
     if d_power % 2:
@@ -120,6 +128,18 @@ def charge(field: RationalField, g: list[list[Frac]], ginv: list[list[Frac]], mi
     if value.has(sympy.Integral):
         return None, "the sphere integral is not elementary"
     return value, ""
+
+
+def only_through(field: RationalField, values: tuple[Frac, ...], r_var: int,
+                 r: sympy.Symbol) -> bool:
+    """The values depend on r only as a polynomial variable (no radical or function of r)."""
+    for value in values:
+        for poly in (value.num, value.den):
+            degrees = poly.degrees()
+            for k, spec in enumerate(field.specs):
+                if k != r_var and degrees[k] and spec.meaning.has(r):
+                    return False
+    return True
 
 
 def leading(field: RationalField, value: Frac, var: int) -> tuple[int, Frac]:
