@@ -467,3 +467,37 @@ def test_horizons_that_depend_on_the_parameters_are_not_denied() -> None:
     says so instead of "none"."""
     reason = data_of("hayward").reasons.get("horizons", "")
     assert data_of("hayward").horizons or reason.startswith("none at the first sample")
+
+
+SHIPPED_WITH_PHYSICAL_CLAIMS = sorted(
+    p.stem for p in CATALOG.glob("*/*.yaml") if any(
+        line.strip().startswith(tuple(f"{name}:" for name in (
+            "horizon_location", "surface_gravity", "horizon_area", "horizon_angular_velocity",
+            "photon_sphere", "isco", "komar_mass", "komar_angular_momentum", "expansion",
+            "shear_squared", "vorticity_squared", "acceleration_squared")))
+        for line in p.read_text(encoding="utf-8").splitlines()))
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("entry_id", SHIPPED_WITH_PHYSICAL_CLAIMS)
+def test_every_shipped_physical_claim_verifies_and_its_mutants_fail(entry_id: str) -> None:
+    """Like tests/test_claim_mutations.py for the invariants: each claim as written is equal
+    to the computed value, and scaled, shifted or sign-flipped copies are rejected."""
+    from generator.entry.loader import parse_at, symbol_table
+    from generator.physics.physical import computed_claim
+
+    result = loaded(entry_id)
+    entry, st = result.entry, result.spacetime
+    table, _ = symbol_table(entry)
+    assert entry.claims.physical
+    for claim in entry.claims.physical:
+        computed, why = computed_claim(claim.name, data_of(entry_id))
+        assert computed is not None, why
+        claimed, problem = parse_at(claim.value, table)
+        assert problem is None
+        assert decide_equal(claimed, computed, st).equal is True, claim.name
+        mutants = [claimed * sp.Rational(8, 7) if claimed != 0 else sp.Rational(1, 7),
+                   claimed + 1 / (st.parameters[0] ** 2 + 3)]
+        mutants += [-claimed] if claimed != 0 else []
+        for mutant in mutants:
+            assert decide_equal(mutant, computed, st).equal is False, (claim.name, mutant)
