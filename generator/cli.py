@@ -12,7 +12,7 @@ import sys
 from collections.abc import Sequence
 from pathlib import Path
 
-from generator.errors import AlmanacError, UsageError
+from generator.errors import AlmanacError, UsageError, printable
 
 EXIT_OK, EXIT_FAILED, EXIT_USAGE = 0, 1, 2
 DEFAULT_CACHE = Path(".almanac-cache")
@@ -101,13 +101,13 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         return _dispatch(args)
     except UsageError as exc:
-        print(f"almanac: error: {exc}", file=sys.stderr)
+        print(f"almanac: error: {printable(str(exc))}", file=sys.stderr)
         return EXIT_USAGE
     except KeyboardInterrupt:
         print("almanac: interrupted", file=sys.stderr)
         return 130
     except AlmanacError as exc:
-        print(f"almanac: error: {exc}", file=sys.stderr)
+        print(f"almanac: error: {printable(str(exc))}", file=sys.stderr)
         return EXIT_USAGE
 
 
@@ -200,7 +200,8 @@ def _progress_printer(args: argparse.Namespace, total: int):
         bar.update(1)
 
     def running(ids: list[str]) -> None:
-        bar.set_postfix_str("checking " + ", ".join(ids) if ids else "")
+        # file names come from the pull request: shown escaped, like every diagnostic
+        bar.set_postfix_str("checking " + ", ".join(map(printable, ids)) if ids else "")
 
     return advance, running
 

@@ -114,3 +114,13 @@ def test_schema_check_passes_here_and_fails_on_a_stale_copy(tmp_path: Path) -> N
     (tmp_path / "schema").mkdir()
     (tmp_path / "schema" / "entry.schema.json").write_text("{}\n")
     assert jsonschema_export.main(["--check", str(tmp_path)]) == 1
+
+
+def test_the_cache_ci_restores_can_verify() -> None:
+    """Cache files are signed; CI used to set no secret, so a restored cache never verified.
+    The key comes from a repository secret, and the run says so when it is missing."""
+    from generator.run.cache import SECRET_ENV
+
+    assert WORKFLOW["env"][SECRET_ENV] == "${{ secrets.ALMANAC_CACHE_SECRET }}"
+    assert any(SECRET_ENV in step.get("run", "") and "::notice" in step["run"]
+               for step in steps("catalog"))

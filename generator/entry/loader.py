@@ -17,6 +17,7 @@ import sympy
 
 from generator.entry import schema
 from generator.entry.mathparse import SymbolTable, parse_expression, parse_inequality, valid_name
+from generator.entry.safefile import read_catalog_file
 from generator.entry.yamlcheck import MAX_FILE_BYTES, validate
 from generator.errors import Diagnostic, MathSyntaxError, SourcePos
 from generator.model import (
@@ -122,20 +123,8 @@ def find_todos(file: str, source: str) -> list[Diagnostic]:
 
 
 def _read_source(path: Path, file: str) -> tuple[str, Diagnostic | None]:
-    try:
-        raw = path.read_bytes()
-    except OSError as exc:
-        return "", Diagnostic(file, 1, 1, "error", f"cannot read file: {exc.strerror}",
-                              "file.unreadable")
-    if len(raw) > MAX_FILE_BYTES:
-        return "", Diagnostic(file, 1, 1, "error",
-                              f"file is {len(raw)} bytes (limit {MAX_FILE_BYTES})", "file.size",
-                              "an entry is one spacetime; split notes or shorten expressions")
-    try:
-        return raw.decode("utf-8"), None
-    except UnicodeDecodeError as exc:
-        return "", Diagnostic(file, 1, exc.start + 1, "error", "file is not valid UTF-8",
-                              "file.encoding", "save the file as UTF-8")
+    """The entry's text: never through a symbolic link, at most MAX_FILE_BYTES (`safefile`)."""
+    return read_catalog_file(path, file, MAX_FILE_BYTES)
 
 
 def _has_required(data: dict[str, Any]) -> bool:

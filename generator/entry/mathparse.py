@@ -28,6 +28,7 @@ MAX_EXPONENT = 100  # numerator and denominator bound of a numeric exponent
 MAX_POWER_BITS = 4096  # bound on the size of a number raised to a number
 MAX_DERIVATIVE_ORDER = 4
 MAX_DEGREE = 200  # bound on the polynomial degree an expression can expand to
+MAX_TERMS = 5_000  # bound on the number of terms an expression can expand to (`term_bound`)
 
 KNOWN_FUNCTIONS: dict[str, Callable[..., sympy.Expr]] = {
     "sin": sympy.sin,
@@ -412,12 +413,76 @@ def degree_bound(expr: sympy.Basic) -> int:
     return bound(expr)
 
 
+_TERM_CAP = 10**12  # counts stop growing here: enough to say "far too many"
+
+
+def term_bound(expr: sympy.Basic) -> int:
+    """An upper bound of the number of terms of the largest sum that expanding ``expr`` (as
+    ``sympy.expand`` does, inside function arguments and denominators too) can build.
+
+    The degree alone misses the number of variables: ``(M+a+b+c+d+e+f+g)**40`` has degree 40
+    but C(47, 7) ≈ 6.3e7 terms, which took minutes and gigabytes to expand. A sum of ``t``
+    terms raised to ``n`` has at most C(n+t-1, t-1) monomials; products multiply counts; sums
+    add them. A power that stays a denominator, a root or a function argument is one term to
+    its parent, but its own expansion counts towards the largest. Capped at 10**12.
+    """
+    memo: dict[sympy.Basic, int] = {}
+    largest = [1]
+
+    def terms(node: sympy.Basic) -> int:
+        if node in memo:
+            return memo[node]
+        if node.is_Atom:
+            value = 1
+        elif node.is_Add:
+            value = sum(terms(arg) for arg in node.args)
+        elif node.is_Mul:
+            value = 1
+            for arg in node.args:
+                value = min(value * terms(arg), _TERM_CAP)
+        elif node.is_Pow and node.exp.is_Integer:
+            expanded = _multinomial_terms(terms(node.base), abs(int(node.exp)))
+            largest[0] = max(largest[0], expanded)
+            value = expanded if node.exp > 0 else 1
+        else:  # a function, a root, a non-integer power: its arguments expand on their own
+            for arg in node.args:
+                largest[0] = max(largest[0], terms(arg))
+            value = 1
+        memo[node] = value = min(value, _TERM_CAP)
+        return value
+
+    whole = terms(expr)  # first: it records the largest inner expansion on the way
+    return max(largest[0], whole)
+
+
+def _multinomial_terms(count: int, power: int) -> int:
+    """C(power + count - 1, count - 1), the monomials of a ``count``-term sum to ``power``,
+    computed with a cap so that a huge power costs nothing."""
+    if count <= 1 or power <= 1:
+        return count if power == 1 else 1
+    k = min(power, count - 1)
+    top = power + count - 1
+    value = 1
+    for i in range(1, k + 1):
+        value = value * (top - k + i) // i
+        if value >= _TERM_CAP:
+            return _TERM_CAP
+    return value
+
+
 def _check_degree(expr: sympy.Basic) -> sympy.Basic:
     degree = degree_bound(expr)
     if degree > MAX_DEGREE:
         raise MathSyntaxError(
             f"expression expands to polynomial degree up to {degree} (limit {MAX_DEGREE})", 0,
             "nested powers multiply degrees; simplify the expression by hand")
+    count = term_bound(expr)
+    if count > MAX_TERMS:
+        shown = f"{count:,}" if count < _TERM_CAP else f"more than {_TERM_CAP:,}"
+        raise MathSyntaxError(
+            f"expression expands to {shown} terms (limit {MAX_TERMS:,})", 0,
+            "a power of a long sum has a vast number of terms once multiplied out; "
+            "write it with fewer terms or as a named parameter")
     return expr
 
 

@@ -312,8 +312,9 @@ def families(catalog: Path) -> tuple[str, ...]:
     """Family folder names from catalog/families.yaml (or the existing folders without it)."""
     listing = catalog / "families.yaml"
     if listing.exists():
-        data = yaml.safe_load(listing.read_text(encoding="utf-8")) or {}
-        return tuple(str(name) for name in data)
+        from generator.entry.catalog import read_vocabulary_file
+
+        return tuple(read_vocabulary_file(listing).entries)
     return tuple(sorted(p.name for p in catalog.iterdir() if p.is_dir()))
 
 

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import multiprocessing
 import os
+import tempfile
 from collections.abc import Callable, Sequence
 from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
 from concurrent.futures.process import BrokenProcessPool
@@ -24,13 +25,27 @@ from generator.entry.catalog import (
     entry_files,
     outline_all,
     outline_links,
+    vocabulary_problems,
 )
 from generator.errors import BudgetExceeded, Diagnostic
 from generator.model import EntryReport
 from generator.physics.twins import TwinCard, twin_card, worth_comparing
 from generator.run.cache import ResultCache, cache_key
-from generator.run.limits import run_limited
-from generator.run.tasks import MEMORY_PER_ENTRY, Task, internal_failure_report, run_task
+from generator.run.limits import (
+    DEFAULT_STAGE,
+    budget_failure_report,
+    run_limited,
+    run_limited_in_child,
+)
+from generator.run.tasks import (
+    MEMORY_PER_ENTRY,
+    Task,
+    backstop_report,
+    backstop_stage,
+    internal_failure_report,
+    run_task,
+    structure_of,
+)
 
 # The duplicate search compares invariants numerically and costs seconds per pair, so it runs
 # for a pull request's few entries, not for a whole-catalog build, and under a time limit.
@@ -47,6 +62,7 @@ class RunOptions:
     seconds_per_entry: float = 300.0
     cache_dir: Path | None = None
     scheduler: str | None = None  # address of a Dask distributed scheduler
+    in_process: bool = False  # check in this process (tests with a fake engine); see below
 
 
 def check_files(
@@ -64,7 +80,8 @@ def check_files(
     so these are the first unfinished ones — an entry that starts and ends between two looks
     may go unnamed)."""
     catalog_files = entry_files([root]) if root is not None else []
-    every = {p.resolve() for p in catalog_files} | {p.resolve() for p in selected}
+    # Absolute, but links not resolved: a link is checked (and refused) as itself.
+    every = {_absolute(p) for p in catalog_files} | {_absolute(p) for p in selected}
     # Workers load what they check; here only ids and links matter.
     outlines = outline_all(sorted(every), root, base)
     by_file = {outline.file: outline for outline in outlines}
@@ -80,8 +97,22 @@ def check_files(
                                   groups)
         twins = twin_warnings(reports, [*reports, *others.reports], others.ranks,
                               others.keep_ranks, groups)
-    return [_with_extra(report, cross.get(report.file, []) + twins.get(report.file, []))
-            for report in reports]
+    return [*vocabulary_reports(root, base),
+            *(_with_extra(report, cross.get(report.file, []) + twins.get(report.file, []))
+              for report in reports)]
+
+
+def vocabulary_reports(root: Path | None, base: Path) -> list[EntryReport]:
+    """A failed report for each vocabulary file (tags.yaml, families.yaml) with problems, so
+    that they are told at their own lines, in every output format, and fail the run. Entries
+    are checked against the names that could be read."""
+    return [EntryReport(None, file, None, None, None, (), diagnostics)
+            for file, diagnostics in vocabulary_problems(root, base).items()]
+
+
+def _absolute(path: Path) -> Path:
+    absolute = Path(os.path.abspath(path))
+    return absolute.parent.resolve() / absolute.name
 
 
 @dataclass
@@ -165,10 +196,14 @@ def twin_warnings(new: list[EntryReport], catalog: list[EntryReport],
     from generator.physics.twins import search_twins, twin_diagnostics
 
     verified = [r for r in new if r.ok]
+    others = [r for r in catalog if r.ok and all(r is not v for v in verified)]
+    # With candidates to compare, the search runs in a child process: its CPU-time backstop
+    # must end that child, never `check` itself (which would end with nothing printed).
+    limited = run_limited_in_child if verified and others else run_limited
     try:
-        search = run_limited(search_twins, verified, [r for r in catalog if r.ok],
-                             known_ranks or {}, groups, seconds=TWIN_SEARCH_SECONDS,
-                             memory_bytes=MEMORY_PER_ENTRY)
+        search = limited(search_twins, verified, [r for r in catalog if r.ok],
+                         known_ranks or {}, groups, seconds=TWIN_SEARCH_SECONDS,
+                         memory_bytes=MEMORY_PER_ENTRY)
     except BudgetExceeded:
         return {r.file: [_twin_search_stopped(r)] for r in verified}
     if keep_ranks is not None:
@@ -240,33 +275,50 @@ def _cacheable(report: EntryReport) -> bool:
     return not any(d.code in transient for d in report.diagnostics)
 
 
+def runs_in_this_process(options: RunOptions) -> bool:
+    """Whether checks run in the calling process: only when asked (tests with a fake engine).
+
+    Otherwise even a one-entry check runs in a worker process: the CPU-time backstop that ends
+    an entry stuck in one C call ends the whole process, and in the main process that would be
+    the end of ``check`` itself, with nothing printed."""
+    return options.in_process
+
+
 def _compute(tasks: list[Task], pending: list[int], options: RunOptions, progress: Progress):
     if options.scheduler:
         from generator.run.distributed import run_on_scheduler
 
         yield from run_on_scheduler(options.scheduler, tasks, pending, progress.done)
         return
-    jobs = options.jobs or os.cpu_count() or 1
-    if jobs == 1 or len(pending) <= 1:
+    if runs_in_this_process(options):
         for i in pending:
             progress.now_running([tasks[i]])
             report = run_task(tasks[i])
             progress.finished(report)
             yield i, report
         return
-    yield from _compute_in_processes(tasks, pending, jobs, progress)
+    if not pending:
+        return
+    jobs = min(options.jobs or os.cpu_count() or 1, len(pending))
+    with tempfile.TemporaryDirectory(prefix="almanac-backstop-") as folder:
+        recorded = [replace(task, backstop_file=Path(folder) / f"{i}.stack")
+                    for i, task in enumerate(tasks)]
+        yield from _compute_in_processes(recorded, pending, jobs, progress)
 
 
 def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
-                          progress: Progress):
+                          progress: Progress,
+                          worker: Callable[[Task], EntryReport] = run_task):
     """Run tasks on a process pool; if a worker is killed (e.g. at the CPU-time backstop) the
-    pool breaks, and the unfinished tasks are re-run one per fresh process so that only the
-    entry that kills its worker fails. The pool takes tasks in submission order, so the
-    first ``jobs`` unfinished ones are those being checked."""
+    pool breaks. The entry whose worker the backstop ended (its ``backstop_file`` holds a
+    call stack) is reported with its stage and not run again; the other unfinished tasks are
+    re-run one per fresh process so that only the entry that kills its worker fails. The pool
+    takes tasks in submission order, so the first ``jobs`` unfinished ones are those being
+    checked. ``worker`` is `run_task` (another module-level function in tests)."""
     unfinished = list(pending)
     # No max_tasks_per_child: on Python 3.11 it can deadlock the pool when a worker retires.
     with ProcessPoolExecutor(max_workers=jobs, mp_context=_spawn()) as pool:
-        futures: dict[Future, int] = {pool.submit(run_task, tasks[i]): i for i in pending}
+        futures: dict[Future, int] = {pool.submit(worker, tasks[i]): i for i in pending}
         remaining = set(futures)
         while remaining:
             progress.now_running([tasks[i] for i in unfinished[:jobs]])
@@ -280,8 +332,12 @@ def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
                 progress.finished(report)
                 yield futures[future], report
     for i in unfinished:
-        progress.now_running([tasks[i]])
-        report = _run_alone(tasks[i])
+        stage = backstop_stage(tasks[i].backstop_file)
+        if stage is not None:  # this entry ended its worker: it is not run a second time
+            report = backstop_report(tasks[i], stage)
+        else:
+            progress.now_running([tasks[i]])
+            report = _run_alone(tasks[i], worker)
         progress.finished(report)
         yield i, report
 
@@ -293,23 +349,24 @@ def _result(future: Future, task: Task) -> EntryReport:
         return internal_failure_report(task.display, exc)
 
 
-def _run_alone(task: Task) -> EntryReport:
+def _run_alone(task: Task, worker: Callable[[Task], EntryReport] = run_task) -> EntryReport:
     """One task in its own worker process: if that process dies, only this entry fails."""
     with ProcessPoolExecutor(max_workers=1, mp_context=_spawn()) as pool:
-        future = pool.submit(run_task, task)
+        future = pool.submit(worker, task)
         try:
             return future.result()
         except BrokenProcessPool:
-            return worker_killed_report(task.display)
+            stage = backstop_stage(task.backstop_file)
+            return backstop_report(task, stage) if stage else worker_killed_report(task)
         except Exception as exc:
             return internal_failure_report(task.display, exc)
 
 
-def worker_killed_report(file: str) -> EntryReport:
-    diagnostic = Diagnostic(file, 1, 1, "error", "computation ran out of its budget: the "
-                            "worker process was ended at the CPU-time backstop",
-                            "budget.exceeded", "simplify the metric, or raise --seconds")
-    return EntryReport(None, file, None, None, None, (), (diagnostic,))
+def worker_killed_report(task: Task) -> EntryReport:
+    """A worker that ended without the backstop's record (killed from outside, or out of
+    memory below Python): still a positioned message, naming what is known."""
+    return budget_failure_report(structure_of(task), BudgetExceeded(
+        DEFAULT_STAGE, "the worker process ended before finishing (killed or out of memory)"))
 
 
 def _spawn() -> multiprocessing.context.BaseContext:

@@ -9,13 +9,14 @@ keeps serving the previous site and prints why.
 from __future__ import annotations
 
 import functools
+import stat
 import sys
 import threading
 from collections.abc import Callable, Iterable, Sequence
 from http.server import SimpleHTTPRequestHandler, ThreadingHTTPServer
 from pathlib import Path
 
-from generator.errors import AlmanacError
+from generator.errors import AlmanacError, printable
 from generator.site.common import REPO_ROOT
 
 POLL_SECONDS = 1.0
@@ -32,8 +33,11 @@ def snapshot(roots: Iterable[Path]) -> tuple[tuple[str, int, int], ...]:
         if not root.is_dir():
             continue
         for path in sorted(root.rglob("*")):
-            if path.is_file():
-                info = path.stat()
+            try:  # lstat: a link is seen (and refused by the build), never followed
+                info = path.lstat()
+            except OSError:  # removed while we looked: the next poll sees it gone
+                continue
+            if not stat.S_ISDIR(info.st_mode):
                 state.append((str(path), info.st_mtime_ns, info.st_size))
     return tuple(state)
 
@@ -56,11 +60,21 @@ def make_server(site_dir: Path, host: str, port: int) -> ThreadingHTTPServer:
 
 
 def rebuild_safely(rebuild: Callable[[], None]) -> bool:
-    """Run one rebuild; report a failure instead of stopping the preview."""
+    """Run one rebuild; report a failure instead of stopping the preview.
+
+    Any exception is caught, not only the expected ones: the watcher must outlive a bug (a
+    rebuild that raised TypeError once ended the watcher, and the preview went on serving the
+    old site without a word). An unexpected one is reported as our bug, with its type."""
     try:
         rebuild()
     except (AlmanacError, OSError) as exc:
-        print(f"serve: rebuild failed, still serving the previous site: {exc}", file=sys.stderr)
+        print(f"serve: rebuild failed, still serving the previous site: {printable(str(exc))}",
+              file=sys.stderr)
+        return False
+    except Exception as exc:
+        print(f"serve: rebuild failed with an internal error, still serving the previous site "
+              f"(please report it): {type(exc).__name__}: {printable(str(exc))[:500]}",
+              file=sys.stderr)
         return False
     return True
 
@@ -100,15 +114,17 @@ def serve(
     roots = tuple(watch_paths) if watch_paths is not None else watched_roots()
     server = make_server(site_dir, host, port)
     stop = threading.Event()
-    watcher = threading.Thread(target=watch, daemon=True,
-                               args=(rebuild, stop, roots, POLL_SECONDS, snapshot(roots)))
-    watcher.start()
+    # The rebuilds run on the main thread, where the per-entry limits (signals, resource
+    # limits) can be set; the server answers requests from a thread of its own.
+    server_thread = threading.Thread(target=server.serve_forever, daemon=True)
+    server_thread.start()
     print(f"serve: previewing {site_dir} at http://{host}:{server.server_port}/ "
           "(Ctrl-C to stop)", file=sys.stderr)
     try:
-        server.serve_forever()
+        watch(rebuild, stop, roots, POLL_SECONDS, snapshot(roots))
     except KeyboardInterrupt:
         print("serve: stopped", file=sys.stderr)
     finally:
         stop.set()
+        server.shutdown()
         server.server_close()

@@ -137,8 +137,17 @@ class Surroundings:
 NOWHERE = Surroundings()  # an entry seen without the rest of the catalog
 
 
+_SAFE_ID = re.compile(r"[a-z0-9]+(-[a-z0-9]+)*")
+_HEX = re.compile(r"[0-9a-f]{12,64}")
+
+
 def revision_file(entry_id: str, content_hash: str) -> str:
-    """Site path of an entry's YAML text at the revision with this content hash."""
+    """Site path of an entry's YAML text at the revision with this content hash.
+
+    Both parts end up in a file name: anything but an entry id and a hex hash is refused
+    (a path is never built from a value read back from a cache)."""
+    if not _SAFE_ID.fullmatch(entry_id) or not _HEX.fullmatch(content_hash):
+        raise ValueError(f"refusing to build a path from {entry_id!r} and {content_hash!r}")
     return f"entries/{entry_id}/revisions/{short_hash(content_hash)}.yaml"
 
 
