@@ -11,7 +11,9 @@ offending character. Size limits stop inputs such as ``9**9**9`` before SymPy ev
 
 from __future__ import annotations
 
+import keyword
 import re
+import unicodedata
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from fractions import Fraction
@@ -97,7 +99,8 @@ class SymbolTable:
 
 def valid_name(name: str) -> bool:
     """A declarable name: an identifier that does not shadow the grammar's own words."""
-    return bool(_NAME.match(name)) and name not in RESERVED and not name.startswith("__")
+    return (bool(_NAME.match(name)) and name not in RESERVED and not name.startswith("__")
+            and not keyword.iskeyword(name))
 
 
 def tokenize(text: str) -> list[Token]:
@@ -117,6 +120,9 @@ def tokenize(text: str) -> list[Token]:
 
 def _explain_bad_character(text: str, offset: int) -> tuple[str, int, str]:
     char = text[offset]
+    special = _notation_hint(text, offset)
+    if special:
+        return f"unexpected character {char!r}", offset, special
     hints = {
         "^": "write powers with ** (e.g. r**2)",
         ".": "attribute access is not part of the math grammar",
@@ -131,6 +137,49 @@ def _explain_bad_character(text: str, offset: int) -> tuple[str, int, str]:
         offset,
         hints.get(char, "allowed: numbers, declared names, + - * / ** ( ) and known functions"),
     )
+
+
+_SUPERSCRIPTS = {"²": "2", "³": "3", "⁴": "4", "¹": "1", "⁻": "-"}
+
+
+def spelled_out(char: str) -> str | None:
+    """'theta' for 'θ', 'Phi' for 'Φ' (Greek letters are written out in the grammar)."""
+    try:
+        name = unicodedata.name(char)
+    except ValueError:
+        return None
+    for prefix, case in (("GREEK SMALL LETTER ", str.lower), ("GREEK CAPITAL LETTER ",
+                                                              str.capitalize)):
+        if name.startswith(prefix):
+            word = name.removeprefix(prefix).split()[0]
+            return case(word.replace("LAMDA", "LAMBDA"))
+    return None
+
+
+def _notation_hint(text: str, offset: int) -> str:
+    """A fix for notation from papers and other systems: TeX, superscripts, Greek letters,
+    square brackets after a function name ('' when none applies)."""
+    char = text[offset]
+    if char == "\\":
+        word = re.match(r"[A-Za-z]+", text[offset + 1:])
+        name = word.group() if word else ""
+        example = f"{name}(theta)" if name in KNOWN_FUNCTIONS else (name or "theta")
+        return (f"TeX is not part of the math grammar: write {example}, with powers as **, "
+                f"e.g. sin(theta)**2 for \\sin^2\\theta")
+    if char in _SUPERSCRIPTS:
+        return f"write powers with **: sin(theta)**{_SUPERSCRIPTS[char]} for sin{char}θ"
+    greek = spelled_out(char)
+    if greek:
+        return f"write Greek letters out: {greek} for {char}"
+    if char == "[":
+        before = re.search(r"([A-Za-z_]\w*)\s*$", text[:offset])
+        if before:
+            inside = re.match(r"[^\]]*", text[offset + 1:])
+            arg = inside.group() if inside else "x"
+            name = before.group(1)
+            fixed = name.lower() if name.lower() in KNOWN_FUNCTIONS else name
+            return f"write {fixed}({arg}): functions take round parentheses"
+    return ""
 
 
 class _Parser:
@@ -161,8 +210,19 @@ class _Parser:
     def expect(self, text: str) -> Token:
         if self.current.text != text:
             found = self.current.text or "end of text"
-            raise MathSyntaxError(f"expected {text!r}, found {found!r}", self.current.offset)
+            raise MathSyntaxError(f"expected {text!r}, found {found!r}", self.current.offset,
+                                  self.product_hint())
         return self.advance()
+
+    def product_hint(self) -> str:
+        """'insert '*' before 'dphi'' when a value follows a value: a product written by
+        juxtaposition ('sin(theta)**2 dphi**2'), as on paper."""
+        token = self.tokens[self.index]
+        if token.kind in ("name", "number") or token.text == "(":
+            before = self.text[:token.offset].rstrip()[-12:]
+            return (f"insert '*' between '{before}' and '{token.text}': products need an "
+                    f"explicit *")
+        return ""
 
     def enter(self) -> None:
         self.depth += 1
@@ -180,7 +240,8 @@ class _Parser:
             raise MathSyntaxError(
                 f"unexpected {self.current.text!r} after a complete expression",
                 self.current.offset,
-                "a missing operator? products need an explicit * (e.g. 2*M)",
+                self.product_hint() or "a missing operator? products need an explicit * "
+                "(e.g. 2*M)",
             )
         return result
 
@@ -275,7 +336,8 @@ class _Parser:
             return self.table.symbols[name]
         if name in self.table.differentials:
             return self.table.differentials[name]
-        raise MathSyntaxError(f"unknown name {name!r}", token.offset, _unknown_name_hint(name))
+        raise MathSyntaxError(f"unknown name {name!r}", token.offset,
+                              _unknown_name_hint(name, self.text[token.offset + len(name):]))
 
     def arguments(self) -> list[sympy.Expr]:
         self.expect("(")
@@ -373,7 +435,13 @@ def _check_power(base: sympy.Expr, exponent: sympy.Expr, offset: int) -> None:
                 raise MathSyntaxError("number too large", offset)
 
 
-def _unknown_name_hint(name: str) -> str:
+def _unknown_name_hint(name: str, after: str = "") -> str:
+    """How to fix an unknown name; ``after`` is the text that follows it (for 'Sin[theta]')."""
+    if name.lower() in KNOWN_FUNCTIONS and name not in KNOWN_FUNCTIONS:
+        bracket = re.match(r"\s*[\[(]([^\])]*)[\])]", after)
+        argument = bracket.group(1) if bracket else "..."
+        return (f"write {name.lower()}({argument}): function names are lower case, with "
+                f"round brackets")
     if name.startswith("d") and len(name) > 1:
         return (
             "declare it under 'parameters', 'coordinates' or 'functions'; coordinate "

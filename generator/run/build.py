@@ -187,16 +187,30 @@ def recover_interrupted_swap(out: Path, old: Path) -> None:
         shutil.rmtree(leftover, ignore_errors=True)
 
 
-def serve_site(catalog: Path, out: Path, port: int) -> None:
-    """Build once, then preview on 127.0.0.1 and rebuild when the catalog or templates change."""
+def serve_site(catalog: Path, out: Path, port: int, host: str = "127.0.0.1") -> None:
+    """Build once, then preview on ``host`` and rebuild when the catalog or templates change.
+    An entry that failed its check is not published; its page in the preview lists its
+    diagnostics."""
     from generator.run.serve import serve
 
     options = RunOptions(cache_dir=Path(".almanac-cache"))
+    failed: dict[str, list[str]] = {}
 
     def rebuild() -> None:
-        build_site(catalog, out, options, publish_verified_only=True)
+        result = build_site(catalog, out, options, publish_verified_only=True)
+        failed.clear()
+        failed.update(failures_by_id(result.reports))
 
+    print(f"serve: checking {catalog}/ and building the site; the preview opens at "
+          f"http://{host}:{port}/ when the first build ends", file=sys.stderr, flush=True)
     rebuild()
     from generator.site.common import TEMPLATE_DIR
 
-    serve(out, rebuild, host="127.0.0.1", port=port, watch_paths=[catalog, TEMPLATE_DIR])
+    serve(out, rebuild, host=host, port=port, watch_paths=[catalog, TEMPLATE_DIR],
+          diagnose=failed.get)
+
+
+def failures_by_id(reports: tuple[EntryReport, ...]) -> dict[str, list[str]]:
+    """Entry id (or file stem) -> its diagnostics as text, for each entry that failed."""
+    return {(r.entry.id if r.entry else Path(r.file).stem):
+            [d.format_text() for d in r.diagnostics] for r in reports if not r.ok}

@@ -72,8 +72,14 @@ def check_files(
     options: RunOptions,
     on_done: Callable[[EntryReport], None] | None = None,
     on_running: Callable[[list[str]], None] | None = None,
+    changed_only: bool = False,
+    search_duplicates: bool = True,
 ) -> list[EntryReport]:
     """Check the selected entry files; the rest of the catalog is loaded for cross-references.
+
+    The duplicate search runs for a few selected entries (a pull request's), or for any
+    number when ``changed_only`` says they are the entries a change touched (CI's
+    ``--changed-since``).
 
     ``on_done`` sees every report as it comes (cached ones too); ``on_running`` the ids of the
     entries being checked, each time a check ends (local runs; the pool takes tasks in order,
@@ -91,7 +97,7 @@ def check_files(
     tasks = [_task(outline, by_id, root, base, options) for outline in chosen]
     reports = _run(tasks, options, Progress(on_done, on_running))
     twins: dict[str, list[Diagnostic]] = {}
-    if len(reports) <= TWIN_SEARCH_MAX_ENTRIES:
+    if search_duplicates and (changed_only or len(reports) <= TWIN_SEARCH_MAX_ENTRIES):
         groups = chart_groups(outline_links(outlines))
         others = _twin_candidates(reports, outlines, set(chosen), by_id, root, base, options,
                                   groups)
@@ -137,12 +143,13 @@ class _Candidates:
 def _twin_candidates(new: list[EntryReport], outlines: list[Outline], selected: set[Outline],
                      by_id: dict[str, Outline], root: Path | None, base: Path,
                      options: RunOptions, groups: dict[str, str]) -> _Candidates:
-    """Never computed here (a one-entry check stays quick, and CI keeps the cache of the last
-    full build): only entries already in the cache take part, and only those whose card shows
-    they could be a twin have their whole report loaded."""
+    """With the cache, only entries already in it take part (a one-entry check stays quick,
+    and CI's whole-catalog step has just filled it), and only those whose card shows they
+    could be a twin have their whole report loaded. Without the cache (``--no-cache``: from
+    scratch), the other entries are computed here and compared by their cards the same way."""
     found = _Candidates([], {}, {}, None)
     if options.cache_dir is None:
-        return found
+        return _computed_candidates(new, outlines, selected, by_id, root, base, options, groups)
     cache = ResultCache(options.cache_dir)
     found.card_shelf = cards = card_shelf(options.cache_dir)
     new_cards = [card for card in (twin_card(r) for r in new) if card is not None]
@@ -159,6 +166,24 @@ def _twin_candidates(new: list[EntryReport], outlines: list[Outline], selected: 
             found.cards[card.id] = (key, card)
             if card.rank is not None:
                 found.ranks[card.id] = card.rank
+    return found
+
+
+def _computed_candidates(new: list[EntryReport], outlines: list[Outline],
+                         selected: set[Outline], by_id: dict[str, Outline], root: Path | None,
+                         base: Path, options: RunOptions,
+                         groups: dict[str, str]) -> _Candidates:
+    """The duplicate search's candidates computed from scratch: every other entry is checked
+    (in parallel, each under its own budget), then kept only if its card could match."""
+    found = _Candidates([], {}, {}, None)
+    new_cards = [card for card in (twin_card(r) for r in new) if card is not None]
+    if not any(card.exact is not None for card in new_cards):
+        return found  # nothing to compare: spare the whole-catalog computation
+    others = [_task(o, by_id, root, base, options) for o in outlines if o not in selected]
+    for report in _run(others, options, Progress()):
+        card = twin_card(report)
+        if card is not None and any(worth_comparing(mine, card, groups) for mine in new_cards):
+            found.reports.append(report)
     return found
 
 

@@ -9,6 +9,8 @@ keeps serving the previous site and prints why.
 from __future__ import annotations
 
 import functools
+import html
+import re
 import stat
 import sys
 import threading
@@ -17,13 +19,13 @@ from http.server import SimpleHTTPRequestHandler, ThreadingHTTPServer
 from pathlib import Path
 
 from generator.errors import AlmanacError, printable
-from generator.site.common import REPO_ROOT
+from generator.site.common import TEMPLATE_DIR
 
 POLL_SECONDS = 1.0
 
 
 def watched_roots() -> tuple[Path, ...]:
-    return (Path.cwd() / "catalog", REPO_ROOT / "site_templates")
+    return (Path.cwd() / "catalog", TEMPLATE_DIR)
 
 
 def snapshot(roots: Iterable[Path]) -> tuple[tuple[str, int, int], ...]:
@@ -54,8 +56,51 @@ class QuietHandler(SimpleHTTPRequestHandler):
             super().log_message(format, *args)
 
 
-def make_server(site_dir: Path, host: str, port: int) -> ThreadingHTTPServer:
-    handler = functools.partial(QuietHandler, directory=str(site_dir))
+Diagnose = Callable[[str], "list[str] | None"]  # entry id -> its diagnostics, if it failed
+_ENTRY_PATH = re.compile(r"^/entries/([a-z0-9]+(?:-[a-z0-9]+)*)(?:/(?:index\.html)?)?$")
+
+
+class PreviewHandler(QuietHandler):
+    """The preview's handler: the page of an entry that failed its check (and so was not
+    published) is a page with the entry's diagnostics, not a bare 404."""
+
+    diagnose: Diagnose | None = None
+
+    def send_error(self, code: int, message: str | None = None,
+                   explain: str | None = None) -> None:
+        found = _ENTRY_PATH.match(self.path.split("?", 1)[0])
+        lines = self.diagnose(found.group(1)) if (code == 404 and found and self.diagnose) \
+            else None
+        if lines is None:
+            super().send_error(code, message, explain)
+            return
+        body = diagnostics_page(found.group(1), lines).encode("utf-8")  # type: ignore
+        self.send_response(404, "Entry not published: it failed its check")
+        self.send_header("Content-Type", "text/html; charset=utf-8")
+        self.send_header("Content-Length", str(len(body)))
+        self.end_headers()
+        if self.command != "HEAD":
+            self.wfile.write(body)
+
+
+def diagnostics_page(entry_id: str, lines: list[str]) -> str:
+    """A plain page (preview only, never written to the site); every text is escaped."""
+    items = "\n".join(f"<li><pre>{html.escape(line)}</pre></li>" for line in lines)
+    return (
+        "<!doctype html><html lang=\"en\"><head><meta charset=\"utf-8\">"
+        f"<title>{html.escape(entry_id)}: not published</title></head><body>"
+        f"<h1>{html.escape(entry_id)} is not published</h1>"
+        "<p>The entry failed its check, so the site leaves it out. Fix what is listed "
+        "below; the preview rebuilds when the file is saved.</p>"
+        f"<ul>{items}</ul></body></html>\n"
+    )
+
+
+def make_server(site_dir: Path, host: str, port: int,
+                diagnose: Diagnose | None = None) -> ThreadingHTTPServer:
+    handler_class = type("BoundPreviewHandler", (PreviewHandler,),
+                         {"diagnose": staticmethod(diagnose) if diagnose else None})
+    handler = functools.partial(handler_class, directory=str(site_dir))
     return ThreadingHTTPServer((host, port), handler)
 
 
@@ -103,6 +148,7 @@ def serve(
     host: str = "127.0.0.1",
     port: int = 8000,
     watch_paths: Sequence[Path] | None = None,
+    diagnose: Diagnose | None = None,
 ) -> None:
     """Serve ``site_dir`` and rebuild on change until interrupted.
 
@@ -112,7 +158,7 @@ def serve(
     if not site_dir.is_dir():
         rebuild_safely(rebuild)
     roots = tuple(watch_paths) if watch_paths is not None else watched_roots()
-    server = make_server(site_dir, host, port)
+    server = make_server(site_dir, host, port, diagnose)
     stop = threading.Event()
     # The rebuilds run on the main thread, where the per-entry limits (signals, resource
     # limits) can be set; the server answers requests from a thread of its own.
