@@ -106,6 +106,7 @@ class Claims:
     pos: SourcePos | None = None
     # (claim name, source, locator) for petrov_type and hawking_ellis_type
     label_sources: tuple[tuple[str, str | None, str | None], ...] = ()
+    physical: tuple[Claim, ...] = ()  # horizon, orbit and observer claims (schema.PHYSICAL_CLAIMS)
 
 
 @dataclass(frozen=True)
@@ -129,6 +130,8 @@ class RelatedChart:
     entry: str
     map: tuple[tuple[str, MathText], ...]  # this entry's coordinates in the other's coordinates
     pos: SourcePos
+    kind: str = "chart"  # chart: same spacetime | limit: the other entry is a limit of this one
+    limit: tuple[tuple[str, MathText], ...] = ()  # parameter -> value it tends to (kind limit)
 
 
 @dataclass(frozen=True)
@@ -171,6 +174,7 @@ class Entry:
         name = subject.removeprefix("claims.")
         sources = {c.name: c.source for c in self.claims.scalars}
         sources.update({label: source for label, source, _ in self.claims.label_sources})
+        sources.update({c.name: c.source for c in self.claims.physical})
         role = sources.get(name) if subject.startswith("claims.") else None
         roles = {r.role for r in self.references}
         return role if role in roles else None
@@ -304,6 +308,64 @@ class EnergyCondition:
 
 
 @dataclass(frozen=True)
+class Horizon:
+    """One root of a factor of g^{xx}: a null surface x = const and its data (None: see
+    ``reasons``). ``location`` is exact: a closed form, or the symbol h_root of
+    ``polynomial`` (a polynomial in h_root) when no closed form is used."""
+
+    coordinate: str
+    location: sympy.Expr
+    polynomial: sympy.Expr
+    kind: str  # event | inner | cosmological | horizon | undetermined
+    normal_killing_vector: tuple[tuple[str, sympy.Expr], ...] | None
+    angular_velocity: sympy.Expr | None
+    surface_gravity_squared: sympy.Expr | None
+    surface_gravity: sympy.Expr | None
+    temperature: sympy.Expr | None
+    area: sympy.Expr | None
+    how: str
+    reasons: dict[str, str] = field(default_factory=dict)
+    numeric_location: str = ""  # at the first sample parameters, for ordering and plots
+
+    @property
+    def entropy(self) -> sympy.Expr | None:
+        return None if self.area is None else self.area / 4
+
+
+@dataclass(frozen=True)
+class Kinematics:
+    """Expansion, shear, vorticity and acceleration of a unit timelike observer field u^a
+    (σ_ab σ^ab and ω_ab ω^ab without a factor ½)."""
+
+    observer: tuple[tuple[str, sympy.Expr], ...]
+    source: str  # "matter.velocity" or how the natural observer was chosen
+    expansion: sympy.Expr
+    shear_squared: sympy.Expr
+    vorticity_squared: sympy.Expr
+    acceleration_squared: sympy.Expr
+    hubble_rate: sympy.Expr | None = None
+    deceleration: sympy.Expr | None = None
+
+
+@dataclass(frozen=True)
+class PhysicalData:
+    """Horizons, orbits, charges and observers of an entry. None fields carry their reason
+    in ``reasons`` (keys: horizons, ergosurface, photon_sphere, isco, komar_mass,
+    komar_angular_momentum, kinematics)."""
+
+    horizons: tuple[Horizon, ...]
+    horizons_note: str
+    extremality: tuple[str, ...]
+    ergosurface: sympy.Expr | None
+    photon_sphere: sympy.Expr | None
+    isco: sympy.Expr | None
+    komar_mass: sympy.Expr | None
+    komar_angular_momentum: sympy.Expr | None
+    kinematics: Kinematics | None
+    reasons: dict[str, str] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
 class Classification:
     """Physics derived from the geometry. A None field carries its reason in ``reasons``."""
 
@@ -320,6 +382,8 @@ class Classification:
     related_checked: tuple[Verdict, ...]
     geodesic_equations: tuple[sympy.Expr, ...]  # d2x^a/ds2 + Gamma^a_bc dx^b dx^c = 0 left sides
     reasons: dict[str, str] = field(default_factory=dict)
+    physical: PhysicalData | None = None  # horizons, orbits, charges, observers
+    physical_checked: tuple[Verdict, ...] = ()  # verdicts of claims about physical data
 
 
 @dataclass(frozen=True)

@@ -104,6 +104,7 @@ def _matter(matter: Matter) -> dict[str, object]:
 def _claims(claims: Claims) -> dict[str, object]:
     """Claimed values only; where a value was taken from (source, locator) is provenance."""
     out: dict[str, object] = {c.name: _math(c.value) for c in claims.scalars}
+    out.update({c.name: _math(c.value) for c in claims.physical})
     if claims.petrov_type is not None:
         out["petrov_type"] = claims.petrov_type
     if claims.hawking_ellis_type is not None:

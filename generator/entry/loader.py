@@ -188,7 +188,8 @@ def _build_entry(data: dict[str, Any], file: str, path: Path,
         curation=Curation(data["curation"].get("added", ""), data["curation"].get("by", "")),
         related=tuple(
             RelatedChart(item["entry"], tuple(item.get("map", {}).items()),
-                         pos(f"related.{i}"))
+                         pos(f"related.{i}"), item.get("kind", "chart"),
+                         tuple(item.get("limit", {}).items()))
             for i, item in enumerate(data.get("related", ()))
             if "entry" in item
         ),
@@ -240,6 +241,12 @@ def _build_claims(data: dict[str, Any], pos: Any) -> Claims:
         for name in schema.SCALAR_CLAIMS
         if name in data and "value" in data[name]
     )
+    physical = tuple(
+        Claim(name, data[name]["value"], data[name].get("source"), data[name].get("locator"),
+              pos(f"claims.{name}"))
+        for name in schema.PHYSICAL_CLAIMS
+        if name in data and "value" in data[name]
+    )
     petrov = data.get("petrov_type", {})
     hawking_ellis = data.get("hawking_ellis_type", {})
     return Claims(
@@ -254,6 +261,7 @@ def _build_claims(data: dict[str, Any], pos: Any) -> Claims:
         ),
         pos=pos("claims"),
         label_sources=_label_sources(data),
+        physical=physical,
     )
 
 
@@ -378,7 +386,8 @@ def _check_claim_sources(entry: Entry, path: Path, vocabulary: Vocabulary
                          ) -> Iterable[Diagnostic]:
     roles = {r.role for r in entry.references} | {schema.COMPUTED_HERE}
     # At the `source:` line itself (entry.pos falls back to the claim for the short form).
-    sources = [(c.source, entry.pos(f"claims.{c.name}.source")) for c in entry.claims.scalars]
+    sources = [(c.source, entry.pos(f"claims.{c.name}.source"))
+               for c in (*entry.claims.scalars, *entry.claims.physical)]
     sources += [(s, entry.pos(f"claims.{n}.source")) for n, s, _ in entry.claims.label_sources]
     for source, pos in sources:
         if source is not None and source not in roles:

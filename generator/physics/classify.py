@@ -19,8 +19,10 @@ from generator.geometry.curvature import WeylOperator
 from generator.geometry.sampling import Point, entry_points
 from generator.model import Classification, EnergyCondition, Entry, Geometry, Spacetime
 from generator.physics.energy import CONDITIONS, Spectrum, energy_conditions, hawking_ellis
+from generator.physics.limits_between import check_all_limits
 from generator.physics.matter import MatterResult, classify_matter
 from generator.physics.petrov import PetrovResult, petrov_type
+from generator.physics.physical import check_physical_claims, physical_data
 from generator.physics.symmetry import check_all_related, check_killing_vector, geodesic_equations
 
 SAMPLE_COUNT = 10
@@ -73,6 +75,14 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     diagnostics += [problem for _, problem in killing if problem is not None]
     linked, link_problems = check_all_related(entry, spacetime, related)
     diagnostics += link_problems
+    limit_verdicts, limit_problems = check_all_limits(entry, spacetime, related)
+    linked += limit_verdicts
+    diagnostics += limit_problems
+    source = matter.source
+    declared = source.vector if source is not None and source.kind == "perfect-fluid" else None
+    physical = physical_data(spacetime, geometry, declared)
+    physical_verdicts, physical_problems = check_physical_claims(entry, spacetime, physical)
+    diagnostics += physical_problems
     classification = Classification(
         matter_kind=matter.kind,
         cosmological_constant=matter.cosmological_constant,
@@ -87,6 +97,8 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
         related_checked=tuple(linked),
         geodesic_equations=geodesic_equations(geometry, spacetime.coordinates),
         reasons=reasons,
+        physical=physical,
+        physical_checked=tuple(physical_verdicts),
     )
     return classification, diagnostics
 

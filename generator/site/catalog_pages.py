@@ -21,6 +21,7 @@ from generator.site.common import (
     revision_file,
 )
 from generator.site.entry_page import EntryView
+from generator.site.physical_page import family_limit_tree
 
 
 def counts(cards: Sequence[dict[str, Any]], key: str) -> list[dict[str, Any]]:
@@ -117,6 +118,7 @@ def family_context(name: str, cards: Sequence[dict[str, Any]], meta: CatalogMeta
         **base_context(meta, "../", family.title, "families"),
         "family": {"name": family.name, "title": family.title, "about": family.about},
         "cards": [c for c in cards if c["family"] == name],
+        "limit_tree": family_limit_tree([c for c in cards if c["family"] == name]),
     }
 
 

@@ -51,6 +51,13 @@ from generator.site.common import (
     verdict_row,
 )
 from generator.site.downloads import entry_json, latex_document, sympy_script
+from generator.site.physical_page import (
+    limit_families,
+    limit_rows,
+    limit_tree,
+    physical_section,
+    verified_limit_links,
+)
 
 # ---------------------------------------------------------------------------- one entry
 
@@ -72,8 +79,10 @@ def surroundings(published: Sequence[EntryReport]) -> dict[str, Surroundings]:
     """The surroundings of every published entry, in the order given."""
     ids = {r.entry.id for r in published if r.entry is not None}
     charts = chart_links(published)
+    families = limit_families(published)
     return {r.entry.id: Surroundings(
-                tuple(sorted({rel.entry for rel in r.entry.related} & ids)), charts[r.entry.id])
+                tuple(sorted({rel.entry for rel in r.entry.related} & ids)), charts[r.entry.id],
+                families.get(r.entry.id, ()))
             for r in published if r.entry is not None}
 
 
@@ -122,6 +131,7 @@ def entry_card(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "authors": authors,
         "years": sorted({ref.year for ref in entry.references}),
         "href": f"entries/{entry.id}/index.html",
+        "limit_links": verified_limit_links(report),
     }
 
 
@@ -144,6 +154,9 @@ def entry_page_data(
         "matter": matter_data(report, verdicts),
         "symmetry": symmetry_data(report, verdicts),
         "related": related_rows(report, around.published_links),
+        "physical": physical_section(report),
+        "limits": limit_rows(report, around.published_links),
+        "limit_tree": limit_tree(around.limits, entry.id),
         "maps_onto_here": [chart_link_row(c) for c in around.charts if c.kind == MAPS_HERE],
         "charts_through": [chart_link_row(c) for c in around.charts if c.kind != MAPS_HERE],
         "references": [reference_data(r) for r in entry.references],
@@ -376,6 +389,8 @@ def related_rows(report: EntryReport, published: Sequence[str]) -> list[dict[str
     checks = {v.subject: v for v in (c.related_checked if c else ())}
     rows = []
     for k, rel in enumerate(entry.related):
+        if rel.kind == "limit":
+            continue  # shown with the limits (physical_page.limit_rows), not as a chart
         verdict = checks.get(related_subject(k))
         rows.append({
             "entry": rel.entry,

@@ -16,6 +16,7 @@ import sympy
 from generator.model import Classification, EntryReport, Geometry, Spacetime, Verdict
 from generator.physics.verify import entry_state
 from generator.site.common import decided_by
+from generator.site.physical_json import physical_json
 
 
 def expr_text(expr: sympy.Basic | None) -> str | None:
@@ -112,6 +113,8 @@ def classification_json(c: Classification, names: list[str]) -> dict[str, Any]:
         "related_checked": [verdict_json(v) for v in c.related_checked],
         "geodesic_equations": [str(g) for g in c.geodesic_equations],
         "not_applicable": dict(sorted(c.reasons.items())),
+        "physical_checked": [verdict_json(v) for v in c.physical_checked],
+        **physical_json(c.physical),
     }
 
 
