@@ -21,6 +21,8 @@ from generator.physics.energy import CONDITIONS, Spectrum, energy_conditions, ha
 from generator.physics.matter import MatterResult, classify_matter
 from generator.physics.petrov import PetrovResult, petrov_type
 from generator.physics.symmetry import check_all_related, check_killing_vector, geodesic_equations
+from generator.physics.symmetry_stage import symmetry
+from generator.physics.weyl_frame import weyl_frame
 
 SAMPLE_COUNT = 10
 NO_MATTER = ("vacuum", "lambda-vacuum")
@@ -64,6 +66,16 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     diagnostics += [problem for _, problem in killing if problem is not None]
     linked, link_problems = check_all_related(entry, spacetime, related)
     diagnostics += link_problems
+    summary, symmetry_problems = symmetry(entry, spacetime, geometry,
+                                          [verdict for verdict, _ in killing])
+    diagnostics += symmetry_problems
+    try:
+        frame, why_no_frame = weyl_frame(geometry, spacetime, petrov, weyl_operator)
+    except ALGEBRA_FAILURES as exc:
+        frame, why_no_frame = None, f"the computer algebra failed ({type(exc).__name__})"
+    if frame is None:
+        reasons["weyl_frame"] = why_no_frame
+    summary = replace(summary, weyl_frame=frame)
     classification = Classification(
         matter_kind=matter.kind,
         cosmological_constant=matter.cosmological_constant,
@@ -78,6 +90,7 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
         related_checked=tuple(linked),
         geodesic_equations=geodesic_equations(geometry, spacetime.coordinates),
         reasons=reasons,
+        symmetry=summary,
     )
     return classification, diagnostics
 

@@ -48,6 +48,7 @@ from generator.site.common import (
     verdict_row,
 )
 from generator.site.downloads import entry_json, latex_document, sympy_script
+from generator.site.isometry_page import isometry_data
 
 # ---------------------------------------------------------------------------- one entry
 
@@ -137,6 +138,7 @@ def entry_page_data(
         "invariants": invariant_rows(report, verdicts),
         "matter": matter_data(report, verdicts),
         "symmetry": symmetry_data(report, verdicts),
+        "isometry": isometry_data(report),
         "related": related_rows(report, around.published_links),
         "maps_onto_here": [chart_link_row(c) for c in around.charts if c.kind == MAPS_HERE],
         "charts_through": [chart_link_row(c) for c in around.charts if c.kind != MAPS_HERE],
