@@ -84,26 +84,28 @@ class JetSpace:
 
     @functools.cached_property
     def product_table(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-        """(i, j, k): monomial i times monomial j is monomial k, total degree ≤ order."""
-        ii, jj, kk = [], [], []
-        for i, a in enumerate(self.monomials):
-            for j, b in enumerate(self.monomials):
-                if sum(a) + sum(b) <= self.order:
-                    ii.append(i)
-                    jj.append(j)
-                    kk.append(self.index[tuple(x + y for x, y in zip(a, b, strict=True))])
-        return (np.array(ii, dtype=np.int64), np.array(jj, dtype=np.int64),
-                np.array(kk, dtype=np.int64))
+        """(i, j, k): monomial i times monomial j is monomial k, total degree ≤ order.
+
+        Exponent tuples are read as digits in base order + 1, so a product is a sum of keys
+        with no carry; the table is built with numpy (a Python double loop took a second)."""
+        weights = (self.order + 1) ** np.arange(self.n, dtype=np.int64)
+        exponents = np.array(self.monomials, dtype=np.int64).reshape(self.size, self.n)
+        keys = exponents @ weights
+        ranked = np.argsort(keys)
+        i, j = np.nonzero(self.degrees[:, None] + self.degrees[None, :] <= self.order)
+        k = ranked[np.searchsorted(keys[ranked], keys[i] + keys[j])]
+        return i.astype(np.int64), j.astype(np.int64), k.astype(np.int64)
 
     @functools.cache  # noqa: B019 - a handful of spaces per process
     def pairs_of_degree(self, d: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """(i, j, k): monomials i and j whose product has degree exactly d, k its position
         among the monomials of degree d."""
-        local = {int(m): k for k, m in enumerate(self.of_degree(d))}
+        local = np.full(self.size, -1, dtype=np.int64)
+        targets = self.of_degree(d)
+        local[targets] = np.arange(len(targets))
         ii, jj, kk = self.product_table
         chosen = self.degrees[kk] == d
-        return ii[chosen], jj[chosen], np.array([local[int(k)] for k in kk[chosen]],
-                                                dtype=np.int64)
+        return ii[chosen], jj[chosen], local[kk[chosen]]
 
     @functools.cache  # noqa: B019
     def derivative_table(self, var: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -154,9 +156,11 @@ class JetAlgebra:
         if not b[1:].any():
             return (a * int(b[0])) % self.p
         i, j, k = self.space.product_table
-        out = np.zeros(self.space.size, dtype=np.int64)
-        np.add.at(out, k, (a[i] * b[j]) % self.p)
-        return out % self.p
+        # Each term is below 2**31 and at most a few thousand meet in one slot, so the float
+        # sums of bincount stay exact integers (below 2**53).
+        terms = ((a[i] * b[j]) % self.p).astype(np.float64)
+        out = np.bincount(k, weights=terms, minlength=self.space.size)
+        return out.astype(np.int64) % self.p
 
     def inv(self, a: np.ndarray) -> np.ndarray:
         """1/a by the geometric series in the non-constant part (nilpotent in the jet)."""

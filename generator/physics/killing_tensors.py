@@ -80,7 +80,7 @@ def check_killing_tensor(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     failing, undecided, method = [], [], "exact"
     for key, value in residual.items():
         decision = vanishes(value, spacetime)
-        label = f"∇_({index_label(names, key)})K"
+        label = f"(∇K)_{index_label(names, key)}"
         if decision.equal is False:
             failing.append(label)
         elif decision.equal is None:

@@ -77,7 +77,7 @@ def expand_in_basis(target: Sequence[sympy.Expr], basis: Sequence[Sequence[sympy
     solution = next(iter(solutions))
     if any(s.free_symbols & set(unknowns) for s in solution):
         return None
-    coefficients = tuple(sympy.simplify(s) for s in solution)
+    coefficients = tuple(sympy.cancel(s) for s in solution)
     if coefficients and any(c.free_symbols & set(spacetime.coordinates) for c in coefficients):
         return None
     for a in range(len(target)):
