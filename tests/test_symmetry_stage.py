@@ -9,8 +9,7 @@ from pathlib import Path
 
 import mpmath
 import sympy
-from classify_cases import FILE, make_entry, prepared, text
-from classify_cases import kerr_entry, schwarzschild_entry
+from classify_cases import FILE, kerr_entry, make_entry, prepared, schwarzschild_entry, text
 
 from generator.entry.loader import load_entry
 from generator.errors import SourcePos
@@ -98,6 +97,7 @@ def test_conformal_killing_vector_of_the_sphere() -> None:
     verdicts, problems = check_all(entry, spacetime, geometry)
     assert [v.ok for v in verdicts] == [True, False]
     assert "(L_ξ g − 2ψ g)_(theta,theta)" in verdicts[1].detail
+    assert [p.code for p in problems] == ["claim.conformal-killing-vectors"]
 
 
 def test_homothety_of_minkowski_space() -> None:
