@@ -335,3 +335,12 @@ def test_a_cited_hash_leads_to_its_entry_and_revision_text(site: Path) -> None:
     assert (site / source).read_text(encoding="utf-8").startswith("id: demo-harbour-lantern")
     entry = page(site, "entries/demo-harbour-lantern/index.html")
     assert "../../revisions.html?hash=" + "ab" * 6 in [a["href"] for a in entry.find("a")]
+
+
+def test_symmetry_computed_comes_first_among_the_classifications(site: Path) -> None:
+    # Issue 17: the computed symmetry block precedes invariants, matter and Petrov type.
+    parsed = page(site, "entries/demo-harbour-lantern/index.html")
+    ids = [a.get("id") for _, a in parsed.elements if a.get("id")]
+    assert ids.index("isometry") < ids.index("invariants") < ids.index("symmetry")
+    assert "Local isometry algebra" in parsed.text
+    assert "Independent invariants" in parsed.text

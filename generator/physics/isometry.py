@@ -287,10 +287,13 @@ def metric_field(spacetime: Spacetime, extra: Sequence[sympy.Expr] = ()):
 
 
 def metric_jets_at(field, metric_values, n: int, order: int, rng: random.Random,
-                   avoid: Sequence[int] = ()) -> tuple[FieldJets, list[list[np.ndarray]]]:
+                   avoid: Sequence[int] = (), deadline: float = float("inf")
+                   ) -> tuple[FieldJets, list[list[np.ndarray]]]:
     """Jets of the metric at a random usable point, modulo a prime not in ``avoid``."""
     choices = [q for q in primes() if q not in avoid]
     for attempt in range(POINT_ATTEMPTS):
+        if time.monotonic() > deadline:
+            break
         p = choices[attempt % len(choices)] if attempt < 8 else rng.choice(choices)
         try:
             jets = FieldJets(field, order, rng, p)
@@ -333,7 +336,7 @@ def isometry_dimension(spacetime: Spacetime, extra: Sequence[sympy.Expr] = ()
     try:
         for _ in range(2):
             jets, metric = metric_jets_at(field, metric_values, n, order + 2, rng,
-                                          [r.p for r in results])
+                                          [r.p for r in results], deadline)
             results.append(conditions_at_point(metric, n, jets.p, order, deadline))
             data.append(PointData(jets.p, tuple(_one_jet(jets, v, n) for v in extra_values)))
     except BadPoint as exc:

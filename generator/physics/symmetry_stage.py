@@ -15,6 +15,7 @@ from collections.abc import Sequence
 import sympy
 
 from generator.errors import Diagnostic
+from generator.geometry.algebra import NotInField
 from generator.geometry.exactvalues import coordinate_names
 from generator.model import (
     Entry,
@@ -28,8 +29,12 @@ from generator.model import (
 from generator.physics import killing_tensors, lie_algebra
 from generator.physics.isometry import IsometryDimension, PointData, isometry_dimension
 from generator.physics.isometry import matrix_rank as rank_mod_p
+from generator.physics.jets import BadPoint
 from generator.physics.symmetry import Unreadable, parse_components
 
+# Ways the arithmetic can give up on a strange metric: a reason on the page, never a crash.
+COMPUTATION_FAILURES = (ArithmeticError, ValueError, TypeError, NotImplementedError,
+                        RecursionError, NotInField, BadPoint)
 INVARIANT_NAMES = (("ricci_scalar", "R"), ("kretschmann", "R_abcd R^abcd"),
                    ("ricci_squared", "R_ab R^ab"), ("weyl_squared", "C_abcd C^abcd"))
 
@@ -42,14 +47,21 @@ def symmetry(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     invariants = [(label, value) for attr, label in INVARIANT_NAMES
                   if (value := getattr(geometry, attr)) is not None and not value.is_number]
     extra = [c for _, xi in vectors for c in xi] + [value for _, value in invariants]
-    computed, points = isometry_dimension(spacetime, extra)
+    try:
+        computed, points = isometry_dimension(spacetime, extra)
+    except COMPUTATION_FAILURES as exc:
+        computed, points = IsometryDimension(None, None, 0, "", "the computation failed "
+                                             f"({type(exc).__name__}: {exc})"), []
     verified = {v.subject for v in killing_verdicts if v.ok}
     ok_vectors = [(k, xi) for k, xi in vectors if f"claims.killing_vectors.{k}" in verified]
     all_rank = _vector_rank(points, [k for k, _ in vectors], vectors, n)
     basis = _independent(points, ok_vectors, vectors, n)
     diagnostics = count_diagnostics(entry, computed, all_rank, len(basis))
-    structure, algebra_name = lie_algebra.structure(spacetime, [xi for _, xi in basis],
-                                                    len(basis) == computed.dimension)
+    try:
+        structure, algebra_name = lie_algebra.structure(spacetime, [xi for _, xi in basis],
+                                                        len(basis) == computed.dimension)
+    except COMPUTATION_FAILURES:
+        structure, algebra_name = (), None
     algebra = IsometryAlgebra(
         dimension=computed.dimension,
         orbit_dimension=computed.orbit_dimension,
