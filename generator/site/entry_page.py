@@ -10,6 +10,7 @@ from typing import Any
 import sympy
 from markupsafe import Markup
 
+from generator.entry.content_hash import short_hash
 from generator.entry.mathparse import parse_inequality, table_from_symbols
 from generator.errors import AlmanacError
 from generator.model import (
@@ -26,6 +27,7 @@ from generator.model import (
 from generator.site import cite, mathtex, plots
 from generator.site.atlas import MAPS_HERE, ChartLink, chart_links
 from generator.site.common import (
+    EVIDENCE_LABELS,
     INVARIANTS,
     MATTER_LABELS,
     METHOD_LABELS,
@@ -114,6 +116,9 @@ def entry_card(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "matter": kind,
         "matter_label": MATTER_LABELS.get(kind, kind),
         "petrov": (c.petrov_type if c else None) or "",
+        "agreements": report.agreements,
+        "evidence": "literature" if report.agreements else "computed-only",
+        "evidence_label": EVIDENCE_LABELS["literature" if report.agreements else "computed-only"],
         "authors": authors,
         "years": sorted({ref.year for ref in entry.references}),
         "href": f"entries/{entry.id}/index.html",
@@ -248,15 +253,17 @@ def invariant_rows(report: EntryReport, verdicts: Mapping[str, Verdict]) -> list
     return rows
 
 
+COMPUTED_ONLY_WORDS = "computed by this tool; no published value to compare"
+
+
 def claim_source(claim_source_role: str | None, entry: Entry) -> dict[str, Any]:
-    """Who the claimed value comes from; ``computed-here`` means the tool's own result."""
-    if claim_source_role == "computed-here":
-        return {"computed_here": True,
-                "label": "the tool's own result: no published value was found to compare with"}
-    roles = {r.role for r in entry.references}
-    role = claim_source_role or ("claims" if "claims" in roles else "original")
-    refs = [r for r in entry.references if r.role == role]
-    label = "; ".join(f"{short_authors(r.authors)} {r.year}" for r in refs) or role
+    """Who the claimed value comes from. Only a reference the claim names counts: a value
+    without one (``computed-here``, or the short form) is shown as the tool's own result,
+    never attributed to a paper by default."""
+    refs = [r for r in entry.references if r.role == claim_source_role]
+    if claim_source_role == "computed-here" or not refs:
+        return {"computed_here": True, "label": COMPUTED_ONLY_WORDS}
+    label = "; ".join(f"{short_authors(r.authors)} {r.year}" for r in refs)
     return {"computed_here": False, "label": label}
 
 
@@ -410,6 +417,7 @@ def reference_data(reference: Reference) -> dict[str, Any]:
         "unconfirmed": {f: f in unconfirmed for f in
                         ("authors", "title", "venue", "year", "doi", "arxiv", "isbn", "locator")},
         "any_unconfirmed": bool(unconfirmed),
+        "confirmed": reference.confirmed or "",
     }
 
 
@@ -424,14 +432,24 @@ def entry_conventions(entry: Entry, st: Spacetime | None) -> dict[str, Any]:
     }
 
 
-def citations(report: EntryReport, meta: CatalogMeta) -> dict[str, str]:
+def citations(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
+    """The citations, and what a reader of a paper needs to check that the entry they open is
+    the one that was cited: the content hash, the revision, and the page that looks it up."""
     entry = report.entry
     assert entry is not None
+    latest = meta.revisions.get(entry.id, ())[-1:]
+    original = next((r for r in entry.references if r.role == "original"), None)
     return {
         "entry_bibtex": cite_or_reason(lambda: cite.cite_entry(report, meta, "bibtex")),
         "entry_text": cite_or_reason(lambda: cite.cite_entry(report, meta, "text")),
         "original_bibtex": cite_or_reason(lambda: cite.cite_original(entry, "bibtex")),
-        "url": cite.entry_url(meta, entry.id),
+        "url": cite.entry_url(meta, entry.id) or "",
+        "repository": meta.publication.repository or "",
+        "content_hash": report.content_hash,
+        "short_hash": short_hash(report.content_hash) if report.content_hash else "",
+        "revision": {"date": latest[0].date, "commit": latest[0].commit[:12]} if latest else None,
+        "original_confirmed": original.confirmed or "" if original else "",
+        "original_unconfirmed": list(original.unconfirmed) if original else [],
     }
 
 
