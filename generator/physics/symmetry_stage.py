@@ -56,7 +56,8 @@ def symmetry(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     ok_vectors = [(k, xi) for k, xi in vectors if f"claims.killing_vectors.{k}" in verified]
     all_rank = _vector_rank(points, [k for k, _ in vectors], vectors, n)
     basis = _independent(points, ok_vectors, vectors, n)
-    diagnostics = count_diagnostics(entry, computed, all_rank, len(basis))
+    diagnostics = count_diagnostics(entry, computed, all_rank, len(basis),
+                                    bool(entry.claims.killing_vectors))
     try:
         structure, algebra_name = lie_algebra.structure(spacetime, [xi for _, xi in basis],
                                                         len(basis) == computed.dimension)
@@ -123,8 +124,11 @@ def _independent(points: Sequence[PointData], candidates: Sequence[tuple[int, li
     return chosen
 
 
-def count_diagnostics(entry: Entry, computed: IsometryDimension, listed: int, verified: int
-                      ) -> list[Diagnostic]:
+def count_diagnostics(entry: Entry, computed: IsometryDimension, listed: int, verified: int,
+                      has_list: bool) -> list[Diagnostic]:
+    """An entry that lists Killing vectors is told when the list falls short of the algebra
+    (a warning) or exceeds it (an error). One that lists none gets no message: its page and
+    report still give the dimension, with no basis and ``complete`` false."""
     d = computed.dimension
     if d is None:
         return []
@@ -135,7 +139,7 @@ def count_diagnostics(entry: Entry, computed: IsometryDimension, listed: int, ve
                               "claim.killing-vectors",
                               "one of them is not a Killing vector or the metric is not the "
                               "one intended")]
-    if verified < d:
+    if verified < d and has_list:
         missing = d - verified
         return [Diagnostic.at(at, "warning", f"the isometry algebra has dimension {d} but the "
                               f"entry lists {verified} independent verified Killing vector"
