@@ -50,7 +50,7 @@ from generator.site.common import (
     verdict_row,
 )
 from generator.site.downloads import entry_json, latex_document, sympy_script
-from generator.site.isometry_page import isometry_data
+from generator.site.isometry_page import isometry_data, isometry_dimension_text
 
 # ---------------------------------------------------------------------------- one entry
 
@@ -116,6 +116,7 @@ def entry_card(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "matter": kind,
         "matter_label": MATTER_LABELS.get(kind, kind),
         "petrov": (c.petrov_type if c else None) or "",
+        "isometry": isometry_dimension_text(report),
         "agreements": report.agreements,
         "evidence": "literature" if report.agreements else "computed-only",
         "evidence_label": EVIDENCE_LABELS["literature" if report.agreements else "computed-only"],

@@ -19,6 +19,14 @@ from generator.site.common import math_inline, verdict_row
 PSI_LATEX = {f"Psi{k}": rf"\Psi_{k}" for k in range(5)}
 
 
+def isometry_dimension_text(report: EntryReport) -> str:
+    """The computed isometry dimension as the search index holds it ("" when unknown)."""
+    c = report.classification
+    if c is None or c.symmetry is None or c.symmetry.isometry.dimension is None:
+        return ""
+    return str(c.symmetry.isometry.dimension)
+
+
 def isometry_data(report: EntryReport) -> dict[str, Any] | None:
     c, st = report.classification, report.spacetime
     if c is None or st is None or c.symmetry is None:
