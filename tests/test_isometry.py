@@ -164,3 +164,17 @@ def test_recognition_mutations() -> None:
     assert recognise(so3, 3) == "so(3)"
     assert recognise(sl2, 3) == "sl(2,ℝ)"
     assert recognise((), 2) == "abelian ℝ^2"
+
+
+def test_complete_bases_of_the_curated_three_spheres() -> None:
+    # The round S³ and the Einstein static universe R × S³ (Einstein 1917): so(4) and
+    # so(4) ⊕ ℝ, dimensions 6 and 7 (common practice); the entries list complete bases.
+    from generator.physics.symmetry_stage import listed_vectors
+
+    for name, expected in (("riemannian/round-3-sphere", "so(4)"),
+                           ("maximally-symmetric/einstein-static-universe", "so(4) ⊕ ℝ")):
+        loaded = load_entry(CATALOG / f"{name}.yaml")
+        names = [str(x) for x in loaded.spacetime.coordinates]
+        basis = [xi for _, xi in listed_vectors(loaded.entry, loaded.spacetime, names)]
+        _, algebra = structure(loaded.spacetime, basis, True)
+        assert algebra == expected, name

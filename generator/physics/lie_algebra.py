@@ -18,6 +18,7 @@ from generator.geometry.sampling import CIRCULAR, entry_points, through_sin_cos
 from generator.model import Spacetime
 
 MAX_BASIS = 10
+MAX_NAMED = 7  # the names below need the Killing form's eigenvalues: small algebras only
 Structure = tuple[tuple[int, int, tuple[sympy.Expr, ...]], ...]
 
 
@@ -116,16 +117,20 @@ def recognise(brackets: Structure, d: int) -> str | None:
     killing = sympy.Matrix(d, d, lambda i, j: (ad[i] * ad[j]).trace())
     centre = sympy.Matrix(d * d, d, lambda r, i: c[i][r // d][r % d]).nullspace()
     derived = sympy.Matrix([[v for v in coefficients] for _, _, coefficients in brackets]).rank()
-    if killing.free_symbols:
+    if killing.free_symbols or d > MAX_NAMED:
         return None
     eigen = [e for e, m in killing.eigenvals().items() for _ in range(m)]
     negative = sum(1 for e in eigen if e < 0)
     positive = sum(1 for e in eigen if e > 0)
-    if derived == 3 and negative + positive == 3 and len(centre) == d - 3 and d in (3, 4):
+    centre_dimension = len(centre)
+    if derived + centre_dimension != d or negative + positive != derived:
+        return None  # not a semisimple part plus a centre: left unnamed
+    if derived == 3:
         name = "so(3)" if negative == 3 else "sl(2,ℝ)" if positive == 2 else None
-        if name is None:
-            return None
-        return name if d == 3 else f"{name} ⊕ ℝ"
-    if d == 6 and negative == 6:
-        return "so(4)"
-    return None
+    elif derived == 6 and negative == 6:
+        name = "so(4)"
+    else:
+        name = None
+    if name is None or centre_dimension == 0:
+        return name
+    return f"{name} ⊕ ℝ" + (f"^{centre_dimension}" if centre_dimension > 1 else "")
