@@ -183,3 +183,14 @@ def test_invariant_count_and_karlhede() -> None:
     classification, _ = classify(entry, spacetime, compute_geometry(spacetime), {})
     assert classification.symmetry.invariants.count == 0
     assert classification.symmetry.invariants.consistent is True
+
+
+def test_kerr_needs_the_parity_odd_invariant_for_karlhede() -> None:
+    # Kerr's orbits are 2-dimensional, so t = 4 − 2 = 2 independent invariants: the real
+    # invariants alone give 1 in vacuum (Kretschmann = C²), Im I (∝ the Chern–Pontryagin
+    # invariant) supplies the second (common practice; Karlhede 1980, from memory).
+    entry, spacetime, geometry = prepared(kerr_entry())
+    classification, _ = classify(entry, spacetime, geometry, {})
+    count = classification.symmetry.invariants
+    assert "Im I" in count.used
+    assert count.count == 2 and count.consistent is True

@@ -66,16 +66,15 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     diagnostics += [problem for _, problem in killing if problem is not None]
     linked, link_problems = check_all_related(entry, spacetime, related)
     diagnostics += link_problems
-    summary, symmetry_problems = symmetry(entry, spacetime, geometry,
-                                          [verdict for verdict, _ in killing])
-    diagnostics += symmetry_problems
     try:
         frame, why_no_frame = weyl_frame(geometry, spacetime, petrov, weyl_operator)
     except ALGEBRA_FAILURES as exc:
         frame, why_no_frame = None, f"the computer algebra failed ({type(exc).__name__})"
     if frame is None:
         reasons["weyl_frame"] = why_no_frame
-    summary = replace(summary, weyl_frame=frame)
+    summary, symmetry_problems = symmetry(entry, spacetime, geometry,
+                                          [verdict for verdict, _ in killing], frame)
+    diagnostics += symmetry_problems
     classification = Classification(
         matter_kind=matter.kind,
         cosmological_constant=matter.cosmological_constant,

@@ -25,6 +25,7 @@ from generator.model import (
     Spacetime,
     SymmetryResult,
     Verdict,
+    WeylFrame,
 )
 from generator.physics import killing_tensors, lie_algebra
 from generator.physics.isometry import IsometryDimension, PointData, isometry_dimension
@@ -40,12 +41,16 @@ INVARIANT_NAMES = (("ricci_scalar", "R"), ("kretschmann", "R_abcd R^abcd"),
 
 
 def symmetry(entry: Entry, spacetime: Spacetime, geometry: Geometry,
-             killing_verdicts: Sequence[Verdict]) -> tuple[SymmetryResult, list[Diagnostic]]:
+             killing_verdicts: Sequence[Verdict], frame: WeylFrame | None = None
+             ) -> tuple[SymmetryResult, list[Diagnostic]]:
+    """``frame``: the Weyl frame, if any; its invariant I joins the scalar invariants (its
+    imaginary part, the parity-odd one, separates Kerr's orbits where the real ones cannot)."""
     names = coordinate_names(spacetime)
     n = len(names)
     vectors = listed_vectors(entry, spacetime, names)
     invariants = [(label, value) for attr, label in INVARIANT_NAMES
                   if (value := getattr(geometry, attr)) is not None and not value.is_number]
+    invariants += weyl_invariant_parts(frame)
     extra = [c for _, xi in vectors for c in xi] + [value for _, value in invariants]
     try:
         computed, points = isometry_dimension(spacetime, extra)
@@ -80,7 +85,17 @@ def symmetry(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     count = invariant_count(points, [label for label, _ in invariants], len(vectors) * n,
                             computed, n)
     diagnostics += problems
-    return SymmetryResult(algebra, tuple(tensors), count), diagnostics
+    return SymmetryResult(algebra, tuple(tensors), count, frame), diagnostics
+
+
+def weyl_invariant_parts(frame: WeylFrame | None) -> list[tuple[str, sympy.Expr]]:
+    """Re I and Im I of the Weyl invariant I = a + i b (as ``weyl_frame`` writes it), where
+    they are not constants."""
+    if frame is None or frame.invariant_i is None:
+        return []
+    value = frame.invariant_i
+    parts = [("Re I", value.subs(sympy.I, 0)), ("Im I", value.coeff(sympy.I))]
+    return [(label, part) for label, part in parts if part != 0 and not part.is_number]
 
 
 def listed_vectors(entry: Entry, spacetime: Spacetime, names: Sequence[str]
