@@ -249,7 +249,10 @@ class KillingConditions:
 
 
 def conditions_at_point(metric_jets: list[list[np.ndarray]], n: int, p: int, order: int,
-                        deadline: float) -> IsometryAtPoint:
+                        deadline: float, known: int = 0) -> IsometryAtPoint:
+    """``known``: how many independent Killing vectors are already verified (a lower bound).
+    The conditions can only shrink the kernel, never below the Killing algebra, so once the
+    kernel is down to ``known`` the dimension is certain and no further order is needed."""
     solver = KillingConditions(metric_jets, n, p, order)
     solver.first_order()
     ranks: list[int] = []
@@ -257,7 +260,7 @@ def conditions_at_point(metric_jets: list[list[np.ndarray]], n: int, p: int, ord
     for degree in range(1, order + 1):
         solver.next_order(degree)
         ranks.append(len(solver.conditions))
-        if ranks[-1] == solver.params:
+        if ranks[-1] == solver.params or solver.params - ranks[-1] <= known:
             stable = True
             break
         if len(ranks) > STABLE_ORDERS and len(set(ranks[-STABLE_ORDERS - 1:])) == 1:
@@ -315,10 +318,16 @@ class PointData:
     one_jets: tuple[tuple[int, ...], ...]  # per extra expression: value, then ∂_1 .. ∂_n
 
 
-def isometry_dimension(spacetime: Spacetime, extra: Sequence[sympy.Expr] = ()
+def isometry_dimension(spacetime: Spacetime, extra: Sequence[sympy.Expr] = (),
+                       verified: Sequence[Sequence[int]] = ()
                        ) -> tuple[IsometryDimension, list[PointData]]:
     """The local isometry dimension at two independent random points (see module docstring),
-    and the 1-jets of ``extra`` expressions at the same points."""
+    and the 1-jets of ``extra`` expressions at the same points.
+
+    ``verified``: for each symbolically verified Killing vector, the positions of its n
+    components in ``extra``. Their rank at a point bounds the dimension from below; when the
+    conditions come down to it the dimension is certain (certified) and the second point,
+    which could only confirm it, is skipped."""
     n = spacetime.dimension
     order = MAX_ORDER.get(n)
     if order is None:
@@ -331,14 +340,21 @@ def isometry_dimension(spacetime: Spacetime, extra: Sequence[sympy.Expr] = ()
         return IsometryDimension(None, None, 0, "", f"the metric does not fit the exact "
                                  f"engine's field ({exc})"), []
     rng = random.Random(SEED)
+    certified = None
     results: list[IsometryAtPoint] = []
     data: list[PointData] = []
     try:
         for _ in range(2):
             jets, metric = metric_jets_at(field, metric_values, n, order + 2, rng,
                                           [r.p for r in results], deadline)
-            results.append(conditions_at_point(metric, n, jets.p, order, deadline))
-            data.append(PointData(jets.p, tuple(_one_jet(jets, v, n) for v in extra_values)))
+            point = PointData(jets.p, tuple(_one_jet(jets, v, n) for v in extra_values))
+            known = matrix_rank([[v for k in slots for v in point.one_jets[k]]
+                                 for slots in verified], jets.p) if verified else 0
+            results.append(conditions_at_point(metric, n, jets.p, order, deadline, known))
+            data.append(point)
+            if results[-1].dimension == known:
+                certified = known
+                break
     except BadPoint as exc:
         return IsometryDimension(None, None, 0, "", f"no usable sample point ({exc})"), []
     except NotInField as exc:
@@ -346,10 +362,17 @@ def isometry_dimension(spacetime: Spacetime, extra: Sequence[sympy.Expr] = ()
                                  f"field ({exc})"), []
     best = min(results, key=lambda r: r.dimension)
     orders = max(len(r.ranks) for r in results)
-    agree = results[0].dimension == results[1].dimension
+    agree = len({r.dimension for r in results}) == 1
+    if certified is not None:
+        method = (f"integrability conditions of Killing's equation up to order {orders} at a "
+                  f"random point of the metric's field (exact arithmetic modulo a prime near "
+                  f"2^31), down to the {certified} verified independent Killing vectors: "
+                  f"certain")
+        return IsometryDimension(best.dimension, best.orbit_dimension, orders, method, None,
+                                 agree), data
     method = (f"integrability conditions of Killing's equation up to order {orders}, at two "
               f"random points of the metric's field, exact arithmetic modulo primes near 2^31")
-    if not all(r.stable for r in results):
+    if len(results) < 2 or not all(r.stable for r in results):
         return IsometryDimension(None, None, orders, method, f"the conditions did not settle "
                                  f"within {order} orders (at most {best.dimension})",
                                  agree), data

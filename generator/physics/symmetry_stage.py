@@ -52,8 +52,11 @@ def symmetry(entry: Entry, spacetime: Spacetime, geometry: Geometry,
                   if (value := getattr(geometry, attr)) is not None and not value.is_number]
     invariants += weyl_invariant_parts(frame)
     extra = [c for _, xi in vectors for c in xi] + [value for _, value in invariants]
+    verified_ids = {v.subject for v in killing_verdicts if v.ok}
+    slots = [list(range(i * n, (i + 1) * n)) for i, (k, _) in enumerate(vectors)
+             if f"claims.killing_vectors.{k}" in verified_ids]
     try:
-        computed, points = isometry_dimension(spacetime, extra)
+        computed, points = isometry_dimension(spacetime, extra, slots)
     except COMPUTATION_FAILURES as exc:
         computed, points = IsometryDimension(None, None, 0, "", "the computation failed "
                                              f"({type(exc).__name__}: {exc})"), []
