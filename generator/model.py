@@ -96,6 +96,24 @@ class VectorClaim:
 
 
 @dataclass(frozen=True)
+class TensorClaim:
+    """A claimed rank-2 Killing tensor: lower-index components by coordinate-name pair."""
+
+    name: str | None
+    components: tuple[tuple[tuple[str, str], MathText], ...]
+    pos: SourcePos
+
+
+@dataclass(frozen=True)
+class ConformalClaim:
+    """A claimed conformal Killing vector (or homothety): L_ξ g = 2 factor g."""
+
+    vector: tuple[tuple[str, MathText], ...]
+    factor: MathText
+    pos: SourcePos
+
+
+@dataclass(frozen=True)
 class Claims:
     scalars: tuple[Claim, ...] = ()  # ricci_scalar, kretschmann, ricci_squared, weyl_squared
     petrov_type: str | None = None
@@ -107,6 +125,9 @@ class Claims:
     # (claim name, source, locator) for petrov_type and hawking_ellis_type
     label_sources: tuple[tuple[str, str | None, str | None], ...] = ()
     physical: tuple[Claim, ...] = ()  # horizon, orbit and observer claims (schema.PHYSICAL_CLAIMS)
+    killing_tensors: tuple[TensorClaim, ...] = ()
+    conformal_killing_vectors: tuple[ConformalClaim, ...] = ()
+    homotheties: tuple[ConformalClaim, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -384,6 +405,55 @@ class Classification:
     reasons: dict[str, str] = field(default_factory=dict)
     physical: PhysicalData | None = None  # horizons, orbits, charges, observers
     physical_checked: tuple[Verdict, ...] = ()  # verdicts of claims about physical data
+    symmetry: SymmetryResult | None = None  # isometry algebra, Killing tensors, invariants
+
+
+@dataclass(frozen=True)
+class IsometryAlgebra:
+    """The local isometry algebra as computed (``isometry``); None fields carry ``why_null``."""
+
+    dimension: int | None
+    orbit_dimension: int | None
+    listed: int  # independent Killing vectors the entry lists
+    basis: tuple[tuple[tuple[str, sympy.Expr], ...], ...]  # verified vectors, by coordinate
+    complete: bool | None  # the basis spans the algebra (None: dimension unknown)
+    method: str
+    why_null: str | None
+    structure: tuple[tuple[int, int, tuple[sympy.Expr, ...]], ...] = ()  # [X_i, X_j] = c^k X_k
+    algebra_name: str | None = None
+
+
+@dataclass(frozen=True)
+class InvariantCount:
+    """Functionally independent scalar invariants and Karlhede's relation."""
+
+    count: int | None
+    used: tuple[str, ...]  # which invariants entered the Jacobian
+    relation: str  # the relation as checked, in words
+    consistent: bool | None
+    why_null: str | None = None
+
+
+@dataclass(frozen=True)
+class WeylFrame:
+    """Ψ0..Ψ4 in a null tetrad built by the tool; ``principal`` when l (and n for type D)
+    is a principal null direction, so that only the type's scalars survive."""
+
+    name: str  # which tetrad, in words
+    principal: bool
+    tetrad: tuple[tuple[str, tuple[tuple[str, sympy.Expr], ...]], ...]  # l, n, m: ξ^a by name
+    scalars: tuple[tuple[str, sympy.Expr], ...]  # ("Psi0", ...), ..., ("Psi4", ...)
+    invariant_i: sympy.Expr | None
+    invariant_j: sympy.Expr | None
+    why: str = ""
+
+
+@dataclass(frozen=True)
+class SymmetryResult:
+    isometry: IsometryAlgebra
+    tensors_checked: tuple[Verdict, ...]  # Killing tensors, conformal vectors, homotheties
+    invariants: InvariantCount
+    weyl_frame: WeylFrame | None = None  # None: the reason is under reasons["weyl_frame"]
 
 
 @dataclass(frozen=True)

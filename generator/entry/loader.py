@@ -24,6 +24,7 @@ from generator.errors import Diagnostic, MathSyntaxError, SourcePos
 from generator.model import (
     Claim,
     Claims,
+    ConformalClaim,
     Curation,
     Entry,
     FreeFunction,
@@ -33,6 +34,7 @@ from generator.model import (
     Reference,
     RelatedChart,
     Spacetime,
+    TensorClaim,
     VectorClaim,
 )
 
@@ -262,6 +264,23 @@ def _build_claims(data: dict[str, Any], pos: Any) -> Claims:
         pos=pos("claims"),
         label_sources=_label_sources(data),
         physical=physical,
+        killing_tensors=tuple(
+            TensorClaim(item.get("name"),
+                        tuple((tuple(key.split()), value)
+                              for key, value in item.get("components", {}).items()),
+                        pos(f"claims.killing_tensors.{i}"))
+            for i, item in enumerate(data.get("killing_tensors", ()))
+        ),
+        conformal_killing_vectors=_conformal(data, "conformal_killing_vectors", pos),
+        homotheties=_conformal(data, "homotheties", pos),
+    )
+
+
+def _conformal(data: dict[str, Any], key: str, pos: Any) -> tuple[ConformalClaim, ...]:
+    return tuple(
+        ConformalClaim(tuple(item.get("vector", {}).items()), item["factor"],
+                       pos(f"claims.{key}.{i}"))
+        for i, item in enumerate(data.get(key, ())) if "factor" in item
     )
 
 

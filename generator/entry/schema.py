@@ -8,7 +8,7 @@ never disagree.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Literal
 
 Kind = Literal[
@@ -104,6 +104,27 @@ RELATED_KINDS = ("chart", "limit")
 def _vector(name: str, doc: str) -> Field:
     return Field(
         name, doc, "dict", key_pattern=NAME_PATTERN, item=Field("component", "", "math")
+    )
+
+
+PAIR_PATTERN = r"^[A-Za-z][A-Za-z0-9_]* [A-Za-z][A-Za-z0-9_]*$"
+
+
+def _conformal_list(name: str, doc: str) -> Field:
+    return Field(
+        name,
+        doc,
+        "list",
+        item=Field(
+            "conformal_vector",
+            "A vector and its conformal factor.",
+            "record",
+            fields=(
+                replace(_vector("vector", "Contravariant components ξ^a by coordinate."),
+                        required=True),
+                Field("factor", "The factor ψ in L_ξ g = 2ψ g.", "math", required=True),
+            ),
+        ),
     )
 
 
@@ -258,6 +279,32 @@ CLAIMS = Field(
             "list",
             item=_vector("vector", "A Killing vector."),
         ),
+        Field(
+            "killing_tensors",
+            "Rank-2 Killing tensors K_ab (∇_(a K_bc) = 0), e.g. Carter's tensor.",
+            "list",
+            item=Field(
+                "killing_tensor",
+                "A symmetric Killing tensor.",
+                "record",
+                fields=(
+                    Field("name", "What it is called, e.g. Carter's tensor.", "line"),
+                    Field(
+                        "components",
+                        "Lower-index components K_ab keyed 'a b' (coordinate names); each pair "
+                        "once; missing pairs are zero.",
+                        "dict",
+                        required=True,
+                        key_pattern=PAIR_PATTERN,
+                        item=Field("component", "", "math"),
+                    ),
+                ),
+            ),
+        ),
+        _conformal_list("conformal_killing_vectors",
+                        "Conformal Killing vectors ξ with L_ξ g = 2ψ g, ψ the stated factor."),
+        _conformal_list("homotheties",
+                        "Homothetic vectors: L_ξ g = 2c g with a constant factor c."),
     ),
 )
 

@@ -24,6 +24,8 @@ from generator.physics.matter import MatterResult, classify_matter
 from generator.physics.petrov import PetrovResult, petrov_type
 from generator.physics.physical import check_physical_claims, physical_data
 from generator.physics.symmetry import check_all_related, check_killing_vector, geodesic_equations
+from generator.physics.symmetry_stage import symmetry
+from generator.physics.weyl_frame import weyl_frame
 
 SAMPLE_COUNT = 10
 STRESS_ENERGY = "stress-energy"  # the subject of the Hawking–Ellis type and energy conditions
@@ -83,6 +85,15 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     physical = physical_data(spacetime, geometry, declared)
     physical_verdicts, physical_problems = check_physical_claims(entry, spacetime, physical)
     diagnostics += physical_problems
+    try:
+        frame, why_no_frame = weyl_frame(geometry, spacetime, petrov, weyl_operator)
+    except ALGEBRA_FAILURES as exc:
+        frame, why_no_frame = None, f"the computer algebra failed ({type(exc).__name__})"
+    if frame is None:
+        reasons["weyl_frame"] = why_no_frame
+    summary, symmetry_problems = symmetry(entry, spacetime, geometry,
+                                          [verdict for verdict, _ in killing], frame)
+    diagnostics += symmetry_problems
     classification = Classification(
         matter_kind=matter.kind,
         cosmological_constant=matter.cosmological_constant,
@@ -99,6 +110,7 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
         reasons=reasons,
         physical=physical,
         physical_checked=tuple(physical_verdicts),
+        symmetry=summary,
     )
     return classification, diagnostics
 

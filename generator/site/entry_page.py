@@ -51,6 +51,7 @@ from generator.site.common import (
     verdict_row,
 )
 from generator.site.downloads import entry_json, latex_document, sympy_script
+from generator.site.isometry_page import isometry_data, isometry_dimension_text
 from generator.site.physical_page import (
     limit_families,
     limit_rows,
@@ -125,6 +126,7 @@ def entry_card(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "matter": kind,
         "matter_label": MATTER_LABELS.get(kind, kind),
         "petrov": (c.petrov_type if c else None) or "",
+        "isometry": isometry_dimension_text(report),
         "agreements": report.agreements,
         "evidence": "literature" if report.agreements else "computed-only",
         "evidence_label": EVIDENCE_LABELS["literature" if report.agreements else "computed-only"],
@@ -153,6 +155,7 @@ def entry_page_data(
         "invariants": invariant_rows(report, verdicts),
         "matter": matter_data(report, verdicts),
         "symmetry": symmetry_data(report, verdicts),
+        "isometry": isometry_data(report),
         "related": related_rows(report, around.published_links),
         "physical": physical_section(report),
         "limits": limit_rows(report, around.published_links),

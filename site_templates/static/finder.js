@@ -13,6 +13,7 @@
     matter: document.getElementById("f-matter"),
     petrov: document.getElementById("f-petrov"),
     evidence: document.getElementById("f-evidence"),
+    isometry: document.getElementById("f-isometry"),
     tag: document.getElementById("f-tag")
   };
   if (!form || !query) { return; }
@@ -35,6 +36,7 @@
     if (chosen.matter && item.matter !== chosen.matter) { return false; }
     if (chosen.petrov && item.petrov !== chosen.petrov) { return false; }
     if (chosen.evidence && item.evidence !== chosen.evidence) { return false; }
+    if (chosen.isometry && item.isometry !== chosen.isometry) { return false; }
     if (chosen.tag && item.tags.indexOf(chosen.tag) < 0) { return false; }
     var hay = haystacks[item.id];
     return words.every(function (word) { return hay.indexOf(word) >= 0; });
