@@ -393,10 +393,14 @@ def enclosure(iv: IntervalContext, value: sympy.Expr) -> Interval | None:
     numeric = value.evalf(60)
     if not (numeric.is_Float or numeric.is_Rational):
         return None
-    centre = mpmath.mpf(numeric._mpf_) if numeric.is_Float else mpmath.mpf(
-        int(numeric.p)) / int(numeric.q)
-    slack = abs(centre) * RELATIVE_SLACK + ABSOLUTE_SLACK
-    return iv.mpf([centre - slack, centre + slack])
+    # The 60-digit value must keep its digits on the way in: at mpmath's default 53 bits it
+    # would be rounded far beyond the slack, and a small T_ab k^a k^b could change sign.
+    with mpmath.workprec(INTERVAL_BITS):
+        centre = mpmath.mpf(numeric._mpf_) if numeric.is_Float else mpmath.mpf(
+            int(numeric.p)) / int(numeric.q)
+        slack = abs(centre) * RELATIVE_SLACK + ABSOLUTE_SLACK
+        lower, upper = centre - slack, centre + slack
+    return iv.mpf([lower, upper])
 
 
 def interval_matrix(iv: IntervalContext, values: Sequence[sympy.Expr], rows: int
