@@ -207,6 +207,18 @@ def arxiv_url(arxiv: str | None) -> str:
     return "https://arxiv.org/abs/" + quote(arxiv, safe="/.")
 
 
+_SUBSCRIPT = re.compile(r"(?<![\w&;])([A-Za-z])_([a-zξ]{1,4})\b")
+_SUPERSCRIPT = re.compile(r"(?<![\w&;])([A-Za-z])\^([a-z]{1,4})\b")
+
+
+def readable_text(text: str) -> Markup:
+    """A checker's sentence for a page, escaped, with index notation set as real sub- and
+    superscripts (``T_ab k^a k^b`` reads as T<sub>ab</sub>k<sup>a</sup>k<sup>b</sup>)."""
+    html = str(escape(text))
+    html = _SUBSCRIPT.sub(r"\1<sub>\2</sub>", html)
+    return Markup(_SUPERSCRIPT.sub(r"\1<sup>\2</sup>", html))
+
+
 def verdict_row(verdict: Verdict) -> dict[str, Any]:
     return {
         "subject": verdict.subject,
@@ -216,6 +228,7 @@ def verdict_row(verdict: Verdict) -> dict[str, Any]:
         "method": verdict.method,
         "method_label": METHOD_LABELS.get(verdict.method, verdict.method),
         "detail": verdict.detail,
+        "detail_html": readable_text(verdict.detail),
         "claimed": verdict.claimed,
         "computed": verdict.computed,
     }

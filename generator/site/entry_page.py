@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import re
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
@@ -10,7 +11,13 @@ from typing import Any
 import sympy
 from markupsafe import Markup
 
-from generator.entry.mathparse import parse_inequality, table_from_symbols
+from generator.entry.mathparse import (
+    parse_expression,
+    parse_inequality,
+    table_from_symbols,
+    valid_name,
+)
+from generator.entry.prose import abbreviation_values
 from generator.errors import AlmanacError
 from generator.model import (
     CatalogMeta,
@@ -38,16 +45,22 @@ from generator.site.common import (
     arxiv_url,
     coordinate_symbols,
     doi_url,
-    markdown_html,
     math_block,
     math_inline,
     parsed,
+    readable_text,
     relation_latex,
     typeset,
     typeset_text,
     verdict_row,
 )
 from generator.site.downloads import entry_json, latex_document, sympy_script
+from generator.site.prose_html import (
+    abbreviation_rows,
+    prose_line,
+    prose_markdown,
+    prose_symbols,
+)
 
 # ---------------------------------------------------------------------------- one entry
 
@@ -116,6 +129,8 @@ def entry_card(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "authors": authors,
         "years": sorted({ref.year for ref in entry.references}),
         "href": f"entries/{entry.id}/index.html",
+        "summary_html": prose_line(entry.summary, prose_symbols(entry, report.spacetime)),
+        "chart_html": prose_line(entry.chart, prose_symbols(entry, report.spacetime)),
     }
 
 
@@ -131,8 +146,11 @@ def entry_page_data(
     verdicts = {v.subject: v for v in report.verdicts}
     return {
         "entry": card,
-        "notes": markdown_html(entry.notes, allow_links=False),
+        "notes": prose_markdown(entry.notes, prose_symbols(entry, report.spacetime)),
         "metric": metric_data(report),
+        "abbreviations": abbreviation_rows(
+            entry, report.spacetime,
+            abbreviation_values(entry, report.spacetime) if report.spacetime else {}),
         "chart": chart_data(entry, report.spacetime),
         "invariants": invariant_rows(report, verdicts),
         "matter": matter_data(report, verdicts),
@@ -289,18 +307,47 @@ def matter_data(report: EntryReport, verdicts: Mapping[str, Verdict]) -> dict[st
         "hawking_ellis_claim": entry.claims.hawking_ellis_type,
         "stress_energy": stress_energy_rows(report),
         "energy_conditions": [
-            {"name": ec.name, "status": ec.status, "how": ec.how,
+            {"name": ec.name, "status": ec.status, "how": readable_text(ec.how),
              "claimed": dict(entry.claims.energy_conditions).get(ec.name, "")}
             for ec in (c.energy_conditions if c else ())
         ],
-        "reasons": sorted((c.reasons if c else {}).items()),
+        "reasons": matter_reasons(c.reasons if c else {}, entry.matter.kind),
         "energy_conditions_na": "",
+        "hawking_ellis_na": "",
     }
     statuses = {ec.status for ec in (c.energy_conditions if c else ())}
     if statuses == {"not-applicable"} and c is not None:
-        data["energy_conditions_na"] = c.energy_conditions[0].how
-        data["reasons"] = [(k, v) for k, v in data["reasons"] if k != "energy_conditions"]
+        data["energy_conditions_na"] = readable_reason(c.energy_conditions[0].how,
+                                                       entry.matter.kind)
+        data["hawking_ellis_na"] = readable_reason(
+            c.reasons.get("hawking_ellis_type", ""), entry.matter.kind)
+        data["reasons"] = [(k, v) for k, v in data["reasons"]
+                           if k not in (REASON_LABELS["energy_conditions"],
+                                        REASON_LABELS["hawking_ellis_type"])]
     return data
+
+
+# What the matter section explains, by the checker's internal key, in readers' words; reasons
+# about other sections (Petrov type, Weyl scalars) are shown there or not at all.
+REASON_LABELS = {
+    "matter_kind": "Matter content",
+    "hawking_ellis_type": "Hawking–Ellis type",
+    "energy_density": "Energy density",
+    "energy_conditions": "Energy conditions",
+}
+
+
+def readable_reason(text: str, matter_kind: str) -> Markup:
+    """A checker's reason for a page: the matter kind's label instead of its key, and
+    ``T_ab`` with a real subscript."""
+    if text.startswith(f"{matter_kind}: "):
+        text = f"{MATTER_LABELS.get(matter_kind, matter_kind)}: " + text[len(matter_kind) + 2:]
+    return readable_text(text)
+
+
+def matter_reasons(reasons: Mapping[str, str], matter_kind: str) -> list[tuple[str, Markup]]:
+    return [(REASON_LABELS[key], readable_reason(reasons[key], matter_kind))
+            for key in REASON_LABELS if key in reasons]
 
 
 def stress_energy_rows(report: EntryReport) -> list[Markup]:
@@ -371,10 +418,31 @@ def related_rows(report: EntryReport, published: Sequence[str]) -> list[dict[str
         rows.append({
             "entry": rel.entry,
             "href": f"../{rel.entry}/index.html" if rel.entry in published else "",
-            "map": [{"coordinate": name, "text": value.text} for name, value in rel.map],
+            "map": [map_item(name, value.text, report.spacetime) for name, value in rel.map],
             "verdict": verdict_row(verdict) if verdict else None,
         })
     return rows
+
+
+def map_item(coordinate: str, text: str, st: Spacetime | None) -> dict[str, Any]:
+    """One coordinate of a map between charts, typeset: ``r = sqrt(X**2 - T**2)`` as math.
+
+    A map is written in the other chart's names, which this entry does not declare; the
+    whitelisted parser reads them as plain symbols (already checked with the map itself).
+    When it still does not parse, the text is shown as code.
+    """
+    known = dict(st.symbols) if st is not None else {}
+    names = {n for n in [*re.findall(r"[A-Za-z_][A-Za-z0-9_]*", text), coordinate]
+             if valid_name(n) and n not in known}
+    table = table_from_symbols({**known, **{n: sympy.Symbol(n) for n in sorted(names)}})
+    coords = st.coordinates if st is not None else ()
+    try:
+        expr = parse_expression(text, table)
+        latex = (f"{mathtex.to_latex(sympy.Symbol(coordinate), coords)} = "
+                 f"{mathtex.to_latex(expr, coords)}")
+        return {"coordinate": coordinate, "text": text, "math": math_inline(latex)}
+    except (AlmanacError, mathtex.UnsafeMathML, ValueError, TypeError, RecursionError):
+        return {"coordinate": coordinate, "text": text, "math": None}
 
 
 def chart_link_row(link: ChartLink) -> dict[str, Any]:
@@ -384,7 +452,7 @@ def chart_link_row(link: ChartLink) -> dict[str, Any]:
         "entry": link.entry,
         "href": f"../{link.entry}/index.html",
         "chart": link.chart,
-        "map": [{"coordinate": name, "text": text} for name, text in link.map],
+        "map": [map_item(name, text, None) for name, text in link.map],
         "method_label": METHOD_LABELS.get(link.method, link.method),
         "route": [{"entry": step, "href": f"../{step}/index.html"} for step in link.route],
     }

@@ -22,6 +22,8 @@ from latex2mathml.converter import convert as _latex_to_mathml
 from sympy.core.function import AppliedUndef
 from sympy.printing.latex import LatexPrinter
 
+from generator.entry.mathparse import ProseMath
+
 # Coordinate names by the role they usually play; the line element lists time first, then
 # radial-type, then the rest in index order, then angles.
 TIME_NAMES = frozenset({"t", "tau", "T", "eta", "u", "v", "U", "V", "t_"})
@@ -152,9 +154,42 @@ class TextbookLatexPrinter(LatexPrinter):
         return super()._print_Derivative(expr)
 
 
+    def _print_PlusMinus(self, expr: sympy.Expr) -> str:
+        return self._print_signed_pair(expr, r"\pm")
+
+    def _print_MinusPlus(self, expr: sympy.Expr) -> str:
+        return self._print_signed_pair(expr, r"\mp")
+
+    def _print_signed_pair(self, expr: sympy.Expr, sign: str) -> str:
+        """``a ± b`` from prose (``± b`` when a is 0); b is bracketed when it is a sum."""
+        left, right = expr.args
+        body = self._print(right)
+        if right.is_Add:
+            body = rf"\left({body}\right)"
+        return f"{sign} {body}" if left == 0 else f"{self._print(left)} {sign} {body}"
+
+
 def to_latex(expr: sympy.Expr, coordinates: Sequence[sympy.Symbol] = ()) -> str:
     """LaTeX for a single expression, sums in textbook order."""
     return TextbookLatexPrinter(coordinates).doprint(sympy.sympify(expr))
+
+
+# ---------------------------------------------------------------------------- prose
+
+PROSE_RELATION_TEX = {"=": "=", "≠": r"\ne", "<": "<", "≤": r"\le", ">": ">", "≥": r"\ge",
+                      "→": r"\to", "≈": r"\approx"}
+
+
+def prose_latex(math: ProseMath, coordinates: Sequence[sympy.Symbol] = ()) -> str:
+    """LaTeX for a span of math from prose: relation chains separated by commas."""
+    printer = TextbookLatexPrinter(coordinates)
+    chains = []
+    for chain in math:
+        text = printer.doprint(chain.parts[0])
+        for relation, part in zip(chain.relations, chain.parts[1:], strict=True):
+            text += f" {PROSE_RELATION_TEX[relation]} {printer.doprint(part)}"
+        chains.append(text)
+    return r",\; ".join(chains)
 
 
 # ---------------------------------------------------------------------------- line element
