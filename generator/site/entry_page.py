@@ -17,7 +17,7 @@ from generator.entry.mathparse import (
     table_from_symbols,
     valid_name,
 )
-from generator.entry.prose import abbreviation_values
+from generator.entry.prose import abbreviation_values, plain_prose
 from generator.errors import AlmanacError
 from generator.model import (
     CatalogMeta,
@@ -131,6 +131,7 @@ def entry_card(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "href": f"entries/{entry.id}/index.html",
         "summary_html": prose_line(entry.summary, prose_symbols(entry, report.spacetime)),
         "chart_html": prose_line(entry.chart, prose_symbols(entry, report.spacetime)),
+        "notes_text": plain_prose(entry.notes),  # for the search index only
     }
 
 
