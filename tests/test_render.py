@@ -232,7 +232,8 @@ def test_sympy_script_download_rebuilds_the_metric(site: Path) -> None:
 def test_latex_download_is_a_document_with_the_line_element(site: Path) -> None:
     tex = (site / "entries/demo-harbour-lantern/demo-harbour-lantern.tex").read_text("utf-8")
     assert tex.startswith("\\documentclass{article}")
-    assert "\\mathrm{d}s^{2} = -\\left(1 - \\frac{2 m}{r}" in tex
+    assert "\\mathrm{d}s^{2} &= -\\left(1 - \\frac{2 m}{r}" in tex  # broken over two rows
+    assert "g_{tt} = -\\left(1 - \\frac{2 m}{r} + \\frac{q^{2}}{r^{2}}\\right)" in tex
     assert tex.rstrip().endswith("\\end{document}")
 
 

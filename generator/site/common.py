@@ -18,6 +18,7 @@ from markupsafe import Markup, escape
 
 from generator.entry.content_hash import short_hash
 from generator.entry.mathparse import parse_math
+from generator.entry.prose import abbreviation_symbols, abbreviation_values
 from generator.errors import AlmanacError
 from generator.model import (
     CatalogMeta,
@@ -141,6 +142,16 @@ def revision_file(entry_id: str, content_hash: str) -> str:
 
 def coordinate_symbols(report: EntryReport) -> tuple[sympy.Symbol, ...]:
     return report.spacetime.coordinates if report.spacetime else ()
+
+
+def abbreviation_pairs(report: EntryReport) -> list[tuple[sympy.Symbol, sympy.Expr]]:
+    """(symbol, definition) of each abbreviation the entry declares, for typesetting."""
+    if report.entry is None or report.spacetime is None:
+        return []
+    symbols = abbreviation_symbols(report.entry)
+    return [(symbols[name], value)
+            for name, value in abbreviation_values(report.entry, report.spacetime).items()
+            if name in symbols]
 
 
 def typeset(expr: sympy.Expr | None, coords: Sequence[sympy.Symbol] = ()) -> Markup | None:

@@ -42,6 +42,7 @@ from generator.site.common import (
     SIGNATURE,
     UNITS,
     Surroundings,
+    abbreviation_pairs,
     arxiv_url,
     coordinate_symbols,
     doi_url,
@@ -148,12 +149,12 @@ def entry_page_data(
     return {
         "entry": card,
         "notes": prose_markdown(entry.notes, prose_symbols(entry, report.spacetime)),
-        "metric": metric_data(report),
+        "metric": metric_data(report, abbreviation_pairs(report)),
         "abbreviations": abbreviation_rows(
             entry, report.spacetime,
             abbreviation_values(entry, report.spacetime) if report.spacetime else {}),
         "chart": chart_data(entry, report.spacetime),
-        "invariants": invariant_rows(report, verdicts),
+        "invariants": invariant_rows(report, verdicts, abbreviation_pairs(report)),
         "matter": matter_data(report, verdicts),
         "symmetry": symmetry_data(report, verdicts),
         "related": related_rows(report, around.published_links),
@@ -192,16 +193,18 @@ def download_links(entry_id: str) -> list[dict[str, str]]:
     ]
 
 
-def metric_data(report: EntryReport) -> dict[str, Any]:
+def metric_data(report: EntryReport,
+                pairs: Sequence[tuple[sympy.Symbol, sympy.Expr]] = ()) -> dict[str, Any]:
     st = report.spacetime
     if st is None:
         return {"line_element": None, "components": []}
     coords = st.coordinates
-    line = mathtex.line_element_display_latex(st.metric, coords)
+    metric = mathtex.abbreviate_matrix(st.metric, pairs)
+    line = mathtex.line_element_display_latex(metric, coords)
     components = []
     for i in range(st.dimension):
         for j in range(i, st.dimension):
-            value = st.metric[i, j]
+            value = metric[i, j]
             if value != 0:
                 components.append(
                     Markup(mathtex.latex_to_mathml(
@@ -242,7 +245,9 @@ def domain_row(math: MathText, st: Spacetime | None) -> dict[str, Any]:
     return {"math": math_inline(relation_latex(relation, st.coordinates)), "text": math.text}
 
 
-def invariant_rows(report: EntryReport, verdicts: Mapping[str, Verdict]) -> list[dict[str, Any]]:
+def invariant_rows(report: EntryReport, verdicts: Mapping[str, Verdict],
+                   pairs: Sequence[tuple[sympy.Symbol, sympy.Expr]] = ()
+                   ) -> list[dict[str, Any]]:
     entry, geometry = report.entry, report.geometry
     assert entry is not None
     coords = coordinate_symbols(report)
@@ -257,7 +262,8 @@ def invariant_rows(report: EntryReport, verdicts: Mapping[str, Verdict]) -> list
             "key": key,
             "label": label,
             "symbol": math_inline(symbol),
-            "computed": typeset(computed, coords),
+            "computed": typeset(mathtex.abbreviate(computed, pairs) if computed is not None
+                                else None, coords),
             "claim": claim_data(claim, entry, report.spacetime) if claim else None,
             "verdict": verdict_row(verdicts[f"claims.{key}"]) if f"claims.{key}" in verdicts
             else None,

@@ -192,6 +192,35 @@ def prose_latex(math: ProseMath, coordinates: Sequence[sympy.Symbol] = ()) -> st
     return r",\; ".join(chains)
 
 
+# ---------------------------------------------------------------------------- abbreviations
+
+
+def abbreviate(expr: sympy.Expr, pairs: Sequence[tuple[sympy.Symbol, sympy.Expr]]) -> sympy.Expr:
+    """``expr`` with each declared abbreviation's definition replaced by its symbol
+    (r² + a² cos²θ → Σ), longest definitions first, as textbooks write Kerr.
+
+    A replacement is kept only when putting the definition back gives the same expression
+    exactly, so what is typeset is always the computed value.
+    """
+    result = sympy.sympify(expr)
+    for symbol, definition in sorted(pairs, key=lambda p: (-sympy.count_ops(p[1]), str(p[0]))):
+        candidate = result.subs(definition, symbol)
+        if candidate == result:
+            continue
+        back = candidate.subs(symbol, definition)
+        if back == result or sympy.cancel(back - result) == 0:
+            result = candidate
+    return result
+
+
+def abbreviate_matrix(matrix: sympy.MatrixBase,
+                      pairs: Sequence[tuple[sympy.Symbol, sympy.Expr]]) -> sympy.MatrixBase:
+    if not pairs:
+        return matrix
+    return sympy.ImmutableMatrix(matrix.shape[0], matrix.shape[1],
+                                 lambda i, j: abbreviate(matrix[i, j], pairs))
+
+
 # ---------------------------------------------------------------------------- line element
 
 
@@ -384,12 +413,22 @@ def _group_latex(
     return negative, body
 
 
+def signed_latex(expr: sympy.Expr, coordinates: Sequence[sympy.Symbol] = ()) -> str:
+    """A sum that reads better negated as ``-(1 - 2M/r)``, as textbooks write g_tt; anything
+    else as `to_latex` prints it."""
+    expr = sympy.sympify(expr)
+    if expr.is_Add and _prefers_minus(expr):
+        return rf"-\left({to_latex(-expr, coordinates)}\right)"
+    return to_latex(expr, coordinates)
+
+
 def component_latex(
     a: sympy.Symbol, b: sympy.Symbol, value: sympy.Expr, coordinates: Sequence[sympy.Symbol]
 ) -> str:
     """``g_{tt} = ...`` for one lower-index metric component."""
     printer = TextbookLatexPrinter(coordinates)
-    return rf"g_{{{printer.doprint(a)}{printer.doprint(b)}}} = {to_latex(value, coordinates)}"
+    return (rf"g_{{{printer.doprint(a)}{printer.doprint(b)}}} = "
+            rf"{signed_latex(value, coordinates)}")
 
 
 # ---------------------------------------------------------------------------- MathML
