@@ -12,11 +12,13 @@ syntax.
 
 from __future__ import annotations
 
+import itertools
 import re
 import subprocess
 import sys
 import unicodedata
 from collections.abc import Iterator
+from html.parser import HTMLParser
 from pathlib import Path
 from typing import Any
 
@@ -188,3 +190,111 @@ def test_a_search_url_restores_the_query_and_its_reading(browser: Any, catalog_s
         "li.card", "cards => cards.filter(c => !c.hidden).map(c => c.dataset.id)")
     assert "reissner-nordstrom" in visible and "kerr-boyer-lindquist" not in visible
     page.close()
+
+
+# ---------------------------------------------------------------------------- layout
+
+
+def site_pages(site: Path) -> list[str]:
+    """Every page of the site, relative to its root (entry pages, lists, tags, families …)."""
+    return sorted(str(p.relative_to(site)) for p in site.rglob("*.html"))
+
+
+def test_every_page_kind_is_among_the_pages_checked(catalog_site: Path) -> None:
+    pages = site_pages(catalog_site)
+    kinds = {"index.html", "browse.html", "catalog.html", "contributing.html",
+             "conventions.html", "revisions.html"}
+    assert kinds <= set(pages)
+    assert any(p.startswith("entries/") for p in pages)
+    assert any(p.startswith("families/") for p in pages)
+    assert any(p.startswith("tags/") for p in pages)
+
+
+_TEXT_OUTSIDE_CODE = """() => {
+  const walker = document.createTreeWalker(document.body, NodeFilter.SHOW_TEXT);
+  const parts = [];
+  while (walker.nextNode()) {
+    const node = walker.currentNode;
+    if (!node.parentElement.closest('code, pre, script, style')) { parts.push(node.data); }
+  }
+  return parts.join(' ');
+}"""
+
+
+def test_no_page_scrolls_sideways_on_a_phone_and_none_shows_program_syntax(
+    browser: Any, catalog_site: Path
+) -> None:
+    page = browser.new_page(viewport={"width": 400, "height": 800})
+    wide: dict[str, int] = {}
+    program: dict[str, list[str]] = {}
+    for path in site_pages(catalog_site):
+        page.goto(catalog_site.as_uri() + "/" + path)
+        width = page.evaluate("document.documentElement.scrollWidth")
+        if width > 400:
+            wide[path] = width
+        text = page.evaluate(_TEXT_OUTSIDE_CODE)
+        found = [m for m in ("**", "sqrt(") if m in text]
+        if found:
+            program[path] = found
+    page.close()
+    assert wide == {}
+    assert program == {}
+
+
+def test_phone_width_also_holds_at_360_px_for_the_widest_entries(
+    browser: Any, catalog_site: Path
+) -> None:
+    page = browser.new_page(viewport={"width": 360, "height": 800})
+    for entry in ("kerr-de-sitter", "alcubierre", "kerr-newman", "lemaitre-tolman-bondi"):
+        page.goto(f"{catalog_site.as_uri()}/entries/{entry}/index.html")
+        assert page.evaluate("document.documentElement.scrollWidth") <= 360, entry
+    page.close()
+
+
+def test_long_formulas_scroll_inside_their_own_box(browser: Any, catalog_site: Path) -> None:
+    page = browser.new_page(viewport={"width": 400, "height": 800})
+    page.goto(catalog_site.as_uri() + "/entries/kerr-de-sitter/index.html")
+    box = page.eval_on_selector(
+        "#line-element .display-math",
+        "e => [e.scrollWidth, e.clientWidth, getComputedStyle(e).overflowX]")
+    assert box[1] <= 400 and box[2] == "auto"
+    page.close()
+
+
+def test_printing_opens_closed_blocks(browser: Any, catalog_site: Path) -> None:
+    page = browser.new_page()
+    page.goto(catalog_site.as_uri() + "/entries/schwarzschild/index.html")
+    assert page.evaluate("[...document.querySelectorAll('details')].some(d => !d.open)")
+    page.emulate_media(media="print")
+    page.evaluate("window.dispatchEvent(new Event('beforeprint'))")
+    assert page.evaluate("[...document.querySelectorAll('details')].every(d => d.open)")
+    page.evaluate("window.dispatchEvent(new Event('afterprint'))")
+    assert page.evaluate("[...document.querySelectorAll('details')].some(d => !d.open)")
+    page.close()
+
+
+class _Headings(HTMLParser):
+    def __init__(self) -> None:
+        super().__init__()
+        self.levels: list[int] = []
+
+    def handle_starttag(self, tag: str, attrs: list[tuple[str, str | None]]) -> None:
+        if len(tag) == 2 and tag[0] == "h" and tag[1] in "123456":
+            self.levels.append(int(tag[1]))
+
+
+def heading_levels(html: str) -> list[int]:
+    parser = _Headings()
+    parser.feed(html)
+    return parser.levels
+
+
+def test_heading_levels_never_skip(catalog_site: Path) -> None:
+    """Assistive technology reads headings as an outline: h1, then h2, never h1 → h3."""
+    skips = {}
+    for path in site_pages(catalog_site):
+        levels = heading_levels((catalog_site / path).read_text(encoding="utf-8"))
+        bad = [(a, b) for a, b in itertools.pairwise(levels) if b > a + 1]
+        if bad or (levels and levels[0] != 1):
+            skips[path] = bad or levels[:1]
+    assert skips == {}

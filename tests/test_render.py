@@ -172,7 +172,7 @@ def test_search_index_is_an_embedded_script_with_published_entries(site: Path) -
     assert rows[0]["authors"] == ["A. Keeper", "B. Tide"]
     browse = page(site, "browse.html")
     assert [s["src"] for s in browse.find("script")] == [
-        "assets/search-index.js", "assets/vendor/lunr/lunr-2.3.9.min.js",
+        "assets/print.js", "assets/search-index.js", "assets/vendor/lunr/lunr-2.3.9.min.js",
         "assets/search-lunr.js", "assets/finder.js"]
     licence = (site / "assets/vendor/lunr/LICENSE").read_text(encoding="utf-8")
     assert "Permission is hereby granted" in licence  # the vendored library keeps its licence

@@ -162,6 +162,7 @@ def entry_page_data(
         "charts_through": [chart_link_row(c) for c in around.charts if c.kind != MAPS_HERE],
         "references": [reference_data(r) for r in entry.references],
         "checks": [verdict_row(v) for v in report.verdicts],
+        "verified": verification_summary(report),
         "provenance": {
             "generator_version": meta.generator_version,
             "sympy_version": meta.sympy_version,
@@ -179,6 +180,55 @@ def entry_page_data(
         ],
         "plots": [{"file": p.file_name, "alt": p.alt, "caption": p.caption} for p in figures],
         "downloads": download_links(entry.id),
+    }
+
+
+SUBJECT_LABELS = {
+    **{f"claims.{key}": label for key, label, _ in INVARIANTS},
+    "claims.petrov_type": "Petrov type",
+    "claims.hawking_ellis_type": "Hawking–Ellis type",
+    "matter.kind": "Matter content",
+}
+
+
+def subject_label(subject: str, entry: Entry) -> str:
+    """A verdict's subject in readers' words (the check log keeps the key)."""
+    if subject in SUBJECT_LABELS:
+        return SUBJECT_LABELS[subject]
+    head, _, index = subject.rpartition(".")
+    if head == "claims.killing_vectors" and index.isdigit():
+        return f"Killing vector {int(index) + 1}"
+    if head == "related" and index.isdigit() and int(index) < len(entry.related):
+        return f"Map to {entry.related[int(index)].entry}"
+    if subject.startswith("claims.energy_conditions."):
+        return f"{subject.rpartition('.')[2]} energy condition"
+    return subject
+
+
+def verification_summary(report: EntryReport) -> dict[str, Any]:
+    """What only this tool has, for the top of the page: how many stated facts were checked,
+    how, and against which published source; what is the tool's own result."""
+    entry = report.entry
+    assert entry is not None
+    claims = {f"claims.{c.name}": c for c in entry.claims.scalars}
+    rows = []
+    for verdict in report.verdicts:
+        claim = claims.get(verdict.subject)
+        source = claim_source(claim.source, entry) if claim else None
+        rows.append({**verdict_row(verdict), "label": subject_label(verdict.subject, entry),
+                     "against": source["label"] if source and not source["computed_here"]
+                     else "", "own": bool(source and source["computed_here"])})
+    states = [row["state"] for row in rows]
+    return {
+        "rows": rows,
+        "total": len(rows),
+        "agrees": states.count("agrees"),
+        "exact": sum(1 for r in rows if r["state"] == "agrees" and r["method"] == "exact"),
+        "sampled": sum(1 for r in rows if r["state"] == "agrees" and r["method"] == "sampled"),
+        "undecided": states.count("undecided"),
+        "disagrees": states.count("disagrees"),
+        "sources": sorted({r["against"] for r in rows if r["against"]}),
+        "own": [r["label"] for r in rows if r["own"]],
     }
 
 
