@@ -62,6 +62,7 @@ from generator.site.prose_html import (
     prose_markdown,
     prose_symbols,
 )
+from generator.site.tensor_tables import tensor_tables
 
 # ---------------------------------------------------------------------------- one entry
 
@@ -155,6 +156,7 @@ def entry_page_data(
             abbreviation_values(entry, report.spacetime) if report.spacetime else {}),
         "chart": chart_data(entry, report.spacetime),
         "invariants": invariant_rows(report, verdicts, abbreviation_pairs(report)),
+        "tensors": tensor_tables(report, abbreviation_pairs(report)),
         "matter": matter_data(report, verdicts),
         "symmetry": symmetry_data(report, verdicts),
         "related": related_rows(report, around.published_links),
