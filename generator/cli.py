@@ -58,6 +58,10 @@ def build_parser() -> argparse.ArgumentParser:
     build.add_argument("--prune-cache", action="store_true",
                        help="after the build, delete cached results it did not use (keeps a "
                        "cache that CI saves between runs from growing)")
+    build.add_argument("--require-address", action="store_true",
+                       help="refuse to build without site_address in the catalog's "
+                       "publication.yaml (for the build that is published: its citations then "
+                       "carry a permanent address)")
     _add_run_options(build)
 
     serve = commands.add_parser("serve", help="preview the site on 127.0.0.1, rebuilding on "
@@ -82,15 +86,18 @@ def main(argv: Sequence[str] | None = None) -> int:
         from generator.entry.scaffold import new_main
 
         return new_main(args_list[1:])
-    if args_list[:1] == ["cite"]:
-        from generator.site.cite import cite_main
-
-        return cite_main(args_list[1:])
     parser = build_parser()
     try:
+        if args_list[:1] == ["cite"]:
+            from generator.run.citing import cite_main
+
+            return cite_main(args_list[1:])
         args = parser.parse_args(args_list)
     except SystemExit as exc:
         return EXIT_USAGE if exc.code else EXIT_OK
+    except AlmanacError as exc:
+        print(f"almanac: error: {exc}", file=sys.stderr)
+        return EXIT_USAGE
     try:
         return _dispatch(args)
     except UsageError as exc:
@@ -113,7 +120,8 @@ def _dispatch(args: argparse.Namespace) -> int:
 
         on_done, on_running = _progress_printer(args, len(entry_files([args.catalog])))
         result = build_site(args.catalog, args.out, _options(args), args.publish_verified_only,
-                            on_done, on_running, args.prune_cache)
+                            on_done, on_running, args.prune_cache,
+                            require_address=args.require_address)
         return EXIT_OK if result.ok else EXIT_FAILED
     if args.command == "serve":
         from generator.run.build import serve_site

@@ -81,6 +81,10 @@ class Matter:
     null_direction: tuple[tuple[str, MathText], ...] = ()  # k^a, upper index
     pos: SourcePos | None = None
     principal_pressures: tuple[tuple[str, MathText], ...] = ()  # anisotropic fluid: T^i_i
+    scalar: MathText | None = None  # scalar field φ
+    scalar_potential: MathText | None = None  # V(φ) along the solution; None: massless
+    lagrangian: MathText | None = None  # nonlinear electrodynamics: L(F) along the solution
+    lagrangian_derivative: MathText | None = None  # dL/dF along the solution
 
 
 @dataclass(frozen=True)
@@ -160,6 +164,17 @@ class Entry:
     abbreviations: tuple[tuple[str, MathText], ...] = ()  # named shorthands (prose, typesetting)
     positions: dict[str, SourcePos] = field(default_factory=dict, compare=False, hash=False)
     source_text: str = field(default="", compare=False, hash=False, repr=False)
+
+    def published_source(self, subject: str) -> str | None:
+        """The reference role that prints the value claimed under ``subject`` (a verdict
+        subject such as ``claims.kretschmann``), or None when the entry names no publication
+        for it: ``computed-here``, the short form without a source, and structural facts."""
+        name = subject.removeprefix("claims.")
+        sources = {c.name: c.source for c in self.claims.scalars}
+        sources.update({label: source for label, source, _ in self.claims.label_sources})
+        role = sources.get(name) if subject.startswith("claims.") else None
+        roles = {r.role for r in self.references}
+        return role if role in roles else None
 
     def pos(self, key: str) -> SourcePos:
         """Position of a dotted key path (e.g. ``claims.kretschmann``), else of the file start."""
@@ -244,6 +259,9 @@ class Decision:
     witness: dict[str, str] | None = None  # a sample point where the two sides differ
 
 
+VerdictStatus = Literal["agrees", "computed-only", "disagrees"]
+
+
 @dataclass(frozen=True)
 class Verdict:
     """Result of verifying one claim or one structural fact of an entry."""
@@ -254,6 +272,17 @@ class Verdict:
     detail: str
     claimed: str = ""
     computed: str = ""
+    # Role of the entry's reference that prints the claimed value; None when no published value
+    # is named (a ``computed-here`` or unsourced claim, or a structural check of the entry).
+    source: str | None = None
+
+    @property
+    def status(self) -> VerdictStatus:
+        """Agreement with a cited publication is kept apart from the tool agreeing with itself:
+        a value nobody published can only be "computed-only", never "agrees"."""
+        if not self.ok:
+            return "disagrees"
+        return "agrees" if self.source else "computed-only"
 
 
 def related_subject(index: int) -> str:
@@ -312,6 +341,11 @@ class EntryReport:
     def ok(self) -> bool:
         return not any(d.severity == "error" for d in self.diagnostics)
 
+    @property
+    def agreements(self) -> int:
+        """How many checked values agree with a value printed in a cited publication."""
+        return sum(v.status == "agrees" for v in self.verdicts)
+
 
 # ---------------------------------------------------------------------------- catalog as a whole
 
@@ -341,6 +375,19 @@ class Revision:
 
 
 @dataclass(frozen=True)
+class Publication:
+    """How a catalog is published and cited: its own settings (``publication.yaml`` beside
+    ``families.yaml``), never a built-in address, so that a research group publishing its
+    own catalog with this tool never cites somebody else's site."""
+
+    title: str = "Metric Almanac"
+    authors: str = "Metric Almanac contributors"
+    version: str | None = None  # else the project's version (see entry.publication)
+    site_address: str | None = None  # public address of the built site, e.g. https://…/
+    repository: str | None = None  # public address of the catalog's source repository
+
+
+@dataclass(frozen=True)
 class CatalogMeta:
     """Catalog-wide data the site needs besides the entries (loaded once per build)."""
 
@@ -350,5 +397,5 @@ class CatalogMeta:
     families: tuple[Family, ...]
     tags: tuple[Tag, ...]
     contributing_markdown: str  # DEVELOPERS.md, rendered as the contributing page
-    base_url: str  # permanent URL prefix used in citations
+    publication: Publication
     revisions: dict[str, tuple[Revision, ...]] = field(default_factory=dict)

@@ -121,7 +121,7 @@ def test_the_view_key_names_everything_a_view_is_made_from(project: Path) -> Non
     from dataclasses import replace
 
     from generator.errors import Diagnostic
-    from generator.model import Family, Revision
+    from generator.model import Family, Publication, Revision
     from generator.run.build import catalog_meta
     from generator.run.pipeline import check_files
     from generator.site.atlas import MAPS_HERE, ChartLink
@@ -140,7 +140,8 @@ def test_the_view_key_names_everything_a_view_is_made_from(project: Path) -> Non
         view_key(replace(report, inputs_key="another"), meta),
         view_key(replace(report, diagnostics=(*report.diagnostics, note)), meta),
         view_key(report, replace(meta, version="9.9.9")),
-        view_key(report, replace(meta, base_url="https://elsewhere.example/")),
+        view_key(report, replace(meta, publication=Publication(
+            site_address="https://elsewhere.example/"))),
         view_key(report, replace(meta, families=(*meta.families, Family("x", "X", "")))),
         view_key(report, replace(meta, revisions={"lighthouse-dome": (revision,)})),
         view_key(report, meta, Surroundings(published_links=("another-entry",))),

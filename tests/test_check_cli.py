@@ -157,3 +157,50 @@ def test_broken_yaml_never_shows_a_traceback(catalog: Path) -> None:
     assert "Traceback" not in result.stderr
     assert "catalog/riemannian/broken.yaml:" in result.stderr
     assert "error: invalid YAML" in result.stderr
+
+
+def test_every_verified_item_says_whether_a_publication_backs_it(
+        catalog: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    """Three verdicts, never two: the dome's Ricci scalar names its textbook ("agrees"), its
+    Kretschmann scalar is written in the short form without a source and its Killing vector is
+    a structural fact ("computed-only": the tool agreed with itself); a wrong value with a
+    source is "disagrees" and fails the entry."""
+    status, out, err = run(["check", "catalog/riemannian/lighthouse-dome.yaml", "--json"], capsys)
+    assert status == 0, err
+    (report,) = json.loads(out)["entries"]
+    statuses = {v["subject"]: (v["status"], v["source"]) for v in report["verified"]}
+    assert statuses["claims.ricci_scalar"] == ("agrees", "textbook")
+    assert statuses["claims.kretschmann"] == ("computed-only", None)
+    assert all(v["status"] in {"agrees", "computed-only", "disagrees"}
+               for v in report["verified"])
+    assert all(v["status"] == "computed-only"
+               for v in report["computed"]["killing_vectors_checked"])
+
+    entry = catalog / "riemannian" / "lighthouse-dome.yaml"
+    entry.write_text(entry.read_text().replace("value: 2/rho**2", "value: 3/rho**2"))
+    status, out, _ = run(["check", "catalog/riemannian/lighthouse-dome.yaml", "--json"], capsys)
+    assert status == 1
+    (report,) = json.loads(out)["entries"]
+    wrong = next(v for v in report["verified"] if v["subject"] == "claims.ricci_scalar")
+    assert (wrong["status"], wrong["ok"]) == ("disagrees", False)
+
+
+def test_a_computed_here_claim_is_never_counted_as_agreement(
+        catalog: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    entry = catalog / "riemannian" / "lighthouse-dome.yaml"
+    entry.write_text(entry.read_text().replace("source: textbook", "source: computed-here"))
+    status, out, err = run(["check", "catalog/riemannian/lighthouse-dome.yaml", "--json"], capsys)
+    assert status == 0, err
+    (report,) = json.loads(out)["entries"]
+    assert {v["status"] for v in report["verified"]} == {"computed-only"}
+
+
+def test_a_two_dimensional_metric_has_no_matter_kind(catalog: Path,
+                                                    capsys: pytest.CaptureFixture[str]) -> None:
+    """G_ab vanishes identically in two dimensions (common practice), so the dome is neither
+    vacuum nor "non-vacuum": its matter kind is null, with the reason beside it."""
+    status, out, err = run(["check", "catalog/riemannian/lighthouse-dome.yaml", "--json"], capsys)
+    assert status == 0, err
+    computed = json.loads(out)["entries"][0]["computed"]
+    assert computed["matter_kind"] is None
+    assert "empty below three dimensions" in computed["not_applicable"]["matter_kind"]

@@ -17,7 +17,18 @@ import pytest
 from _entry_builders import SCHWARZSCHILD_ORIGINAL, math, pos, schwarzschild
 
 from generator.entry.content_hash import content_hash, short_hash
-from generator.model import CatalogMeta, Claim, Claims, Matter, Parameter, Reference, Revision
+from generator.model import (
+    CatalogMeta,
+    Claim,
+    Claims,
+    Entry,
+    EntryReport,
+    Matter,
+    Parameter,
+    Publication,
+    Reference,
+    Revision,
+)
 from generator.site.cite import (
     FORMATS,
     Venue,
@@ -27,11 +38,16 @@ from generator.site.cite import (
     cite_original,
     split_name,
     split_venue,
-    standalone_report,
 )
 
 CSL_SCHEMA = json.loads((Path(__file__).parent / "data" / "csl-data.schema.json").read_text())
 BASE_URL = "https://almanac.test/"  # invented for the tests
+PUBLISHED = Publication(site_address=BASE_URL)
+
+
+def standalone_report(entry: Entry, file: str) -> EntryReport:
+    """A report with only what a citation reads (no geometry: these tests are about text)."""
+    return EntryReport(entry, file, None, None, None, (), (), content_hash(entry))
 
 
 def meta(**overrides: object) -> CatalogMeta:
@@ -42,7 +58,7 @@ def meta(**overrides: object) -> CatalogMeta:
         "families": (),
         "tags": (),
         "contributing_markdown": "",
-        "base_url": BASE_URL,
+        "publication": PUBLISHED,
         "revisions": {
             "schwarzschild-test": (
                 Revision("c1" * 20, "2026-11-20", "ab" * 32, "Add entry"),
@@ -174,7 +190,8 @@ def test_entry_citation_without_history_has_no_year() -> None:
 def test_base_url_without_trailing_slash_still_gives_a_clean_url() -> None:
     entry = schwarzschild()
     report = standalone_report(entry, entry.file)
-    text = cite_entry(report, meta(base_url="https://almanac.test/catalog"), "text")
+    address = Publication(site_address="https://almanac.test/catalog")
+    text = cite_entry(report, meta(publication=address), "text")
     assert "https://almanac.test/catalog/entries/schwarzschild-test/ " in text
 
 
@@ -282,13 +299,13 @@ def test_original_bibtex_splits_a_journal_venue() -> None:
     assert fields["author"] == "R. P. Kerr"
 
 
-def test_original_keeps_a_year_as_volume_venue_whole_and_flags_unconfirmed_fields() -> None:
+def test_original_keeps_a_year_as_volume_venue_whole_and_prints_no_confirmation_note() -> None:
     (record,) = parse_bibtex(cite_original(schwarzschild(), "bibtex")).entries
     fields = {name: field.value for name, field in record.fields_dict.items()}
     assert fields["journal"] == "Sitzungsber. Preuss. Akad. Wiss. Berlin 1916, 189"
     assert "volume" not in fields
     assert fields["eprint"] == "physics/9905030"
-    assert fields["note"] == "Not confirmed against the publication: venue"
+    assert "note" not in fields  # confirmation state is shown on the page, never in a bibliography
 
 
 def test_original_book_uses_publisher() -> None:
@@ -410,12 +427,19 @@ def test_citation_cff_agrees_with_pyproject() -> None:
     assert cff["license"] == (license if isinstance(license, str) else license["text"])
 
 
-def test_citation_cff_names_the_same_author_as_entry_citations() -> None:
-    from generator.site.cite import CATALOG_AUTHOR, CATALOG_NAME
+def test_citation_cff_names_the_same_title_author_version_and_address_as_entry_citations(
+) -> None:
+    """The catalog's own citation and every entry's agree: same title, authors and version,
+    and an address only where the catalog's settings name one (none today)."""
+    from generator.entry.publication import catalog_version, read_publication
 
     cff = _cff()
-    assert cff["authors"] == [{"name": CATALOG_AUTHOR}]
-    assert cff["title"] == CATALOG_NAME
+    publication = read_publication(ROOT / "catalog")
+    assert cff["authors"] == [{"name": publication.authors}]
+    assert cff["title"] == publication.title
+    assert str(cff["version"]) == catalog_version(ROOT / "catalog", publication, "none")
+    assert cff.get("url") == publication.site_address
+    assert cff.get("repository-code") == publication.repository
 
 
 # ---------------------------------------------------------------------------- hash of YAML text
@@ -467,3 +491,99 @@ def test_hash_of_yaml_changes_with_the_mathematics(old: str, new: str) -> None:
     original = demo_entry("lantern")
     assert old in original
     assert _hash_of_text(original.replace(old, new)) != _hash_of_text(original)
+
+
+# ---------------------------------------------------------------------------- the cite command
+
+DEMO = Path(__file__).parent / "roots" / "demo-catalog" / "catalog"
+
+
+@pytest.fixture
+def demo(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
+    import shutil
+
+    shutil.copytree(DEMO, tmp_path / "catalog")
+    monkeypatch.chdir(tmp_path)
+    return tmp_path / "catalog"
+
+
+def cite_command(args: list[str], capsys: pytest.CaptureFixture[str]) -> tuple[int, str, str]:
+    from generator.cli import main
+
+    status = main(["cite", *args, "--no-cache"])
+    out, err = capsys.readouterr()
+    return status, out, err
+
+
+def test_without_a_site_address_a_citation_has_no_url_and_says_how_to_set_one(
+        demo: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    status, out, err = cite_command(["lighthouse-dome", "--format", "text"], capsys)
+    assert status == 0, err
+    assert "http" not in out and "accessed" not in out
+    assert "entry lighthouse-dome" in out and "content hash" in out
+    assert "site_address" in err and "publication.yaml" in err
+    status, out, _ = cite_command(["lighthouse-dome"], capsys)
+    (record,) = parse_bibtex(out).entries
+    assert "url" not in record.fields_dict and "urldate" not in out
+
+
+def test_the_site_address_setting_reaches_every_citation_and_page(
+        demo: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    """Change the catalog's setting once: the cite command, the entry page's citations and its
+    "how to cite" block all follow (the address is invented for the test)."""
+    from generator.run.build import build_site
+    from generator.run.pipeline import RunOptions
+
+    (demo / "publication.yaml").write_text(
+        "site_address: https://lighthouse.example/almanac/\n"
+        "repository: https://lighthouse.example/src/almanac\n", encoding="utf-8")
+    status, out, err = cite_command(["lighthouse-dome", "--format", "csl-json"], capsys)
+    assert status == 0, err
+    (item,) = json.loads(out)
+    assert item["URL"] == "https://lighthouse.example/almanac/entries/lighthouse-dome/"
+    assert "https://lighthouse.example/src/almanac" in item["note"]
+    assert "site_address" not in err
+    assert build_site(demo, demo.parent / "site", RunOptions(jobs=1)).ok
+    html = (demo.parent / "site/entries/lighthouse-dome/index.html").read_text(encoding="utf-8")
+    assert html.count("https://lighthouse.example/almanac/entries/lighthouse-dome/") >= 3
+    assert "revisions.html?hash=" in html
+
+
+def test_a_build_for_publishing_refuses_a_catalog_without_an_address(
+        demo: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    from generator.cli import main
+
+    status = main(["build", "--catalog", "catalog", "--out", "site", "--no-cache",
+                   "--require-address"])
+    assert status == 2
+    assert "names no site address" in capsys.readouterr().err
+    assert not (demo.parent / "site").exists()
+
+
+@pytest.mark.parametrize(("text", "message"), [
+    ("site_adress: https://x.example/\n", "unknown key 'site_adress'"),
+    ("site_address: javascript:alert(1)\n", "plain http(s) address"),
+    ("site_address: 'https://x.example/\" onclick=x'\n", "plain http(s) address"),
+    ("title: [a, b]\n", "one line of text"),
+])
+def test_publication_settings_are_checked(demo: Path, capsys: pytest.CaptureFixture[str],
+                                          text: str, message: str) -> None:
+    (demo / "publication.yaml").write_text(text, encoding="utf-8")
+    status, _, err = cite_command(["lighthouse-dome"], capsys)
+    assert status == 2
+    assert message in err
+
+
+def test_an_entry_that_fails_its_check_is_not_cited_unless_asked(
+        demo: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    entry = demo / "riemannian" / "lighthouse-dome.yaml"
+    entry.write_text(entry.read_text().replace("value: 2/rho**2", "value: 3/rho**2"))
+    status, out, err = cite_command(["lighthouse-dome"], capsys)
+    assert (status, out) == (1, "")
+    assert "fails its checks" in err and "claim.ricci_scalar" in err
+    status, out, err = cite_command(["lighthouse-dome", "--original"], capsys)
+    assert (status, out) == (1, "")
+    status, out, err = cite_command(["lighthouse-dome", "--allow-unverified", "--format", "text"],
+                                    capsys)
+    assert status == 0
+    assert "did not pass the catalog's checks" in out

@@ -24,7 +24,7 @@ from generator.entry.history import (
 )
 from generator.entry.loader import load_entry
 from generator.errors import UsageError
-from generator.site.cite import cite_main
+from generator.run.citing import cite_main
 
 OLD = "catalog/demo-family/lantern.yaml"
 NEW = "catalog/other-family/lantern.yaml"
@@ -221,12 +221,11 @@ def test_unknown_ref_and_no_git_are_usage_errors(branch: Sandbox, tmp_path: Path
 
 def test_cite_command_uses_the_current_hash_and_the_latest_revision_year(history, capsys) -> None:
     box, _, hashes = history
-    box.write(
-        "pyproject.toml",
-        '[project]\nversion = "2.5.0"\n[tool.almanac]\nbase_url = "https://almanac.test/"\n',
-    )
+    box.write("pyproject.toml", '[project]\nversion = "2.5.0"\n')
+    box.write("catalog/publication.yaml", "site_address: https://almanac.test/\n")
     argv = [
         "lantern",
+        "--no-cache",
         "--format",
         "text",
         "--repo",

@@ -187,7 +187,8 @@ def test_wrong_types_and_choices(catalog: Path) -> None:
                                    "year: 2026\n    isbn": "year: soon\n    isbn"})
     found = errors(load(path))
     assert (20, 9, "entry.choice", "'matter.kind' must be one of vacuum, lambda-vacuum, "
-            "electrovacuum, perfect-fluid, null-dust, anisotropic-fluid, unspecified; got "
+            "electrovacuum, perfect-fluid, null-dust, anisotropic-fluid, scalar-field, "
+            "nonlinear-electrodynamics, unspecified; got "
             "'vacum'") in found
     assert any(code == "entry.type" and "year" in message for _, _, code, message in found)
 

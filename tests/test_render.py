@@ -126,7 +126,7 @@ def test_entry_page_sections(site: Path) -> None:
     for section in ["line-element", "chart", "invariants", "matter", "symmetry", "literature",
                     "check-log", "house-rules", "cite", "history", "downloads"]:
         assert section in ids, section
-    assert "the tool's own result" in parsed.text
+    assert "computed by this tool; no published value to compare" in parsed.text
     assert "unconfirmed" in parsed.text
     assert "c0ffee" * 10 + "abcd" in parsed.text  # content hash
     assert "1.14.0" in parsed.text or sympy.__version__ in parsed.text
@@ -342,3 +342,42 @@ def test_a_cited_hash_leads_to_its_entry_and_revision_text(site: Path) -> None:
     assert (site / source).read_text(encoding="utf-8").startswith("id: demo-harbour-lantern")
     entry = page(site, "entries/demo-harbour-lantern/index.html")
     assert "../../revisions.html?hash=" + "ab" * 6 in [a["href"] for a in entry.find("a")]
+
+
+def invariant_blocks(html: str) -> dict[str, str]:
+    """The HTML of each invariant's block on an entry page, by its heading's label."""
+    blocks = html.split('<div class="invariant" id="invariant-')[1:]
+    return {b.split('"', 1)[0]: b.split("</div>", 1)[0] for b in blocks}
+
+
+def test_a_value_nobody_published_never_wears_the_agreement_badge(site: Path) -> None:
+    """The demo's Kretschmann claim is `computed-here`: the tool agreed with itself, which is
+    shown as "computed only" in words, never as agreement with a source; its Ricci scalar
+    names the original paper and agrees with it."""
+    html = (site / "entries/demo-harbour-lantern/index.html").read_text(encoding="utf-8")
+    blocks = invariant_blocks(html)
+    kretschmann = Page(blocks["kretschmann"])
+    assert "state-computed-only" in blocks["kretschmann"]
+    assert "state-agrees" not in blocks["kretschmann"]
+    assert "computed only" in kretschmann.text
+    assert "no published value to compare" in kretschmann.text
+    assert "state-agrees" in blocks["ricci_scalar"] and "From Keeper & Tide 2026, eq. (2)" in \
+        Page(blocks["ricci_scalar"]).text
+
+
+def test_catalog_pages_count_agreement_with_the_literature_apart(site: Path) -> None:
+    """The home page counts values that agree with a cited publication (the lantern's Ricci
+    scalar only); an entry with none is labelled "computed only" on its card and page and can
+    be chosen with the search's filter."""
+    home = page(site, "index.html").text
+    assert "1 checked values agree with a value printed in a cited publication" in \
+        " ".join(home.replace("\n", " ").split())
+    browse = (site / "browse.html").read_text(encoding="utf-8")
+    assert 'id="f-evidence"' in browse and 'value="computed-only"' in browse
+    index = (site / "assets" / "search-index.js").read_text(encoding="utf-8")
+    assert '"evidence":"literature","family":"black-holes"' in index
+    assert '"evidence":"computed-only"' in index
+    lantern = page(site, "entries/demo-harbour-lantern/index.html").text
+    assert "compared with the literature" in lantern
+    tide = page(site, "entries/demo-tide-cosmos/index.html").text
+    assert "computed only" in tide and "compared with the literature" not in tide

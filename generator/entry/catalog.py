@@ -18,7 +18,7 @@ from generator.errors import Diagnostic, SourcePos, UsageError
 from generator.model import Family, Tag
 
 ENTRY_SUFFIXES = (".yaml", ".yml")
-VOCABULARY_FILES = ("tags.yaml", "families.yaml")
+VOCABULARY_FILES = ("tags.yaml", "families.yaml", "publication.yaml")
 
 
 def find_catalog_root(start: Path) -> Path | None:

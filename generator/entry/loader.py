@@ -212,6 +212,10 @@ def _build_matter(data: dict[str, Any], pos: SourcePos) -> Matter:
         null_direction=tuple(data.get("null_direction", {}).items()),
         principal_pressures=tuple(data.get("principal_pressures", {}).items()),
         pos=pos,
+        scalar=data.get("scalar"),
+        scalar_potential=data.get("scalar_potential"),
+        lagrangian=data.get("lagrangian"),
+        lagrangian_derivative=data.get("lagrangian_derivative"),
     )
 
 

@@ -61,6 +61,8 @@ MATTER_KINDS = (
     "perfect-fluid",
     "null-dust",
     "anisotropic-fluid",
+    "scalar-field",
+    "nonlinear-electrodynamics",
     "unspecified",
 )
 PETROV_TYPES = ("I", "II", "III", "D", "N", "O")
@@ -159,7 +161,8 @@ MATTER = Field(
     fields=(
         Field("kind", "The kind of source.", "choice", required=True, choices=MATTER_KINDS),
         Field("cosmological_constant", "Λ in G_ab + Λ g_ab = 8π T_ab.", "math"),
-        _vector("potential", "Electrovacuum: the potential A_a, lower index, by coordinate."),
+        _vector("potential", "Electrovacuum and nonlinear electrodynamics: the potential A_a, "
+                "lower index, by coordinate."),
         Field("density", "Fluids and null dust: the energy density.", "math"),
         Field("pressure", "Perfect fluid: the isotropic pressure.", "math"),
         _vector("velocity", "Perfect fluid: the four-velocity u^a, upper index, by coordinate."),
@@ -168,6 +171,13 @@ MATTER = Field(
             "principal_pressures",
             "Anisotropic fluid: T^i_i by coordinate, for T^a_b diagonal in this chart.",
         ),
+        Field("scalar", "Scalar field: the field φ as a function of the coordinates.", "math"),
+        Field("scalar_potential", "Scalar field: the potential V(φ) along the solution, as a "
+              "function of the coordinates (omit for a massless field).", "math"),
+        Field("lagrangian", "Nonlinear electrodynamics: the Lagrangian L(F), F = ¼ F_ab F^ab, "
+              "along the solution, as a function of the coordinates.", "math"),
+        Field("lagrangian_derivative", "Nonlinear electrodynamics: dL/dF along the solution, "
+              "as a function of the coordinates.", "math"),
     ),
 )
 

@@ -20,7 +20,8 @@ from generator.geometry.equality import canonical_all, decide_equal
 from generator.geometry.exactvalues import coordinate_names, index_label, vanishes
 from generator.model import Entry, Geometry, MathText, Spacetime
 
-SOURCE_KINDS = ("electrovacuum", "perfect-fluid", "null-dust", "anisotropic-fluid")
+SOURCE_KINDS = ("electrovacuum", "perfect-fluid", "null-dust", "anisotropic-fluid",
+                "scalar-field", "nonlinear-electrodynamics")
 EINSTEIN_KINDS = ("vacuum", "lambda-vacuum")
 EIGHT_PI = 8 * sympy.pi
 
@@ -311,11 +312,152 @@ def build_anisotropic(entry: Entry, spacetime: Spacetime, geometry: Geometry) ->
                                                              pressures=spatial))
 
 
+def gradient(field: sympy.Expr, coordinates: Sequence[sympy.Symbol]) -> list[sympy.Expr]:
+    return [sympy.diff(field, x) for x in coordinates]
+
+
+def wave_operator(field: sympy.Expr, geometry: Geometry,
+                  coordinates: Sequence[sympy.Symbol]) -> sympy.Expr:
+    """□φ = ∂_a(g^ab ∂_b φ) + Γ^a_ac g^cb ∂_b φ, with Γ^a_ac = ∂_c(det g)/(2 det g) (no root
+    of the determinant, as in ``maxwell_divergence``)."""
+    ginv = geometry.inverse_metric
+    det = geometry.metric.det()
+    n = len(coordinates)
+    up = [sum((ginv[a, b] * sympy.diff(field, coordinates[b]) for b in range(n)),
+              sympy.Integer(0)) for a in range(n)]
+    return sum((sympy.diff(up[a], coordinates[a]) + sympy.diff(det, coordinates[a])
+                / (2 * det) * up[a] for a in range(n)), sympy.Integer(0))
+
+
+def scalar_stress(field: sympy.Expr, potential: sympy.Expr, geometry: Geometry,
+                  coordinates: Sequence[sympy.Symbol]) -> sympy.Matrix:
+    """T_ab = ∇_aφ ∇_bφ − g_ab (½ ∇^cφ ∇_cφ + V), the minimally coupled field whose action is
+    ∫ √−g (R/16π − ½ ∇φ·∇φ − V) (signature −+++)."""
+    d = gradient(field, coordinates)
+    g, ginv = geometry.metric, geometry.inverse_metric
+    n = len(d)
+    kinetic = sum((ginv[a, b] * d[a] * d[b] for a in range(n) for b in range(n)),
+                  sympy.Integer(0))
+    return sympy.Matrix(n, n, lambda a, b: d[a] * d[b] - g[a, b] * (kinetic / 2 + potential))
+
+
+def scalar_field_problems(entry: Entry, spacetime: Spacetime, geometry: Geometry,
+                          field: sympy.Expr, potential: sympy.Expr | None
+                          ) -> tuple[Diagnostic, ...]:
+    """The field equation □φ = V'(φ), with V known only along the solution: V must be a
+    function of φ alone (dV ∧ dφ = 0) and □φ ∂_aφ = ∂_aV for every a, which is □φ = V'(φ)
+    wherever dφ ≠ 0 — decided exactly, without dividing by a derivative of φ."""
+    x = spacetime.coordinates
+    names = coordinate_names(spacetime)
+    box = wave_operator(field, geometry, x)
+    d = gradient(field, x)
+    if potential is None:
+        residuals = {"□φ": box}
+    else:
+        dv = gradient(potential, x)
+        residuals = {f"□φ ∂_{names[a]}φ − ∂_{names[a]}V": box * d[a] - dv[a]
+                     for a in range(len(x))}
+        residuals.update({f"∂_{names[a]}V ∂_{names[b]}φ − ∂_{names[b]}V ∂_{names[a]}φ":
+                          dv[a] * d[b] - dv[b] * d[a]
+                          for a in range(len(x)) for b in range(a + 1, len(x))})
+    bad = [label for label, value in residuals.items()
+           if vanishes(value, spacetime).equal is not True]
+    if not bad:
+        return ()
+    key = "matter.scalar_potential" if potential is not None and "□φ" not in bad else \
+        "matter.scalar"
+    return (Diagnostic.at(
+        entry.pos(key), "error",
+        f"the declared scalar field does not solve its field equation □φ = V′(φ): "
+        f"{', '.join(bad)} ≠ 0 (or undecided)", "matter.scalar-field",
+        "check φ and V (V is the potential along the solution, a function of φ alone; "
+        "omit it for a massless field)"),)
+
+
+def build_scalar_field(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> Built:
+    m = entry.matter
+    require(entry, "scalar", m.scalar, "scalar-field")
+    assert m.scalar is not None
+    field = parse_field(entry, spacetime, "matter.scalar", m.scalar)
+    potential = None if m.scalar_potential is None else \
+        parse_field(entry, spacetime, "matter.scalar_potential", m.scalar_potential)
+    problems = scalar_field_problems(entry, spacetime, geometry, field, potential)
+    stress = scalar_stress(field, potential if potential is not None else sympy.Integer(0),
+                           geometry, spacetime.coordinates)
+    return Built(stress, False, problems, SourceData("scalar-field"))
+
+
+def invariant_f(F: sympy.Matrix, geometry: Geometry) -> sympy.Expr:
+    """F = ¼ F_ab F^ab (positive for a magnetic field, negative for an electric one)."""
+    ginv = geometry.inverse_metric
+    upper = ginv * F * ginv.T
+    n = F.rows
+    return sum((F[a, b] * upper[a, b] for a in range(n) for b in range(n)),
+               sympy.Integer(0)) / 4
+
+
+def nonlinear_stress(F: sympy.Matrix, lagrangian: sympy.Expr, slope: sympy.Expr,
+                     geometry: Geometry) -> sympy.Matrix:
+    """T_ab = (L_F F_ac F_b^c − g_ab L)/4π for the action ∫ √−g (R/16π − L(F)/4π); with
+    L = F this is the Maxwell tensor of ``maxwell_stress``."""
+    g, ginv = geometry.metric, geometry.inverse_metric
+    return (slope * F * (F * ginv).T - g * lagrangian) / (4 * sympy.pi)
+
+
+def nonlinear_problems(entry: Entry, spacetime: Spacetime, geometry: Geometry,
+                       F: sympy.Matrix, lagrangian: sympy.Expr, slope: sympy.Expr
+                       ) -> tuple[Diagnostic, ...]:
+    """The declared L and L_F must belong together (∂_a L = L_F ∂_a F) and the field must
+    solve ∇_a(L_F F^ab) = 0; both decided exactly."""
+    x = spacetime.coordinates
+    names = coordinate_names(spacetime)
+    invariant = invariant_f(F, geometry)
+    problems = []
+    bad = [f"∂_{names[a]}L − L_F ∂_{names[a]}F" for a in range(len(x))
+           if vanishes(sympy.diff(lagrangian, x[a]) - slope * sympy.diff(invariant, x[a]),
+                       spacetime).equal is not True]
+    if bad:
+        problems.append(Diagnostic.at(
+            entry.pos("matter.lagrangian_derivative"), "error",
+            f"the declared L and dL/dF do not belong together: {', '.join(bad)} ≠ 0 "
+            f"(F = ¼ F_ab F^ab = {sympy.factor(invariant)} here)", "matter.lagrangian",
+            "give L(F) and dL/dF both evaluated on this field, with F = ¼ F_ab F^ab"))
+    divergence = maxwell_divergence(slope * F, geometry, x)
+    bad = [f"∇_a(L_F F^a{index_label(names, (b,))})" for b, value in enumerate(divergence)
+           if vanishes(value, spacetime).equal is not True]
+    if bad:
+        problems.append(Diagnostic.at(
+            entry.pos("matter.potential"), "error",
+            f"the field does not solve the nonlinear field equations: {', '.join(bad)} ≠ 0 "
+            "(or undecided)", "matter.nonlinear-field",
+            "check A_a (lower index) and dL/dF"))
+    return tuple(problems)
+
+
+def build_nonlinear(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> Built:
+    m = entry.matter
+    kind = "nonlinear-electrodynamics"
+    for key, value in (("potential", m.potential), ("lagrangian", m.lagrangian),
+                       ("lagrangian_derivative", m.lagrangian_derivative)):
+        require(entry, key, value, kind)
+    assert m.lagrangian is not None and m.lagrangian_derivative is not None
+    potential = parse_vector(entry, spacetime, "matter.potential", m.potential)
+    lagrangian = parse_field(entry, spacetime, "matter.lagrangian", m.lagrangian)
+    slope = parse_field(entry, spacetime, "matter.lagrangian_derivative",
+                        m.lagrangian_derivative)
+    F = field_strength(potential, spacetime.coordinates)
+    problems = nonlinear_problems(entry, spacetime, geometry, F, lagrangian, slope)
+    return Built(nonlinear_stress(F, lagrangian, slope, geometry), False, problems,
+                 SourceData(kind))
+
+
 BUILDERS: dict[str, Callable[[Entry, Spacetime, Geometry], Built]] = {
     "electrovacuum": build_electrovacuum,
     "perfect-fluid": build_perfect_fluid,
     "null-dust": build_null_dust,
     "anisotropic-fluid": build_anisotropic,
+    "scalar-field": build_scalar_field,
+    "nonlinear-electrodynamics": build_nonlinear,
 }
 
 
@@ -391,6 +533,8 @@ def classify_matter(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> M
     mixed = (geometry.einstein_mixed + (lam or 0) * sympy.eye(geometry.dimension)) / EIGHT_PI
     reasons = {}
     if geometry.dimension < 3:
+        # G_ab vanishes identically in two dimensions: no metric there is "non-vacuum".
+        kind = NOT_APPLICABLE
         reasons["matter_kind"] = "Einstein's equations are empty below three dimensions"
     verified = built.source if built is not None and not diagnostics else None
     return MatterResult(kind, lam, simplest(stress, spacetime), simplest(mixed, spacetime),
@@ -401,6 +545,9 @@ def simplest(matrix: sympy.Matrix, spacetime: Spacetime) -> sympy.ImmutableMatri
     """Every component in display form, through one field for the whole matrix."""
     return sympy.ImmutableMatrix(matrix.rows, matrix.cols,
                                  canonical_all(list(matrix), spacetime))
+
+
+NOT_APPLICABLE = "not-applicable"
 
 
 def computed_kind(found: Geometric, declared: str, source_ok: bool) -> str:

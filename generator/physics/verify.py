@@ -9,7 +9,8 @@ plus a positioned diagnostic for each failure. A claim passes only when equality
 from __future__ import annotations
 
 import time
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
+from dataclasses import replace
 from fractions import Fraction
 
 import mpmath
@@ -69,8 +70,15 @@ def check_loaded(
         verdicts += label_verdicts(entry, classification, problems)
     except BudgetExceeded as exc:
         diagnostics.append(_budget_diagnostic(entry, exc))
-    return EntryReport(entry, load.file, spacetime, geometry, classification, tuple(verdicts),
-                       tuple(diagnostics), _hash(entry), time.perf_counter() - started)
+    return EntryReport(entry, load.file, spacetime, geometry, classification,
+                       with_published_sources(entry, verdicts), tuple(diagnostics), _hash(entry),
+                       time.perf_counter() - started)
+
+
+def with_published_sources(entry: Entry, verdicts: Sequence[Verdict]) -> tuple[Verdict, ...]:
+    """Each verdict with the reference that prints its claimed value (if the entry names one),
+    so that "agrees with the literature" is decided in one place from the entry itself."""
+    return tuple(replace(v, source=entry.published_source(v.subject)) for v in verdicts)
 
 
 def _hash(entry: Entry | None) -> str:

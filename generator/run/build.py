@@ -16,10 +16,10 @@ from pathlib import Path
 
 from generator import __version__
 from generator.entry.catalog import entry_files, read_families, read_tags
+from generator.entry.publication import HOW_TO_SET, catalog_version, read_publication
 from generator.errors import UsageError
 from generator.model import CatalogMeta, EntryReport
 from generator.run.pipeline import RunOptions, check_files
-from generator.site.cite import DEFAULT_BASE_URL, project_settings
 
 
 @dataclass(frozen=True)
@@ -33,7 +33,7 @@ def build_site(catalog: Path, out: Path, options: RunOptions,
                publish_verified_only: bool = False,
                on_done: Callable[[EntryReport], None] | None = None,
                on_running: Callable[[list[str]], None] | None = None,
-               prune_cache: bool = False) -> BuildResult:
+               prune_cache: bool = False, require_address: bool = False) -> BuildResult:
     """Check every entry, then render the site into ``out`` atomically.
 
     Any failed entry fails the build and leaves the previous site untouched, unless
@@ -41,9 +41,12 @@ def build_site(catalog: Path, out: Path, options: RunOptions,
     ``on_done`` and ``on_running`` follow the checks (see ``pipeline.check_files``).
     ``prune_cache``: once the site is written, delete the cached reports, cards and views this
     build did not use (for a cache kept between CI runs; see ``cache.prune``).
+    ``require_address``: refuse to build a catalog whose citations would carry no address.
     """
     if not (catalog / "tags.yaml").is_file():
         raise UsageError(f"{catalog} is not a catalog folder (no tags.yaml)")
+    if require_address and read_publication(catalog).site_address is None:
+        raise UsageError(f"{catalog} names no site address; {HOW_TO_SET}")
     base = Path.cwd()
     reports = check_files(entry_files([catalog]), catalog.resolve(), base, options,
                           on_done, on_running)
@@ -83,16 +86,16 @@ def report_problems(reports: list[EntryReport]) -> None:
 def catalog_meta(catalog: Path, cache_dir: Path | None = None) -> CatalogMeta:
     """Catalog-wide data: versions, vocabularies, the contributor guide, git revisions."""
     project = catalog.resolve().parent
-    settings = project_settings(project)
+    publication = read_publication(catalog)
     guide = project / "DEVELOPERS.md"
     return CatalogMeta(
-        version=settings.get("version", __version__),
+        version=catalog_version(catalog, publication, __version__),
         generator_version=__version__,
         sympy_version=metadata.version("sympy"),
         families=read_families(catalog),
         tags=read_tags(catalog),
         contributing_markdown=guide.read_text(encoding="utf-8") if guide.is_file() else "",
-        base_url=settings.get("base_url", DEFAULT_BASE_URL),
+        publication=publication,
         revisions=_revisions(project, catalog, cache_dir),
     )
 

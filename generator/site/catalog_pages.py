@@ -12,6 +12,7 @@ from typing import Any
 from generator.entry.content_hash import short_hash
 from generator.model import CatalogMeta
 from generator.site.common import (
+    EVIDENCE_LABELS,
     MATTER_LABELS,
     SCHEMA_FILE,
     base_context,
@@ -42,6 +43,8 @@ def home_context(cards: Sequence[dict[str, Any]], meta: CatalogMeta) -> dict[str
             for f in meta.families
         ],
         "matter_counts": [{"name": k, "count": by_matter[k]} for k in sorted(by_matter)],
+        "agreeing_values": sum(c["agreements"] for c in cards),
+        "computed_only_entries": sum(c["evidence"] == "computed-only" for c in cards),
     }
 
 
@@ -55,6 +58,8 @@ def browse_context(cards: Sequence[dict[str, Any]], meta: CatalogMeta) -> dict[s
         "matter_kinds": [{"value": k, "label": MATTER_LABELS.get(k, k)}
                          for k in sorted({c["matter"] for c in cards})],
         "petrov_types": sorted({c["petrov"] for c in cards if c["petrov"]}),
+        "evidence": [{"value": k, "label": EVIDENCE_LABELS[k]}
+                     for k in sorted({c["evidence"] for c in cards})],
         "tags": used_tags,
     }
 
@@ -150,7 +155,7 @@ def catalog_json(entries: Sequence[dict[str, Any]], meta: CatalogMeta) -> str:
 def search_index_script(cards: Sequence[dict[str, Any]]) -> str:
     """The search index as a script (not fetched), so search works from file:// too."""
     fields = ("id", "title", "chart", "summary", "family", "family_title", "tags", "dimension",
-              "matter", "matter_label", "petrov", "authors", "years", "href")
+              "matter", "matter_label", "petrov", "evidence", "authors", "years", "href")
     rows = [{k: c[k] for k in fields} for c in cards]
     text = json.dumps(rows, ensure_ascii=True, sort_keys=True, separators=(",", ":"))
     text = text.replace("<", "\\u003c").replace(">", "\\u003e").replace("&", "\\u0026")

@@ -13,18 +13,14 @@ same bytes), and only the reader knows when they looked.
 
 from __future__ import annotations
 
-import argparse
 import json
 import re
-import sys
-import tomllib
 import unicodedata
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
-from pathlib import Path
 from typing import TypeVar
 
-from generator.entry.content_hash import content_hash, short_hash
+from generator.entry.content_hash import short_hash
 from generator.model import (
     CatalogMeta,
     Entry,
@@ -33,9 +29,6 @@ from generator.model import (
 )
 
 FORMATS = ("bibtex", "csl-json", "text")
-CATALOG_NAME = "Metric Almanac"
-CATALOG_AUTHOR = "Metric Almanac contributors"
-DEFAULT_BASE_URL = "https://metric-almanac.org/"  # permanent URL prefix unless pyproject sets one
 ACCESS_DATE_PLACEHOLDER = "<date>"
 
 _T = TypeVar("_T")
@@ -94,16 +87,23 @@ class EntryCitation:
     key: str
     title: str
     catalog: str
+    authors: str
     version: str
     entry_id: str
     content_hash: str  # short form
-    url: str
+    url: str | None  # None when the catalog names no site address
+    repository: str | None
     year: str | None  # year of the latest revision, when history is known
+    verified: bool = True  # False only when the user chose to cite a failing entry
 
 
-def entry_url(meta: CatalogMeta, entry_id: str) -> str:
-    """Permanent URL of an entry page: ``<base_url>entries/<id>/``."""
-    base = meta.base_url if meta.base_url.endswith("/") else meta.base_url + "/"
+def entry_url(meta: CatalogMeta, entry_id: str) -> str | None:
+    """Permanent address of an entry page, ``<site_address>entries/<id>/``; None without a
+    configured site address (a citation never points at an address nobody set)."""
+    base = meta.publication.site_address
+    if not base:
+        return None
+    base = base if base.endswith("/") else base + "/"
     return f"{base}entries/{entry_id}/"
 
 
@@ -114,12 +114,15 @@ def describe_entry(report: EntryReport, meta: CatalogMeta) -> EntryCitation:
     return EntryCitation(
         key=bibtex_key("almanac", entry.id),
         title=f"{entry.title} ({entry.chart})",
-        catalog=CATALOG_NAME,
+        catalog=meta.publication.title,
+        authors=meta.publication.authors,
         version=meta.version,
         entry_id=entry.id,
         content_hash=short_hash(report.content_hash),
         url=entry_url(meta, entry.id),
+        repository=meta.publication.repository,
         year=year,
+        verified=report.ok,
     )
 
 
@@ -138,21 +141,27 @@ def _require_entry(report: EntryReport) -> Entry:
 
 
 def _entry_note(c: EntryCitation) -> str:
-    return f"{c.catalog} entry {c.entry_id}, version {c.version}, content hash {c.content_hash}"
+    note = f"{c.catalog} entry {c.entry_id}, version {c.version}, content hash {c.content_hash}"
+    if c.repository:
+        note += f", source {c.repository}"
+    if not c.verified:
+        note += "; this entry did not pass the catalog's checks"
+    return note
 
 
 def _entry_bibtex(c: EntryCitation) -> str:
     fields = [
-        ("author", "{" + bibtex_escape(CATALOG_AUTHOR) + "}"),
+        ("author", "{" + bibtex_escape(c.authors) + "}"),
         ("title", "{" + bibtex_escape(c.title) + "}"),
         ("howpublished", bibtex_escape(c.catalog)),
         ("organization", bibtex_escape(c.catalog)),
         ("version", bibtex_escape(c.version)),
         ("year", c.year or ""),
-        ("url", bibtex_verbatim(c.url)),
+        ("url", bibtex_verbatim(c.url or "")),
         ("note", bibtex_escape(_entry_note(c))),
     ]
-    header = f"% Add urldate = {{YYYY-MM-DD}} with the day you accessed {c.entry_id}.\n"
+    header = (f"% Add urldate = {{YYYY-MM-DD}} with the day you accessed {c.entry_id}.\n"
+              if c.url else "")
     return header + _bibtex_record("misc", c.key, fields)
 
 
@@ -161,13 +170,14 @@ def _entry_csl(c: EntryCitation) -> str:
         "id": c.key,
         "type": "entry-encyclopedia",
         "title": c.title,
-        "author": [{"literal": CATALOG_AUTHOR}],
+        "author": [{"literal": c.authors}],
         "container-title": c.catalog,
         "publisher": c.catalog,
         "version": c.version,
-        "URL": c.url,
         "note": _entry_note(c),
     }
+    if c.url:
+        item["URL"] = c.url
     if c.year:
         item["issued"] = {"date-parts": [[int(c.year)]]}
     return _json([item])
@@ -175,10 +185,12 @@ def _entry_csl(c: EntryCitation) -> str:
 
 def _entry_text(c: EntryCitation) -> str:
     year = f" ({c.year})" if c.year else ""
+    where = f" {c.url} (accessed {ACCESS_DATE_PLACEHOLDER})." if c.url else ""
+    source = f" Source: {c.repository}." if c.repository else ""
+    caveat = " This entry did not pass the catalog's checks." if not c.verified else ""
     return (
-        f"{CATALOG_AUTHOR}{year}. {c.title}. {c.catalog}, version {c.version}, "
-        f"entry {c.entry_id}, content hash {c.content_hash}. {c.url} "
-        f"(accessed {ACCESS_DATE_PLACEHOLDER}).\n"
+        f"{c.authors}{year}. {c.title}. {c.catalog}, version {c.version}, "
+        f"entry {c.entry_id}, content hash {c.content_hash}.{where}{source}{caveat}\n"
     )
 
 
@@ -272,15 +284,8 @@ def _reference_bibtex(r: Reference) -> str:
         ("isbn", bibtex_verbatim(r.isbn or "")),
         ("eprint", bibtex_verbatim(r.arxiv or "")),
         ("archiveprefix", "arXiv" if r.arxiv else ""),
-        ("note", bibtex_escape(_unconfirmed_note(r))),
     ]
     return _bibtex_record("book" if book else "article", reference_key(r), fields)
-
-
-def _unconfirmed_note(r: Reference) -> str:
-    if not r.unconfirmed:
-        return ""
-    return "Not confirmed against the publication: " + ", ".join(r.unconfirmed)
 
 
 def _reference_csl(r: Reference) -> str:
@@ -303,7 +308,6 @@ def _reference_csl(r: Reference) -> str:
         "DOI": r.doi,
         "ISBN": r.isbn,
         "URL": _arxiv_url(r.arxiv),
-        "note": _unconfirmed_note(r),
     }
     item.update({k: v for k, v in optional.items() if v})
     return _json([item])
@@ -323,118 +327,4 @@ def _reference_text(r: Reference) -> str:
     identifiers = [f"doi:{r.doi}" if r.doi else "", f"arXiv:{r.arxiv}" if r.arxiv else ""]
     identifiers.append(f"ISBN {r.isbn}" if r.isbn else "")
     tail = "".join(f" {i}." for i in identifiers if i)
-    note = f" [{_unconfirmed_note(r)}]" if r.unconfirmed else ""
-    return f"{authors} ({r.year}). {r.title}. {r.venue}.{tail}{note}\n"
-
-
-# ---------------------------------------------------------------------------- command line
-
-
-def cite_main(argv: list[str]) -> int:
-    """``python -m generator cite ID [--format F] [--original]`` or ``cite --hash H``.
-
-    Exit status: 0 printed, 2 bad usage or no such entry/hash (the CLI convention).
-    """
-    args = _parser().parse_args(argv)
-    catalog = Path(args.catalog)
-    if args.hash:
-        from generator.entry.history import lookup_main  # history imports this module; import late
-
-        return lookup_main(Path(args.repo), catalog, args.hash, sys.stdout, sys.stderr)
-    if not args.id:
-        print("error: give an entry id, or --hash H", file=sys.stderr)
-        return 2
-    return _print_citation(catalog, args)
-
-
-def _parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
-        prog="python -m generator cite",
-        description="Print a citation for a catalog entry, or find which entry a hash belongs to.",
-    )
-    parser.add_argument("id", nargs="?", help="entry id, e.g. schwarzschild-curvature")
-    parser.add_argument("--format", choices=FORMATS, default="bibtex")
-    parser.add_argument(
-        "--original", action="store_true", help="cite the publication the metric comes from"
-    )
-    parser.add_argument("--hash", metavar="H", help="find the entry and commit of a content hash")
-    parser.add_argument("--catalog", default="catalog", help="catalog folder (default: catalog)")
-    parser.add_argument("--repo", default=".", help="git repository holding the catalog")
-    parser.add_argument("--base-url", help="site URL (default: [tool.almanac] base_url)")
-    return parser
-
-
-def find_entry_file(catalog: Path, entry_id: str) -> Path | None:
-    """The file ``catalog/<family>/<id>.yaml`` if exactly one exists."""
-    matches = sorted(catalog.glob(f"*/{entry_id}.yaml"))
-    return matches[0] if len(matches) == 1 else None
-
-
-def _print_citation(catalog: Path, args: argparse.Namespace) -> int:
-    from generator.entry.loader import load_entry
-
-    path = find_entry_file(catalog, args.id)
-    if path is None:
-        print(f"error: no entry with id {args.id!r} under {catalog}/", file=sys.stderr)
-        return 2
-    result = load_entry(path)
-    if result.entry is None:
-        for diagnostic in result.diagnostics:
-            print(diagnostic.format_text(), file=sys.stderr)
-        return 2
-    if args.original:
-        sys.stdout.write(cite_original(result.entry, args.format))
-        return 0
-    report = standalone_report(result.entry, str(path), result.diagnostics)
-    meta = standalone_meta(catalog, args.base_url, path, Path(args.repo))
-    sys.stdout.write(cite_entry(report, meta, args.format))
-    return 0
-
-
-def standalone_report(entry: Entry, file: str, diagnostics: Sequence[object] = ()) -> EntryReport:
-    """A report carrying only what a citation needs (no geometry: citing must be instant)."""
-    return EntryReport(
-        entry=entry,
-        file=file,
-        spacetime=None,
-        geometry=None,
-        classification=None,
-        verdicts=(),
-        diagnostics=tuple(diagnostics),  # type: ignore[arg-type]
-        content_hash=content_hash(entry),
-    )
-
-
-def standalone_meta(
-    catalog: Path, base_url: str | None, entry_path: Path, repo: Path
-) -> CatalogMeta:
-    """The part of the site's ``CatalogMeta`` a citation uses, read the same way the build
-    reads it (version and base URL from pyproject.toml, revisions from git), so the command
-    line prints exactly the citation shown on the entry's page."""
-    from generator import __version__
-    from generator.entry.history import revisions
-
-    settings = project_settings(catalog.resolve().parent)
-    return CatalogMeta(
-        version=settings.get("version", __version__),
-        generator_version=__version__,
-        sympy_version="",
-        families=(),
-        tags=(),
-        contributing_markdown="",
-        base_url=base_url or settings.get("base_url", DEFAULT_BASE_URL),
-        revisions={entry_path.stem: revisions(repo, entry_path)},
-    )
-
-
-def project_settings(project: Path) -> dict[str, str]:
-    """``[project].version`` and ``[tool.almanac]`` of the project's pyproject.toml."""
-    path = project / "pyproject.toml"
-    if not path.is_file():
-        return {}
-    data = tomllib.loads(path.read_text(encoding="utf-8"))
-    settings = {str(k): str(v) for k, v in data.get("tool", {}).get("almanac", {}).items()}
-    version = data.get("project", {}).get("version")
-    if version:
-        settings.setdefault("version", str(version))
-    return settings
+    return f"{authors} ({r.year}). {r.title}. {r.venue}.{tail}\n"

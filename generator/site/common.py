@@ -61,7 +61,11 @@ MATTER_LABELS = {
     "perfect-fluid": "perfect fluid",
     "anisotropic-fluid": "anisotropic fluid",
     "null-dust": "null dust",
+    "scalar-field": "scalar field",
+    "nonlinear-electrodynamics": "nonlinear electrodynamics",
     "unspecified": "no declared source",
+    "non-vacuum": "unidentified source",
+    "not-applicable": "no field equations (2D)",
 }
 METHOD_LABELS = {
     "exact": "exact (normal form)",
@@ -230,12 +234,38 @@ def readable_text(text: str) -> Markup:
     return Markup(_SUPERSCRIPT.sub(r"\1<sup>\2</sup>", html))
 
 
+STATE_LABELS = {"agrees": "agrees with source", "computed-only": "computed only",
+                "disagrees": "disagrees", "undecided": "undecided"}
+STATE_ABOUT = {
+    "agrees": "the value printed in the cited publication equals the computed one",
+    "computed-only": "computed by this tool; no published value to compare",
+    "disagrees": "the stated value differs from the computed one",
+    "undecided": "the tool could not decide",
+}
+
+
+EVIDENCE_LABELS = {
+    "literature": "compared with the literature",
+    "computed-only": "computed only",
+}
+
+
+def verdict_state(verdict: Verdict) -> str:
+    """The three statuses of the report, with "disagrees" split for the reader into a proved
+    difference and a question the tool could not settle."""
+    if not verdict.ok and verdict.method == "failed":
+        return "undecided"
+    return verdict.status
+
+
 def verdict_row(verdict: Verdict) -> dict[str, Any]:
     return {
         "subject": verdict.subject,
         "ok": verdict.ok,
-        "state": "agrees" if verdict.ok else ("undecided" if verdict.method == "failed"
-                                               else "disagrees"),
+        "status": verdict.status,
+        "state": verdict_state(verdict),
+        "state_label": STATE_LABELS[verdict_state(verdict)],
+        "state_about": STATE_ABOUT[verdict_state(verdict)],
         "method": verdict.method,
         "method_label": METHOD_LABELS.get(verdict.method, verdict.method),
         "detail": verdict.detail,

@@ -11,6 +11,7 @@ from typing import Any
 import sympy
 from markupsafe import Markup
 
+from generator.entry.content_hash import short_hash
 from generator.entry.mathparse import (
     parse_expression,
     parse_inequality,
@@ -33,6 +34,7 @@ from generator.model import (
 from generator.site import cite, mathtex, plots
 from generator.site.atlas import MAPS_HERE, ChartLink, chart_links
 from generator.site.common import (
+    EVIDENCE_LABELS,
     INVARIANTS,
     MATTER_LABELS,
     METHOD_LABELS,
@@ -128,6 +130,9 @@ def entry_card(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "matter": kind,
         "matter_label": MATTER_LABELS.get(kind, kind),
         "petrov": (c.petrov_type if c else None) or "",
+        "agreements": report.agreements,
+        "evidence": "literature" if report.agreements else "computed-only",
+        "evidence_label": EVIDENCE_LABELS["literature" if report.agreements else "computed-only"],
         "authors": authors,
         "years": sorted({ref.year for ref in entry.references}),
         "href": f"entries/{entry.id}/index.html",
@@ -209,28 +214,29 @@ def subject_label(subject: str, entry: Entry) -> str:
 
 def verification_summary(report: EntryReport) -> dict[str, Any]:
     """What only this tool has, for the top of the page: how many stated facts were checked,
-    how, and against which published source; what is the tool's own result."""
+    how, against which published source, and which are the tool's own results (a value no
+    cited publication prints is never counted as agreement)."""
     entry = report.entry
     assert entry is not None
-    claims = {f"claims.{c.name}": c for c in entry.claims.scalars}
     rows = []
     for verdict in report.verdicts:
-        claim = claims.get(verdict.subject)
-        source = claim_source(claim.source, entry) if claim else None
+        source = claim_source(verdict.source, entry) if verdict.source else None
         rows.append({**verdict_row(verdict), "label": subject_label(verdict.subject, entry),
                      "against": source["label"] if source and not source["computed_here"]
-                     else "", "own": bool(source and source["computed_here"])})
+                     else ""})
     states = [row["state"] for row in rows]
+    agreeing = [r for r in rows if r["state"] == "agrees"]
     return {
         "rows": rows,
         "total": len(rows),
-        "agrees": states.count("agrees"),
-        "exact": sum(1 for r in rows if r["state"] == "agrees" and r["method"] == "exact"),
-        "sampled": sum(1 for r in rows if r["state"] == "agrees" and r["method"] == "sampled"),
+        "agrees": len(agreeing),
+        "exact": sum(1 for r in agreeing if r["method"] == "exact"),
+        "sampled": sum(1 for r in agreeing if r["method"] == "sampled"),
+        "computed_only": states.count("computed-only"),
         "undecided": states.count("undecided"),
         "disagrees": states.count("disagrees"),
         "sources": sorted({r["against"] for r in rows if r["against"]}),
-        "own": [r["label"] for r in rows if r["own"]],
+        "own": [r["label"] for r in rows if r["state"] == "computed-only"],
     }
 
 
@@ -323,15 +329,17 @@ def invariant_rows(report: EntryReport, verdicts: Mapping[str, Verdict],
     return rows
 
 
+COMPUTED_ONLY_WORDS = "computed by this tool; no published value to compare"
+
+
 def claim_source(claim_source_role: str | None, entry: Entry) -> dict[str, Any]:
-    """Who the claimed value comes from; ``computed-here`` means the tool's own result."""
-    if claim_source_role == "computed-here":
-        return {"computed_here": True,
-                "label": "the tool's own result: no published value was found to compare with"}
-    roles = {r.role for r in entry.references}
-    role = claim_source_role or ("claims" if "claims" in roles else "original")
-    refs = [r for r in entry.references if r.role == role]
-    label = "; ".join(f"{short_authors(r.authors)} {r.year}" for r in refs) or role
+    """Who the claimed value comes from. Only a reference the claim names counts: a value
+    without one (``computed-here``, or the short form) is shown as the tool's own result,
+    never attributed to a paper by default."""
+    refs = [r for r in entry.references if r.role == claim_source_role]
+    if claim_source_role == "computed-here" or not refs:
+        return {"computed_here": True, "label": COMPUTED_ONLY_WORDS}
+    label = "; ".join(f"{short_authors(r.authors)} {r.year}" for r in refs)
     return {"computed_here": False, "label": label}
 
 
@@ -535,6 +543,7 @@ def reference_data(reference: Reference) -> dict[str, Any]:
         "unconfirmed": {f: f in unconfirmed for f in
                         ("authors", "title", "venue", "year", "doi", "arxiv", "isbn", "locator")},
         "any_unconfirmed": bool(unconfirmed),
+        "confirmed": reference.confirmed or "",
     }
 
 
@@ -549,14 +558,24 @@ def entry_conventions(entry: Entry, st: Spacetime | None) -> dict[str, Any]:
     }
 
 
-def citations(report: EntryReport, meta: CatalogMeta) -> dict[str, str]:
+def citations(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
+    """The citations, and what a reader of a paper needs to check that the entry they open is
+    the one that was cited: the content hash, the revision, and the page that looks it up."""
     entry = report.entry
     assert entry is not None
+    latest = meta.revisions.get(entry.id, ())[-1:]
+    original = next((r for r in entry.references if r.role == "original"), None)
     return {
         "entry_bibtex": cite_or_reason(lambda: cite.cite_entry(report, meta, "bibtex")),
         "entry_text": cite_or_reason(lambda: cite.cite_entry(report, meta, "text")),
         "original_bibtex": cite_or_reason(lambda: cite.cite_original(entry, "bibtex")),
-        "url": cite.entry_url(meta, entry.id),
+        "url": cite.entry_url(meta, entry.id) or "",
+        "repository": meta.publication.repository or "",
+        "content_hash": report.content_hash,
+        "short_hash": short_hash(report.content_hash) if report.content_hash else "",
+        "revision": {"date": latest[0].date, "commit": latest[0].commit[:12]} if latest else None,
+        "original_confirmed": original.confirmed or "" if original else "",
+        "original_unconfirmed": list(original.unconfirmed) if original else [],
     }
 
 

@@ -90,7 +90,7 @@ def indexed_components(data: dict[tuple[int, ...], sympy.Expr] | None,
 
 def classification_json(c: Classification, names: list[str]) -> dict[str, Any]:
     return {
-        "matter_kind": c.matter_kind,
+        "matter_kind": None if c.matter_kind == "not-applicable" else c.matter_kind,
         "cosmological_constant": expr_text(c.cosmological_constant),
         "stress_energy_mixed": matrix_components(c.stress_energy_mixed, names),
         "petrov_type": c.petrov_type,
@@ -112,8 +112,8 @@ def classification_json(c: Classification, names: list[str]) -> dict[str, Any]:
 
 
 def verdict_json(v: Verdict) -> dict[str, Any]:
-    return {"subject": v.subject, "ok": v.ok, "method": v.method, "detail": v.detail,
-            "claimed": v.claimed, "computed": v.computed}
+    return {"subject": v.subject, "ok": v.ok, "status": v.status, "source": v.source,
+            "method": v.method, "detail": v.detail, "claimed": v.claimed, "computed": v.computed}
 
 
 def check_document(reports: list[EntryReport]) -> dict[str, Any]:

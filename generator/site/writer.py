@@ -204,7 +204,7 @@ def view_key(report: EntryReport, meta: CatalogMeta, around: Surroundings = NOWH
         return None
     parts = (
         report.inputs_key, repr(report.diagnostics), meta.version, meta.generator_version,
-        meta.sympy_version, meta.base_url, repr(meta.families), repr(meta.tags),
+        meta.sympy_version, repr(meta.publication), repr(meta.families), repr(meta.tags),
         repr(meta.revisions.get(entry.id, ())), repr(around),
         library_versions(RENDER_LIBRARIES),
     )

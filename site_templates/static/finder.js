@@ -23,6 +23,7 @@
     dimension: document.getElementById("f-dimension"),
     matter: document.getElementById("f-matter"),
     petrov: document.getElementById("f-petrov"),
+    evidence: document.getElementById("f-evidence"),
     tag: document.getElementById("f-tag")
   };
   if (!form || !query) { return; }
@@ -121,6 +122,7 @@
     if (chosen.dimension && String(item.dimension) !== chosen.dimension) { return false; }
     if (chosen.matter && item.matter !== chosen.matter) { return false; }
     if (chosen.petrov && item.petrov !== chosen.petrov) { return false; }
+    if (chosen.evidence && item.evidence !== chosen.evidence) { return false; }
     if (chosen.tag && item.tags.indexOf(chosen.tag) < 0) { return false; }
     if (found.petrov && item.petrov !== found.petrov) { return false; }
     if (found.dimension && String(item.dimension) !== found.dimension) { return false; }

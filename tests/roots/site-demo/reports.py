@@ -24,6 +24,7 @@ from generator.model import (
     MathText,
     Matter,
     Parameter,
+    Publication,
     Reference,
     RelatedChart,
     Revision,
@@ -131,7 +132,7 @@ def demo_meta() -> CatalogMeta:
         ),
         contributing_markdown="# Contributing\n\nAdd one YAML file per entry, then run "
                               "`python -m generator check`.\n",
-        base_url="https://almanac.example/",
+        publication=Publication(site_address="https://almanac.example/"),
         revisions={"demo-harbour-lantern": (
             Revision("0" * 40, "2026-11-30", "ab" * 32, "Demo: first version of the lantern.",
                      source="id: demo-harbour-lantern\n# the demo text of this revision\n"),
@@ -172,7 +173,7 @@ def lantern_report(title: str = "Harbour lantern (demo)", **text: str) -> EntryR
         components=(),
         matter=Matter("electrovacuum"),
         claims=Claims(
-            scalars=(Claim("ricci_scalar", math("0"), None, None, pos(file)),
+            scalars=(Claim("ricci_scalar", math("0"), "original", "eq. (2)", pos(file)),
                      Claim("kretschmann", math(str(geometry.kretschmann)), "computed-here", None,
                            pos(file))),
             petrov_type="D",
@@ -192,7 +193,8 @@ def lantern_report(title: str = "Harbour lantern (demo)", **text: str) -> EntryR
                  RelatedChart("demo-broken-buoy", (("t", math("t")),), pos(file))),
     )
     verdicts = (
-        Verdict("claims.ricci_scalar", True, "exact", "both sides reduce to 0", "0", "0"),
+        Verdict("claims.ricci_scalar", True, "exact", "both sides reduce to 0", "0", "0",
+                "original"),
         Verdict("claims.kretschmann", True, "sampled", text.get("detail", "agree at 12 points"),
                 "", ""),
         Verdict("claims.petrov_type", True, "exact", "Weyl scalars of type D", "D", "D"),
