@@ -24,7 +24,7 @@ import sympy
 from sympy.core.function import AppliedUndef
 
 from generator.entry.loader import load_entry
-from generator.model import CatalogMeta, EntryReport
+from generator.model import CatalogMeta, EntryReport, Publication
 from generator.site.downloads import latex_document, sympy_script
 from generator.site.latex_export import expression_rows, latex_text
 
@@ -32,7 +32,7 @@ ROOT = Path(__file__).resolve().parent.parent
 ENTRY_FILES = sorted(p for p in (ROOT / "catalog").glob("*/*.yaml")
                      if p.name not in ("families.yaml", "tags.yaml"))
 META = CatalogMeta(version="0.0.0-test", generator_version="test", sympy_version=sympy.__version__,
-                   families=(), tags=(), contributing_markdown="", base_url="https://example.org/")
+                   families=(), tags=(), contributing_markdown="", publication=Publication())
 PDFLATEX = shutil.which("pdflatex")
 OVERFULL_LIMIT_PT = 30.0  # a formula may poke a little into the margin, never off the page
 

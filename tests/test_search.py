@@ -75,3 +75,8 @@ def test_index_is_deterministic_and_cannot_close_its_script() -> None:
     assert "</script" not in first.lower() and "<" not in first
     data = json.loads(first.removeprefix("window.ALMANAC_SEARCH = ").rstrip(";\n"))
     assert data["index"]["version"].startswith("2.3")
+
+
+def test_an_empty_catalog_gets_an_empty_index_not_an_error() -> None:
+    assert build_index([]) is None
+    assert '"index":null' in search_script([])

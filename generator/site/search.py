@@ -90,9 +90,12 @@ def search_document(card: Mapping[str, Any]) -> dict[str, str]:
     }
 
 
-def build_index(cards: Sequence[Mapping[str, Any]]) -> dict[str, Any]:
-    """The serialised lunr index of the published entries (sorted by id: deterministic)."""
+def build_index(cards: Sequence[Mapping[str, Any]]) -> dict[str, Any] | None:
+    """The serialised lunr index of the published entries (sorted by id: deterministic);
+    None for a catalog with nothing published (lunr cannot build an empty index)."""
     documents = [search_document(c) for c in sorted(cards, key=lambda c: c["id"])]
+    if not documents:
+        return None
     index = lunr(ref="id", fields=[{"field_name": name, "boost": boost}
                                    for name, boost in FIELDS], documents=documents)
     return index.serialize()

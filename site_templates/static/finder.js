@@ -27,7 +27,7 @@
     tag: document.getElementById("f-tag")
   };
   if (!form || !query) { return; }
-  var idx = (search && window.lunr) ? window.lunr.Index.load(search.index) : null;
+  var idx = (search && search.index && window.lunr) ? window.lunr.Index.load(search.index) : null;
   var greek = (search && search.greek) || {};
   var originalOrder = cards.map(function (item) { return item.id; });
   var byId = {};
