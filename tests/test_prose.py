@@ -206,3 +206,8 @@ def test_summary_line_is_escaped_text_with_math(tmp_path: Path) -> None:
     entry, st = _loaded(tmp_path, {})
     html = str(prose_line("radius $rho$ & <b>bold</b>", prose_symbols(entry, st)))
     assert "<math" in html and "&lt;b&gt;" in html and "&amp;" in html
+
+
+def test_program_syntax_in_a_parameter_meaning_is_noticed(tmp_path: Path) -> None:
+    path = variant(tmp_path, {"meaning: radius of the dome": "meaning: radius sqrt(A/pi)"})
+    assert [d.code for d in prose_diagnostics(path)] == ["prose.program-syntax"]

@@ -211,6 +211,9 @@ def check_prose(entry: Entry, spacetime: Spacetime | None) -> list[Diagnostic]:
                 out.append(Diagnostic.at(
                     located.pos_at(offset), "error", "a $ without its closing $",
                     MATH_CODE, "close the math with a second $, or write \\$ for a dollar sign"))
+    for declared in (*entry.parameters, *entry.functions):  # meanings are read as prose too
+        out.extend(_program_syntax(Piece("text", declared.meaning, 0),
+                                   MathText(declared.meaning, declared.pos)))
     return out
 
 

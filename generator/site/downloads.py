@@ -27,6 +27,7 @@ from generator.site.common import (
     verdict_row,
 )
 from generator.site.latex_export import (
+    ROW_WIDTH,
     equation_block,
     expression_rows,
     latex_text,
@@ -197,7 +198,14 @@ def latex_document(report: EntryReport, meta: CatalogMeta) -> str:
     if st is not None:
         pairs = abbreviation_pairs(report)
         metric = mathtex.abbreviate_matrix(st.metric, pairs)
-        body.append(equation_block(r"\mathrm{d}s^{2}", line_element_rows(metric, coords)))
+        rows = line_element_rows(metric, coords)
+        if any(mathtex.visual_width(row) > 1.3 * ROW_WIDTH for row in rows):
+            # a single term wider than the page: name the components, set each broken below
+            body.append(equation_block(r"\mathrm{d}s^{2}",
+                                       [r"g_{ab}\,\mathrm{d}x^{a}\,\mathrm{d}x^{b}"]))
+            body.append("with the components $g_{ab}$ listed below.")
+        else:
+            body.append(equation_block(r"\mathrm{d}s^{2}", rows))
         if pairs:
             where = [f"${sympy.latex(symbol)} = {mathtex.to_latex(value, coords)}$"
                      for symbol, value in pairs]
