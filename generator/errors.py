@@ -7,6 +7,7 @@ cases where a stage cannot go on at all.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
 from typing import Literal
 
@@ -46,12 +47,17 @@ class Diagnostic:
         return cls(pos.file, pos.line, pos.column, severity, message, code, hint)
 
     def format_text(self) -> str:
-        """Render as ``path:line:col: severity: message [code]`` plus an indented hint line."""
-        head = f"{self.file}:{self.line}:{self.column}: {self.severity}: {self.message}"
+        """Render as ``path:line:col: severity: message [code]`` plus an indented hint line.
+
+        Every part can hold text from the entry (a key, a value, a file name), so control
+        characters are shown escaped: a key holding a line break and ``::error`` must not start
+        a line of its own that CI would read as a workflow command."""
+        head = (f"{printable(self.file)}:{self.line}:{self.column}: {self.severity}: "
+                f"{printable(self.message)}")
         if self.code:
-            head += f" [{self.code}]"
+            head += f" [{printable(self.code)}]"
         if self.hint:
-            head += f"\n    hint: {self.hint}"
+            head += f"\n    hint: {printable(self.hint)}"
         return head
 
     def format_github(self) -> str:
@@ -59,7 +65,9 @@ class Diagnostic:
         level = {"error": "error", "warning": "warning", "note": "notice"}[self.severity]
         title = self.code or self.severity
         text = self.message + (f" (hint: {self.hint})" if self.hint else "")
-        text = text.replace("%", "%25").replace("\r", "%0D").replace("\n", "%0A")
+        # GitHub's own escapes for line breaks (the annotation shows them as line breaks, the
+        # log line stays one line); every other control character is written out.
+        text = printable(text.replace("%", "%25").replace("\r", "%0D").replace("\n", "%0A"))
         return (
             f"::{level} file={_escape_property(self.file)},line={self.line},col={self.column},"
             f"title={_escape_property(title)}::{text}"
@@ -78,13 +86,32 @@ class Diagnostic:
 
 
 def _escape_property(value: str) -> str:
-    return (
+    return printable(
         value.replace("%", "%25")
         .replace("\r", "%0D")
         .replace("\n", "%0A")
         .replace(":", "%3A")
         .replace(",", "%2C")
     )
+
+
+# Characters that end a line or act on a terminal: C0 and C1 controls, DEL, and the Unicode
+# line and paragraph separators (some readers split lines there too).
+_CONTROL = re.compile("[\x00-\x1f\x7f-\x9f\u2028\u2029]")
+
+
+def printable(text: str) -> str:
+    """``text`` with every control character written as an escape (``\\n``, ``\\x1b``,
+    ``\\u2028``), so that printed diagnostics are one line each whatever an entry holds."""
+    return _CONTROL.sub(_escape_control, text)
+
+
+def _escape_control(match: re.Match[str]) -> str:
+    char = match.group()
+    named = {"\n": "\\n", "\r": "\\r", "\t": "\\t"}
+    if char in named:
+        return named[char]
+    return f"\\x{ord(char):02x}" if ord(char) < 0x100 else f"\\u{ord(char):04x}"
 
 
 class AlmanacError(Exception):
@@ -115,6 +142,10 @@ class BudgetExceeded(AlmanacError):
         super().__init__(f"{stage}: {limit}")
         self.stage = stage
         self.limit = limit
+
+    def __reduce__(self) -> tuple[type, tuple[str, str]]:
+        """Crosses process boundaries intact (`run_limited` from a thread runs in a child)."""
+        return (BudgetExceeded, (self.stage, self.limit))
 
 
 class UsageError(AlmanacError):

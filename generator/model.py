@@ -275,6 +275,7 @@ class Verdict:
     # Role of the entry's reference that prints the claimed value; None when no published value
     # is named (a ``computed-here`` or unsourced claim, or a structural check of the entry).
     source: str | None = None
+    witness: dict[str, str] | None = None  # for a "different" verdict: where the sides differ
 
     @property
     def status(self) -> VerdictStatus:

@@ -14,7 +14,7 @@ import sympy
 from generator.entry.catalog import entry_files
 from generator.entry.loader import LoadResult
 from generator.model import EntryReport, Verdict
-from generator.run import tasks
+from generator.run import pipeline, tasks
 
 FIXTURE = Path(__file__).parent / "roots" / "scale-small" / "catalog"
 ENTRY_COUNT = 6
@@ -59,7 +59,8 @@ def install_counting_engine(monkeypatch: pytest.MonkeyPatch,
                             budget_failure_for: str | None = None) -> list[str]:
     """Replace the check stage with a fast fake that records which files it was asked about.
 
-    Used with ``jobs=1`` so the fake runs in this process. ``budget_failure_for`` names a
+    The run is switched to checking in this process (``pipeline.runs_in_this_process``), so
+    that the fake is the one called. ``budget_failure_for`` names a
     file (its stem) whose fake report says the entry ran out of its budget.
     """
     calls: list[str] = []
@@ -77,4 +78,5 @@ def install_counting_engine(monkeypatch: pytest.MonkeyPatch,
                            diagnostics, "fake-hash", 0.0)
 
     monkeypatch.setattr(tasks, "check_loaded", fake_check)
+    monkeypatch.setattr(pipeline, "runs_in_this_process", lambda options: True)
     return calls

@@ -17,7 +17,8 @@ import pytest
 
 PACKAGE = Path(__file__).resolve().parents[1] / "generator"
 STAGES = ("base", "entry", "geometry", "physics", "site", "run", "commands")
-BASE = {"generator", "generator.model", "generator.errors", "generator.versions"}
+BASE = {"generator", "generator.model", "generator.errors", "generator.versions",
+        "generator.argv"}
 COMMANDS = {"generator.cli", "generator.__main__"}
 
 

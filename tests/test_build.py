@@ -86,7 +86,7 @@ def test_entry_views_are_kept_and_remade_only_for_what_changed(project: Path,
     from generator.run.cache import SECRET_ENV
     from generator.site import writer as render
 
-    monkeypatch.setenv(SECRET_ENV, "build-test-secret")
+    monkeypatch.setenv(SECRET_ENV, "build-test-secret-of-at-least-32-characters")
     annex = add_a_second_entry(project)
     made: list[str] = []
     real = render.entry_view
@@ -157,7 +157,7 @@ def test_a_pruned_cache_keeps_exactly_what_the_last_build_used(project: Path,
     from generator.run.cache import SECRET_ENV
     from generator.site import writer as render
 
-    monkeypatch.setenv(SECRET_ENV, "build-test-secret")
+    monkeypatch.setenv(SECRET_ENV, "build-test-secret-of-at-least-32-characters")
     cache = project / "cache"
     cached = RunOptions(jobs=1, cache_dir=cache)
 
@@ -191,7 +191,7 @@ def test_the_command_line_prunes_on_request(project: Path, monkeypatch: pytest.M
     from generator.cli import main
     from generator.run.cache import SECRET_ENV
 
-    monkeypatch.setenv(SECRET_ENV, "build-test-secret")
+    monkeypatch.setenv(SECRET_ENV, "build-test-secret-of-at-least-32-characters")
     stale = project / "cache" / "ab" / ("ab" + "0" * 62 + ".view")
     stale.parent.mkdir(parents=True)
     stale.write_bytes(b"left by an older build")

@@ -565,6 +565,12 @@ def test_a_build_for_publishing_refuses_a_catalog_without_an_address(
     ("site_address: javascript:alert(1)\n", "plain http(s) address"),
     ("site_address: 'https://x.example/\" onclick=x'\n", "plain http(s) address"),
     ("title: [a, b]\n", "one line of text"),
+    # read like every catalog file (issue 15, item 3): refused where written, never expanded
+    ("a: &a [x, x]\nb: &b [*a, *a]\ntitle: *b\n", "publication.yaml:1:4: error: YAML anchors"),
+    ("title: !!python/object/apply:os.system [ls]\n", "publication.yaml:1:8: error: YAML tag"),
+    ("1: x\n", "publication.yaml:1:1: error: keys must be plain names"),
+    ("- a\n", "publication.yaml:1:1: error: expected a mapping"),
+    ("title: " + "x" * 300_000 + "\n", "larger than the limit"),
 ])
 def test_publication_settings_are_checked(demo: Path, capsys: pytest.CaptureFixture[str],
                                           text: str, message: str) -> None:

@@ -136,8 +136,12 @@ def test_wrong_density_is_rejected_naming_the_tt_component() -> None:
     matter = Matter(kind="perfect-fluid", density=text("1/(7*pi*t**2)"), pressure=text("0"),
                     velocity=vector(t="1"))
     result = run(flrw_dust_entry(matter=matter))
+    # Issue 18: at the density line, with the value the field equations give (1/(6π t²),
+    # the Einstein–de Sitter density; see this file's sources).
     assert errors(result) == ["the declared perfect-fluid source does not satisfy "
-                              "G_ab + Λ g_ab = 8π T_ab: G_tt − 8π T_tt ≠ 0"]
+                              "G_ab + Λ g_ab = 8π T_ab: G_tt − 8π T_tt ≠ 0; with the declared "
+                              "velocity the field equations give density = 1/(6*pi*t**2)"]
+    assert result.diagnostics[0].line == POSITIONS["matter.density"].line
     assert result.kind == "non-vacuum"
 
 

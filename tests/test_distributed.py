@@ -126,7 +126,7 @@ def test_a_worker_process_that_dies_fails_that_entry_only(root, cluster, monkeyp
 
 @pytest.mark.slow
 def test_failures_on_the_cluster_are_not_cached(root, cluster, monkeypatch, tmp_path):
-    monkeypatch.setenv(SECRET_ENV, "cluster-test-secret")
+    monkeypatch.setenv(SECRET_ENV, "cluster-test-secret-of-at-least-32-characters")
     monkeypatch.setattr(on_cluster, "check_shipped", failing_for("flat-spherical", "raise"))
     on_the_cluster(root, cluster, cache=tmp_path / "cache")
     monkeypatch.setattr(on_cluster, "check_shipped", failing_for("no-such-entry", "raise"))

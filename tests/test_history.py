@@ -8,6 +8,7 @@ build small repositories with known commits and check that we read them back cor
 from __future__ import annotations
 
 import io
+import json
 from pathlib import Path
 
 import pytest
@@ -18,6 +19,7 @@ from generator.entry.history import (
     catalog_revisions,
     changed_entries,
     describe_match,
+    loader_hasher,
     lookup_hash,
     lookup_main,
     revisions,
@@ -250,14 +252,88 @@ def test_cite_command_refuses_unknown_ids(history, capsys) -> None:
 def test_blob_hashes_are_kept_between_runs(history, tmp_path: Path) -> None:
     box, _, _ = history
     cache = tmp_path / "cache" / "content-hashes.json"
-    first = catalog_revisions(box.root, box.root / "catalog", cache_file=cache)
+    first = catalog_revisions(box.root, box.root / "catalog", cache_file=cache, secret=KEY)
     assert cache.is_file()
 
     def must_not_run(file: str, source: str) -> str | None:
         raise AssertionError(f"{file} hashed again")
 
-    again = catalog_revisions(box.root, box.root / "catalog", hasher=must_not_run, cache_file=cache)
+    again = catalog_revisions(box.root, box.root / "catalog", hasher=must_not_run,
+                              cache_file=cache, secret=KEY)
     assert again == first
+
+
+KEY = b"history-test-key-of-at-least-32-bytes"
+
+
+def _planted(cache: Path, change) -> None:
+    """Rewrite the kept table's rows with ``change`` (keeping the old signature)."""
+    data = json.loads(cache.read_text())
+    data["table"] = {key: change(value) for key, value in data["table"].items()}
+    cache.write_text(json.dumps(data))
+
+
+@pytest.mark.parametrize("planted", [
+    "0" * 64,  # a well-formed hash that is not the entry's: a forged revision
+    "../../../../../X",  # shaped like a path
+    12345,  # not even a string
+])
+def test_a_planted_hash_table_is_never_trusted(history, tmp_path: Path, planted) -> None:
+    """Found by a red-team pass: the unsigned table's values were published as revision hashes
+    and built into file names. Now the table is signed; an edited one is recomputed whole."""
+    box, _, _ = history
+    cache = tmp_path / "content-hashes.json"
+    honest = catalog_revisions(box.root, box.root / "catalog", cache_file=cache, secret=KEY)
+    _planted(cache, lambda value: planted)
+    again = catalog_revisions(box.root, box.root / "catalog", cache_file=cache, secret=KEY)
+    assert again == honest
+
+
+def test_a_table_signed_with_another_key_is_recomputed(history, tmp_path: Path) -> None:
+    box, _, _ = history
+    cache = tmp_path / "content-hashes.json"
+    catalog_revisions(box.root, box.root / "catalog", cache_file=cache, secret=b"k" * 40)
+    calls: list[str] = []
+
+    def counting(file: str, source: str) -> str | None:
+        calls.append(file)
+        return loader_hasher(file, source)
+
+    catalog_revisions(box.root, box.root / "catalog", hasher=counting, cache_file=cache,
+                      secret=KEY)
+    assert calls, "a table signed with another key was trusted"
+
+
+def test_a_signed_row_shaped_like_a_path_is_still_refused(tmp_path: Path) -> None:
+    """Even under a valid signature, a row must look like what hash_of writes."""
+    from generator.entry.history import BlobHashes
+
+    cache = tmp_path / "content-hashes.json"
+    writer = BlobHashes(file=cache, secret=KEY)
+    writer.known = {"scheme:1.0:" + "a" * 40: "../../x"}
+    writer.changed = True
+    writer.save()
+    assert BlobHashes(file=cache, secret=KEY).known == {}
+    writer.known = {"scheme:1.0:" + "a" * 40: "b" * 64}
+    writer.save()
+    assert BlobHashes(file=cache, secret=KEY).known == writer.known
+
+
+@pytest.mark.parametrize("bad", ["../x", "a" * 11, "G" * 64, "x/../../y", "a" * 63 + "\n"])
+def test_revision_file_names_are_built_only_from_hex_hashes(bad: str) -> None:
+    from generator.site.common import revision_file
+
+    assert revision_file("lantern", "a" * 64).endswith("/" + "a" * 12 + ".yaml")
+    with pytest.raises(ValueError):
+        revision_file("lantern", bad)
+
+
+@pytest.mark.parametrize("bad", ["../x", "A", "x/y", "", "a--b", "lantern\n"])
+def test_revision_file_names_are_built_only_from_entry_ids(bad: str) -> None:
+    from generator.site.common import revision_file
+
+    with pytest.raises(ValueError):
+        revision_file(bad, "a" * 64)
 
 
 def test_a_damaged_hash_cache_is_ignored(history, tmp_path: Path) -> None:

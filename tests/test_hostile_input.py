@@ -416,3 +416,298 @@ def test_no_payload_file_in_the_working_folder() -> None:
     """The fixture's file-creating payloads name PWNED-*; none may exist in the project."""
     assert not list(Path(os.getcwd()).glob("PWNED*"))
     assert not list(PROJECT.glob("PWNED*"))
+
+
+# ---------------------------------------------------------------------------- red-team classes
+# Each class below was found by a red-team pass (a stranger's pull request may hold any file
+# under catalog/); the tests try variants of each, not only the reproduction.
+
+EXTRA = "".join(f"  {name}: {{assume: positive, meaning: extra}}\n" for name in "abcdefg")
+BIG_SUM = "(M+a+b+c+d+e+f+g)"
+
+
+def with_extra_parameters(line_element_tail: str) -> str:
+    source = VALID.replace("  M: {assume: positive, meaning: mass}\n",
+                           "  M: {assume: positive, meaning: mass}\n" + EXTRA)
+    return source.replace("sin(theta)**2*dphi**2)",
+                          f"sin(theta)**2*dphi**2) + {line_element_tail}")
+
+
+@pytest.mark.parametrize("tail", [
+    f"{BIG_SUM}**40*dr**2",  # the reproduction: degree 40, but 62,891,504 terms
+    f"dr**2/{BIG_SUM}**40",  # in a denominator
+    f"sin({BIG_SUM}**40)*dr**2",  # inside a function
+    f"sqrt({BIG_SUM}**40)*dr**2",  # under a root
+    "(M+a+b+c)**12*(d+e+f+g)**12*dr**2",  # a product of two moderate expansions
+    f"(({BIG_SUM}**4)**4)*dr**2",  # nested powers, each small
+    f"{BIG_SUM}**20*dr**2 + {BIG_SUM}**21*dr**2",  # a sum of two large ones
+])
+def test_expansion_blow_ups_are_refused_by_their_number_of_terms(tail: str) -> None:
+    result = load(with_extra_parameters(tail))
+    errors = [d for d in result.diagnostics if d.severity == "error"]
+    assert [(d.code, d.line) for d in errors] == [("math.syntax", 24)]
+    assert "terms (limit" in errors[0].message
+
+
+def test_a_modest_multivariable_expansion_still_loads() -> None:
+    result = load(with_extra_parameters("(M+a+b)**3*dr**2/r**6"))
+    assert not [d for d in result.diagnostics if d.code == "math.syntax"]
+
+
+@pytest.mark.parametrize("text", ["(a+b+c)**4", "(a+b)**3*(c+d)**2", "(a+b+c+d)**3 + a",
+                                  "((a+b)**2+c)**3", "(a+b)**7"])
+def test_the_term_bound_is_never_below_what_expand_builds(text: str) -> None:
+    """Multinomial theorem (common practice): a sum of t terms to the n has C(n+t-1, t-1)
+    monomials — an upper bound once terms combine. Compared with SymPy's own expansion."""
+    import sympy
+
+    from generator.entry.mathparse import term_bound
+
+    expr = sympy.sympify(text)  # a test-owned literal, not entry input
+    assert term_bound(expr) >= len(sympy.Add.make_args(sympy.expand(expr)))
+    assert term_bound(sympy.sympify("(a+b+c)**4")) == 15  # C(6, 2)
+
+
+# -- vocabulary files (tags.yaml, families.yaml) read like entries
+
+
+def vocabulary_problems_of(tmp_path: Path, name: str, text: str | bytes) -> list[tuple]:
+    from generator.entry.catalog import read_vocabulary_file
+
+    path = tmp_path / name
+    if isinstance(text, bytes):
+        path.write_bytes(text)
+    else:
+        path.write_text(text, encoding="utf-8")
+    found = run_limited(read_vocabulary_file, path, name, seconds=30, memory_bytes=1 << 30)
+    return [(d.code, d.line, d.column) for d in found.diagnostics]
+
+
+VOCABULARY_BOMB = BILLION_LAUGHS.replace("id: schwarzschild\n", "")
+
+
+@pytest.mark.parametrize("name", ["tags.yaml", "families.yaml"])
+@pytest.mark.parametrize("text, expected", [
+    (VOCABULARY_BOMB, ("yaml.anchor", 1, 4)),  # billion laughs: refused at its first anchor
+    ("vacuum: &v text\nstatic: *v\n", ("yaml.anchor", 1, 9)),
+    ("vacuum: !!python/object/apply:os.system [ls]\n", ("yaml.tag", 1, 9)),
+    ("1: a number as a name\n", ("vocabulary.name", 1, 1)),
+    ("? [a, b]\n: a list as a name\n", ("vocabulary.name", 1, 3)),
+    ("Vacuum: capitals\n", ("vocabulary.name", 1, 1)),
+    ("- a list\n- not a mapping\n", ("vocabulary.type", 1, 1)),
+    ("a: ok\nb: " + "[" * 25 + "x" + "]" * 25 + "\n", ("yaml.depth", 2, 23)),
+])
+def test_hostile_vocabulary_files_are_refused_at_their_position(tmp_path, name, text,
+                                                                expected) -> None:
+    assert expected in vocabulary_problems_of(tmp_path, name, text)
+
+
+@pytest.mark.parametrize("name", ["tags.yaml", "families.yaml"])
+def test_vocabulary_files_are_capped_in_size_and_encoding(tmp_path, name) -> None:
+    from generator.entry.catalog import MAX_VOCABULARY_BYTES
+
+    big = "a: " + "x" * MAX_VOCABULARY_BYTES + "\n"
+    assert vocabulary_problems_of(tmp_path, name, big) == [("file.size", 1, 1)]
+    assert vocabulary_problems_of(tmp_path, name, b"a: \xff\n") == [("file.encoding", 1, 4)]
+
+
+def test_family_records_are_checked_field_by_field(tmp_path) -> None:
+    found = vocabulary_problems_of(tmp_path, "families.yaml",
+                                   "waves:\n  title: Waves\n  about: [not, text]\n"
+                                   "stars: just a line\nblack-holes:\n  script: x\n")
+    assert found == [("vocabulary.type", 3, 10), ("vocabulary.type", 4, 8),
+                     ("vocabulary.key", 6, 3)]
+
+
+def test_read_tags_never_raises_on_hostile_keys(tmp_path: Path) -> None:
+    """A non-string tag key raised TypeError in read_tags (sorting ints with strings), which
+    ended the preview server's watcher; the usable tags are kept, the rest reported."""
+    from generator.entry.catalog import read_tags
+
+    (tmp_path / "tags.yaml").write_text("vacuum: ok\n1: int\nnull: none\n2.5: float\n")
+    assert [t.name for t in read_tags(tmp_path)] == ["vacuum"]
+
+
+def fake_checks(monkeypatch: pytest.MonkeyPatch) -> None:
+    from _scale_helpers import install_counting_engine
+
+    install_counting_engine(monkeypatch)
+
+
+def test_a_bad_tags_file_is_reported_at_its_own_line_not_at_an_entry(
+        tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    """`check` reported a broken tags.yaml as an internal error at the entry's 1:1."""
+    from generator.run.pipeline import RunOptions, check_files
+
+    fake_checks(monkeypatch)
+    catalog = make_catalog(tmp_path, "hostile-valid")
+    with (catalog / "tags.yaml").open("a", encoding="utf-8") as handle:
+        handle.write("7: a number\n")
+    lines = (catalog / "tags.yaml").read_text().count("\n")
+    entry = catalog / "black-holes" / "schwarzschild.yaml"
+    reports = check_files([entry], catalog, tmp_path, RunOptions(jobs=1))
+    by_file = {r.file: r for r in reports}
+    [problem] = by_file["catalog/tags.yaml"].diagnostics
+    assert (problem.code, problem.line, problem.column) == ("vocabulary.name", lines, 1)
+    assert by_file["catalog/black-holes/schwarzschild.yaml"].ok
+
+
+# -- symbolic links under catalog/
+
+
+@pytest.mark.parametrize("link, target", [
+    ("black-holes/evil.yaml", "/etc/passwd"),  # the reproduction
+    ("black-holes/twin.yaml", "schwarzschild.yaml"),  # a link to another entry
+    ("black-holes/gone.yaml", "/nonexistent/file.yaml"),  # dangling
+    ("linked-family", "/etc"),  # a linked folder, once skipped without a word
+    ("black-holes/sub", "."),  # a loop
+    ("black-holes/readme.txt", "/etc/hostname"),  # not even named like an entry
+    ("black-holes/zero.yaml", "/dev/zero"),  # endless: hashing it once never ended
+])
+def test_links_in_the_catalog_are_refused_at_their_place(tmp_path, monkeypatch, link,
+                                                         target) -> None:
+    from generator.entry.catalog import entry_files
+    from generator.run.pipeline import RunOptions, check_files
+
+    fake_checks(monkeypatch)
+    catalog = make_catalog(tmp_path, "hostile-valid")
+    os.symlink(target, catalog / link)
+    reports = run_limited(check_files, entry_files([catalog]), catalog, tmp_path,
+                          RunOptions(jobs=1), seconds=60, memory_bytes=1 << 30)
+    by_file = {r.file: r for r in reports}
+    refused = by_file[f"catalog/{link}"]
+    assert [(d.code, d.line, d.column) for d in refused.diagnostics] == [("file.link", 1, 1)]
+    assert by_file["catalog/black-holes/schwarzschild.yaml"].ok
+
+
+@pytest.mark.parametrize("name", ["tags.yaml", "families.yaml"])
+def test_a_linked_vocabulary_file_is_refused(tmp_path: Path, name: str) -> None:
+    from generator.entry.catalog import read_vocabulary_file
+
+    catalog = make_catalog(tmp_path)
+    (catalog / name).unlink()
+    os.symlink(PROJECT / "catalog" / name, catalog / name)
+    found = read_vocabulary_file(catalog / name, f"catalog/{name}")
+    assert found.entries == {}
+    assert [d.code for d in found.diagnostics] == ["file.link"]
+
+
+def test_the_loader_refuses_a_link_even_when_named_directly(tmp_path: Path) -> None:
+    path = tmp_path / "black-holes" / "schwarzschild.yaml"
+    path.parent.mkdir()
+    os.symlink(ROOTS / "hostile-valid/black-holes/schwarzschild.yaml", path)
+    result = load_entry(path, FILE, VOCABULARY)
+    assert [d.code for d in result.diagnostics] == ["file.link"]
+
+
+def test_a_fifo_in_the_catalog_does_not_hang_loading(tmp_path: Path) -> None:
+    path = tmp_path / "black-holes" / "schwarzschild.yaml"
+    path.parent.mkdir()
+    os.mkfifo(path)
+    result = run_limited(load_entry, path, FILE, VOCABULARY, seconds=30, memory_bytes=0)
+    assert [d.code for d in result.diagnostics] == ["file.unreadable"]
+
+
+# -- the output folder of a build
+
+
+@pytest.mark.parametrize("out", ["catalog", ".", "..", "catalog/black-holes", "catalog/site",
+                                 "not-ours", "a-file"])
+def test_build_refuses_an_output_folder_it_would_destroy(tmp_path, monkeypatch, out) -> None:
+    """`build --out catalog` deleted every entry, `--out .` the whole checkout with .git."""
+    from generator.errors import UsageError
+    from generator.run.build import build_site
+    from generator.run.pipeline import RunOptions
+
+    fake_checks(monkeypatch)
+    project = tmp_path / "project"
+    make_catalog(project, "hostile-valid")
+    (project / ".git").mkdir()
+    (project / "not-ours").mkdir()
+    (project / "not-ours" / "thesis.tex").write_text("years of work")
+    (project / "a-file").write_text("data")
+    monkeypatch.chdir(project)
+    before = sorted(p.relative_to(tmp_path) for p in tmp_path.rglob("*"))
+    with pytest.raises(UsageError):
+        build_site(Path("catalog"), Path(out), RunOptions(jobs=1))
+    assert sorted(p.relative_to(tmp_path) for p in tmp_path.rglob("*")) == before
+
+
+@pytest.mark.parametrize("out", ["site", "empty", "deep/new/site", "own-site"])
+def test_a_new_an_empty_or_its_own_folder_is_accepted(tmp_path, monkeypatch, out) -> None:
+    from generator.run.build import SITE_MARKER, check_output_folder
+
+    project = tmp_path / "project"
+    make_catalog(project, "hostile-valid")
+    (project / "empty").mkdir()
+    (project / "own-site").mkdir()
+    (project / "own-site" / "index.html").write_text("an earlier build")
+    (project / "own-site" / SITE_MARKER).write_text("")
+    monkeypatch.chdir(project)
+    check_output_folder(Path(out), Path("catalog"), project)  # raises if refused
+
+
+@pytest.mark.slow
+def test_a_built_site_carries_the_marker_and_can_be_rebuilt(tmp_path: Path) -> None:
+    from generator.run.build import SITE_MARKER
+
+    make_catalog(tmp_path, "hostile-valid")
+    for _ in range(2):
+        done = almanac(tmp_path, "build", "--no-cache", "--jobs", "1")
+        assert done.returncode == 0, done.stderr[-2000:]
+        assert (tmp_path / "site" / SITE_MARKER).is_file()
+    done = almanac(tmp_path, "build", "--no-cache", "--out", ".")
+    assert done.returncode == 2 and "contains the catalog" in done.stderr
+    assert (tmp_path / "catalog" / "tags.yaml").is_file()
+
+
+# -- control characters in diagnostics
+
+
+PAYLOADS = ["x\n::error file=a.yaml,line=1::forged", "x\r::warning::forged",
+            "x\x85::error::nel", "x\u2028::error::ls", "x\x1b[2J\x1b]0;title\x07",
+            "x\x00nul", "x%0A::error::pre-escaped", "x\t::notice::tab"]
+
+
+@pytest.mark.parametrize("payload", PAYLOADS)
+@pytest.mark.parametrize("field", ["file", "message", "hint", "code"])
+def test_no_diagnostic_output_can_forge_a_workflow_command(payload: str, field: str) -> None:
+    """A YAML key holding a line break and `::error` printed forged annotation lines in the
+    plain-text output CI shows. Every format must keep one diagnostic on its own line(s)."""
+    import json
+
+    from generator.errors import Diagnostic
+    from generator.model import EntryReport
+    from generator.site.export import check_document
+
+    parts = {"file": "catalog/x.yaml", "message": "unknown key", "hint": "a hint",
+             "code": "entry.unknown-key"}
+    parts[field] = payload
+    d = Diagnostic(parts["file"], 3, 1, "error", parts["message"], parts["code"],
+                   parts["hint"])
+    text_lines = d.format_text().split("\n")
+    assert len(text_lines) == 2 and text_lines[1].startswith("    hint: ")
+    github = d.format_github()
+    assert "\n" not in github and "\r" not in github
+    assert github.startswith("::error file=")  # one command; the rest is its text
+    document = json.dumps(check_document([EntryReport(None, d.file, None, None, None, (),
+                                                      (d,))]), indent=2)
+    for output in (*text_lines, github, *document.splitlines()):
+        assert not re.search("[\x00-\x1f\x7f-\x9f\u2028\u2029]", output.replace("\t", "")), \
+            output
+        assert not output.lstrip().startswith("::") or output is github
+
+
+def test_a_hostile_key_in_an_entry_prints_no_forged_line(tmp_path: Path) -> None:
+    """End to end, as CI runs it: every line starting with :: is one of our diagnostics."""
+    catalog = make_catalog(tmp_path, "hostile-valid")
+    entry = catalog / "black-holes" / "schwarzschild.yaml"
+    entry.write_text(entry.read_text() + '"x\\n::error file=README.md,line=1::forged": 1\n')
+    for fmt in ("text", "github"):
+        done = almanac(tmp_path, "check", "catalog", "--format", fmt, "--no-cache",
+                       "--jobs", "1", timeout=600)
+        lines = (done.stdout + done.stderr).splitlines()
+        commands = [line for line in lines if line.startswith("::")]
+        assert all(line.startswith("::error file=catalog/black-holes/") for line in commands)
+        assert len(commands) == (1 if fmt == "github" else 0)
+        assert done.returncode == 1

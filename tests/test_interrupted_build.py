@@ -235,16 +235,25 @@ def cache(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> ResultCache:
 
 @pytest.fixture
 def no_unpickling(monkeypatch: pytest.MonkeyPatch) -> list[bytes]:
-    """Record every pickle.loads the cache performs (there must be none for bad files)."""
+    """Record every unpickling the cache performs (there must be none for bad files)."""
     calls: list[bytes] = []
-    real = pickle.loads
+    real = cache_module.safe_loads
 
     def spy(data: bytes, *args: object, **kwargs: object) -> object:
         calls.append(data)
         return real(data, *args, **kwargs)
 
-    monkeypatch.setattr(cache_module.pickle, "loads", spy)
+    monkeypatch.setattr(cache_module, "safe_loads", spy)
     return calls
+
+
+def test_the_unpickling_spy_sees_a_good_file_read(cache: ResultCache,
+                                                   no_unpickling: list[bytes]) -> None:
+    """Control for the tests below: a good file *is* unpickled through the spied function, so
+    an empty record there means the bad file was refused before unpickling."""
+    cache.put(KEY, _report())
+    assert cache.get(KEY) == _report()
+    assert len(no_unpickling) == 1
 
 
 KEY = "ab" + "0" * 62
@@ -281,7 +290,7 @@ def test_a_damaged_cache_file_is_ignored_unread(
 def test_a_file_signed_with_another_secret_is_ignored_unread(
     cache: ResultCache, no_unpickling: list[bytes], monkeypatch: pytest.MonkeyPatch
 ) -> None:
-    monkeypatch.setenv(cache_module.SECRET_ENV, "someone else's secret")
+    monkeypatch.setenv(cache_module.SECRET_ENV, "someone else's secret, at least 32 characters")
     ResultCache(cache.folder).put(KEY, _report())
     assert cache.get(KEY) is None
     assert no_unpickling == []

@@ -153,3 +153,42 @@ def test_schema_refuses_broken_entries(change: str) -> None:
 def test_editor_view_reads_dates_as_text_and_keys_as_strings() -> None:
     data = editor_view("added: 2026-12-01\nnull: holds\nyear: 1963\nok: true\nq: '0'\n")
     assert data == {"added": "2026-12-01", "null": "holds", "year": 1963, "ok": True, "q": "0"}
+
+
+# ---------------------------------------------------------------------------- standard tools
+
+
+@pytest.mark.parametrize("path", ENTRY_FILES, ids=lambda p: p.stem)
+def test_every_shipped_entry_validates_through_a_standard_yaml_loader(path: Path) -> None:
+    """Issue 18: an editor or a CI script reads entries with a standard YAML parser, not with
+    the checker. PyYAML's safe loader (YAML 1.1: a bare ``null:`` key is None, a bare
+    2026-12-02 a date) feeds the jsonschema library's Draft 7 validator directly."""
+    import yaml
+
+    data = yaml.safe_load(path.read_text(encoding="utf-8"))
+    assert errors_of(data) == [], path
+
+
+def test_a_bare_null_key_is_what_standard_yaml_makes_of_the_old_key() -> None:
+    """Why the keys were renamed (YAML 1.1 and 1.2 core schema: ``null`` is the null value,
+    common practice): the old form fails the schema through a standard loader."""
+    import yaml
+
+    old = copy.deepcopy(MINIMAL)
+    old["claims"]["energy_conditions"] = yaml.safe_load("{null: holds}")
+    assert None in old["claims"]["energy_conditions"]
+    assert errors_of(old) != []
+    new = copy.deepcopy(MINIMAL)
+    new["claims"]["energy_conditions"] = yaml.safe_load("{null_condition: holds}")
+    assert errors_of(new) == []
+
+
+def test_a_bare_date_is_refused_by_the_schema_through_pyyaml() -> None:
+    """The shipped entries quote ``curation.added``; unquoted, PyYAML gives a date object."""
+    import yaml
+
+    data = copy.deepcopy(MINIMAL)
+    data["curation"] = yaml.safe_load("{added: 2026-12-01, by: Demo Curator}")
+    assert errors_of(data) != []
+    data["curation"] = yaml.safe_load('{added: "2026-12-01", by: Demo Curator}')
+    assert errors_of(data) == []

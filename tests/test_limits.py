@@ -8,6 +8,7 @@ reported as the Riemann-tensor stage. No test asserts how long anything took.
 from __future__ import annotations
 
 import contextlib
+import operator
 import re
 import resource
 import signal
@@ -32,6 +33,7 @@ from generator.run.limits import (
 )
 
 MiB = 2**20
+ROOTS = Path(__file__).resolve().parent / "roots"
 
 
 def spin_forever() -> None:
@@ -194,13 +196,33 @@ def test_cpu_backstop_is_removed_afterwards() -> None:
     assert resource.getrlimit(resource.RLIMIT_CPU) == before
 
 
-def test_outside_the_main_thread_fn_still_runs() -> None:
-    results: list[int] = []
-    worker = threading.Thread(target=lambda: results.append(
-        run_limited(lambda: 7, seconds=1, memory_bytes=MiB)))
+def _in_a_thread(fn, *args, **limits) -> list[object]:
+    """Call ``run_limited(fn, *args, **limits)`` from a thread that is not the main one (as a
+    preview server's rebuild once did); returns [result] or [the exception]."""
+    outcome: list[object] = []
+
+    def call() -> None:
+        try:
+            outcome.append(run_limited(fn, *args, **limits))
+        except BaseException as exc:
+            outcome.append(exc)
+
+    worker = threading.Thread(target=call)
     worker.start()
     worker.join()
-    assert results == [7]
+    return outcome
+
+
+def test_outside_the_main_thread_fn_still_runs() -> None:
+    assert _in_a_thread(operator.mul, 6, 7, seconds=5, memory_bytes=64 * MiB) == [42]
+
+
+def test_outside_the_main_thread_the_limits_still_apply() -> None:
+    """A thread cannot take signals; the call goes to a child process whose main thread sets
+    the alarm, so an endless loop still ends with the stage named (it used to run unbounded)."""
+    [outcome] = _in_a_thread(spin_forever, seconds=0.2, memory_bytes=0, hard_grace=5)
+    assert isinstance(outcome, BudgetExceeded)
+    assert "time limit" in outcome.limit
 
 
 # ---------------------------------------------------------------------------- worker processes
@@ -326,11 +348,13 @@ KNOWN_STAGES = frozenset({"inverse metric", "Christoffel symbols", "Riemann tens
 
 @pytest.mark.slow
 def test_the_build_reports_the_pathological_entry_and_keeps_the_old_site(tmp_path: Path) -> None:
+    from generator.run.build import SITE_MARKER
     from tests._hostile import almanac, make_catalog
 
     make_catalog(tmp_path, "hostile-valid", "hostile-pathological")
     (tmp_path / "site").mkdir()
     (tmp_path / "site" / "index.html").write_text("previous site")
+    (tmp_path / "site" / SITE_MARKER).write_text("")  # a site this tool wrote
     done = almanac(tmp_path, "build", "--seconds", "3", "--no-cache", "--jobs", "2")
     assert done.returncode == 1
     assert "pathological-expansion.yaml:15:3: error: computation ran out of its budget" in \
@@ -369,3 +393,93 @@ def test_the_proposed_wiring_turns_a_pathological_entry_into_a_report() -> None:
     (budget,) = [d for d in report.diagnostics if d.code == BUDGET_CODE]
     assert (budget.line, budget.column) == (15, 3)
     assert "time limit of 3 s" in budget.message
+
+
+# ---------------------------------------------------------------------------- backstop reports
+# A red-team pass found a one-entry check ended silently by the CPU-time backstop (SIGXCPU in
+# the main process), and a build that re-ran the entry that had killed its worker. The worker
+# below ends its own process with SIGXCPU (tests/_backstop_worker.py), so these tests depend
+# on state (which entry, what the recorded stack says), never on how long anything takes.
+
+
+def _backstop_tasks(tmp_path: Path, names: list[str]) -> list:
+    from dataclasses import replace
+
+    from generator.run.tasks import Task
+
+    source = (ROOTS / "hostile-valid/black-holes/schwarzschild.yaml").read_text()
+    stacks = tmp_path / "stacks"
+    stacks.mkdir()
+    tasks = []
+    for i, name in enumerate(names):
+        path = tmp_path / "catalog" / "black-holes" / f"{name}.yaml"
+        path.parent.mkdir(parents=True, exist_ok=True)
+        path.write_text(source)
+        task = Task(path, f"catalog/black-holes/{name}.yaml", None, tmp_path, (), 5.0)
+        tasks.append(replace(task, backstop_file=stacks / f"{i}.stack"))
+    return tasks
+
+
+@pytest.mark.parametrize("jobs, names", [
+    (1, ["heavy"]),  # a one-entry check: the case that used to end with nothing printed
+    (1, ["light-a", "heavy", "light-b"]),
+    (2, ["heavy", "light-a", "light-b", "light-c"]),
+])
+def test_a_backstop_stop_is_reported_with_its_stage_and_not_run_again(
+        tmp_path: Path, jobs: int, names: list[str]) -> None:
+    from _backstop_worker import calls, logged_worker
+
+    from generator.run.pipeline import Progress, _compute_in_processes
+
+    tasks = _backstop_tasks(tmp_path, names)
+    done = dict(_compute_in_processes(tasks, list(range(len(tasks))), jobs, Progress(),
+                                      logged_worker))
+    assert sorted(done) == list(range(len(tasks)))
+    heavy = names.index("heavy")
+    [diagnostic] = [d for d in done[heavy].diagnostics if d.code == "budget.exceeded"]
+    # at the metric of the entry (its value starts on line 17), naming the stage it was in
+    assert (diagnostic.file, diagnostic.line) == (tasks[heavy].display, 17)
+    assert "stage 'Riemann tensor'" in diagnostic.message
+    assert "worker process was ended" in diagnostic.message
+    log = calls(tmp_path / "stacks")
+    assert log.count(tasks[heavy].display) == 1, "the entry that hit its budget ran again"
+    for i in range(len(names)):
+        if i != heavy:
+            assert done[i].diagnostics == () and tasks[i].display in log
+
+
+def test_backstop_stage_reads_the_innermost_named_function(tmp_path: Path) -> None:
+    from generator.run.tasks import backstop_stage
+
+    stack = tmp_path / "stack"
+    assert backstop_stage(None) is None
+    assert backstop_stage(tmp_path / "missing") is None
+    stack.write_text("")
+    assert backstop_stage(stack) is None  # the backstop never fired
+    stack.write_text('Current thread 0x1 (most recent call first):\n'
+                     '  File "/x/flint.py", line 3 in gcd\n'
+                     '  File "/x/curvature.py", line 9 in christoffel_symbols\n'
+                     '  File "/x/loader.py", line 5 in load_entry\n')
+    assert backstop_stage(stack) == "Christoffel symbols"
+    stack.write_text('  File "/x/a.py", line 1 in helper\n')
+    assert backstop_stage(stack) == "checking the entry"
+
+
+def test_loading_runs_inside_the_entry_budget(tmp_path: Path,
+                                              monkeypatch: pytest.MonkeyPatch) -> None:
+    """Loading used to run before the limits were set: a line element built to blow up its
+    expansion ran for minutes. Here the metric builder never returns; only the alarm set
+    around loading can end it, and the report names the loading stage at the metric."""
+    from generator.entry import loader
+    from generator.run import tasks
+
+    def build_spacetime(entry):  # named like the loader's step, so the stage is named
+        spin_forever()
+
+    monkeypatch.setattr(loader, "build_spacetime", build_spacetime)
+    monkeypatch.setattr(tasks, "alarm_seconds", lambda seconds: 0.3)
+    [task] = _backstop_tasks(tmp_path, ["schwarzschild"])
+    report = tasks.load_and_check_within_limits(task)
+    [diagnostic] = [d for d in report.diagnostics if d.code == "budget.exceeded"]
+    assert "stage 'building the metric'" in diagnostic.message
+    assert diagnostic.line == 17

@@ -20,7 +20,7 @@ from _scale_helpers import (
 )
 
 from generator.model import EntryReport
-from generator.run import tasks
+from generator.run import pipeline, tasks
 from generator.run.cache import SECRET_ENV
 from generator.run.pipeline import RunOptions, check_files
 
@@ -107,7 +107,7 @@ def test_the_linked_entry_is_checked_against_the_entry_it_links_to(serial_and_pa
 
 
 def test_progress_also_reports_entries_taken_from_the_cache(tmp_path, monkeypatch):
-    monkeypatch.setenv(SECRET_ENV, "pipeline-test-secret")
+    monkeypatch.setenv(SECRET_ENV, "pipeline-test-secret-of-32-characters")
     root = copy_catalog(tmp_path)
     calls = install_counting_engine(monkeypatch)
     options = RunOptions(jobs=1, cache_dir=tmp_path / "cache")
@@ -154,7 +154,7 @@ def test_a_pull_request_check_loads_only_possible_twins_and_reuses_their_ranks(t
     from generator.physics import twins
     from generator.run.cache import ResultCache
 
-    monkeypatch.setenv(SECRET_ENV, "pipeline-test-secret")
+    monkeypatch.setenv(SECRET_ENV, "pipeline-test-secret-of-32-characters")
     root = copy_catalog(tmp_path)
     options = RunOptions(jobs=1, cache_dir=tmp_path / "cache")
     checked(root, options)  # the last full build, as CI keeps it
@@ -180,6 +180,9 @@ def test_a_pull_request_check_loads_only_possible_twins_and_reuses_their_ranks(t
 
     monkeypatch.setattr(ResultCache, "get", recording_get)
     monkeypatch.setattr(twins, "functional_rank", counting_rank)
+    # A real run searches in a child process (its backstop must not end `check`); kept in
+    # this process here so that the counting spy sees the ranks computed.
+    monkeypatch.setattr(pipeline, "run_limited_in_child", pipeline.run_limited)
     (first,) = check_files([copy], root, root.parent, options)
     warnings = [d.message for d in first.diagnostics if d.code == "entry.duplicate"]
     assert any("same spacetime as entry 'point-mass'" in w for w in warnings), warnings
@@ -217,3 +220,28 @@ def test_a_one_entry_check_reports_a_link_to_a_missing_entry(tmp_path, monkeypat
     [report] = check_files([linking], root, root.parent, RunOptions(jobs=1))
     assert [d.message for d in report.diagnostics if d.code == "catalog.related"] == [
         "related entry 'nowhere-else' does not exist"]
+
+
+@pytest.mark.parametrize("candidates, isolated", [(1, True), (0, False)])
+def test_the_duplicate_search_runs_in_a_child_when_it_has_work(monkeypatch, candidates,
+                                                               isolated):
+    """The search runs in the calling process's main thread; stuck in one C call, its CPU-time
+    backstop would end `check` itself with nothing printed. With candidates to compare it runs
+    in a child process instead; with none, nothing is spawned."""
+    from types import SimpleNamespace
+
+    calls: list[str] = []
+
+    def spy(name):
+        def limited(fn, *args, **limits):
+            calls.append(name)
+            return SimpleNamespace(ranks={}, found={})
+        return limited
+
+    monkeypatch.setattr(pipeline, "run_limited_in_child", spy("child"))
+    monkeypatch.setattr(pipeline, "run_limited", spy("here"))
+    new = EntryReport(None, "catalog/a/new.yaml", None, None, None, (), ())
+    others = [EntryReport(None, f"catalog/a/{i}.yaml", None, None, None, (), ())
+              for i in range(candidates)]
+    assert pipeline.twin_warnings([new], [new, *others]) == {}
+    assert calls == (["child"] if isolated else ["here"])

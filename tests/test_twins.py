@@ -274,3 +274,33 @@ def test_known_ranks_are_used_and_new_ones_reported(schwarzschild_charts) -> Non
     assert [other for other, _ in remembered.found["schwarzschild-isotropic"]] == [
         "schwarzschild-ef"]
     assert "schwarzschild" not in remembered.ranks
+
+
+def test_one_chart_per_group_of_related_charts_is_compared(schwarzschild_charts) -> None:
+    """Issue 18: charts joined by verified maps are one spacetime (same invariant values), so
+    the search compares a new entry with one of them, the cheapest to evaluate, and names
+    it. Without the groups both charts are named (and both were compared)."""
+    from generator.physics.twins import group_representatives
+
+    new = schwarzschild_charts["isotropic"]
+    others = [schwarzschild_charts["schwarzschild"], schwarzschild_charts["eddington"]]
+    groups = {"schwarzschild": "g", "schwarzschild-ef": "g"}
+    chosen = group_representatives(others, groups)
+    assert len(chosen) == 1
+    found = search_twins([new], others, {}, groups).found["schwarzschild-isotropic"]
+    assert [other for other, _ in found] == [chosen[0].entry.id]
+    apart = search_twins([new], others, {}, {}).found["schwarzschild-isotropic"]
+    assert {other for other, _ in apart} == {"schwarzschild", "schwarzschild-ef"}
+
+
+def test_the_cheapest_chart_represents_its_group(schwarzschild_charts) -> None:
+    """A chart whose invariants need Lambert W (Kruskal–Szekeres style) is never chosen over
+    one that does not (mpmath evaluates Lambert W slowly)."""
+    from generator.physics.twins import group_representatives
+
+    plain = schwarzschild_charts["schwarzschild"]
+    geometry = plain.geometry
+    slow = replace(plain, entry=replace(plain.entry, id="slow-chart"),
+                   geometry=replace(geometry, kretschmann=sp.LambertW(r) + 1))
+    assert group_representatives([slow, plain], {"slow-chart": "g", "schwarzschild": "g"}) \
+        == [plain]

@@ -50,7 +50,7 @@ def test_workflow_runs_on_pull_requests_and_pushes_to_main() -> None:
 
 def test_every_generator_command_in_the_workflow_parses() -> None:
     commands = generator_commands(runs("catalog"))
-    assert [c[0] for c in commands] == ["check", "check", "build"]
+    assert [c[0] for c in commands] == ["schema", "check", "check", "build"]
     for args in commands:
         cli.build_parser().parse_args(args)  # raises SystemExit on an unknown option
 
@@ -114,3 +114,78 @@ def test_schema_check_passes_here_and_fails_on_a_stale_copy(tmp_path: Path) -> N
     (tmp_path / "schema").mkdir()
     (tmp_path / "schema" / "entry.schema.json").write_text("{}\n")
     assert jsonschema_export.main(["--check", str(tmp_path)]) == 1
+
+
+def test_every_hook_and_workflow_module_command_names_a_real_module() -> None:
+    """``python -m X`` in the workflow and the hooks must name an importable module (the
+    schema step once named a module that a restructuring had moved)."""
+    import importlib.util
+
+    lines = runs("catalog") + [hook["entry"] for hook in HOOKS.values()]
+    modules = {words[2] for line in lines for words in [shlex.split(line)]
+               if words[:2] == ["python", "-m"]}
+    assert "generator" in modules
+    assert all(importlib.util.find_spec(m) is not None for m in modules), modules
+
+
+def test_hook_commands_parse_with_the_cli() -> None:
+    for hook in HOOKS.values():
+        words = shlex.split(hook["entry"])
+        if words[:3] == ["python", "-m", "generator"]:
+            extra = ["catalog/black-holes/schwarzschild.yaml"] if hook["pass_filenames"] else []
+            cli.build_parser().parse_args(words[3:] + extra)
+
+
+def test_the_schema_step_passes_here() -> None:
+    (schema,) = [c for c in generator_commands(runs("catalog")) if c[0] == "schema"]
+    assert cli.main([*schema, "--root", str(ROOT)]) == 0
+
+
+def pull_request_command() -> list[str]:
+    """The workflow's changed-entries step, with the base branch of a local sandbox."""
+    (step,) = [s for s in steps("catalog") if "--changed-since" in s.get("run", "")]
+    line = " ".join(step["run"].split()).replace('"origin/${{ github.base_ref }}"', "main")
+    return shlex.split(line)[3:]
+
+
+@pytest.mark.slow
+def test_the_pull_request_step_warns_about_a_renamed_copy(tmp_path: Path, monkeypatch,
+                                                         capsys) -> None:
+    """Issue 18: a copy of schwarzschild.yaml with M renamed to m and a new id passed CI
+    silently. The workflow's own pull-request command must warn, on the copy's id line.
+
+    Schwarzschild 1916 in Schwarzschild and isotropic coordinates (the shipped entries; the
+    same spacetime, common practice): the copy must be named as a probable duplicate."""
+    from _git_sandbox import Sandbox
+
+    box = Sandbox(tmp_path / "repo")
+    for name in ("families.yaml", "tags.yaml"):
+        box.write(f"catalog/{name}", (ROOT / "catalog" / name).read_text())
+    original = (ROOT / "catalog/black-holes/schwarzschild.yaml").read_text()
+    box.write("catalog/black-holes/schwarzschild.yaml", original)
+    box.write("catalog/cosmology/einstein-de-sitter.yaml",
+              (ROOT / "catalog/cosmology/einstein-de-sitter.yaml").read_text())
+    box.commit("catalog")
+    box.git("checkout", "-q", "-b", "contribution")
+    copy = re.sub(r"\bM\b", "m", original).replace("id: schwarzschild\n", "id: lamp-hole\n")
+    box.write("catalog/black-holes/lamp-hole.yaml", copy)
+    box.commit("a new black hole")
+    monkeypatch.chdir(box.root)
+    capsys.readouterr()
+    code = cli.main([*pull_request_command(), "--no-progress", "--jobs", "1"])
+    out = capsys.readouterr().out
+    assert code == 0
+    warnings = [line for line in out.splitlines() if line.startswith("::warning")]
+    assert len(warnings) == 1, out
+    assert "file=catalog/black-holes/lamp-hole.yaml,line=2" in warnings[0]
+    assert "schwarzschild" in warnings[0] and "entry.duplicate" in warnings[0]
+
+
+def test_the_cache_ci_restores_can_verify() -> None:
+    """Cache files are signed; CI used to set no secret, so a restored cache never verified.
+    The key comes from a repository secret, and the run says so when it is missing."""
+    from generator.run.cache import SECRET_ENV
+
+    assert WORKFLOW["env"][SECRET_ENV] == "${{ secrets.ALMANAC_CACHE_SECRET }}"
+    assert any(SECRET_ENV in step.get("run", "") and "::notice" in step["run"]
+               for step in steps("catalog"))

@@ -6,19 +6,24 @@ and family vocabularies, unique ids, and `related` links that must point at exis
 
 from __future__ import annotations
 
+import os
+import re
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 import yaml
 
 from generator.entry.loader import LoadResult, Vocabulary, load_entry
+from generator.entry.safefile import is_link, read_catalog_file
 from generator.entry.yamlcheck import MAX_FILE_BYTES, node_position, read_nodes
 from generator.errors import Diagnostic, SourcePos, UsageError
 from generator.model import Family, Tag
 
 ENTRY_SUFFIXES = (".yaml", ".yml")
-VOCABULARY_FILES = ("tags.yaml", "families.yaml", "publication.yaml")
+VOCABULARY_FILES = ("tags.yaml", "families.yaml", "publication.yaml")  # not entries
+NAME_LISTS = ("tags.yaml", "families.yaml")  # the vocabularies entries are checked against
 
 
 def find_catalog_root(start: Path) -> Path | None:
@@ -32,16 +37,35 @@ def find_catalog_root(start: Path) -> Path | None:
 
 
 def entry_files(paths: Sequence[Path]) -> list[Path]:
-    """Entry files named by the user (files, or folders searched recursively), sorted."""
+    """Entry files named by the user (files, or folders searched recursively), sorted.
+
+    Inside a folder, symbolic links are never followed: a linked file or folder is listed
+    itself (whatever its name), so that loading it reports it (`safefile`) instead of it being
+    read — or, for a folder, skipped without a word.
+    """
     found: list[Path] = []
     for path in paths:
         if path.is_dir():
-            found += [p for p in sorted(path.rglob("*")) if _is_entry_file(p)]
-        elif path.is_file():
+            found += _walk_without_links(path)
+        elif path.is_file() or is_link(path):
             found.append(path)
         else:
             raise UsageError(f"no such file or folder: {path}")
     return sorted(set(found), key=lambda p: p.as_posix())
+
+
+def _walk_without_links(folder: Path) -> list[Path]:
+    found: list[Path] = []
+    for top, folders, files in os.walk(folder, followlinks=False):
+        here = Path(top)
+        for name in folders:
+            if is_link(here / name):
+                found.append(here / name)
+        for name in files:
+            path = here / name
+            if is_link(path) or _is_entry_file(path):
+                found.append(path)
+    return found
 
 
 def _is_entry_file(path: Path) -> bool:
@@ -49,25 +73,145 @@ def _is_entry_file(path: Path) -> bool:
             VOCABULARY_FILES and path.parent.name != "catalog")
 
 
+@dataclass(frozen=True)
+class VocabularyFile:
+    """What one vocabulary file (tags.yaml, families.yaml) holds that is usable, and what is
+    wrong with the rest, as positioned diagnostics."""
+
+    entries: dict[str, Any]  # name -> meaning (tags) or {"title", "about"} (families)
+    diagnostics: tuple[Diagnostic, ...] = ()
+
+
+def read_vocabulary_file(path: Path, display: str | None = None) -> VocabularyFile:
+    """Read tags.yaml or families.yaml like an entry: no link, size cap, no anchors or
+    aliases, no tags (`yamlcheck.read_nodes`); every name a plain string. Never raises for bad
+    content: the usable names are kept and the rest is reported where it is written."""
+    file = display or path.as_posix()
+    if not path.exists() and not is_link(path):
+        return VocabularyFile({})
+    source, problem = read_catalog_file(path, file, MAX_VOCABULARY_BYTES)
+    if problem is not None:
+        return VocabularyFile({}, (problem,))
+    node, problems = read_nodes(file, source)
+    if problems:
+        return VocabularyFile({}, tuple(problems))
+    if not isinstance(node, yaml.MappingNode):
+        return VocabularyFile({}, (Diagnostic.at(
+            node_position(file, node), "error", "a vocabulary file is a mapping of names to "
+            "their meaning", "vocabulary.type", "write one 'name: meaning' line per name"),))
+    families = path.name == "families.yaml"
+    entries: dict[str, Any] = {}
+    out: list[Diagnostic] = []
+    for key, value in node.value:
+        if not _is_plain_text(key) or not re.fullmatch(VOCABULARY_NAME, key.value):
+            out.append(_vocabulary_error(file, key, "a name must be lowercase letters, digits "
+                                         "and single hyphens", "vocabulary.name"))
+        elif key.value in entries:
+            out.append(_vocabulary_error(file, key, f"'{key.value}' is listed twice",
+                                         "vocabulary.duplicate"))
+        else:
+            meaning = _family_fields(file, value, out) if families else \
+                _vocabulary_text(file, value, out)
+            if meaning is not None:
+                entries[key.value] = meaning
+    return VocabularyFile(entries, tuple(out))
+
+
+MAX_VOCABULARY_BYTES = 256 * 1024
+VOCABULARY_NAME = r"[a-z0-9]+(-[a-z0-9]+)*"
+
+
+def _vocabulary_error(file: str, node: yaml.Node, message: str, code: str) -> Diagnostic:
+    return Diagnostic.at(node_position(file, node), "error", message, code,
+                         "see the comment at the top of the file for its format")
+
+
+def _vocabulary_text(file: str, node: yaml.Node, out: list[Diagnostic]) -> str | None:
+    if not isinstance(node, yaml.ScalarNode) or not node.value.strip():
+        out.append(_vocabulary_error(file, node, "the meaning must be one line of text",
+                                     "vocabulary.type"))
+        return None
+    return node.value
+
+
+def _family_fields(file: str, node: yaml.Node, out: list[Diagnostic]) -> dict[str, str] | None:
+    if not isinstance(node, yaml.MappingNode):
+        out.append(_vocabulary_error(file, node, "a family is a mapping with 'title' and "
+                                     "'about'", "vocabulary.type"))
+        return None
+    fields: dict[str, str] = {}
+    for key, value in node.value:
+        if not _is_plain_text(key) or key.value not in ("title", "about"):
+            out.append(_vocabulary_error(file, key, "a family has only 'title' and 'about'",
+                                         "vocabulary.key"))
+            continue
+        text = _vocabulary_text(file, value, out)
+        if text is not None:
+            fields[key.value] = text
+    return fields
+
+
+def vocabulary_problems(root: Path | None, base: Path) -> dict[str, tuple[Diagnostic, ...]]:
+    """Diagnostics of the catalog's vocabulary files, by displayed file (only those with any)."""
+    if root is None:
+        return {}
+    found = {}
+    for name in NAME_LISTS:
+        display = display_path(root / name, base)
+        problems = read_vocabulary_file(root / name, display).diagnostics
+        if problems:
+            found[display] = problems
+    return found
+
+
+def _read_mapping(path: Path) -> dict[str, object]:
+    """A small settings file (e.g. publication.yaml) as {key: text, or a list/dict of texts},
+    read like every catalog file: no link, size cap, no anchors, aliases or tags. Problems
+    raise UsageError with the file's line and column (the caller cannot go on without it)."""
+    if not path.exists() and not is_link(path):
+        return {}
+    file = path.as_posix()
+    source, problem = read_catalog_file(path, file, MAX_VOCABULARY_BYTES)
+    problems = [problem] if problem is not None else []
+    node = None
+    if not problems:
+        node, problems = read_nodes(file, source)
+    if problems:
+        raise UsageError(problems[0].format_text())
+    if node is None:
+        return {}
+    if not isinstance(node, yaml.MappingNode):
+        raise UsageError(Diagnostic.at(node_position(file, node), "error", "expected a mapping "
+                                       "of keys to values", "settings.type").format_text())
+    data: dict[str, object] = {}
+    for key, value in node.value:
+        if not _is_plain_text(key):
+            raise UsageError(Diagnostic.at(node_position(file, key), "error",
+                                           "keys must be plain names", "settings.key"
+                                           ).format_text())
+        data[key.value] = _plain(value)
+    return data
+
+
+def _plain(node: yaml.Node) -> object:
+    """Scalars stay text; collections become lists and dicts of text (to be refused by the
+    caller where text is expected)."""
+    if isinstance(node, yaml.MappingNode):
+        return {str(k.value): _plain(v) for k, v in node.value}
+    if isinstance(node, yaml.SequenceNode):
+        return [_plain(item) for item in node.value]
+    return node.value
+
+
 def read_families(root: Path) -> tuple[Family, ...]:
-    data = _read_mapping(root / "families.yaml")
-    return tuple(Family(name, str(v.get("title", name)), str(v.get("about", "")))
-                 for name, v in data.items() if isinstance(v, dict))
+    data = read_vocabulary_file(root / "families.yaml").entries
+    return tuple(Family(name, v.get("title", name), v.get("about", ""))
+                 for name, v in data.items())
 
 
 def read_tags(root: Path) -> tuple[Tag, ...]:
-    data = _read_mapping(root / "tags.yaml")
-    return tuple(Tag(str(name), str(meaning)) for name, meaning in sorted(data.items()))
-
-
-def _read_mapping(path: Path) -> dict:
-    if not path.is_file():
-        return {}
-    try:
-        data = yaml.safe_load(path.read_text(encoding="utf-8"))
-    except yaml.YAMLError as exc:
-        raise UsageError(f"{path}: invalid YAML: {exc}") from exc
-    return data if isinstance(data, dict) else {}
+    data = read_vocabulary_file(root / "tags.yaml").entries
+    return tuple(Tag(name, meaning) for name, meaning in sorted(data.items()))
 
 
 def vocabulary(root: Path | None) -> Vocabulary:
@@ -78,11 +222,18 @@ def vocabulary(root: Path | None) -> Vocabulary:
 
 
 def display_path(path: Path, base: Path) -> str:
-    """The path as the contributor would type it (relative to the working folder if inside)."""
-    try:
-        return path.resolve().relative_to(base.resolve()).as_posix()
-    except ValueError:
-        return path.as_posix()
+    """The path as the contributor would type it (relative to the working folder if inside).
+
+    The last part is never resolved: a symbolic link is shown (and refused) as itself, not as
+    the file it points to."""
+    absolute = Path(os.path.abspath(path))
+    resolved = absolute.parent.resolve() / absolute.name
+    for candidate in (resolved, absolute):
+        try:
+            return candidate.relative_to(base.resolve()).as_posix()
+        except ValueError:
+            continue
+    return path.as_posix()
 
 
 def load_all(files: Iterable[Path], root: Path | None, base: Path) -> list[LoadResult]:
@@ -132,13 +283,10 @@ def peek_outline(path: Path, display: str) -> Outline | None:
     with its diagnostics, decides instead. Only the top-level ``id`` and ``related`` nodes
     are visited.
     """
-    try:
-        raw = path.read_bytes()
-        if len(raw) > MAX_FILE_BYTES:
-            return None
-        node, problems = read_nodes(display, raw.decode("utf-8"))
-    except (OSError, UnicodeDecodeError):
+    source, unreadable = read_catalog_file(path, display, MAX_FILE_BYTES)
+    if unreadable is not None:
         return None
+    node, problems = read_nodes(display, source)
     if problems or not isinstance(node, yaml.MappingNode):
         return None
     top = {key.value: value for key, value in node.value if isinstance(key, yaml.ScalarNode)}

@@ -12,9 +12,13 @@ tarball) there is simply no history.
 
 from __future__ import annotations
 
+import hashlib
+import hmac
 import json
+import os
 import re
 import subprocess
+import tempfile
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass
 from pathlib import Path
@@ -107,26 +111,40 @@ def _commits_touching(root: Path, relative: str) -> list[_Commit]:
 class BlobHashes:
     """Content hash per git blob: a blob's text never changes, so it is hashed only once.
 
-    With ``file`` (e.g. inside the computation cache folder) the table is kept between runs,
-    keyed also by the hash scheme and the generator version (a new loader may read a file
-    differently). Passed explicitly; there is no module-level cache.
+    With ``file`` (e.g. inside the computation cache folder) and ``secret`` the table is kept
+    between runs, keyed also by the hash scheme and the generator version (a new loader may
+    read a file differently). The file is signed with ``secret`` (HMAC-SHA256, the cache's
+    key) and every row is checked for shape when read: a planted or damaged table — a forged
+    revision hash, a value shaped like a path, a number — is ignored whole and recomputed.
+    Without a secret nothing is read or kept. Passed explicitly; no module-level cache.
     """
 
-    def __init__(self, hasher: Hasher = loader_hasher, file: Path | None = None) -> None:
+    def __init__(self, hasher: Hasher = loader_hasher, file: Path | None = None,
+                 secret: bytes | None = None) -> None:
         self.hasher = hasher
-        self.file = file
-        self.known: dict[str, str | None] = self._read(file)
+        self.file = file if secret else None
+        self.secret = secret or b""
+        self.known: dict[str, str | None] = self._read()
         self.changed = False
 
-    @staticmethod
-    def _read(file: Path | None) -> dict[str, str | None]:
-        if file is None or not file.is_file():
+    def _read(self) -> dict[str, str | None]:
+        if self.file is None or not self.file.is_file() or self.file.is_symlink():
             return {}
         try:
-            data = json.loads(file.read_text(encoding="utf-8"))
+            with self.file.open("rb") as handle:
+                data = json.loads(handle.read(MAX_HASH_TABLE_BYTES + 1).decode("utf-8"))
         except (OSError, ValueError):
             return {}  # a damaged cache is only a slower run
-        return data if isinstance(data, dict) else {}
+        if not isinstance(data, dict) or not isinstance(data.get("table"), dict):
+            return {}
+        table = data["table"]
+        if not hmac.compare_digest(str(data.get("signature", "")), self._sign(table)):
+            return {}
+        return table if all(_valid_row(k, v) for k, v in table.items()) else {}
+
+    def _sign(self, table: dict) -> str:
+        text = json.dumps(table, sort_keys=True, separators=(",", ":"))
+        return hmac.new(self.secret, text.encode("utf-8"), hashlib.sha256).hexdigest()
 
     def hash_of(self, root: Path, commit: _Commit) -> str | None:
         if not commit.blob:
@@ -142,10 +160,23 @@ class BlobHashes:
         if self.file is None or not self.changed:
             return
         self.file.parent.mkdir(parents=True, exist_ok=True)
-        text = json.dumps(self.known, sort_keys=True, indent=0)
-        temporary = self.file.with_suffix(".tmp")
-        temporary.write_text(text, encoding="utf-8")
-        temporary.replace(self.file)
+        text = json.dumps({"signature": self._sign(self.known), "table": self.known},
+                          sort_keys=True, indent=0)
+        fd, temporary = tempfile.mkstemp(dir=self.file.parent, prefix=".content-hashes-")
+        with os.fdopen(fd, "w", encoding="utf-8") as handle:
+            handle.write(text)
+        os.replace(temporary, self.file)
+
+
+MAX_HASH_TABLE_BYTES = 64 * 1024 * 1024
+_HASH = re.compile(r"[0-9a-f]{64}")
+_BLOB_KEY = re.compile(r"[\w.:-]{1,200}:[0-9a-f]{40,64}")
+
+
+def _valid_row(key: object, value: object) -> bool:
+    """A row as `hash_of` writes it: scheme:version:blob id -> 64 hex digits or null."""
+    return (isinstance(key, str) and _BLOB_KEY.fullmatch(key) is not None and
+            (value is None or (isinstance(value, str) and _HASH.fullmatch(value) is not None)))
 
 
 def revisions(
@@ -196,13 +227,15 @@ def catalog_revisions(
     catalog: Path,
     hasher: Hasher = loader_hasher,
     cache_file: Path | None = None,
+    secret: bytes | None = None,
 ) -> dict[str, tuple[Revision, ...]]:
     """Revisions of every entry under ``catalog``, keyed by entry id (for ``CatalogMeta``).
 
     ``cache_file`` (suggested: ``.almanac-cache/content-hashes.json``) keeps blob hashes
-    between builds, so a rebuild only hashes file versions it has not seen.
+    between builds, so a rebuild only hashes file versions it has not seen; it is signed with
+    ``secret`` (without one it is neither read nor written).
     """
-    hashes = BlobHashes(hasher, cache_file)
+    hashes = BlobHashes(hasher, cache_file, secret)
     found = {path.stem: revisions(repo, path, hasher, hashes) for path in entry_files(catalog)}
     hashes.save()
     return found
@@ -210,7 +243,8 @@ def catalog_revisions(
 
 def entry_files(catalog: Path) -> list[Path]:
     """Entry files: ``catalog/<family>/<id>.yaml`` (not catalog-level files like tags.yaml)."""
-    return sorted(catalog.glob("*/*.yaml"))
+    return sorted(p for p in catalog.glob("*/*.yaml")
+                  if not p.is_symlink() and not p.parent.is_symlink())
 
 
 # ---------------------------------------------------------------------------- changed entries

@@ -162,10 +162,9 @@ def render_schema(root: Path) -> str:
 
 def tag_vocabulary(path: Path) -> tuple[str, ...]:
     """Tag names from catalog/tags.yaml (a mapping tag -> meaning), in file order."""
-    if not path.exists():
-        return ()
-    data = yaml.safe_load(path.read_text(encoding="utf-8")) or {}
-    return tuple(str(name) for name in data)
+    from generator.entry.catalog import read_vocabulary_file
+
+    return tuple(read_vocabulary_file(path).entries)
 
 
 def write_schema(root: Path) -> Path:

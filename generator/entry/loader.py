@@ -7,6 +7,7 @@ positioned diagnostic; nothing here raises for bad input.
 
 from __future__ import annotations
 
+import keyword
 import re
 from collections.abc import Iterable
 from dataclasses import dataclass, field
@@ -18,6 +19,7 @@ import sympy
 from generator.entry import schema
 from generator.entry.mathparse import SymbolTable, parse_expression, parse_inequality, valid_name
 from generator.entry.prose import check_prose
+from generator.entry.safefile import read_catalog_file
 from generator.entry.yamlcheck import MAX_FILE_BYTES, validate
 from generator.errors import Diagnostic, MathSyntaxError, SourcePos
 from generator.model import (
@@ -85,7 +87,7 @@ def load_text(source: str, file: str, path: Path, vocabulary: Vocabulary,
     if not _has_required(data):
         return LoadResult(file, None, None, tuple(diagnostics))
     entry = _build_entry(data, file, path, validated.positions, source)
-    diagnostics += _check_entry(entry, path, vocabulary)
+    diagnostics += _without_follow_ons(_check_entry(entry, path, vocabulary), diagnostics)
     if not with_math or any(d.severity == "error" and d.code != TODO_CODE
                             for d in diagnostics):
         return LoadResult(file, entry, None, tuple(diagnostics))
@@ -94,6 +96,16 @@ def load_text(source: str, file: str, path: Path, vocabulary: Vocabulary,
     if spacetime is not None:
         diagnostics += check_prose(entry, spacetime)
     return LoadResult(file, entry, spacetime, tuple(diagnostics))
+
+
+def _without_follow_ons(found: Iterable[Diagnostic], earlier: list[Diagnostic]
+                        ) -> list[Diagnostic]:
+    """Drop a signature-length error when a coordinate was already refused (a 'θ' is left
+    out of the coordinates, so the signature seems one sign too long: a false error)."""
+    refused_coordinate = any(d.message.startswith("'coordinates.") for d in earlier)
+    return [d for d in found
+            if not (refused_coordinate and d.code == "entry.signature" and "signs but" in
+                    d.message)]
 
 
 TODO_CODE = "entry.todo"
@@ -125,20 +137,8 @@ def find_todos(file: str, source: str) -> list[Diagnostic]:
 
 
 def _read_source(path: Path, file: str) -> tuple[str, Diagnostic | None]:
-    try:
-        raw = path.read_bytes()
-    except OSError as exc:
-        return "", Diagnostic(file, 1, 1, "error", f"cannot read file: {exc.strerror}",
-                              "file.unreadable")
-    if len(raw) > MAX_FILE_BYTES:
-        return "", Diagnostic(file, 1, 1, "error",
-                              f"file is {len(raw)} bytes (limit {MAX_FILE_BYTES})", "file.size",
-                              "an entry is one spacetime; split notes or shorten expressions")
-    try:
-        return raw.decode("utf-8"), None
-    except UnicodeDecodeError as exc:
-        return "", Diagnostic(file, 1, exc.start + 1, "error", "file is not valid UTF-8",
-                              "file.encoding", "save the file as UTF-8")
+    """The entry's text: never through a symbolic link, at most MAX_FILE_BYTES (`safefile`)."""
+    return read_catalog_file(path, file, MAX_FILE_BYTES)
 
 
 def _has_required(data: dict[str, Any]) -> bool:
@@ -196,7 +196,7 @@ def _build_entry(data: dict[str, Any], file: str, path: Path,
             if "entry" in item
         ),
         abbreviations=tuple(data.get("abbreviations", {}).items()),
-        positions=dict(positions),
+        positions=_condition_positions(positions),
         source_text=source,
     )
 
@@ -219,6 +219,24 @@ def _build_matter(data: dict[str, Any], pos: SourcePos) -> Matter:
     )
 
 
+_CONDITION_NAMES = {key: name for name, key in schema.ENERGY_CONDITION_KEYS.items()}
+
+
+def _energy_conditions(data: dict[str, str]) -> tuple[tuple[str, str], ...]:
+    """(condition, state) pairs under the conditions' own names (null, weak, ...): the
+    entry's keys carry a suffix only so that YAML reads them as strings."""
+    return tuple(sorted((_CONDITION_NAMES.get(key, key), state) for key, state in data.items()))
+
+
+def _condition_positions(positions: dict[str, SourcePos]) -> dict[str, SourcePos]:
+    """Positions of ``claims.energy_conditions.null_condition`` also under ``...null``, the
+    name the physics stage reports a disagreement at."""
+    prefix = "claims.energy_conditions."
+    extra = {f"{prefix}{name}": positions[f"{prefix}{key}"]
+             for key, name in _CONDITION_NAMES.items() if f"{prefix}{key}" in positions}
+    return {**positions, **extra}
+
+
 def _build_claims(data: dict[str, Any], pos: Any) -> Claims:
     scalars = tuple(
         Claim(name, data[name]["value"], data[name].get("source"), data[name].get("locator"),
@@ -233,7 +251,7 @@ def _build_claims(data: dict[str, Any], pos: Any) -> Claims:
         petrov_type=petrov.get("value"),
         petrov_pos=pos("claims.petrov_type") if petrov else None,
         hawking_ellis_type=hawking_ellis.get("value"),
-        energy_conditions=tuple(sorted(data.get("energy_conditions", {}).items())),
+        energy_conditions=_energy_conditions(data.get("energy_conditions", {})),
         killing_vectors=tuple(
             VectorClaim(tuple(vector.items()), pos(f"claims.killing_vectors.{i}"))
             for i, vector in enumerate(data.get("killing_vectors", ()))
@@ -291,6 +309,13 @@ def _check_identity(entry: Entry, path: Path, vocabulary: Vocabulary) -> Iterabl
                      f"rename the file to {entry.id}.yaml or set id: {path.stem}")
 
 
+def _reserved_hint(name: str) -> str:
+    if keyword.iskeyword(name):
+        return (f"'{name}' is a keyword the math grammar keeps out; call it e.g. '{name}_' or "
+                f"'{name[:3]}' (the page can still show the Greek letter)")
+    return "it is a reserved word of the math grammar (a function or constant)"
+
+
 def _check_names(entry: Entry, path: Path, vocabulary: Vocabulary) -> Iterable[Diagnostic]:
     seen: dict[str, str] = {}
     declared = [(c, "coordinates", entry.pos("coordinates")) for c in entry.coordinates]
@@ -299,7 +324,7 @@ def _check_names(entry: Entry, path: Path, vocabulary: Vocabulary) -> Iterable[D
     for name, where, pos in declared:
         if not valid_name(name):
             yield _error(pos, f"'{name}' cannot be used as a name in {where}", "entry.name",
-                         "it is a reserved word of the math grammar (a function or constant)")
+                         _reserved_hint(name))
         elif name in seen:
             yield _error(pos, f"'{name}' is declared twice (in {seen[name]} and {where})",
                          "entry.name", "give each coordinate, parameter and function its own name")
@@ -356,8 +381,9 @@ def _check_references(entry: Entry, path: Path, vocabulary: Vocabulary) -> Itera
 def _check_claim_sources(entry: Entry, path: Path, vocabulary: Vocabulary
                          ) -> Iterable[Diagnostic]:
     roles = {r.role for r in entry.references} | {schema.COMPUTED_HERE}
-    sources = [(c.source, c.pos) for c in entry.claims.scalars]
-    sources += [(s, entry.pos(f"claims.{n}")) for n, s, _ in entry.claims.label_sources]
+    # At the `source:` line itself (entry.pos falls back to the claim for the short form).
+    sources = [(c.source, entry.pos(f"claims.{c.name}.source")) for c in entry.claims.scalars]
+    sources += [(s, entry.pos(f"claims.{n}.source")) for n, s, _ in entry.claims.label_sources]
     for source, pos in sources:
         if source is not None and source not in roles:
             yield _error(pos, f"claim source '{source}' is not the role of any reference",

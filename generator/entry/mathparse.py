@@ -11,7 +11,9 @@ offending character. Size limits stop inputs such as ``9**9**9`` before SymPy ev
 
 from __future__ import annotations
 
+import keyword
 import re
+import unicodedata
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from fractions import Fraction
@@ -28,6 +30,7 @@ MAX_EXPONENT = 100  # numerator and denominator bound of a numeric exponent
 MAX_POWER_BITS = 4096  # bound on the size of a number raised to a number
 MAX_DERIVATIVE_ORDER = 4
 MAX_DEGREE = 200  # bound on the polynomial degree an expression can expand to
+MAX_TERMS = 5_000  # bound on the number of terms an expression can expand to (`term_bound`)
 
 KNOWN_FUNCTIONS: dict[str, Callable[..., sympy.Expr]] = {
     "sin": sympy.sin,
@@ -133,7 +136,8 @@ class SymbolTable:
 
 def valid_name(name: str) -> bool:
     """A declarable name: an identifier that does not shadow the grammar's own words."""
-    return bool(_NAME.match(name)) and name not in RESERVED and not name.startswith("__")
+    return (bool(_NAME.match(name)) and name not in RESERVED and not name.startswith("__")
+            and not keyword.iskeyword(name))
 
 
 def tokenize(text: str, prose: bool = False) -> list[Token]:
@@ -153,6 +157,9 @@ def tokenize(text: str, prose: bool = False) -> list[Token]:
 
 def _explain_bad_character(text: str, offset: int) -> tuple[str, int, str]:
     char = text[offset]
+    special = _notation_hint(text, offset)
+    if special:
+        return f"unexpected character {char!r}", offset, special
     hints = {
         "^": "write powers with ** (e.g. r**2)",
         ".": "attribute access is not part of the math grammar",
@@ -167,6 +174,49 @@ def _explain_bad_character(text: str, offset: int) -> tuple[str, int, str]:
         offset,
         hints.get(char, "allowed: numbers, declared names, + - * / ** ( ) and known functions"),
     )
+
+
+_SUPERSCRIPTS = {"²": "2", "³": "3", "⁴": "4", "¹": "1", "⁻": "-"}
+
+
+def spelled_out(char: str) -> str | None:
+    """'theta' for 'θ', 'Phi' for 'Φ' (Greek letters are written out in the grammar)."""
+    try:
+        name = unicodedata.name(char)
+    except ValueError:
+        return None
+    for prefix, case in (("GREEK SMALL LETTER ", str.lower), ("GREEK CAPITAL LETTER ",
+                                                              str.capitalize)):
+        if name.startswith(prefix):
+            word = name.removeprefix(prefix).split()[0]
+            return case(word.replace("LAMDA", "LAMBDA"))
+    return None
+
+
+def _notation_hint(text: str, offset: int) -> str:
+    """A fix for notation from papers and other systems: TeX, superscripts, Greek letters,
+    square brackets after a function name ('' when none applies)."""
+    char = text[offset]
+    if char == "\\":
+        word = re.match(r"[A-Za-z]+", text[offset + 1:])
+        name = word.group() if word else ""
+        example = f"{name}(theta)" if name in KNOWN_FUNCTIONS else (name or "theta")
+        return (f"TeX is not part of the math grammar: write {example}, with powers as **, "
+                f"e.g. sin(theta)**2 for \\sin^2\\theta")
+    if char in _SUPERSCRIPTS:
+        return f"write powers with **: sin(theta)**{_SUPERSCRIPTS[char]} for sin{char}θ"
+    greek = spelled_out(char)
+    if greek:
+        return f"write Greek letters out: {greek} for {char}"
+    if char == "[":
+        before = re.search(r"([A-Za-z_]\w*)\s*$", text[:offset])
+        if before:
+            inside = re.match(r"[^\]]*", text[offset + 1:])
+            arg = inside.group() if inside else "x"
+            name = before.group(1)
+            fixed = name.lower() if name.lower() in KNOWN_FUNCTIONS else name
+            return f"write {fixed}({arg}): functions take round parentheses"
+    return ""
 
 
 class _Parser:
@@ -199,8 +249,19 @@ class _Parser:
     def expect(self, text: str) -> Token:
         if self.current.text != text:
             found = self.current.text or "end of text"
-            raise MathSyntaxError(f"expected {text!r}, found {found!r}", self.current.offset)
+            raise MathSyntaxError(f"expected {text!r}, found {found!r}", self.current.offset,
+                                  self.product_hint())
         return self.advance()
+
+    def product_hint(self) -> str:
+        """'insert '*' before 'dphi'' when a value follows a value: a product written by
+        juxtaposition ('sin(theta)**2 dphi**2'), as on paper."""
+        token = self.tokens[self.index]
+        if token.kind in ("name", "number") or token.text == "(":
+            before = self.text[:token.offset].rstrip()[-12:]
+            return (f"insert '*' between '{before}' and '{token.text}': products need an "
+                    f"explicit *")
+        return ""
 
     def enter(self) -> None:
         self.depth += 1
@@ -218,7 +279,8 @@ class _Parser:
             raise MathSyntaxError(
                 f"unexpected {self.current.text!r} after a complete expression",
                 self.current.offset,
-                "a missing operator? products need an explicit * (e.g. 2*M)",
+                self.product_hint() or "a missing operator? products need an explicit * "
+                "(e.g. 2*M)",
             )
         return result
 
@@ -346,7 +408,8 @@ class _Parser:
             return self.table.symbols[name]
         if name in self.table.differentials:
             return self.table.differentials[name]
-        raise MathSyntaxError(f"unknown name {name!r}", token.offset, _unknown_name_hint(name))
+        raise MathSyntaxError(f"unknown name {name!r}", token.offset,
+                              _unknown_name_hint(name, self.text[token.offset + len(name):]))
 
     def arguments(self) -> list[sympy.Expr]:
         self.expect("(")
@@ -444,7 +507,13 @@ def _check_power(base: sympy.Expr, exponent: sympy.Expr, offset: int) -> None:
                 raise MathSyntaxError("number too large", offset)
 
 
-def _unknown_name_hint(name: str) -> str:
+def _unknown_name_hint(name: str, after: str = "") -> str:
+    """How to fix an unknown name; ``after`` is the text that follows it (for 'Sin[theta]')."""
+    if name.lower() in KNOWN_FUNCTIONS and name not in KNOWN_FUNCTIONS:
+        bracket = re.match(r"\s*[\[(]([^\])]*)[\])]", after)
+        argument = bracket.group(1) if bracket else "..."
+        return (f"write {name.lower()}({argument}): function names are lower case, with "
+                f"round brackets")
     if name.startswith("d") and len(name) > 1:
         return (
             "declare it under 'parameters', 'coordinates' or 'functions'; coordinate "
@@ -484,12 +553,76 @@ def degree_bound(expr: sympy.Basic) -> int:
     return bound(expr)
 
 
+_TERM_CAP = 10**12  # counts stop growing here: enough to say "far too many"
+
+
+def term_bound(expr: sympy.Basic) -> int:
+    """An upper bound of the number of terms of the largest sum that expanding ``expr`` (as
+    ``sympy.expand`` does, inside function arguments and denominators too) can build.
+
+    The degree alone misses the number of variables: ``(M+a+b+c+d+e+f+g)**40`` has degree 40
+    but C(47, 7) ≈ 6.3e7 terms, which took minutes and gigabytes to expand. A sum of ``t``
+    terms raised to ``n`` has at most C(n+t-1, t-1) monomials; products multiply counts; sums
+    add them. A power that stays a denominator, a root or a function argument is one term to
+    its parent, but its own expansion counts towards the largest. Capped at 10**12.
+    """
+    memo: dict[sympy.Basic, int] = {}
+    largest = [1]
+
+    def terms(node: sympy.Basic) -> int:
+        if node in memo:
+            return memo[node]
+        if node.is_Atom:
+            value = 1
+        elif node.is_Add:
+            value = sum(terms(arg) for arg in node.args)
+        elif node.is_Mul:
+            value = 1
+            for arg in node.args:
+                value = min(value * terms(arg), _TERM_CAP)
+        elif node.is_Pow and node.exp.is_Integer:
+            expanded = _multinomial_terms(terms(node.base), abs(int(node.exp)))
+            largest[0] = max(largest[0], expanded)
+            value = expanded if node.exp > 0 else 1
+        else:  # a function, a root, a non-integer power: its arguments expand on their own
+            for arg in node.args:
+                largest[0] = max(largest[0], terms(arg))
+            value = 1
+        memo[node] = value = min(value, _TERM_CAP)
+        return value
+
+    whole = terms(expr)  # first: it records the largest inner expansion on the way
+    return max(largest[0], whole)
+
+
+def _multinomial_terms(count: int, power: int) -> int:
+    """C(power + count - 1, count - 1), the monomials of a ``count``-term sum to ``power``,
+    computed with a cap so that a huge power costs nothing."""
+    if count <= 1 or power <= 1:
+        return count if power == 1 else 1
+    k = min(power, count - 1)
+    top = power + count - 1
+    value = 1
+    for i in range(1, k + 1):
+        value = value * (top - k + i) // i
+        if value >= _TERM_CAP:
+            return _TERM_CAP
+    return value
+
+
 def _check_degree(expr: sympy.Basic) -> sympy.Basic:
     degree = degree_bound(expr)
     if degree > MAX_DEGREE:
         raise MathSyntaxError(
             f"expression expands to polynomial degree up to {degree} (limit {MAX_DEGREE})", 0,
             "nested powers multiply degrees; simplify the expression by hand")
+    count = term_bound(expr)
+    if count > MAX_TERMS:
+        shown = f"{count:,}" if count < _TERM_CAP else f"more than {_TERM_CAP:,}"
+        raise MathSyntaxError(
+            f"expression expands to {shown} terms (limit {MAX_TERMS:,})", 0,
+            "a power of a long sum has a vast number of terms once multiplied out; "
+            "write it with fewer terms or as a named parameter")
     return expr
 
 

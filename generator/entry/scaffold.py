@@ -27,12 +27,16 @@ from typing import TextIO
 import sympy
 import yaml
 
+from generator.argv import join_dash_values
 from generator.entry.loader import TODO_CODE
 from generator.entry.mathparse import SymbolTable, parse_expression, parse_inequality, valid_name
 from generator.entry.schema import ASSUMPTIONS, ID_PATTERN, MATTER_KINDS, SIGNATURE_PATTERN
 from generator.errors import Diagnostic, MathSyntaxError
 
 SCHEMA_LINE = "# yaml-language-server: $schema=../../schema/entry.schema.json"
+# The scaffold's note to its author is itself a TODO marker, so it cannot reach a commit:
+# ``check`` refuses the entry until the note is deleted (comments never enter the content hash).
+SCAFFOLD_NOTE_MARKER = "TODO: delete these four lines of notes once the entry is complete"
 
 Ask = Callable[[str], str]
 
@@ -117,6 +121,7 @@ def render(draft: Draft) -> str:
 def _header() -> str:
     return (
         f"{SCHEMA_LINE}\n"
+        f"# {SCAFFOLD_NOTE_MARKER}\n"
         "# Started with `python -m generator new`. The placeholders below carry a to-do marker;\n"
         "# `python -m generator check` reports each marker as an error until you replace the\n"
         "# placeholder with the real value and delete the marker.\n"
@@ -217,7 +222,8 @@ def _reference_block(r: ReferenceSpec) -> str:
 
 def _curation_block(d: Draft) -> str:
     by = d.by or "TODO: your name"
-    return f"curation:\n  added: {d.added or _today()}\n  by: {_value(by)}\n"
+    # Quoted: a YAML 1.1 reader (PyYAML, many editors) makes a bare 2026-12-02 a date object.
+    return f'curation:\n  added: "{d.added or _today()}"\n  by: {_value(by)}\n'
 
 
 def _today() -> str:
@@ -312,8 +318,9 @@ def families(catalog: Path) -> tuple[str, ...]:
     """Family folder names from catalog/families.yaml (or the existing folders without it)."""
     listing = catalog / "families.yaml"
     if listing.exists():
-        data = yaml.safe_load(listing.read_text(encoding="utf-8")) or {}
-        return tuple(str(name) for name in data)
+        from generator.entry.catalog import read_vocabulary_file
+
+        return tuple(read_vocabulary_file(listing).entries)
     return tuple(sorted(p.name for p in catalog.iterdir() if p.is_dir()))
 
 
@@ -416,7 +423,8 @@ def new_main(argv: list[str], ask: Ask | None = None, out: TextIO | None = None)
     """
     out = out or sys.stdout
     try:
-        args = _parser().parse_args(argv)
+        parser = _parser()
+        args = parser.parse_args(join_dash_values(argv, parser))
     except SystemExit as exc:  # argparse has printed the usage error
         return 2 if exc.code else 0
     catalog = Path(args.catalog)
@@ -482,7 +490,7 @@ class _Abort(Exception):
 
 def _parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(
-        prog="python -m generator new",
+        prog="almanac new",
         description="Start a new catalog entry that passes the schema, with TODO markers for "
         "what is still to fill in. Missing answers are asked for with --interactive.",
     )

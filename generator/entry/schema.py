@@ -41,9 +41,14 @@ class Field:
     item: Field | None = None
     key_pattern: str | None = None
     min_items: int = 0
+    old_name: str | None = None  # the key's former name, still read (with a warning) for a release
 
     def field(self, name: str) -> Field | None:
         return next((f for f in self.fields if f.name == name), None)
+
+    def renamed(self, old: str) -> Field | None:
+        """The field that used to be called ``old`` (None if no field was)."""
+        return next((f for f in self.fields if f.old_name == old), None)
 
 
 ID_PATTERN = r"^[a-z0-9]+(-[a-z0-9]+)*$"
@@ -69,6 +74,9 @@ PETROV_TYPES = ("I", "II", "III", "D", "N", "O")
 HAWKING_ELLIS_TYPES = ("I", "II", "III", "IV")
 CONDITION_STATES = ("holds", "violated", "undecided")
 ENERGY_CONDITIONS = ("null", "weak", "strong", "dominant")
+# Their keys in an entry. A bare `null:` key is YAML's null, not a string, for every standard
+# YAML parser (and so for editors validating against the JSON Schema): keys are suffixed.
+ENERGY_CONDITION_KEYS = {name: f"{name}_condition" for name in ENERGY_CONDITIONS}
 REFERENCE_ROLES = ("original", "independent", "claims", "textbook", "review", "erratum")
 REFERENCE_FIELDS = ("authors", "title", "venue", "year", "doi", "arxiv", "isbn", "locator")
 SCALAR_CLAIMS = ("ricci_scalar", "kretschmann", "ricci_squared", "weyl_squared")
@@ -216,11 +224,13 @@ CLAIMS = Field(
         ),
         Field(
             "energy_conditions",
-            "Each of null, weak, strong, dominant: holds, violated or undecided.",
+            "Each of null_condition, weak_condition, strong_condition, dominant_condition: "
+            "holds, violated or undecided.",
             "record",
             fields=tuple(
-                Field(name, f"The {name} energy condition.", "choice", choices=CONDITION_STATES)
-                for name in ENERGY_CONDITIONS
+                Field(key, f"The {name} energy condition.", "choice", choices=CONDITION_STATES,
+                      old_name=name)
+                for name, key in ENERGY_CONDITION_KEYS.items()
             ),
         ),
         Field(

@@ -58,6 +58,10 @@ class _Checker:
     def error(self, node: yaml.Node, message: str, code: str, hint: str = "") -> None:
         self.out.diagnostics.append(Diagnostic.at(self.pos(node), "error", message, code, hint))
 
+    def warn(self, node: yaml.Node, message: str, code: str, hint: str = "") -> None:
+        self.out.diagnostics.append(Diagnostic.at(self.pos(node), "warning", message, code,
+                                                  hint))
+
     # -- dispatch
     def check(self, node: yaml.Node, spec: Field, path: str) -> Any:
         self.out.positions[path] = self.pos(node)
@@ -83,7 +87,7 @@ class _Checker:
             return None
         if spec.pattern and not re.match(spec.pattern, value):
             self.error(node, f"'{path}' has an invalid value {value!r}", "entry.format",
-                       _pattern_hint(spec))
+                       _greek_hint(value) or _pattern_hint(spec))
             return None
         return value
 
@@ -180,6 +184,17 @@ class _Checker:
         prefix = f"{path}." if path else ""
         for key, value in pairs:
             child = spec.field(key.value)
+            if child is None and spec.renamed(key.value) is not None:
+                child = spec.renamed(key.value)
+                assert child is not None
+                self.warn(key, f"'{prefix}{key.value}' is now '{prefix}{child.name}'",
+                          "entry.renamed-key",
+                          f"rename the key to {child.name}: standard YAML tools read "
+                          f"'{key.value}:' differently; the old name is read until the next "
+                          f"release")
+                if any(k.value == child.name for k, _ in pairs):
+                    continue  # both names given: the new one wins
+                key = _renamed_key(key, child.name)
             if child is None:
                 known = [f.name for f in spec.fields]
                 self.error(key, f"unknown key '{prefix}{key.value}'", "entry.unknown-key",
@@ -240,6 +255,22 @@ def _shape(node: yaml.Node) -> str:
     if isinstance(node, yaml.SequenceNode):
         return "list"
     return "single value"
+
+
+def _renamed_key(key: yaml.Node, name: str) -> yaml.ScalarNode:
+    """The key node under its new name, at the old one's position."""
+    return yaml.ScalarNode("tag:yaml.org,2002:str", name, key.start_mark, key.end_mark)
+
+
+def _greek_hint(value: str) -> str:
+    """'write theta for θ' when a name is a Greek letter (names are written out in ASCII)."""
+    from generator.entry.mathparse import spelled_out
+
+    words = [(char, spelled_out(char)) for char in value if not char.isascii()]
+    if words and all(word for _, word in words):
+        fixed = "".join(spelled_out(c) or c for c in value)
+        return f"write Greek letters out in names: {fixed} for {value}"
+    return ""
 
 
 def _pattern_hint(spec: Field) -> str:

@@ -499,13 +499,65 @@ def check_source(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     failing, undecided = failing_components(residual, spacetime, template,
                                             symmetric=not built.mixed)
     diagnostics = list(built.side_problems)
-    if failing or undecided:
+    wrong_fields = field_diagnostics(entry, spacetime, geometry, Lambda, built,
+                                     residual_message(kind, failing, undecided)) \
+        if failing or undecided else []
+    diagnostics += wrong_fields
+    if (failing or undecided) and not wrong_fields:
         diagnostics.append(Diagnostic.at(
             entry.pos("matter.kind"), "error", residual_message(kind, failing, undecided),
             "matter.field-equations",
             "check the density, pressure and vector fields (and their index positions) "
             "against the reference"))
     return built, diagnostics
+
+
+def field_diagnostics(entry: Entry, spacetime: Spacetime, geometry: Geometry,
+                      Lambda: sympy.Expr | None, built: Built, residual: str
+                      ) -> list[Diagnostic]:
+    """An error at each declared density or pressure line that differs from the value the
+    field equations imply, with that value.
+
+    For a perfect fluid with the declared u^a, T_ab = (G_ab + Λ g_ab)/8π gives
+    ρ = T_ab u^a u^b and, from the trace T = −ρ + (n − 1) p, p = (T + ρ)/(n − 1) (common
+    practice); for an anisotropic fluid, ρ = −T^t_t and p_i = T^i_i. Other sources (and a
+    wrong velocity) are left to the component-by-component message at ``matter.kind``."""
+    source, m = built.source, entry.matter
+    lam = Lambda if Lambda is not None else sympy.Integer(0)
+    expected: list[tuple[str, sympy.Expr | None, sympy.Expr]] = []
+    if source.kind == "perfect-fluid" and source.vector is not None:
+        stress = (geometry.einstein + lam * geometry.metric) / EIGHT_PI
+        u, n = source.vector, geometry.dimension
+        rho = sum((stress[a, b] * u[a] * u[b] for a in range(n) for b in range(n)),
+                  sympy.Integer(0))
+        trace = sum((geometry.inverse_metric[a, b] * stress[a, b]
+                     for a in range(n) for b in range(n)), sympy.Integer(0))
+        expected = [("matter.density", source.density, rho),
+                    ("matter.pressure", (source.pressures or (None,))[0],
+                     (trace + rho) / (n - 1))]
+    elif source.kind == "anisotropic-fluid" and source.pressures is not None:
+        mixed = (geometry.einstein_mixed + lam * sympy.eye(geometry.dimension)) / EIGHT_PI
+        names = coordinate_names(spacetime)
+        listed = dict(m.principal_pressures)
+        time = next(a for a, name in enumerate(names) if name not in listed)
+        spatial = [a for a in range(len(names)) if a != time]
+        expected = [("matter.density", source.density, -mixed[time, time])]
+        expected += [(f"matter.principal_pressures.{names[a]}", declared, mixed[a, a])
+                     for a, declared in zip(spatial, source.pressures, strict=True)]
+    out = []
+    for key, declared, value in expected:
+        if declared is None or vanishes(declared - value, spacetime).equal is not False:
+            continue
+        shown = canonical_all([value], spacetime)[0]
+        label = key.removeprefix("matter.")
+        given = "velocity" if source.kind == "perfect-fluid" else "source"
+        out.append(Diagnostic.at(
+            entry.pos(key), "error",
+            f"{residual}; with the declared {given} the field equations give {label} = "
+            f"{shown}", "matter.field-equations",
+            f"write {label.rpartition('.')[2]}: {shown}, or check the metric and the "
+            f"reference's conventions"))
+    return out
 
 
 # ---------------------------------------------------------------------------- the stage

@@ -165,11 +165,15 @@ def search_twins(new: Sequence[EntryReport], catalog: Sequence[EntryReport],
 
     out: dict[str, list[tuple[str, str]]] = {}
     for report in (r for r in new if _comparable(r)):
-        pairs = [
-            (other.entry.id, reason)  # type: ignore[union-attr]
-            for other in catalog
+        candidates = [
+            other for other in catalog
             if other is not report and _comparable(other)
             and not _same_group(report.entry.id, other.entry.id, groups)  # type: ignore
+            and not profile(report).exact.differences(profile(other).exact)
+        ]
+        pairs = [
+            (other.entry.id, reason)  # type: ignore[union-attr]
+            for other in group_representatives(candidates, groups)
             for reason in [_twin_reason(profile(report), profile(other))]
             if reason
         ]
@@ -178,6 +182,33 @@ def search_twins(new: Sequence[EntryReport], catalog: Sequence[EntryReport],
     ranks = {p.report.entry.id: p.computed_rank for p in profiles.values()  # type: ignore
              if p.computed_rank is not None}
     return TwinSearch(out, ranks)
+
+
+def group_representatives(reports: Sequence[EntryReport],
+                          groups: Mapping[str, str]) -> list[EntryReport]:
+    """One entry per group of charts joined by ``related`` maps, the cheapest to evaluate.
+
+    Charts joined by verified maps are one spacetime, so their invariants take the same
+    values: matching the new entry against one of them answers for all, and the cheapest
+    (shortest invariants, no Lambert W, which mpmath evaluates slowly) keeps the search
+    quick enough to run on every changed entry in CI. Order of first appearance is kept."""
+    chosen: dict[str, EntryReport] = {}
+    for report in reports:
+        assert report.entry is not None
+        group = groups.get(report.entry.id, report.entry.id)
+        if group not in chosen or _evaluation_cost(report) < _evaluation_cost(chosen[group]):
+            chosen[group] = report
+    return list(chosen.values())
+
+
+def _evaluation_cost(report: EntryReport) -> tuple[int, int, str]:
+    """(uses Lambert W, length of the base invariants, id): smaller is cheaper; the id breaks
+    ties so the choice is deterministic."""
+    geometry = report.geometry
+    assert geometry is not None and report.entry is not None
+    exprs = [e for e in (getattr(geometry, name) for name in BASE_INVARIANTS) if e is not None]
+    lambert = any(e.has(sympy.LambertW) for e in exprs)
+    return (int(lambert), sum(len(str(e)) for e in exprs), report.entry.id)
 
 
 # ---------------------------------------------------------------------------- cards

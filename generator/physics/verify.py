@@ -16,7 +16,7 @@ from fractions import Fraction
 import mpmath
 import sympy
 
-from generator.entry.loader import LoadResult, parse_at, symbol_table
+from generator.entry.loader import TODO_CODE, LoadResult, parse_at, symbol_table
 from generator.errors import BudgetExceeded, Diagnostic
 from generator.geometry.curvature import (
     DegenerateMetric,
@@ -43,11 +43,12 @@ def check_loaded(
     started = time.perf_counter()
     entry, spacetime = load.entry, load.spacetime
     diagnostics = list(load.diagnostics)
-    if entry is None or spacetime is None or not load.ok:
+    if entry is None or spacetime is None or not _computable(load):
         return EntryReport(entry, load.file, spacetime, None, None, (), tuple(diagnostics),
                            _hash(entry))
-    diagnostics += check_signature(entry, spacetime)
-    if any(d.severity == "error" for d in diagnostics):
+    signature_problems = check_signature(entry, spacetime)
+    diagnostics += signature_problems
+    if any(d.severity == "error" for d in signature_problems):
         return EntryReport(entry, load.file, spacetime, None, None, (), tuple(diagnostics),
                            _hash(entry))
     try:
@@ -70,6 +71,8 @@ def check_loaded(
         verdicts += label_verdicts(entry, classification, problems)
     except BudgetExceeded as exc:
         diagnostics.append(_budget_diagnostic(entry, exc))
+    if classification is not None and not compared_anything(verdicts):
+        diagnostics.append(_nothing_claimed(entry))
     return EntryReport(entry, load.file, spacetime, geometry, classification,
                        with_published_sources(entry, verdicts), tuple(diagnostics), _hash(entry),
                        time.perf_counter() - started)
@@ -79,6 +82,42 @@ def with_published_sources(entry: Entry, verdicts: Sequence[Verdict]) -> tuple[V
     """Each verdict with the reference that prints its claimed value (if the entry names one),
     so that "agrees with the literature" is decided in one place from the entry itself."""
     return tuple(replace(v, source=entry.published_source(v.subject)) for v in verdicts)
+
+
+NOTHING_CLAIMED = "entry.nothing-claimed"
+
+
+def compared_anything(verdicts: list[Verdict] | tuple[Verdict, ...]) -> bool:
+    """Whether some claim was compared with the computation. A matter kind 'unspecified'
+    compares nothing (every geometry satisfies it), so an entry with no claims, no related
+    maps and unspecified matter has nothing to be verified against."""
+    return any(not (v.subject == "matter.kind" and v.claimed == "unspecified")
+               for v in verdicts)
+
+
+def _nothing_claimed(entry: Entry) -> Diagnostic:
+    return Diagnostic.at(entry.pos("claims"), "warning",
+                         "nothing is claimed, so nothing was verified: the tool's values "
+                         "are its own, compared with no source", NOTHING_CLAIMED,
+                         "add claims from the references (DEVELOPERS.md, step 3), or the "
+                         "matter that supports the geometry")
+
+
+def entry_state(report: EntryReport) -> str:
+    """'verified', 'nothing-claimed' (loads and computes, but no claim was compared) or
+    'failed': an entry with nothing claimed is never counted as verified."""
+    if not report.ok:
+        return "failed"
+    if any(d.code == NOTHING_CLAIMED for d in report.diagnostics):
+        return "nothing-claimed"
+    return "verified"
+
+
+def _computable(load: LoadResult) -> bool:
+    """Compute whenever the metric, coordinates and parameters are complete: TODO markers
+    left in a scaffold (a title, a reference) are reported beside the computed values, so a
+    contributor can read what the tool computes before writing any claim."""
+    return all(d.code == TODO_CODE for d in load.diagnostics if d.severity == "error")
 
 
 def _hash(entry: Entry | None) -> str:
@@ -116,9 +155,9 @@ def check_signature(entry: Entry, spacetime: Spacetime) -> list[Diagnostic]:
         return [Diagnostic.at(entry.pos("domain"), "error", "no sample point satisfies the "
                               "domain and the parameter assumptions", "domain.empty",
                               "check the inequalities under 'domain' for contradictions")]
-    expected = sorted(entry.signature if spacetime.sign == 1 else _flip(entry.signature))
     angles = angle_coordinates(spacetime)
-    metric = spacetime.metric.applyfunc(lambda v: through_sin_cos(v, angles))
+    # The entry's own metric (a "+---" entry is stored flipped): signs are reported as written.
+    metric = (spacetime.metric * spacetime.sign).applyfunc(lambda v: through_sin_cos(v, angles))
     for point in points:
         signs = _inertia(metric, point)
         where = _describe(point)
@@ -126,13 +165,44 @@ def check_signature(entry: Entry, spacetime: Spacetime) -> list[Diagnostic]:
             return [Diagnostic.at(entry.pos("metric"), "error", f"the metric is degenerate "
                                   f"(det g = 0) at {where}", "metric.degenerate",
                                   "check the metric components, or narrow the domain")]
-        if sorted(signs) != expected:
-            return [Diagnostic.at(entry.pos("signature"), "error", f"declared signature "
-                                  f"'{entry.signature}' but the metric has signs "
-                                  f"'{''.join(sorted(signs))}' at {where}",
+        message = signature_mismatch(entry, metric, point, signs)
+        if message:
+            return [Diagnostic.at(entry.pos("signature"), "error", f"{message} at {where}",
                                   "metric.signature", "check signs of the components, or the "
                                   "domain (e.g. inside a horizon t and r swap roles)")]
     return []
+
+
+def signature_mismatch(entry: Entry, metric: sympy.ImmutableMatrix,
+                       point: dict[sympy.Basic, sympy.Expr], signs: list[str]) -> str:
+    """Why the declared signature disagrees with the metric at ``point`` ('' if it agrees).
+
+    Where the metric is diagonal at the point, the declared signature is read per coordinate
+    ("+-++" for a metric whose g_tt is negative is wrong even though it has one minus sign);
+    otherwise only the numbers of signs can be compared. Both orders are shown: the signs by
+    coordinate as declared and as found, and the sorted counts."""
+    declared = entry.signature
+    values = metric.xreplace(point)
+    n = values.shape[0]
+    diagonal = all(values[i, j] == 0 for i in range(n) for j in range(n) if i != j)
+    if diagonal:
+        found = "".join(_inertia(sympy.ImmutableMatrix([[values[i, i]]]), {})[0]  # type: ignore
+                        for i in range(n))
+        if found != declared:
+            order = ", ".join(entry.coordinates)
+            return (f"declared signature '{declared}' but the metric's diagonal has signs "
+                    f"'{found}' in coordinate order ({order}); sorted: '{_sorted(declared)}' "
+                    f"declared, '{_sorted(found)}' found")
+        return ""
+    if _sorted(declared) != _sorted("".join(signs)):
+        return (f"declared signature '{declared}' (sorted '{_sorted(declared)}') but the "
+                f"metric's eigenvalues have signs '{_sorted(''.join(signs))}' (sorted; the "
+                f"metric is not diagonal here, so signs have no coordinate order)")
+    return ""
+
+
+def _sorted(signs: str) -> str:
+    return "".join(sorted(signs))
 
 
 def _flip(signature: str) -> str:
@@ -235,7 +305,8 @@ def check_scalar_claims(entry: Entry, spacetime: Spacetime, geometry: Geometry
             continue
         decision = decide_equal(claimed, computed, spacetime)
         verdicts.append(Verdict(subject, decision.equal is True, decision.method,
-                                decision.detail, claim.value.text, str(computed)))
+                                decision.detail, claim.value.text, str(computed),
+                                witness=decision.witness if decision.equal is False else None))
         if decision.equal is not True:
             diagnostics.append(_verdict_diagnostic(entry, verdicts[-1], decision.equal is None))
     return verdicts, diagnostics
@@ -249,8 +320,17 @@ def _verdict_diagnostic(entry: Entry, verdict: Verdict, undecided: bool) -> Diag
                              f"claimed {label} could not be verified: {verdict.detail}",
                              f"claim.{name}", f"computed: {verdict.computed}")
     return Diagnostic.at(entry.pos(verdict.subject), "error",
-                         f"claimed {label} does not match the computed value ({verdict.detail})",
+                         f"claimed {label} does not match the computed value "
+                         f"({verdict.detail}){witness_text(verdict.witness)}",
                          f"claim.{name}", f"computed: {verdict.computed}")
+
+
+def witness_text(witness: dict[str, str] | None) -> str:
+    """'; differs at r = 7/2, M = 1/3' — the point where claim and computation part, so a
+    contributor can evaluate both by hand there (empty when no witness was found)."""
+    if not witness:
+        return ""
+    return "; differs at " + ", ".join(f"{name} = {value}" for name, value in witness.items())
 
 
 # ---------------------------------------------------------------------------- label claims

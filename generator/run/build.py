@@ -48,6 +48,7 @@ def build_site(catalog: Path, out: Path, options: RunOptions,
     if require_address and read_publication(catalog).site_address is None:
         raise UsageError(f"{catalog} names no site address; {HOW_TO_SET}")
     base = Path.cwd()
+    check_output_folder(out, catalog, base)
     reports = check_files(entry_files([catalog]), catalog.resolve(), base, options,
                           on_done, on_running)
     refused = tuple(r.file for r in reports if not r.ok)
@@ -62,6 +63,39 @@ def build_site(catalog: Path, out: Path, options: RunOptions,
         prune_unused(options.cache_dir, reports, views)
     print(f"site written to {out}/ ({len(reports) - len(refused)} entries)", file=sys.stderr)
     return BuildResult(not refused, tuple(reports), refused)
+
+
+SITE_MARKER = ".metric-almanac-site"
+_MARKER_TEXT = ("This folder was written by the Metric Almanac build. The next build replaces it "
+                "whole:\nkeep nothing else here.\n")
+
+
+def check_output_folder(out: Path, catalog: Path, base: Path) -> None:
+    """Refuse an output folder the build's swap would destroy data with.
+
+    The build replaces ``out`` whole (render aside, swap in, delete the old one), so ``out``
+    must be a folder this tool wrote (it holds SITE_MARKER), an empty one, or a new one — never
+    the catalog, the project or the working folder, a folder inside the catalog, or a folder
+    containing any of them (``--out .`` would take ``.git`` with it).
+    """
+    target = out.resolve()
+    catalog = catalog.resolve()
+    protected = {"the catalog": catalog, "the project": catalog.parent,
+                 "the working folder": base.resolve()}
+    for name, folder in protected.items():
+        if target == folder or target in folder.parents:
+            raise UsageError(f"--out {out}: this folder is or contains {name} ({folder}); the "
+                             "build replaces its output folder whole. Choose a new folder, "
+                             "e.g. --out site")
+    if catalog in target.parents:
+        raise UsageError(f"--out {out}: this folder is inside the catalog; choose a folder "
+                         "outside it, e.g. --out site")
+    if target.is_symlink() or (target.exists() and not target.is_dir()):
+        raise UsageError(f"--out {out}: exists and is not a folder; choose a new folder")
+    if target.is_dir() and any(target.iterdir()) and not (target / SITE_MARKER).is_file():
+        raise UsageError(f"--out {out}: the folder is not empty and was not written by this "
+                         f"tool (no {SITE_MARKER} file), so the build will not replace it. "
+                         "Choose a new folder, or empty this one yourself")
 
 
 def prune_unused(cache_dir: Path, reports: list[EntryReport], views: set[str]) -> None:
@@ -105,9 +139,12 @@ def _revisions(project: Path, catalog: Path, cache_dir: Path | None) -> dict:
 
     if repo_root(project) is None:
         return {}
+    from generator.run.cache import cache_secret
+
     cache_file = cache_dir / "content-hashes.json" if cache_dir is not None else None
+    secret = cache_secret() if cache_dir is not None else None
     try:
-        return catalog_revisions(project, catalog, cache_file=cache_file)
+        return catalog_revisions(project, catalog, cache_file=cache_file, secret=secret)
     except (GitError, UsageError):
         return {}
 
@@ -129,6 +166,7 @@ def render_atomically(reports: list[EntryReport], meta: CatalogMeta, out: Path,
     staging = Path(tempfile.mkdtemp(prefix=f".{out.name}.building-", dir=out.parent))
     try:
         views = render_site(reports, meta, staging, kept)
+        (staging / SITE_MARKER).write_text(_MARKER_TEXT, encoding="utf-8")
     except BaseException:
         shutil.rmtree(staging, ignore_errors=True)
         raise
@@ -149,16 +187,30 @@ def recover_interrupted_swap(out: Path, old: Path) -> None:
         shutil.rmtree(leftover, ignore_errors=True)
 
 
-def serve_site(catalog: Path, out: Path, port: int) -> None:
-    """Build once, then preview on 127.0.0.1 and rebuild when the catalog or templates change."""
+def serve_site(catalog: Path, out: Path, port: int, host: str = "127.0.0.1") -> None:
+    """Build once, then preview on ``host`` and rebuild when the catalog or templates change.
+    An entry that failed its check is not published; its page in the preview lists its
+    diagnostics."""
     from generator.run.serve import serve
 
     options = RunOptions(cache_dir=Path(".almanac-cache"))
+    failed: dict[str, list[str]] = {}
 
     def rebuild() -> None:
-        build_site(catalog, out, options, publish_verified_only=True)
+        result = build_site(catalog, out, options, publish_verified_only=True)
+        failed.clear()
+        failed.update(failures_by_id(result.reports))
 
+    print(f"serve: checking {catalog}/ and building the site; the preview opens at "
+          f"http://{host}:{port}/ when the first build ends", file=sys.stderr, flush=True)
     rebuild()
     from generator.site.common import TEMPLATE_DIR
 
-    serve(out, rebuild, host="127.0.0.1", port=port, watch_paths=[catalog, TEMPLATE_DIR])
+    serve(out, rebuild, host=host, port=port, watch_paths=[catalog, TEMPLATE_DIR],
+          diagnose=failed.get)
+
+
+def failures_by_id(reports: tuple[EntryReport, ...]) -> dict[str, list[str]]:
+    """Entry id (or file stem) -> its diagnostics as text, for each entry that failed."""
+    return {(r.entry.id if r.entry else Path(r.file).stem):
+            [d.format_text() for d in r.diagnostics] for r in reports if not r.ok}

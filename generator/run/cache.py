@@ -8,6 +8,10 @@ whose signature does not verify (corrupt, truncated, written by another machine 
 or planted) is ignored and recomputed, never unpickled. The signing secret lives outside the
 cache folder: the ALMANAC_CACHE_SECRET environment variable (set it in CI to keep a cache
 between runs) or a per-user key file created on first use.
+
+Signed is not enough to trust a pickle (a key can leak; a key file could once be left empty),
+so files are read back with `safepickle.safe_loads`, which builds only the project's own data
+classes and the SymPy objects inside them and refuses anything that could run code.
 """
 
 from __future__ import annotations
@@ -21,7 +25,11 @@ import tempfile
 from pathlib import Path
 from typing import Any
 
+from generator.entry.safefile import read_capped_bytes
+from generator.entry.yamlcheck import MAX_FILE_BYTES
+from generator.errors import UsageError
 from generator.model import EntryReport
+from generator.run.safepickle import safe_loads
 from generator.versions import generator_fingerprint, library_versions
 
 FORMAT = b"almanac-cache-1\n"
@@ -36,28 +44,78 @@ def cache_key(task: Any) -> str:
                   f"{task.display}".encode())
     for path in (task.file, *task.related_files):
         digest.update(b"\0" + str(Path(path).name).encode() + b"\0")
-        try:
-            digest.update(Path(path).read_bytes())
-        except OSError:
-            digest.update(b"<unreadable>")
+        # Capped and never through a link: a link to /dev/zero must not be read forever.
+        content = read_capped_bytes(Path(path), MAX_FILE_BYTES)
+        digest.update(b"<unreadable>" if content is None else content)
     return digest.hexdigest()
 
 
-def _secret() -> bytes:
+MIN_SECRET_CHARS = 32  # a secret shorter than this (an empty one above all) is refused
+KEY_FILE_ENV = "XDG_CONFIG_HOME"
+
+
+def cache_secret() -> bytes:
+    """The key that signs cache files: ALMANAC_CACHE_SECRET, else this user's key file.
+
+    Never empty or short: HMAC with an empty key is a signature anyone can compute. A short
+    secret from the environment is refused (a usage error, so it is noticed); a short or empty
+    key file (left by a run killed before it wrote the key, in older versions) is replaced by
+    a new key — the cache signed by it becomes useless, which costs one recomputation.
+    """
     from_env = os.environ.get(SECRET_ENV)
-    if from_env:
+    if from_env is not None and from_env != "":
+        if len(from_env) < MIN_SECRET_CHARS:
+            raise UsageError(f"{SECRET_ENV} is {len(from_env)} characters long; a cache "
+                             f"secret has at least {MIN_SECRET_CHARS} (e.g. the output of "
+                             "`python -c 'import secrets; print(secrets.token_hex(32))'`)")
         return from_env.encode()
-    home = Path(os.environ.get("XDG_CONFIG_HOME", Path.home() / ".config"))
-    key_file = home / "metric-almanac" / "cache-key"
+    home = Path(os.environ.get(KEY_FILE_ENV) or Path.home() / ".config")
+    return _key_file_secret(home / "metric-almanac" / "cache-key")
+
+
+_secret = cache_secret  # the older name
+
+
+def _key_file_secret(key_file: Path) -> bytes:
+    """Read the per-user key, creating it atomically the first time.
+
+    The key is written to a private temporary file first and then linked into place, so no
+    reader ever sees a half-written key; of two first runs at once, one links and the other
+    finds the file and reads it.
+    """
+    found = _read_key(key_file)
+    if found is not None:
+        return found
+    key_file.parent.mkdir(parents=True, exist_ok=True, mode=0o700)
+    fd, tmp = tempfile.mkstemp(dir=key_file.parent, prefix=".cache-key-")
     try:
-        return key_file.read_bytes()
+        with os.fdopen(fd, "wb") as handle:  # mkstemp creates it readable by us only
+            handle.write(secrets.token_hex(32).encode())
+            handle.flush()
+            os.fsync(handle.fileno())
+        try:
+            os.link(tmp, key_file)
+        except FileExistsError:
+            if _read_key(key_file) is None:  # there, but empty or short: replace it
+                os.replace(tmp, key_file)
+    finally:
+        Path(tmp).unlink(missing_ok=True)
+    found = _read_key(key_file)
+    if found is None:
+        raise UsageError(f"cannot create a usable cache key in {key_file}; use --no-cache or "
+                         f"set {SECRET_ENV}")
+    return found
+
+
+def _read_key(key_file: Path) -> bytes | None:
+    """The key in the file if it is long enough; never through a link."""
+    try:
+        fd = os.open(key_file, os.O_RDONLY | getattr(os, "O_NOFOLLOW", 0))
     except OSError:
-        key_file.parent.mkdir(parents=True, exist_ok=True)
-        key = secrets.token_hex(32).encode()
-        fd = os.open(key_file, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o600)
-        with os.fdopen(fd, "wb") as handle:
-            handle.write(key)
-        return key
+        return None
+    with os.fdopen(fd, "rb") as handle:
+        key = handle.read(4096).strip()
+    return key if len(key) >= MIN_SECRET_CHARS else None
 
 
 class ResultCache:
@@ -68,7 +126,7 @@ class ResultCache:
         object kept beside a report (the duplicate search's card) has its own suffix."""
         self.folder = folder
         self.suffix = suffix
-        self.secret = _secret()
+        self.secret = cache_secret()
 
     def _path(self, key: str) -> Path:
         return self.folder / key[:2] / f"{key}{self.suffix}"
@@ -86,7 +144,7 @@ class ResultCache:
         if not hmac.compare_digest(signature, expected):
             return None
         try:
-            found = pickle.loads(payload)
+            found = safe_loads(payload)
         except Exception:  # signed by us but unreadable (e.g. a class moved): recompute
             return None
         return found if isinstance(found, kind) else None

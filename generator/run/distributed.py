@@ -28,10 +28,14 @@ from typing import Any
 from generator import __version__
 from generator.entry.catalog import display_path, load_all, vocabulary
 from generator.entry.loader import LoadResult, Vocabulary, load_entry
+from generator.entry.safefile import read_capped_bytes
 from generator.entry.yamlcheck import MAX_FILE_BYTES
-from generator.errors import AlmanacError, Diagnostic, UsageError
+from generator.errors import AlmanacError, BudgetExceeded, Diagnostic, UsageError
+from generator.geometry.curvature import Limits
 from generator.model import EntryReport
-from generator.run.tasks import Task, check_within_limits, run_task
+from generator.physics.verify import check_loaded
+from generator.run.limits import budget_failure_report, run_limited
+from generator.run.tasks import MEMORY_PER_ENTRY, Task, alarm_seconds, run_task
 from generator.versions import library_versions
 
 FAILURE_CODE = "distributed.worker"
@@ -79,20 +83,36 @@ def check_shipped(shipped: ShippedTask) -> EntryReport:
     if here != shipped.versions:
         raise VersionMismatch(f"this worker has {here} but the client has {shipped.versions}; "
                               "install the same versions on every worker")
+    # Dask runs tasks in worker threads of daemonic processes, where neither signals nor child
+    # processes are available: `run_limited` then relies on the engine's cooperative budget
+    # and `dask worker --memory-limit`. Loading is inside that call too.
+    try:
+        return run_limited(_load_and_check_shipped, shipped,
+                           seconds=alarm_seconds(shipped.seconds), memory_bytes=MEMORY_PER_ENTRY)
+    except BudgetExceeded as exc:
+        with tempfile.TemporaryDirectory(prefix="almanac-worker-") as folder:
+            structure = _load_shipped(shipped.entry, Path(folder), shipped.vocabulary,
+                                      with_math=False)
+        return budget_failure_report(structure, exc)
+
+
+def _load_and_check_shipped(shipped: ShippedTask) -> EntryReport:
+    """Load (inside the budget: a line element can be built to blow up) and check."""
     with tempfile.TemporaryDirectory(prefix="almanac-worker-") as folder:
         loads = [_load_shipped(item, Path(folder) / str(k), shipped.vocabulary)
                  for k, item in enumerate((shipped.entry, *shipped.related))]
-    # Dask runs tasks in worker threads, where the hard limits cannot apply: the engine's own
-    # time budget still does, and `dask worker --memory-limit` bounds memory.
-    return check_within_limits(loads, shipped.seconds)
+    own, related = loads[0], loads[1:]
+    by_id = {r.entry.id: r for r in related if r.entry is not None}
+    return check_loaded(own, by_id, Limits(seconds=shipped.seconds))
 
 
-def _load_shipped(item: ShippedFile, folder: Path, words: Vocabulary) -> LoadResult:
+def _load_shipped(item: ShippedFile, folder: Path, words: Vocabulary,
+                  with_math: bool = True) -> LoadResult:
     """Recreate the file under its family folder so the loader sees the same names."""
     path = folder / item.family / item.name
     path.parent.mkdir(parents=True)
     path.write_bytes(item.content)
-    return load_entry(path, item.display, words)
+    return load_entry(path, item.display, words, with_math=with_math)
 
 
 # ---------------------------------------------------------------------------- on the client
@@ -156,11 +176,8 @@ def ship_task(task: Task, words: Vocabulary) -> ShippedTask | None:
 
 
 def _ship_file(path: Path, display: str) -> ShippedFile | None:
-    try:
-        if path.stat().st_size > MAX_FILE_BYTES:
-            return None
-        content = path.read_bytes()
-    except OSError:
+    content = read_capped_bytes(path, MAX_FILE_BYTES)  # no link, no endless read
+    if content is None or len(content) > MAX_FILE_BYTES:
         return None
     return ShippedFile(display, path.parent.name, path.name, content)
 

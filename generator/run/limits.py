@@ -16,12 +16,16 @@ Limits:
 - The alarm repeats every `REPEAT_SECONDS` after the first, so code that swallows the
   exception (``except Exception`` in a library) is interrupted again.
 - Signals and resource limits belong to the process and its main thread. Called from another
-  thread (e.g. a threaded scheduler), `run_limited` runs ``fn`` under no limit of its own and
-  the caller's other safeguards (the engine's cooperative budget) remain.
+  thread, `run_limited` runs ``fn`` in a fresh child process whose main thread sets the
+  limits (``fn`` and its arguments must then be picklable); a child ended by the backstop
+  raises `BudgetExceeded` here. The one exception is a daemonic process (a Dask worker),
+  which may not start children: there Dask's ``--memory-limit`` and the engine's cooperative
+  time budget are the bounds, as the distributed guide says.
 """
 
 from __future__ import annotations
 
+import multiprocessing
 import resource
 import signal
 import threading
@@ -148,7 +152,12 @@ def run_limited(
     call, the process is ended by SIGXCPU after ``seconds + hard_grace`` CPU seconds.
     """
     if threading.current_thread() is not threading.main_thread():
-        return fn(*args)
+        if multiprocessing.current_process().daemon:
+            # A daemonic process (a Dask worker) may not start children: Dask's own
+            # --memory-limit and the engine's cooperative budget bound the work there.
+            return fn(*args)
+        return run_limited_in_child(fn, *args, seconds=seconds, memory_bytes=memory_bytes,
+                                    stage_of=stage_of, hard_grace=hard_grace)
     backstop = seconds + hard_grace if seconds > 0 else 0.0
     with _Alarm(seconds, stage_of), _AddressSpaceCap(memory_bytes), _CpuBackstop(backstop):
         try:
@@ -159,6 +168,39 @@ def run_limited(
         except RecursionError as exc:
             stage = stage_of(innermost_frame(exc.__traceback__))
             raise BudgetExceeded(stage, "expression nested too deeply") from None
+
+
+def run_limited_in_child(
+    fn: Callable[..., T],
+    *args: Any,
+    seconds: float,
+    memory_bytes: int,
+    stage_of: Callable[[FrameType | None], str] = describe_stage,
+    hard_grace: float = HARD_GRACE_SECONDS,
+) -> T:
+    """`run_limited` in a spawned child process, whose main thread sets the limits; its result
+    or exception comes back here. For callers outside the main thread, and for work whose
+    CPU-time backstop must end a child rather than the calling process (``fn`` and its
+    arguments must be picklable)."""
+    from concurrent.futures import ProcessPoolExecutor
+    from concurrent.futures.process import BrokenProcessPool
+
+    context = multiprocessing.get_context("spawn")
+    with ProcessPoolExecutor(max_workers=1, mp_context=context) as pool:
+        future = pool.submit(_limited_call, fn, args, seconds, memory_bytes, stage_of,
+                             hard_grace)
+        try:
+            return future.result()
+        except BrokenProcessPool:
+            raise BudgetExceeded(DEFAULT_STAGE, "the child process was ended (CPU-time "
+                                 "backstop or out of memory)") from None
+
+
+def _limited_call(fn: Callable[..., T], args: tuple[Any, ...], seconds: float,
+                  memory_bytes: int, stage_of: Callable[[FrameType | None], str],
+                  hard_grace: float) -> T:
+    return run_limited(fn, *args, seconds=seconds, memory_bytes=memory_bytes,
+                       stage_of=stage_of, hard_grace=hard_grace)
 
 
 def _mebibytes(count: int) -> str:

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import multiprocessing
 import os
+import tempfile
 from collections.abc import Callable, Sequence
 from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
 from concurrent.futures.process import BrokenProcessPool
@@ -24,13 +25,27 @@ from generator.entry.catalog import (
     entry_files,
     outline_all,
     outline_links,
+    vocabulary_problems,
 )
 from generator.errors import BudgetExceeded, Diagnostic
 from generator.model import EntryReport
 from generator.physics.twins import TwinCard, twin_card, worth_comparing
 from generator.run.cache import ResultCache, cache_key
-from generator.run.limits import run_limited
-from generator.run.tasks import MEMORY_PER_ENTRY, Task, internal_failure_report, run_task
+from generator.run.limits import (
+    DEFAULT_STAGE,
+    budget_failure_report,
+    run_limited,
+    run_limited_in_child,
+)
+from generator.run.tasks import (
+    MEMORY_PER_ENTRY,
+    Task,
+    backstop_report,
+    backstop_stage,
+    internal_failure_report,
+    run_task,
+    structure_of,
+)
 
 # The duplicate search compares invariants numerically and costs seconds per pair, so it runs
 # for a pull request's few entries, not for a whole-catalog build, and under a time limit.
@@ -47,6 +62,7 @@ class RunOptions:
     seconds_per_entry: float = 300.0
     cache_dir: Path | None = None
     scheduler: str | None = None  # address of a Dask distributed scheduler
+    in_process: bool = False  # check in this process (tests with a fake engine); see below
 
 
 def check_files(
@@ -56,15 +72,22 @@ def check_files(
     options: RunOptions,
     on_done: Callable[[EntryReport], None] | None = None,
     on_running: Callable[[list[str]], None] | None = None,
+    changed_only: bool = False,
+    search_duplicates: bool = True,
 ) -> list[EntryReport]:
     """Check the selected entry files; the rest of the catalog is loaded for cross-references.
+
+    The duplicate search runs for a few selected entries (a pull request's), or for any
+    number when ``changed_only`` says they are the entries a change touched (CI's
+    ``--changed-since``).
 
     ``on_done`` sees every report as it comes (cached ones too); ``on_running`` the ids of the
     entries being checked, each time a check ends (local runs; the pool takes tasks in order,
     so these are the first unfinished ones — an entry that starts and ends between two looks
     may go unnamed)."""
     catalog_files = entry_files([root]) if root is not None else []
-    every = {p.resolve() for p in catalog_files} | {p.resolve() for p in selected}
+    # Absolute, but links not resolved: a link is checked (and refused) as itself.
+    every = {_absolute(p) for p in catalog_files} | {_absolute(p) for p in selected}
     # Workers load what they check; here only ids and links matter.
     outlines = outline_all(sorted(every), root, base)
     by_file = {outline.file: outline for outline in outlines}
@@ -74,14 +97,28 @@ def check_files(
     tasks = [_task(outline, by_id, root, base, options) for outline in chosen]
     reports = _run(tasks, options, Progress(on_done, on_running))
     twins: dict[str, list[Diagnostic]] = {}
-    if len(reports) <= TWIN_SEARCH_MAX_ENTRIES:
+    if search_duplicates and (changed_only or len(reports) <= TWIN_SEARCH_MAX_ENTRIES):
         groups = chart_groups(outline_links(outlines))
         others = _twin_candidates(reports, outlines, set(chosen), by_id, root, base, options,
                                   groups)
         twins = twin_warnings(reports, [*reports, *others.reports], others.ranks,
                               others.keep_ranks, groups)
-    return [_with_extra(report, cross.get(report.file, []) + twins.get(report.file, []))
-            for report in reports]
+    return [*vocabulary_reports(root, base),
+            *(_with_extra(report, cross.get(report.file, []) + twins.get(report.file, []))
+              for report in reports)]
+
+
+def vocabulary_reports(root: Path | None, base: Path) -> list[EntryReport]:
+    """A failed report for each vocabulary file (tags.yaml, families.yaml) with problems, so
+    that they are told at their own lines, in every output format, and fail the run. Entries
+    are checked against the names that could be read."""
+    return [EntryReport(None, file, None, None, None, (), diagnostics)
+            for file, diagnostics in vocabulary_problems(root, base).items()]
+
+
+def _absolute(path: Path) -> Path:
+    absolute = Path(os.path.abspath(path))
+    return absolute.parent.resolve() / absolute.name
 
 
 @dataclass
@@ -106,12 +143,13 @@ class _Candidates:
 def _twin_candidates(new: list[EntryReport], outlines: list[Outline], selected: set[Outline],
                      by_id: dict[str, Outline], root: Path | None, base: Path,
                      options: RunOptions, groups: dict[str, str]) -> _Candidates:
-    """Never computed here (a one-entry check stays quick, and CI keeps the cache of the last
-    full build): only entries already in the cache take part, and only those whose card shows
-    they could be a twin have their whole report loaded."""
+    """With the cache, only entries already in it take part (a one-entry check stays quick,
+    and CI's whole-catalog step has just filled it), and only those whose card shows they
+    could be a twin have their whole report loaded. Without the cache (``--no-cache``: from
+    scratch), the other entries are computed here and compared by their cards the same way."""
     found = _Candidates([], {}, {}, None)
     if options.cache_dir is None:
-        return found
+        return _computed_candidates(new, outlines, selected, by_id, root, base, options, groups)
     cache = ResultCache(options.cache_dir)
     found.card_shelf = cards = card_shelf(options.cache_dir)
     new_cards = [card for card in (twin_card(r) for r in new) if card is not None]
@@ -128,6 +166,24 @@ def _twin_candidates(new: list[EntryReport], outlines: list[Outline], selected: 
             found.cards[card.id] = (key, card)
             if card.rank is not None:
                 found.ranks[card.id] = card.rank
+    return found
+
+
+def _computed_candidates(new: list[EntryReport], outlines: list[Outline],
+                         selected: set[Outline], by_id: dict[str, Outline], root: Path | None,
+                         base: Path, options: RunOptions,
+                         groups: dict[str, str]) -> _Candidates:
+    """The duplicate search's candidates computed from scratch: every other entry is checked
+    (in parallel, each under its own budget), then kept only if its card could match."""
+    found = _Candidates([], {}, {}, None)
+    new_cards = [card for card in (twin_card(r) for r in new) if card is not None]
+    if not any(card.exact is not None for card in new_cards):
+        return found  # nothing to compare: spare the whole-catalog computation
+    others = [_task(o, by_id, root, base, options) for o in outlines if o not in selected]
+    for report in _run(others, options, Progress()):
+        card = twin_card(report)
+        if card is not None and any(worth_comparing(mine, card, groups) for mine in new_cards):
+            found.reports.append(report)
     return found
 
 
@@ -165,10 +221,14 @@ def twin_warnings(new: list[EntryReport], catalog: list[EntryReport],
     from generator.physics.twins import search_twins, twin_diagnostics
 
     verified = [r for r in new if r.ok]
+    others = [r for r in catalog if r.ok and all(r is not v for v in verified)]
+    # With candidates to compare, the search runs in a child process: its CPU-time backstop
+    # must end that child, never `check` itself (which would end with nothing printed).
+    limited = run_limited_in_child if verified and others else run_limited
     try:
-        search = run_limited(search_twins, verified, [r for r in catalog if r.ok],
-                             known_ranks or {}, groups, seconds=TWIN_SEARCH_SECONDS,
-                             memory_bytes=MEMORY_PER_ENTRY)
+        search = limited(search_twins, verified, [r for r in catalog if r.ok],
+                         known_ranks or {}, groups, seconds=TWIN_SEARCH_SECONDS,
+                         memory_bytes=MEMORY_PER_ENTRY)
     except BudgetExceeded:
         return {r.file: [_twin_search_stopped(r)] for r in verified}
     if keep_ranks is not None:
@@ -240,33 +300,50 @@ def _cacheable(report: EntryReport) -> bool:
     return not any(d.code in transient for d in report.diagnostics)
 
 
+def runs_in_this_process(options: RunOptions) -> bool:
+    """Whether checks run in the calling process: only when asked (tests with a fake engine).
+
+    Otherwise even a one-entry check runs in a worker process: the CPU-time backstop that ends
+    an entry stuck in one C call ends the whole process, and in the main process that would be
+    the end of ``check`` itself, with nothing printed."""
+    return options.in_process
+
+
 def _compute(tasks: list[Task], pending: list[int], options: RunOptions, progress: Progress):
     if options.scheduler:
         from generator.run.distributed import run_on_scheduler
 
         yield from run_on_scheduler(options.scheduler, tasks, pending, progress.done)
         return
-    jobs = options.jobs or os.cpu_count() or 1
-    if jobs == 1 or len(pending) <= 1:
+    if runs_in_this_process(options):
         for i in pending:
             progress.now_running([tasks[i]])
             report = run_task(tasks[i])
             progress.finished(report)
             yield i, report
         return
-    yield from _compute_in_processes(tasks, pending, jobs, progress)
+    if not pending:
+        return
+    jobs = min(options.jobs or os.cpu_count() or 1, len(pending))
+    with tempfile.TemporaryDirectory(prefix="almanac-backstop-") as folder:
+        recorded = [replace(task, backstop_file=Path(folder) / f"{i}.stack")
+                    for i, task in enumerate(tasks)]
+        yield from _compute_in_processes(recorded, pending, jobs, progress)
 
 
 def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
-                          progress: Progress):
+                          progress: Progress,
+                          worker: Callable[[Task], EntryReport] = run_task):
     """Run tasks on a process pool; if a worker is killed (e.g. at the CPU-time backstop) the
-    pool breaks, and the unfinished tasks are re-run one per fresh process so that only the
-    entry that kills its worker fails. The pool takes tasks in submission order, so the
-    first ``jobs`` unfinished ones are those being checked."""
+    pool breaks. The entry whose worker the backstop ended (its ``backstop_file`` holds a
+    call stack) is reported with its stage and not run again; the other unfinished tasks are
+    re-run one per fresh process so that only the entry that kills its worker fails. The pool
+    takes tasks in submission order, so the first ``jobs`` unfinished ones are those being
+    checked. ``worker`` is `run_task` (another module-level function in tests)."""
     unfinished = list(pending)
     # No max_tasks_per_child: on Python 3.11 it can deadlock the pool when a worker retires.
     with ProcessPoolExecutor(max_workers=jobs, mp_context=_spawn()) as pool:
-        futures: dict[Future, int] = {pool.submit(run_task, tasks[i]): i for i in pending}
+        futures: dict[Future, int] = {pool.submit(worker, tasks[i]): i for i in pending}
         remaining = set(futures)
         while remaining:
             progress.now_running([tasks[i] for i in unfinished[:jobs]])
@@ -280,8 +357,12 @@ def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
                 progress.finished(report)
                 yield futures[future], report
     for i in unfinished:
-        progress.now_running([tasks[i]])
-        report = _run_alone(tasks[i])
+        stage = backstop_stage(tasks[i].backstop_file)
+        if stage is not None:  # this entry ended its worker: it is not run a second time
+            report = backstop_report(tasks[i], stage)
+        else:
+            progress.now_running([tasks[i]])
+            report = _run_alone(tasks[i], worker)
         progress.finished(report)
         yield i, report
 
@@ -293,23 +374,24 @@ def _result(future: Future, task: Task) -> EntryReport:
         return internal_failure_report(task.display, exc)
 
 
-def _run_alone(task: Task) -> EntryReport:
+def _run_alone(task: Task, worker: Callable[[Task], EntryReport] = run_task) -> EntryReport:
     """One task in its own worker process: if that process dies, only this entry fails."""
     with ProcessPoolExecutor(max_workers=1, mp_context=_spawn()) as pool:
-        future = pool.submit(run_task, task)
+        future = pool.submit(worker, task)
         try:
             return future.result()
         except BrokenProcessPool:
-            return worker_killed_report(task.display)
+            stage = backstop_stage(task.backstop_file)
+            return backstop_report(task, stage) if stage else worker_killed_report(task)
         except Exception as exc:
             return internal_failure_report(task.display, exc)
 
 
-def worker_killed_report(file: str) -> EntryReport:
-    diagnostic = Diagnostic(file, 1, 1, "error", "computation ran out of its budget: the "
-                            "worker process was ended at the CPU-time backstop",
-                            "budget.exceeded", "simplify the metric, or raise --seconds")
-    return EntryReport(None, file, None, None, None, (), (diagnostic,))
+def worker_killed_report(task: Task) -> EntryReport:
+    """A worker that ended without the backstop's record (killed from outside, or out of
+    memory below Python): still a positioned message, naming what is known."""
+    return budget_failure_report(structure_of(task), BudgetExceeded(
+        DEFAULT_STAGE, "the worker process ended before finishing (killed or out of memory)"))
 
 
 def _spawn() -> multiprocessing.context.BaseContext:

@@ -245,9 +245,26 @@ def split_venue(venue: str, year: int | None = None) -> Venue:
     """
     match = _VENUE_PATTERN.match(venue.strip())
     if not match or match["volume"] == str(year):
+        pages_only = _PAGES_ONLY.match(venue.strip())
+        if pages_only and not re.search(r"\d", pages_only["journal"]):
+            return Venue(_journal(pages_only["journal"]), pages=_pages(pages_only["pages"]))
         return Venue(venue.strip())
-    pages = re.sub(r"\s*[-\u2013]+\s*", "-", match["pages"])
-    return Venue(match["journal"].strip(), match["volume"], match["issue"] or "", pages)
+    return Venue(_journal(match["journal"]), match["volume"], match["issue"] or "",
+                 _pages(match["pages"]))
+
+
+# "Journal name, 189": a journal without a volume number, then the pages.
+_PAGES_ONLY = re.compile(r"^(?P<journal>[^,]+(?:,[^,\d]+)*),\s*"
+                         r"(?P<pages>\d+(?:\s*[-\u2013]+\s*\d+)?)$")
+
+
+def _journal(text: str) -> str:
+    """The journal without the comma that separated it from the volume ("..., Serie II,")."""
+    return text.strip().rstrip(",;").strip()
+
+
+def _pages(text: str) -> str:
+    return re.sub(r"\s*[-\u2013]+\s*", "-", text)
 
 
 def split_name(author: str) -> tuple[str, str]:

@@ -31,8 +31,17 @@ from generator.site import mathtex
 from generator.site.atlas import ChartLink
 
 REPO_ROOT = Path(__file__).resolve().parents[2]
-TEMPLATE_DIR = REPO_ROOT / "site_templates"
-SCHEMA_FILE = REPO_ROOT / "schema" / "entry.schema.json"
+PACKAGE_ROOT = Path(__file__).resolve().parents[1]
+
+
+def _bundled(in_repository: Path, in_package: Path) -> Path:
+    """A data folder at the top of the repository (the project layout) or, in an installed
+    wheel, inside the ``generator`` package (pyproject.toml maps it there as package data)."""
+    return in_repository if in_repository.exists() else in_package
+
+
+TEMPLATE_DIR = _bundled(REPO_ROOT / "site_templates", PACKAGE_ROOT / "site_templates")
+SCHEMA_FILE = _bundled(REPO_ROOT / "schema", PACKAGE_ROOT / "schema_files") / "entry.schema.json"
 
 SIGNATURE = "−+++"
 UNITS = "G = c = 1 (geometric units)"
@@ -66,6 +75,7 @@ MATTER_LABELS = {
     "unspecified": "no declared source",
     "non-vacuum": "unidentified source",
     "not-applicable": "no field equations (2D)",
+    "undecided": "matter content undecided",
 }
 METHOD_LABELS = {
     "exact": "exact (normal form)",
@@ -136,8 +146,17 @@ class Surroundings:
 NOWHERE = Surroundings()  # an entry seen without the rest of the catalog
 
 
+_SAFE_ID = re.compile(r"[a-z0-9]+(-[a-z0-9]+)*")
+_HEX = re.compile(r"[0-9a-f]{12,64}")
+
+
 def revision_file(entry_id: str, content_hash: str) -> str:
-    """Site path of an entry's YAML text at the revision with this content hash."""
+    """Site path of an entry's YAML text at the revision with this content hash.
+
+    Both parts end up in a file name: anything but an entry id and a hex hash is refused
+    (a path is never built from a value read back from a cache)."""
+    if not _SAFE_ID.fullmatch(entry_id) or not _HEX.fullmatch(content_hash):
+        raise ValueError(f"refusing to build a path from {entry_id!r} and {content_hash!r}")
     return f"entries/{entry_id}/revisions/{short_hash(content_hash)}.yaml"
 
 

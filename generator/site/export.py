@@ -14,6 +14,7 @@ from typing import Any
 import sympy
 
 from generator.model import Classification, EntryReport, Geometry, Spacetime, Verdict
+from generator.physics.verify import entry_state
 
 
 def expr_text(expr: sympy.Basic | None) -> str | None:
@@ -26,6 +27,7 @@ def report_json(report: EntryReport) -> dict[str, Any]:
         "id": report.entry.id if report.entry else None,
         "file": report.file,
         "ok": report.ok,
+        "state": entry_state(report),
         "content_hash": report.content_hash,
         "diagnostics": [d.as_json() for d in report.diagnostics],
         "computed": None,
@@ -113,8 +115,51 @@ def classification_json(c: Classification, names: list[str]) -> dict[str, Any]:
 
 def verdict_json(v: Verdict) -> dict[str, Any]:
     return {"subject": v.subject, "ok": v.ok, "status": v.status, "source": v.source,
-            "method": v.method, "detail": v.detail, "claimed": v.claimed, "computed": v.computed}
+            "method": v.method, "detail": v.detail, "claimed": v.claimed, "computed": v.computed,
+            "witness": v.witness}
 
 
 def check_document(reports: list[EntryReport]) -> dict[str, Any]:
     return {"entries": [report_json(r) for r in reports]}
+
+
+def matter_as_entry_keys(spacetime: Spacetime, classification: Classification | None
+                         ) -> dict[str, Any] | None:
+    """The computed matter under the keys an entry's ``matter`` block uses (``density``,
+    ``principal_pressures`` by coordinate), so ``--show-computed`` reads line by line against
+    the entry. Pressures are named by coordinate when T^a_b and the metric are diagonal in
+    this chart (the time coordinate is the one whose signature sign is the odd one out);
+    otherwise they are the eigenvalues, listed in no coordinate order, and said to be so."""
+    if classification is None:
+        return None
+    out: dict[str, Any] = {"kind": classification.matter_kind}
+    if classification.cosmological_constant is not None:
+        out["cosmological_constant"] = str(classification.cosmological_constant)
+    if classification.energy_density is not None:
+        out["density"] = str(classification.energy_density)
+    by_coordinate = _pressures_by_coordinate(spacetime, classification)
+    if by_coordinate is not None:
+        values = set(by_coordinate.values())
+        if len(values) == 1 and classification.matter_kind == "perfect-fluid":
+            out["pressure"] = values.pop()
+        out["principal_pressures"] = by_coordinate
+    elif classification.principal_pressures is not None:
+        out["principal_pressures_unordered"] = [str(p) for p in
+                                                classification.principal_pressures]
+    return out
+
+
+def _pressures_by_coordinate(spacetime: Spacetime, classification: Classification
+                             ) -> dict[str, str] | None:
+    mixed, metric = classification.stress_energy_mixed, spacetime.metric
+    if mixed is None or classification.energy_density is None:
+        return None
+    n = metric.shape[0]
+    if any(mixed[a, b] != 0 or metric[a, b] != 0 for a in range(n) for b in range(n) if a != b):
+        return None
+    signs = spacetime.signature
+    odd = [k for k, sign in enumerate(signs) if signs.count(sign) == 1]
+    if len(odd) != 1 or n < 3:
+        return None
+    names = [str(c) for c in spacetime.coordinates]
+    return {names[a]: str(mixed[a, a]) for a in range(n) if a != odd[0]}
