@@ -125,7 +125,8 @@ def test_charged_black_holes_exclude_uncharged_ones(finder: Any) -> None:
 @pytest.mark.parametrize("query", ["AdS", "anti-de Sitter", "Anti-de Sitter"])
 def test_ads_and_anti_de_sitter_find_the_same_charts_first(finder: Any, query: str) -> None:
     found = results(finder, query)
-    titled = ids_where(finder, lambda c: "anti de sitter" in fold(c["title"]))
+    titled = ids_where(finder, lambda c: "anti de sitter" in fold(c["title"]) or any(
+        word.startswith("ads") for word in fold(c["title"]).split()))  # AdS₅ × S⁵ too
     assert len(titled) >= 3
     assert set(found[:len(titled)]) == titled  # title matches rank first
     assert not {"de-sitter-flat", "de-sitter-global", "de-sitter-static"} & set(found)
@@ -174,8 +175,8 @@ def test_words_never_match_inside_other_words(finder: Any) -> None:
 
 def test_prefixes_match_the_start_of_words(finder: Any) -> None:
     found = results(finder, "schwarz")
-    assert found[0].startswith("schwarzschild")
     assert set(found) >= ids_where(finder, lambda c: "schwarzschild" in c["id"])
+    assert set(found) <= _mentions(r"schwarz\w*")  # every result has a word starting so
 
 
 def test_the_page_folds_queries_as_the_index_was_folded(finder: Any) -> None:
