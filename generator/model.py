@@ -96,6 +96,24 @@ class VectorClaim:
 
 
 @dataclass(frozen=True)
+class TensorClaim:
+    """A claimed rank-2 Killing tensor: lower-index components by coordinate-name pair."""
+
+    name: str | None
+    components: tuple[tuple[tuple[str, str], MathText], ...]
+    pos: SourcePos
+
+
+@dataclass(frozen=True)
+class ConformalClaim:
+    """A claimed conformal Killing vector (or homothety): L_ξ g = 2 factor g."""
+
+    vector: tuple[tuple[str, MathText], ...]
+    factor: MathText
+    pos: SourcePos
+
+
+@dataclass(frozen=True)
 class Claims:
     scalars: tuple[Claim, ...] = ()  # ricci_scalar, kretschmann, ricci_squared, weyl_squared
     petrov_type: str | None = None
@@ -106,6 +124,10 @@ class Claims:
     pos: SourcePos | None = None
     # (claim name, source, locator) for petrov_type and hawking_ellis_type
     label_sources: tuple[tuple[str, str | None, str | None], ...] = ()
+    physical: tuple[Claim, ...] = ()  # horizon, orbit and observer claims (schema.PHYSICAL_CLAIMS)
+    killing_tensors: tuple[TensorClaim, ...] = ()
+    conformal_killing_vectors: tuple[ConformalClaim, ...] = ()
+    homotheties: tuple[ConformalClaim, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -129,6 +151,8 @@ class RelatedChart:
     entry: str
     map: tuple[tuple[str, MathText], ...]  # this entry's coordinates in the other's coordinates
     pos: SourcePos
+    kind: str = "chart"  # chart: same spacetime | limit: the other entry is a limit of this one
+    limit: tuple[tuple[str, MathText], ...] = ()  # parameter -> value it tends to (kind limit)
 
 
 @dataclass(frozen=True)
@@ -172,6 +196,7 @@ class Entry:
         name = subject.removeprefix("claims.")
         sources = {c.name: c.source for c in self.claims.scalars}
         sources.update({label: source for label, source, _ in self.claims.label_sources})
+        sources.update({c.name: c.source for c in self.claims.physical})
         role = sources.get(name) if subject.startswith("claims.") else None
         roles = {r.role for r in self.references}
         return role if role in roles else None
@@ -303,6 +328,64 @@ class EnergyCondition:
 
 
 @dataclass(frozen=True)
+class Horizon:
+    """One root of a factor of g^{xx}: a null surface x = const and its data (None: see
+    ``reasons``). ``location`` is exact: a closed form, or the symbol h_root of
+    ``polynomial`` (a polynomial in h_root) when no closed form is used."""
+
+    coordinate: str
+    location: sympy.Expr
+    polynomial: sympy.Expr
+    kind: str  # event | inner | cosmological | horizon | undetermined
+    normal_killing_vector: tuple[tuple[str, sympy.Expr], ...] | None
+    angular_velocity: sympy.Expr | None
+    surface_gravity_squared: sympy.Expr | None
+    surface_gravity: sympy.Expr | None
+    temperature: sympy.Expr | None
+    area: sympy.Expr | None
+    how: str
+    reasons: dict[str, str] = field(default_factory=dict)
+    numeric_location: str = ""  # at the first sample parameters, for ordering and plots
+
+    @property
+    def entropy(self) -> sympy.Expr | None:
+        return None if self.area is None else self.area / 4
+
+
+@dataclass(frozen=True)
+class Kinematics:
+    """Expansion, shear, vorticity and acceleration of a unit timelike observer field u^a
+    (σ_ab σ^ab and ω_ab ω^ab without a factor ½)."""
+
+    observer: tuple[tuple[str, sympy.Expr], ...]
+    source: str  # "matter.velocity" or how the natural observer was chosen
+    expansion: sympy.Expr
+    shear_squared: sympy.Expr
+    vorticity_squared: sympy.Expr
+    acceleration_squared: sympy.Expr
+    hubble_rate: sympy.Expr | None = None
+    deceleration: sympy.Expr | None = None
+
+
+@dataclass(frozen=True)
+class PhysicalData:
+    """Horizons, orbits, charges and observers of an entry. None fields carry their reason
+    in ``reasons`` (keys: horizons, ergosurface, photon_sphere, isco, komar_mass,
+    komar_angular_momentum, kinematics)."""
+
+    horizons: tuple[Horizon, ...]
+    horizons_note: str
+    extremality: tuple[str, ...]
+    ergosurface: sympy.Expr | None
+    photon_sphere: sympy.Expr | None
+    isco: sympy.Expr | None
+    komar_mass: sympy.Expr | None
+    komar_angular_momentum: sympy.Expr | None
+    kinematics: Kinematics | None
+    reasons: dict[str, str] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
 class Classification:
     """Physics derived from the geometry. A None field carries its reason in ``reasons``."""
 
@@ -319,6 +402,57 @@ class Classification:
     related_checked: tuple[Verdict, ...]
     geodesic_equations: tuple[sympy.Expr, ...]  # d2x^a/ds2 + Gamma^a_bc dx^b dx^c = 0 left sides
     reasons: dict[str, str] = field(default_factory=dict)
+    physical: PhysicalData | None = None  # horizons, orbits, charges, observers
+    physical_checked: tuple[Verdict, ...] = ()  # verdicts of claims about physical data
+    symmetry: SymmetryResult | None = None  # isometry algebra, Killing tensors, invariants
+
+
+@dataclass(frozen=True)
+class IsometryAlgebra:
+    """The local isometry algebra as computed (``isometry``); None fields carry ``why_null``."""
+
+    dimension: int | None
+    orbit_dimension: int | None
+    listed: int  # independent Killing vectors the entry lists
+    basis: tuple[tuple[tuple[str, sympy.Expr], ...], ...]  # verified vectors, by coordinate
+    complete: bool | None  # the basis spans the algebra (None: dimension unknown)
+    method: str
+    why_null: str | None
+    structure: tuple[tuple[int, int, tuple[sympy.Expr, ...]], ...] = ()  # [X_i, X_j] = c^k X_k
+    algebra_name: str | None = None
+
+
+@dataclass(frozen=True)
+class InvariantCount:
+    """Functionally independent scalar invariants and Karlhede's relation."""
+
+    count: int | None
+    used: tuple[str, ...]  # which invariants entered the Jacobian
+    relation: str  # the relation as checked, in words
+    consistent: bool | None
+    why_null: str | None = None
+
+
+@dataclass(frozen=True)
+class WeylFrame:
+    """Ψ0..Ψ4 in a null tetrad built by the tool; ``principal`` when l (and n for type D)
+    is a principal null direction, so that only the type's scalars survive."""
+
+    name: str  # which tetrad, in words
+    principal: bool
+    tetrad: tuple[tuple[str, tuple[tuple[str, sympy.Expr], ...]], ...]  # l, n, m: ξ^a by name
+    scalars: tuple[tuple[str, sympy.Expr], ...]  # ("Psi0", ...), ..., ("Psi4", ...)
+    invariant_i: sympy.Expr | None
+    invariant_j: sympy.Expr | None
+    why: str = ""
+
+
+@dataclass(frozen=True)
+class SymmetryResult:
+    isometry: IsometryAlgebra
+    tensors_checked: tuple[Verdict, ...]  # Killing tensors, conformal vectors, homotheties
+    invariants: InvariantCount
+    weyl_frame: WeylFrame | None = None  # None: the reason is under reasons["weyl_frame"]
 
 
 @dataclass(frozen=True)

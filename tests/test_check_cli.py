@@ -93,8 +93,16 @@ def test_json_contract(catalog: Path, capsys: pytest.CaptureFixture[str]) -> Non
     assert status == 0
     assert entry["id"] == "lighthouse-dome" and entry["ok"] is True
     assert entry["file"] == "catalog/riemannian/lighthouse-dome.yaml"
-    assert entry["diagnostics"] == []
+    # The round sphere's isometry algebra so(3) has dimension 3 (common practice); the demo
+    # lists only ∂_φ, which is a warning, not an error.
+    assert [(d["severity"], d["code"]) for d in entry["diagnostics"]] == [
+        ("warning", "symmetry.incomplete")]
+    assert "(2 missing)" in entry["diagnostics"][0]["message"]
     computed = entry["computed"]
+    assert computed["isometry"]["dimension"] == 3
+    assert computed["isometry"]["orbit_dimension"] == 2
+    assert computed["isometry"]["complete"] is False
+    assert computed["weyl_frame"] is None and computed["weyl_invariants"] is None
     assert computed.keys() >= CONTRACT_KEYS
     assert computed["dimension"] == 2 and computed["signature"] == "++"
     assert computed["weyl_squared"] is None  # below four dimensions: null, never zero

@@ -381,3 +381,22 @@ def test_catalog_pages_count_agreement_with_the_literature_apart(site: Path) -> 
     assert "compared with the literature" in lantern
     tide = page(site, "entries/demo-tide-cosmos/index.html").text
     assert "computed only" in tide and "compared with the literature" not in tide
+
+
+def test_symmetry_computed_comes_first_among_the_classifications(site: Path) -> None:
+    # Issue 17: the computed symmetry block precedes invariants, matter and Petrov type.
+    parsed = page(site, "entries/demo-harbour-lantern/index.html")
+    ids = [a.get("id") for _, a in parsed.elements if a.get("id")]
+    assert ids.index("isometry") < ids.index("invariants") < ids.index("symmetry")
+    assert "Local isometry algebra" in parsed.text
+    assert "Independent invariants" in parsed.text
+
+
+def test_search_can_filter_by_isometry_dimension(site: Path) -> None:
+    # Issue 17: the computed isometry dimension is in the index and a filter of the finder.
+    browse = (site / "browse.html").read_text(encoding="utf-8")
+    assert 'id="f-isometry"' in browse and 'value="4"' in browse
+    index = (site / "assets" / "search-index.js").read_text(encoding="utf-8")
+    assert '"isometry":"4"' in index and '"isometry":""' in index
+    finder = next(site.rglob("finder.js")).read_text(encoding="utf-8")
+    assert "chosen.isometry" in finder

@@ -252,6 +252,7 @@ class Outline:
     id: str | None
     id_pos: SourcePos
     links: tuple[tuple[str, SourcePos], ...]  # (id of the related entry, where it is named)
+    limit_targets: frozenset[str] = frozenset()  # related ids linked as limits, not charts
 
 
 def outline_of(load: LoadResult) -> Outline:
@@ -259,7 +260,8 @@ def outline_of(load: LoadResult) -> Outline:
     if entry is None:
         return Outline(load.file, None, SourcePos(load.file, 1, 1), ())
     return Outline(load.file, entry.id, entry.pos("id"),
-                   tuple((item.entry, item.pos) for item in entry.related))
+                   tuple((item.entry, item.pos) for item in entry.related),
+                   frozenset(item.entry for item in entry.related if item.kind == "limit"))
 
 
 def outline_all(files: Iterable[Path], root: Path | None, base: Path) -> list[Outline]:
@@ -294,6 +296,7 @@ def peek_outline(path: Path, display: str) -> Outline | None:
     if not _is_plain_text(identity):
         return None
     links = []
+    limits: set[str] = set()
     related = top.get("related")
     if related is not None:
         if not isinstance(related, yaml.SequenceNode):
@@ -305,7 +308,11 @@ def peek_outline(path: Path, display: str) -> Outline | None:
             if not _is_plain_text(named.get("entry")):
                 return None
             links.append((named["entry"].value, node_position(display, item)))
-    return Outline(display, identity.value, node_position(display, identity), tuple(links))
+            kind = named.get("kind")
+            if _is_plain_text(kind) and kind.value == "limit":
+                limits.add(named["entry"].value)
+    return Outline(display, identity.value, node_position(display, identity), tuple(links),
+                   frozenset(limits))
 
 
 def _is_plain_text(node: yaml.Node | None) -> bool:
@@ -365,4 +372,5 @@ def chart_groups(links: Iterable[tuple[str, Iterable[str]]]) -> dict[str, str]:
 
 def outline_links(outlines: Iterable[Outline]) -> list[tuple[str, list[str]]]:
     """(id, linked ids) of every outline with an id, for ``chart_groups``."""
-    return [(o.id, [target for target, _ in o.links]) for o in outlines if o.id is not None]
+    return [(o.id, [target for target, _ in o.links if target not in o.limit_targets])
+            for o in outlines if o.id is not None]

@@ -104,6 +104,7 @@ def _matter(matter: Matter) -> dict[str, object]:
 def _claims(claims: Claims) -> dict[str, object]:
     """Claimed values only; where a value was taken from (source, locator) is provenance."""
     out: dict[str, object] = {c.name: _math(c.value) for c in claims.scalars}
+    out.update({c.name: _math(c.value) for c in claims.physical})
     if claims.petrov_type is not None:
         out["petrov_type"] = claims.petrov_type
     if claims.hawking_ellis_type is not None:
@@ -112,6 +113,13 @@ def _claims(claims: Claims) -> dict[str, object]:
         out["energy_conditions"] = dict(claims.energy_conditions)
     if claims.killing_vectors:
         out["killing_vectors"] = [_plain(v.components) for v in claims.killing_vectors]
+    if claims.killing_tensors:
+        out["killing_tensors"] = [{" ".join(k): _math(v) for k, v in t.components}
+                                  for t in claims.killing_tensors]
+    for name in ("conformal_killing_vectors", "homotheties"):
+        items = getattr(claims, name)
+        if items:
+            out[name] = [{"vector": _plain(c.vector), "factor": _math(c.factor)} for c in items]
     return out
 
 

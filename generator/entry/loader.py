@@ -25,6 +25,7 @@ from generator.errors import Diagnostic, MathSyntaxError, SourcePos
 from generator.model import (
     Claim,
     Claims,
+    ConformalClaim,
     Curation,
     Entry,
     FreeFunction,
@@ -34,6 +35,7 @@ from generator.model import (
     Reference,
     RelatedChart,
     Spacetime,
+    TensorClaim,
     VectorClaim,
 )
 
@@ -191,7 +193,8 @@ def _build_entry(data: dict[str, Any], file: str, path: Path,
         curation=Curation(data["curation"].get("added", ""), data["curation"].get("by", "")),
         related=tuple(
             RelatedChart(item["entry"], tuple(item.get("map", {}).items()),
-                         pos(f"related.{i}"))
+                         pos(f"related.{i}"), item.get("kind", "chart"),
+                         tuple(item.get("limit", {}).items()))
             for i, item in enumerate(data.get("related", ()))
             if "entry" in item
         ),
@@ -244,6 +247,12 @@ def _build_claims(data: dict[str, Any], pos: Any) -> Claims:
         for name in schema.SCALAR_CLAIMS
         if name in data and "value" in data[name]
     )
+    physical = tuple(
+        Claim(name, data[name]["value"], data[name].get("source"), data[name].get("locator"),
+              pos(f"claims.{name}"))
+        for name in schema.PHYSICAL_CLAIMS
+        if name in data and "value" in data[name]
+    )
     petrov = data.get("petrov_type", {})
     hawking_ellis = data.get("hawking_ellis_type", {})
     return Claims(
@@ -258,6 +267,24 @@ def _build_claims(data: dict[str, Any], pos: Any) -> Claims:
         ),
         pos=pos("claims"),
         label_sources=_label_sources(data),
+        physical=physical,
+        killing_tensors=tuple(
+            TensorClaim(item.get("name"),
+                        tuple((tuple(key.split()), value)
+                              for key, value in item.get("components", {}).items()),
+                        pos(f"claims.killing_tensors.{i}"))
+            for i, item in enumerate(data.get("killing_tensors", ()))
+        ),
+        conformal_killing_vectors=_conformal(data, "conformal_killing_vectors", pos),
+        homotheties=_conformal(data, "homotheties", pos),
+    )
+
+
+def _conformal(data: dict[str, Any], key: str, pos: Any) -> tuple[ConformalClaim, ...]:
+    return tuple(
+        ConformalClaim(tuple(item.get("vector", {}).items()), item["factor"],
+                       pos(f"claims.{key}.{i}"))
+        for i, item in enumerate(data.get(key, ())) if "factor" in item
     )
 
 
@@ -382,7 +409,8 @@ def _check_claim_sources(entry: Entry, path: Path, vocabulary: Vocabulary
                          ) -> Iterable[Diagnostic]:
     roles = {r.role for r in entry.references} | {schema.COMPUTED_HERE}
     # At the `source:` line itself (entry.pos falls back to the claim for the short form).
-    sources = [(c.source, entry.pos(f"claims.{c.name}.source")) for c in entry.claims.scalars]
+    sources = [(c.source, entry.pos(f"claims.{c.name}.source"))
+               for c in (*entry.claims.scalars, *entry.claims.physical)]
     sources += [(s, entry.pos(f"claims.{n}.source")) for n, s, _ in entry.claims.label_sources]
     for source, pos in sources:
         if source is not None and source not in roles:

@@ -8,7 +8,7 @@ never disagree.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Literal
 
 Kind = Literal[
@@ -80,12 +80,51 @@ ENERGY_CONDITION_KEYS = {name: f"{name}_condition" for name in ENERGY_CONDITIONS
 REFERENCE_ROLES = ("original", "independent", "claims", "textbook", "review", "erratum")
 REFERENCE_FIELDS = ("authors", "title", "venue", "year", "doi", "arxiv", "isbn", "locator")
 SCALAR_CLAIMS = ("ricci_scalar", "kretschmann", "ricci_squared", "weyl_squared")
+# Claims about physical data computed from the metric (generator.physics.physical). Horizon
+# claims name the principal horizon: the event horizon, else the outermost cosmological one.
+PHYSICAL_CLAIM_DOCS = (
+    ("horizon_location", "Where the principal horizon is (the value of its coordinate)."),
+    ("surface_gravity", "The principal horizon's surface gravity κ (κ ≥ 0)."),
+    ("horizon_area", "The area of the principal horizon's cross-section t = const."),
+    ("horizon_angular_velocity", "The principal horizon's angular velocity Ω_H."),
+    ("photon_sphere", "Radius of the outermost circular null orbit (static, spherical)."),
+    ("isco", "Radius of the innermost stable circular timelike orbit (static, spherical)."),
+    ("komar_mass", "Komar mass at infinity, M = −(n−2)/(16π(n−3)) ∮ ∇^a ξ^b dS_ab, ξ = ∂_t."),
+    ("komar_angular_momentum", "Komar angular momentum at infinity, J = (1/16π) ∮ ∇^a ψ^b dS_ab."),
+    ("expansion", "Expansion θ of the observers (declared fluid velocity, else at rest)."),
+    ("shear_squared", "σ_ab σ^ab of the observers (no factor ½)."),
+    ("vorticity_squared", "ω_ab ω^ab of the observers (no factor ½)."),
+    ("acceleration_squared", "a_a a^a of the observers."),
+)
+PHYSICAL_CLAIMS = tuple(name for name, _ in PHYSICAL_CLAIM_DOCS)
 COMPUTED_HERE = "computed-here"
+RELATED_KINDS = ("chart", "limit")
 
 
 def _vector(name: str, doc: str) -> Field:
     return Field(
         name, doc, "dict", key_pattern=NAME_PATTERN, item=Field("component", "", "math")
+    )
+
+
+PAIR_PATTERN = r"^[A-Za-z][A-Za-z0-9_]* [A-Za-z][A-Za-z0-9_]*$"
+
+
+def _conformal_list(name: str, doc: str) -> Field:
+    return Field(
+        name,
+        doc,
+        "list",
+        item=Field(
+            "conformal_vector",
+            "A vector and its conformal factor.",
+            "record",
+            fields=(
+                replace(_vector("vector", "Contravariant components ξ^a by coordinate."),
+                        required=True),
+                Field("factor", "The factor ψ in L_ξ g = 2ψ g.", "math", required=True),
+            ),
+        ),
     )
 
 
@@ -198,6 +237,7 @@ CLAIMS = Field(
         _scalar_claim("kretschmann", "The Kretschmann scalar R_abcd R^abcd."),
         _scalar_claim("ricci_squared", "The square of the Ricci tensor R_ab R^ab."),
         _scalar_claim("weyl_squared", "The square of the Weyl tensor C_abcd C^abcd."),
+        *(_scalar_claim(name, doc) for name, doc in PHYSICAL_CLAIM_DOCS),
         Field(
             "petrov_type",
             "The Petrov type (4D Lorentzian only).",
@@ -239,6 +279,32 @@ CLAIMS = Field(
             "list",
             item=_vector("vector", "A Killing vector."),
         ),
+        Field(
+            "killing_tensors",
+            "Rank-2 Killing tensors K_ab (∇_(a K_bc) = 0), e.g. Carter's tensor.",
+            "list",
+            item=Field(
+                "killing_tensor",
+                "A symmetric Killing tensor.",
+                "record",
+                fields=(
+                    Field("name", "What it is called, e.g. Carter's tensor.", "line"),
+                    Field(
+                        "components",
+                        "Lower-index components K_ab keyed 'a b' (coordinate names); each pair "
+                        "once; missing pairs are zero.",
+                        "dict",
+                        required=True,
+                        key_pattern=PAIR_PATTERN,
+                        item=Field("component", "", "math"),
+                    ),
+                ),
+            ),
+        ),
+        _conformal_list("conformal_killing_vectors",
+                        "Conformal Killing vectors ξ with L_ξ g = 2ψ g, ψ the stated factor."),
+        _conformal_list("homotheties",
+                        "Homothetic vectors: L_ξ g = 2c g with a constant factor c."),
     ),
 )
 
@@ -333,6 +399,12 @@ ENTRY = Field(
                         "map",
                         "This entry's coordinates as functions of the other entry's.",
                     ),
+                    Field("kind", "chart (default): another chart of the same spacetime; "
+                          "limit: the other entry is this metric in a limit of its "
+                          "parameters.", "choice", choices=RELATED_KINDS),
+                    Field("limit", "Kind limit: each parameter of this entry and the value it "
+                          "tends to (e.g. a: 0); the map, if given, then applies.", "dict",
+                          key_pattern=NAME_PATTERN, item=Field("value", "", "math")),
                 ),
             ),
         ),

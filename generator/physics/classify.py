@@ -18,9 +18,13 @@ from generator.geometry.curvature import WeylOperator
 from generator.geometry.sampling import Point, entry_points
 from generator.model import Classification, EnergyCondition, Entry, Geometry, Spacetime
 from generator.physics.energy import CONDITIONS, Spectrum, energy_conditions, hawking_ellis
+from generator.physics.limits_between import check_all_limits
 from generator.physics.matter import MatterResult, classify_matter
 from generator.physics.petrov import PetrovResult, petrov_type
+from generator.physics.physical import check_physical_claims, physical_data
 from generator.physics.symmetry import check_all_related, check_killing_vector, geodesic_equations
+from generator.physics.symmetry_stage import symmetry
+from generator.physics.weyl_frame import weyl_frame
 
 SAMPLE_COUNT = 10
 NO_MATTER = ("vacuum", "lambda-vacuum")
@@ -64,6 +68,23 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     diagnostics += [problem for _, problem in killing if problem is not None]
     linked, link_problems = check_all_related(entry, spacetime, related)
     diagnostics += link_problems
+    limit_verdicts, limit_problems = check_all_limits(entry, spacetime, related)
+    linked += limit_verdicts
+    diagnostics += limit_problems
+    source = matter.source
+    declared = source.vector if source is not None and source.kind == "perfect-fluid" else None
+    physical = physical_data(spacetime, geometry, declared)
+    physical_verdicts, physical_problems = check_physical_claims(entry, spacetime, physical)
+    diagnostics += physical_problems
+    try:
+        frame, why_no_frame = weyl_frame(geometry, spacetime, petrov, weyl_operator)
+    except ALGEBRA_FAILURES as exc:
+        frame, why_no_frame = None, f"the computer algebra failed ({type(exc).__name__})"
+    if frame is None:
+        reasons["weyl_frame"] = why_no_frame
+    summary, symmetry_problems = symmetry(entry, spacetime, geometry,
+                                          [verdict for verdict, _ in killing], frame)
+    diagnostics += symmetry_problems
     classification = Classification(
         matter_kind=matter.kind,
         cosmological_constant=matter.cosmological_constant,
@@ -78,6 +99,9 @@ def classify(entry: Entry, spacetime: Spacetime, geometry: Geometry,
         related_checked=tuple(linked),
         geodesic_equations=geodesic_equations(geometry, spacetime.coordinates),
         reasons=reasons,
+        physical=physical,
+        physical_checked=tuple(physical_verdicts),
+        symmetry=summary,
     )
     return classification, diagnostics
 

@@ -201,8 +201,8 @@ def check_all_related(entry: Entry, spacetime: Spacetime,
                       ) -> tuple[list[Verdict], list[Diagnostic]]:
     verdicts, diagnostics = [], []
     for index, link in enumerate(entry.related):
-        if link.entry not in related:
-            continue  # a missing entry is reported by the catalog stage
+        if link.entry not in related or link.kind == "limit":
+            continue  # a missing entry is reported by the catalog stage; limits: limits.py
         other_entry, other = related[link.entry]
         verdict, problem = check_related(entry, spacetime, index, link, other_entry, other)
         verdicts.append(verdict)

@@ -153,7 +153,8 @@ def search_twins(new: Sequence[EntryReport], catalog: Sequence[EntryReport],
     through chains (``catalog.chart_groups``); pairs in one group are never twins. Without
     it the groups come from the links of the reports searched."""
     if groups is None:
-        groups = chart_groups((r.entry.id, [item.entry for item in r.entry.related])
+        groups = chart_groups((r.entry.id, [item.entry for item in r.entry.related
+                                            if item.kind == "chart"])
                               for r in [*new, *catalog] if r.entry is not None)
     profiles: dict[int, _Profile] = {}
 

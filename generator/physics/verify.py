@@ -361,4 +361,7 @@ def label_verdicts(entry: Entry, classification: Classification,
             claimed == computed or subject == "matter.kind")
         out.append(Verdict(subject, ok, "exact", "", str(claimed), str(computed)))
     out += list(classification.killing_vectors_checked) + list(classification.related_checked)
+    out += list(classification.physical_checked)
+    if classification.symmetry is not None:
+        out += list(classification.symmetry.tensors_checked)
     return out

@@ -54,7 +54,7 @@ def verified_maps(published: Sequence[EntryReport]) -> list[_Map]:
         verdicts = {v.subject: v for v in classification.related_checked}
         for k, link in enumerate(entry.related):
             verdict = verdicts.get(related_subject(k))
-            if verdict is not None and verdict.ok and link.entry in ids:
+            if verdict is not None and verdict.ok and link.entry in ids and link.kind == "chart":
                 found.append(_Map(entry.id, link.entry,
                                   tuple((name, value.text) for name, value in link.map),
                                   verdict.method))

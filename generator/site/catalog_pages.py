@@ -21,6 +21,7 @@ from generator.site.common import (
     revision_file,
 )
 from generator.site.entry_page import EntryView
+from generator.site.physical_page import family_limit_tree
 
 
 def counts(cards: Sequence[dict[str, Any]], key: str) -> list[dict[str, Any]]:
@@ -58,6 +59,7 @@ def browse_context(cards: Sequence[dict[str, Any]], meta: CatalogMeta) -> dict[s
         "matter_kinds": [{"value": k, "label": MATTER_LABELS.get(k, k)}
                          for k in sorted({c["matter"] for c in cards})],
         "petrov_types": sorted({c["petrov"] for c in cards if c["petrov"]}),
+        "isometry_dimensions": sorted({c["isometry"] for c in cards if c["isometry"]}, key=int),
         "evidence": [{"value": k, "label": EVIDENCE_LABELS[k]}
                      for k in sorted({c["evidence"] for c in cards})],
         "tags": used_tags,
@@ -117,6 +119,7 @@ def family_context(name: str, cards: Sequence[dict[str, Any]], meta: CatalogMeta
         **base_context(meta, "../", family.title, "families"),
         "family": {"name": family.name, "title": family.title, "about": family.about},
         "cards": [c for c in cards if c["family"] == name],
+        "limit_tree": family_limit_tree([c for c in cards if c["family"] == name]),
     }
 
 
@@ -155,7 +158,8 @@ def catalog_json(entries: Sequence[dict[str, Any]], meta: CatalogMeta) -> str:
 def search_index_script(cards: Sequence[dict[str, Any]]) -> str:
     """The search index as a script (not fetched), so search works from file:// too."""
     fields = ("id", "title", "chart", "summary", "family", "family_title", "tags", "dimension",
-              "matter", "matter_label", "petrov", "evidence", "authors", "years", "href")
+              "matter", "matter_label", "petrov", "isometry", "evidence", "authors", "years",
+              "href")
     rows = [{k: c[k] for k in fields} for c in cards]
     text = json.dumps(rows, ensure_ascii=True, sort_keys=True, separators=(",", ":"))
     text = text.replace("<", "\\u003c").replace(">", "\\u003e").replace("&", "\\u0026")

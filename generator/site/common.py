@@ -141,6 +141,8 @@ class Surroundings:
 
     published_links: tuple[str, ...] = ()  # entries its own `related` names that are published
     charts: tuple[ChartLink, ...] = ()  # other charts of its spacetime (atlas.chart_links)
+    # verified limit links (from, to, limit) among published entries of its family of limits
+    limits: tuple[tuple[str, str, str], ...] = ()
 
 
 NOWHERE = Surroundings()  # an entry seen without the rest of the catalog

@@ -58,6 +58,14 @@ from generator.site.common import (
     verdict_row,
 )
 from generator.site.downloads import entry_json, latex_document, sympy_script
+from generator.site.isometry_page import isometry_data, isometry_dimension_text
+from generator.site.physical_page import (
+    limit_families,
+    limit_rows,
+    limit_tree,
+    physical_section,
+    verified_limit_links,
+)
 from generator.site.prose_html import (
     abbreviation_rows,
     prose_line,
@@ -86,8 +94,10 @@ def surroundings(published: Sequence[EntryReport]) -> dict[str, Surroundings]:
     """The surroundings of every published entry, in the order given."""
     ids = {r.entry.id for r in published if r.entry is not None}
     charts = chart_links(published)
+    families = limit_families(published)
     return {r.entry.id: Surroundings(
-                tuple(sorted({rel.entry for rel in r.entry.related} & ids)), charts[r.entry.id])
+                tuple(sorted({rel.entry for rel in r.entry.related} & ids)), charts[r.entry.id],
+                families.get(r.entry.id, ()))
             for r in published if r.entry is not None}
 
 
@@ -130,6 +140,7 @@ def entry_card(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "matter": kind,
         "matter_label": MATTER_LABELS.get(kind, kind),
         "petrov": (c.petrov_type if c else None) or "",
+        "isometry": isometry_dimension_text(report),
         "agreements": report.agreements,
         "evidence": "literature" if report.agreements else "computed-only",
         "evidence_label": EVIDENCE_LABELS["literature" if report.agreements else "computed-only"],
@@ -139,6 +150,7 @@ def entry_card(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "summary_html": prose_line(entry.summary, prose_symbols(entry, report.spacetime)),
         "chart_html": prose_line(entry.chart, prose_symbols(entry, report.spacetime)),
         "notes_text": plain_prose(entry.notes),  # for the search index only
+        "limit_links": verified_limit_links(report),
     }
 
 
@@ -164,7 +176,11 @@ def entry_page_data(
         "tensors": tensor_tables(report, abbreviation_pairs(report)),
         "matter": matter_data(report, verdicts),
         "symmetry": symmetry_data(report, verdicts),
+        "isometry": isometry_data(report),
         "related": related_rows(report, around.published_links),
+        "physical": physical_section(report),
+        "limits": limit_rows(report, around.published_links),
+        "limit_tree": limit_tree(around.limits, entry.id),
         "maps_onto_here": [chart_link_row(c) for c in around.charts if c.kind == MAPS_HERE],
         "charts_through": [chart_link_row(c) for c in around.charts if c.kind != MAPS_HERE],
         "references": [reference_data(r) for r in entry.references],
@@ -481,6 +497,8 @@ def related_rows(report: EntryReport, published: Sequence[str]) -> list[dict[str
     checks = {v.subject: v for v in (c.related_checked if c else ())}
     rows = []
     for k, rel in enumerate(entry.related):
+        if rel.kind == "limit":
+            continue  # shown with the limits (physical_page.limit_rows), not as a chart
         verdict = checks.get(related_subject(k))
         rows.append({
             "entry": rel.entry,

@@ -15,6 +15,7 @@ import sympy
 
 from generator.model import Classification, EntryReport, Geometry, Spacetime, Verdict
 from generator.physics.verify import entry_state
+from generator.site.physical_json import physical_json
 
 
 def expr_text(expr: sympy.Basic | None) -> str | None:
@@ -110,7 +111,50 @@ def classification_json(c: Classification, names: list[str]) -> dict[str, Any]:
         "related_checked": [verdict_json(v) for v in c.related_checked],
         "geodesic_equations": [str(g) for g in c.geodesic_equations],
         "not_applicable": dict(sorted(c.reasons.items())),
+        "physical_checked": [verdict_json(v) for v in c.physical_checked],
+        **physical_json(c.physical),
+        **symmetry_json(c, names),
     }
+
+
+def symmetry_json(c: Classification, names: list[str]) -> dict[str, Any]:
+    """The symmetry keys of the contract (isometry, independent_invariants,
+    killing_tensors_checked, weyl_frame, weyl_invariants) and their companions."""
+    s = c.symmetry
+    if s is None:
+        return {"isometry": None, "independent_invariants": None,
+                "killing_tensors_checked": [], "weyl_frame": None, "weyl_invariants": None}
+    iso = s.isometry
+    return {
+        "isometry": {
+            "dimension": iso.dimension,
+            "orbit_dimension": iso.orbit_dimension,
+            "listed": iso.listed,
+            "basis": [{name: str(value) for name, value in vector} for vector in iso.basis],
+            "complete": iso.complete,
+            "method": iso.method,
+            "why_null": iso.why_null,
+            "structure_constants": [
+                {"bracket": [i, j], "coefficients": [str(v) for v in coefficients]}
+                for i, j, coefficients in iso.structure],
+            "algebra": iso.algebra_name,
+        },
+        "independent_invariants": s.invariants.count,
+        "invariant_relation": {"invariants": list(s.invariants.used),
+                               "relation": s.invariants.relation,
+                               "consistent": s.invariants.consistent,
+                               "why_null": s.invariants.why_null},
+        "killing_tensors_checked": [verdict_json(v) for v in s.tensors_checked],
+        "weyl_frame": None if s.weyl_frame is None else weyl_frame_json(s.weyl_frame),
+        "weyl_invariants": None if s.weyl_frame is None or s.weyl_frame.invariant_i is None
+        else {"I": str(s.weyl_frame.invariant_i), "J": str(s.weyl_frame.invariant_j)},
+    }
+
+
+def weyl_frame_json(frame: Any) -> dict[str, Any]:
+    return {"tetrad": {k: {name: str(v) for name, v in vector} for k, vector in frame.tetrad},
+            "principal": frame.principal, "frame": frame.name, "why": frame.why,
+            **{k: str(v) for k, v in frame.scalars}}
 
 
 def verdict_json(v: Verdict) -> dict[str, Any]:

@@ -302,6 +302,9 @@ def metric_functions_plot(report: EntryReport, setting: PlotSetting) -> Plot | N
     for label, values in series:
         axis.plot(radius, values, label=label, linewidth=1.4)
     axis.axhline(0.0, color="0.5", linewidth=0.6)
+    marks = horizon_marks(report, setting)
+    for mark in marks:
+        axis.axvline(mark, color="0.3", linestyle=":", linewidth=1.0)
     axis.legend(loc="best", frameon=False)
     axis.set_xlabel(axis_label(setting))
     axis.set_ylabel("metric component (clipped to ±20)")
@@ -316,8 +319,34 @@ def metric_functions_plot(report: EntryReport, setting: PlotSetting) -> Plot | N
             "the time-translation Killing vector is null (a horizon of a static chart, the "
             "static limit of a rotating one); where g_rr diverges the chart is singular.",
         caption=f"Metric functions against {r}, units G = c = 1, with "
-                f"{values_text}; values clipped to ±20.",
+                f"{values_text}; values clipped to ±20."
+                + (f" Dotted lines: horizons at {r} ≈ "
+                   + ", ".join(f"{m:.4g}" for m in marks) + "." if marks else ""),
     )
+
+
+def horizon_marks(report: EntryReport, setting: PlotSetting) -> list[float]:
+    """Radii of the computed horizons along the plotted coordinate at the plot's parameter
+    values: the real roots of each horizon's polynomial inside the plotted range."""
+    c = report.classification
+    if c is None or c.physical is None:
+        return []
+    found: set[float] = set()
+    for polynomial in {h.polynomial for h in c.physical.horizons
+                       if h.coordinate == str(setting.radial)}:
+        variable = next(iter(s for s in polynomial.free_symbols if str(s) == "h_root"), None)
+        if variable is None:
+            continue
+        values = {k: v for k, v in setting.values.items() if k in setting.parameters}
+        try:
+            coefficients = [complex(sympy.N(x.xreplace(values))) for x in
+                            sympy.Poly(polynomial, variable).all_coeffs()]
+        except (TypeError, ValueError, sympy.PolynomialError):
+            continue
+        for root in numpy.roots(coefficients):
+            if abs(root.imag) < 1e-9 and setting.low < root.real < setting.high:
+                found.add(round(float(root.real), 9))
+    return sorted(found)
 
 
 def scale_factor_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:

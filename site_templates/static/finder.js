@@ -24,6 +24,7 @@
     matter: document.getElementById("f-matter"),
     petrov: document.getElementById("f-petrov"),
     evidence: document.getElementById("f-evidence"),
+    isometry: document.getElementById("f-isometry"),
     tag: document.getElementById("f-tag")
   };
   if (!form || !query) { return; }
@@ -123,6 +124,7 @@
     if (chosen.matter && item.matter !== chosen.matter) { return false; }
     if (chosen.petrov && item.petrov !== chosen.petrov) { return false; }
     if (chosen.evidence && item.evidence !== chosen.evidence) { return false; }
+    if (chosen.isometry && item.isometry !== chosen.isometry) { return false; }
     if (chosen.tag && item.tags.indexOf(chosen.tag) < 0) { return false; }
     if (found.petrov && item.petrov !== found.petrov) { return false; }
     if (found.dimension && String(item.dimension) !== found.dimension) { return false; }

@@ -21,6 +21,8 @@ from generator.model import (
     Family,
     FreeFunction,
     Geometry,
+    InvariantCount,
+    IsometryAlgebra,
     MathText,
     Matter,
     Parameter,
@@ -29,6 +31,7 @@ from generator.model import (
     RelatedChart,
     Revision,
     Spacetime,
+    SymmetryResult,
     Tag,
     VectorClaim,
     Verdict,
@@ -213,6 +216,10 @@ def lantern_report(title: str = "Harbour lantern (demo)", **text: str) -> EntryR
                                          "Lie derivative of g vanishes"),),
         related_checked=(Verdict("related.0", True, "exact", "demo map", "", "equal"),),
         geodesic_equations=(),
+        symmetry=SymmetryResult(
+            IsometryAlgebra(4, 3, 1, ((("t", sympy.Integer(1)),),), False,
+                            "demo: integrability conditions", None),
+            (), InvariantCount(1, ("R_abcd R^abcd",), "demo relation", True)),
     )
     return EntryReport(entry, file, spacetime, geometry, classification, verdicts, (),
                        content_hash="c0ffee" * 10 + "abcd", seconds=0.5)

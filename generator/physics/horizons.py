@@ -1,0 +1,769 @@
+"""Horizons of an entry: where they are, what kind, and their surface gravity, area and
+temperature — computed from the metric, exactly where the algebra allows.
+
+A surface x = const is null where g^{xx} = 0 (its normal dx has norm g^{xx}). The candidates
+are the factors of g^{xx}'s numerator (flint factoring) that depend on x and the parameters
+only. Each root is kept exact as a generator h of the metric's field with its polynomial P(h)
+(``rootfield``); the usual closed forms (linear, quadratic, biquadratic) are substituted for h
+only at the end, for display and for comparing claims.
+
+Kinds come from the sign of g^{xx} on either side of each root (x spacelike where g^{xx} > 0):
+going outwards, a root where g^{xx} turns positive is a black-hole horizon (the outermost one
+is the event horizon), one where it turns negative is a cosmological horizon, or an inner
+(Cauchy) horizon when a black-hole horizon lies further out. The horizon's generator is the
+Killing vector χ = ∂_t + Ω_H ∂_φ whose covector is normal to it (χ_a ∝ ∂_a x on the horizon);
+its surface gravity is κ² = −½ ∇_a χ_b ∇^a χ^b on the horizon (a limit along x, since the chart
+is usually singular there), with ∇_a χ_b = ∂_[a χ_b] because χ is Killing.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+import mpmath
+import sympy
+
+from generator.geometry.algebra import (
+    FieldRequest,
+    Frac,
+    NotInField,
+    build_field,
+)
+from generator.geometry.curvature import Budget, FieldArithmetic, Limits, inverse_matrix
+from generator.geometry.equality import canonical, exact_square_root
+from generator.geometry.sampling import Point, angle_coordinates, entry_points, numeric_value
+from generator.model import Geometry, Horizon, Spacetime
+from generator.physics.rootfield import RootField, root_field
+
+H = sympy.Symbol("h_root", real=True)
+DIGITS = 30
+PERIOD_NOTE = "azimuthal angles taken with period 2π"
+# Cyclic coordinates read as azimuthal angles of period 2π (others, such as a cyclic z or y of
+# a planar chart, have no known range and give no area).
+AZIMUTHS = ("phi", "varphi", "psi")
+
+
+# ---------------------------------------------------------------------------- candidates
+
+
+def horizon_factors(spacetime: Spacetime, geometry: Geometry
+                    ) -> tuple[list[tuple[int, sympy.Expr]], list[sympy.Expr]]:
+    """(coordinate index, factor of g^{xx}'s numerator in x and the parameters only), and
+    the factors in x that also hold radicals or functions (not solved here)."""
+    n = spacetime.dimension
+    diagonal = tuple(geometry.inverse_metric[i, i] for i in range(n))
+    request = FieldRequest(spacetime.coordinates, spacetime.parameters, spacetime.functions,
+                           diagonal, 0)
+    try:
+        field, values = build_field(request)
+    except (NotInField, ZeroDivisionError):
+        return [], []
+    parameter_vars = {field.index[p] for p in spacetime.parameters if p in field.index}
+    coordinate_vars = {field.index[x] for x in spacetime.coordinates if x in field.index}
+    found, unsolved = [], []
+    for i, value in enumerate(values):
+        x = spacetime.coordinates[i]
+        if value.is_zero() or x not in field.index:
+            continue
+        x_var = field.index[x]
+        _, factors = value.num.factor()
+        for factor, _power in factors:
+            degrees = factor.degrees()
+            used = {k for k, d in enumerate(degrees) if d}
+            if degrees[x_var] >= 1 and used <= parameter_vars | {x_var}:
+                found.append((i, field.poly_to_sympy(factor)))
+            elif used and not used <= parameter_vars | coordinate_vars and any(
+                    spec.meaning.has(x) for k, spec in enumerate(field.specs) if k in used):
+                unsolved.append(field.poly_to_sympy(factor))
+    return found, unsolved
+
+
+def closed_form_roots(polynomial: sympy.Expr, x: sympy.Symbol) -> list[sympy.Expr] | None:
+    """All roots by radicals for degree 1, 2 and biquadratic polynomials, else None."""
+    poly = sympy.Poly(polynomial, x)
+    degree = poly.degree()
+    coeffs = poly.all_coeffs()
+    if degree == 1:
+        return [-coeffs[1] / coeffs[0]]
+    if degree == 2:
+        a, b, c = coeffs
+        root = sympy.sqrt(sympy.factor(b**2 - 4 * a * c))
+        return [(-b + root) / (2 * a), (-b - root) / (2 * a)]
+    if degree == 4 and coeffs[1] == 0 and coeffs[3] == 0:
+        a, _, b, _, c = coeffs
+        root = sympy.sqrt(sympy.factor(b**2 - 4 * a * c))
+        squares = [(-b + root) / (2 * a), (-b - root) / (2 * a)]
+        return [s * sympy.sqrt(q) for q in squares for s in (1, -1)]
+    return None
+
+
+# ---------------------------------------------------------------------------- the whole job
+
+
+def find_horizons(spacetime: Spacetime, geometry: Geometry
+                  ) -> tuple[tuple[Horizon, ...], str, tuple[str, ...]]:
+    """Horizons, a sentence on how complete the list is, and extremality conditions."""
+    if not spacetime.lorentzian:
+        return (), "not applicable: horizons need a Lorentzian metric", ()
+    points = entry_points(spacetime, 3)
+    if not points:
+        return (), "no sample point in the domain to locate roots", ()
+    factors, unsolved = horizon_factors(spacetime, geometry)
+    horizons: list[Horizon] = []
+    extremal: list[str] = []
+    rootless: list[sympy.Expr] = []
+    for x_index, factor in factors:
+        found, condition, has_roots = horizons_of_factor(spacetime, geometry, x_index, factor,
+                                                         points)
+        horizons += found
+        extremal += [condition] if condition else []
+        if not has_roots and factor.free_symbols & set(spacetime.parameters):
+            rootless.append(factor)
+    horizons = classify_kinds(spacetime, geometry, horizons, points[0])
+    unsolved_note = ""
+    if unsolved:
+        shown = "; ".join(str(f) for f in unsolved[:3])
+        unsolved_note = (f"; g^{{xx}} also has factors with radicals or functions ({shown}) "
+                         "whose zeros this version does not locate, so horizons there are "
+                         "not listed")
+    if not horizons:
+        if unsolved:
+            return (), "not determined" + unsolved_note, ()
+        if rootless:
+            at = ", ".join(f"{k} = {v}" for k, v in sorted(
+                ((p, points[0][p]) for p in spacetime.parameters if p in points[0]), key=str))
+            shown = "; ".join(str(f) for f in rootless[:3])
+            return (), (f"none at the first sample parameters ({at}): the factor(s) {shown} "
+                        "of g^{xx} have no real root in the chart's range there, but may for "
+                        "other parameter values"), ()
+        return (), ("none found: no factor of any g^{xx} (x a coordinate) vanishes at a real "
+                    "value inside the chart's range; a horizon this chart does not reach in "
+                    "that form (e.g. isotropic or Kruskal-type charts) is not excluded"), ()
+    note = ("null surfaces x = const where a factor of g^{xx} in x and the parameters "
+            "vanishes; every such root is listed, including those outside the entry's "
+            "domain; roots where no Killing vector ∂_t + Ω ∂_φ is normal (such as an axis) "
+            "are left out" + unsolved_note)
+    return tuple(horizons), note, tuple(extremal)
+
+
+def horizons_of_factor(spacetime: Spacetime, geometry: Geometry, x_index: int,
+                       factor: sympy.Expr, points: Sequence[Point]
+                       ) -> tuple[list[Horizon], str | None, bool]:
+    """The horizons of one factor, the extremality condition, and whether it has real roots
+    in range at the first sample parameters."""
+    x = spacetime.coordinates[x_index]
+    polynomial = sympy.expand(factor.xreplace({x: H}))
+    params = {p: points[0][p] for p in spacetime.parameters if p in points[0]}
+    numeric = real_roots(polynomial, params)
+    positive = all(point[x] > 0 for point in points if x in point) or even_in(spacetime, x)
+    if positive:
+        numeric = [v for v in numeric if v > 0]
+    if not numeric:
+        return [], None, False
+    explicit = closed_form_roots(polynomial, H)
+    condition = extremality(polynomial, params) if len(numeric) > 1 else None
+    try:
+        data = HorizonAlgebra(spacetime, x_index, polynomial, points)
+    except (NotInField, ZeroDivisionError):
+        data = None
+    if data is not None and data.time is not None and not data.chi and \
+            data.reasons.get("normal_killing_vector", "").startswith("no Killing vector"):
+        return [], None, True  # e.g. an axis of symmetry, where a rotation vector vanishes
+    found = []
+    for value in numeric:
+        location = match_root(explicit, value, params)
+        found.append(make_horizon(spacetime, geometry, x_index, polynomial, location, value,
+                                  data, points))
+    return found, condition, True
+
+
+def real_roots(polynomial: sympy.Expr, params: dict) -> list[mpmath.mpf]:
+    coeffs = sympy.Poly(polynomial.xreplace(params), H).all_coeffs()
+    with mpmath.workdps(DIGITS):
+        roots = mpmath.polyroots([mpmath.mpf(sympy.Rational(c).p) / sympy.Rational(c).q
+                                  for c in coeffs], maxsteps=200, extraprec=60)
+        out = sorted({mpmath.mpf(mpmath.re(r)) for r in roots
+                      if abs(mpmath.im(r)) < mpmath.mpf(10) ** (5 - DIGITS)})
+    return list(out)
+
+
+def match_root(explicit: list[sympy.Expr] | None, value: mpmath.mpf, params: dict
+               ) -> sympy.Expr | None:
+    """The closed-form root that takes ``value`` at the sample parameters."""
+    for candidate in explicit or []:
+        number = numeric_value(candidate.xreplace(params), DIGITS)
+        if number is not None and abs(number - value) < mpmath.mpf(10) ** (10 - DIGITS) * (
+                1 + abs(value)):
+            return candidate
+    return None
+
+
+def extremality(polynomial: sympy.Expr, params: dict) -> str:
+    """Where two roots merge: the discriminant D of P vanishes (in x² for a biquadratic P);
+    the side of D = 0 the sample parameters are on is where the roots are distinct."""
+    poly = sympy.Poly(polynomial, H)
+    coeffs = poly.all_coeffs()
+    if poly.degree() == 4 and coeffs[1] == 0 and coeffs[3] == 0:
+        u = sympy.Dummy("u")
+        discriminant = sympy.discriminant(coeffs[0] * u**2 + coeffs[2] * u + coeffs[4], u)
+    else:
+        discriminant = sympy.discriminant(polynomial, H)
+    shown = sympy.factor(discriminant)
+    value = discriminant.xreplace(params)
+    side = ">" if value.is_positive else "<" if value.is_negative else None
+    if side is None:
+        return f"two roots merge (extremal) where {shown} = 0"
+    return (f"distinct roots while {shown} {side} 0 (as at the first sample parameters); two "
+            f"roots merge (extremal) where {shown} = 0")
+
+
+def even_in(spacetime: Spacetime, x: sympy.Symbol) -> bool:
+    """The metric is unchanged by x → −x (then only x > 0 is kept)."""
+    flipped = spacetime.metric.xreplace({x: -x})
+    return all(sympy.expand(a - b) == 0 for a, b in zip(flipped, spacetime.metric, strict=True))
+
+
+# ---------------------------------------------------------------------------- per factor
+
+
+class HorizonAlgebra:
+    """Everything at a root of one factor that does not depend on which root: the Killing
+    generator, Ω_H, κ² and the area element, as fractions in h (exact modulo P(h))."""
+
+    def __init__(self, spacetime: Spacetime, x_index: int, polynomial: sympy.Expr,
+                 points: Sequence[Point]) -> None:
+        self.spacetime = spacetime
+        self.rf: RootField = root_field(spacetime, x_index, polynomial, H)
+        self.points = points
+        self.reasons: dict[str, str] = {}
+        self.time, self.rotations = killing_coordinates(spacetime, points)
+        self.probe = simple_point(spacetime, points[0])
+        self.omega: Frac | None = None
+        self.kappa_squared: Frac | None = None
+        self.kappa_root: Frac | None = None  # ±κ when κ² is visibly a square in h
+        self.area_density: Frac | None = None
+        self.chi: dict[int, Frac] = {}
+        self.rotating: list[int] = []
+        self.block: list[int] = []
+        self._generator()
+        if self.chi:
+            self._surface_gravity()
+        self._area_element()
+
+    # -- helpers
+    def others(self) -> list[int]:
+        """Coordinates other than x and the cyclic ones (the horizon's non-Killing directions)."""
+        cyclic = set(cyclic_coordinates(self.spacetime))
+        return [i for i in range(self.spacetime.dimension)
+                if i != self.rf.x_index and i not in cyclic]
+
+    def constant_on_horizon(self, value: Frac) -> bool:
+        field = self.rf.field
+        return all(self.rf.vanishes(field.diff(value, i).num) for i in self.others()
+                   if not field.diff(value, i).is_zero())
+
+    def fixed(self, value: Frac) -> Frac | None:
+        """``value`` with the other coordinates set to a sample point (valid when it is
+        constant on the horizon); None when a generator has no rational value there."""
+        field = self.rf.field
+        angles = angle_coordinates(self.spacetime)
+        from generator.geometry.sampling import substitute
+
+        replacements = {}
+        for k, spec in enumerate(field.specs):
+            if spec.kind in ("parameter", "constant") or k == self.rf.x_var:
+                continue
+            if not any(spec.meaning.has(self.spacetime.coordinates[i]) for i in self.others()):
+                continue
+            if value.num.degrees()[k] == 0 and value.den.degrees()[k] == 0:
+                continue
+            number = substitute(spec.meaning, self.probe, angles)
+            if not number.is_Rational:
+                return None
+            replacements[f"g{k}"] = number
+        if not replacements:
+            return value
+        import flint
+
+        values = {name: flint.fmpq(int(v.p), int(v.q)) for name, v in replacements.items()}
+        num, den = value.num.subs(values), value.den.subs(values)
+        if den.is_zero() or self.rf.vanishes(den):
+            return None
+        return field.normal(num, den)
+
+    # -- the generator of the horizon
+    def _generator(self) -> None:
+        g, field = self.rf.metric, self.rf.field
+        if self.time is None:
+            self.reasons["normal_killing_vector"] = ("the metric depends on every coordinate "
+                                                     "but x: no stationary Killing vector ∂_t")
+            return
+        t = self.time
+        rotating = [j for j in self.rotations if not g[t][j].is_zero()]
+        if len(rotating) > 1:
+            self.reasons["normal_killing_vector"] = "more than one rotation plane"
+            return
+        omega = field.zero()
+        if rotating:
+            j = rotating[0]
+            top, bottom = self.rf.at_root(g[t][j]), self.rf.at_root(g[j][j])
+            if top is None or bottom is None or bottom.is_zero():
+                self.reasons["normal_killing_vector"] = "g_tφ / g_φφ is singular there"
+                return
+            omega = field.neg(field.div(top, bottom))
+            if not self.constant_on_horizon(omega):
+                self.reasons["normal_killing_vector"] = ("the angular velocity -g_tφ/g_φφ is "
+                                                         "not constant on it")
+                return
+            omega = self.fixed(omega)
+            if omega is None:
+                self.reasons["normal_killing_vector"] = "Ω_H has no rational sample value"
+                return
+        self.omega = omega
+        self.rotating = rotating
+        n = self.spacetime.dimension
+        chi = {a: field.sum([g[a][t]] + [field.mul(omega, g[a][j]) for j in rotating])
+               for a in range(n)}
+        for a in range(n):
+            if a == self.rf.x_index:
+                continue
+            lowered = self.rf.at_root(chi[a])
+            if lowered is None or (not lowered.is_zero() and not self.rf.vanishes(lowered.num)):
+                self.reasons["normal_killing_vector"] = (
+                    "no Killing vector ∂_t + Ω ∂_φ is normal to it (χ_a is not along dx)")
+                return
+        self.chi = chi
+
+    # -- κ²
+    def _surface_gravity(self) -> None:
+        field = self.rf.field
+        ar = FieldArithmetic(field)
+        n = self.spacetime.dimension
+        inverse = inverse_matrix(ar, [list(row) for row in self.rf.metric],
+                                 Budget.start(Limits()))
+        curl = [[field.scale(field.sub(field.diff(self.chi[b], a), field.diff(self.chi[a], b)),
+                             sympy.Rational(1, 2)) for b in range(n)] for a in range(n)]
+        raised = [[field.sum([field.mul(inverse[a][c], field.mul(inverse[b][d], curl[c][d]))
+                              for c in range(n) for d in range(n)
+                              if not curl[c][d].is_zero()]) for b in range(n)] for a in range(n)]
+        square = field.sum([field.mul(curl[a][b], raised[a][b]) for a in range(n)
+                            for b in range(n)])
+        value = self.rf.limit(field.scale(square, sympy.Rational(-1, 2)))
+        if value is None:
+            self.reasons["surface_gravity"] = "−½ ∇χ·∇χ has no finite limit on the horizon"
+            return
+        if not self.constant_on_horizon(value):
+            self.reasons["surface_gravity"] = ("κ² is not constant on it (not a Killing "
+                                               "horizon of ∂_t + Ω ∂_φ)")
+            return
+        self.kappa_squared = self.fixed(value)
+        if self.kappa_squared is not None:
+            self.kappa_root = self.rf.field.square_root(self.kappa_squared)
+        if self.kappa_squared is None:
+            self.reasons["surface_gravity"] = "κ² has no rational sample value"
+
+    # -- area element
+    def _area_element(self) -> None:
+        n = self.spacetime.dimension
+        skip = {self.rf.x_index} | ({self.time} if self.time is not None else set())
+        if self.time is None:
+            self.reasons["area"] = "no time coordinate to cut the horizon at t = const"
+            return
+        block = [a for a in range(n) if a not in skip]
+        ar = FieldArithmetic(self.rf.field)
+        # determinant by Laplace expansion in the field (blocks are at most 3x3 here)
+        values = [[self.rf.metric[a][b] for b in block] for a in block]
+        det = field_det(ar, values)
+        at = self.rf.at_root(det)
+        if at is None:
+            self.reasons["area"] = "the induced metric is singular on the horizon"
+            return
+        self.area_density = at
+        self.block = block
+
+
+def simple_point(spacetime: Spacetime, point: Point) -> Point:
+    """The sample point with each polar angle (0 < y < π in the domain) moved to π/2, where
+    sin = 1 and cos = 0: quantities constant on a horizon are then read off in their
+    shortest form."""
+    probe = dict(point)
+    for y in spacetime.coordinates:
+        if polar_range(spacetime, y) is not None:
+            probe[y] = sympy.pi / 2
+            probe[sympy.sin(y)] = sympy.Integer(1)
+            probe[sympy.cos(y)] = sympy.Integer(0)
+    return probe
+
+
+def field_det(ar: FieldArithmetic, m: list[list[Frac]]) -> Frac:
+    size = len(m)
+    if size == 0:
+        return ar.one()
+    if size == 1:
+        return m[0][0]
+    terms = []
+    for j in range(size):
+        if m[0][j].is_zero():
+            continue
+        minor = [row[:j] + row[j + 1:] for row in m[1:]]
+        term = ar.product(m[0][j], field_det(ar, minor))
+        terms.append(term if j % 2 == 0 else ar.scale(term, -1))
+    return ar.sum(terms)
+
+
+def cyclic_coordinates(spacetime: Spacetime) -> list[int]:
+    return [i for i, x in enumerate(spacetime.coordinates)
+            if not any(v.has(x) for v in spacetime.metric)]
+
+
+def killing_coordinates(spacetime: Spacetime, points: Sequence[Point]
+                        ) -> tuple[int | None, list[int]]:
+    """The time coordinate (cyclic, g_tt < 0 at the most sample points; None when no cyclic
+    coordinate is timelike at any) and the other cyclic coordinates (rotations)."""
+    cyclic = cyclic_coordinates(spacetime)
+    if not cyclic:
+        return None, []
+    angles = angle_coordinates(spacetime)
+    from generator.geometry.sampling import substitute
+
+    def timelike_votes(i: int) -> int:
+        votes = 0
+        for point in points:
+            number = numeric_value(substitute(spacetime.metric[i, i], point, angles), DIGITS)
+            votes += 1 if number is not None and mpmath.re(number) < 0 else 0
+        return votes
+
+    scores = {i: timelike_votes(i) for i in cyclic}
+    best = max(cyclic, key=lambda i: (scores[i], -i))
+    if not scores[best]:
+        return None, []  # no cyclic coordinate is timelike anywhere sampled
+    return best, [i for i in cyclic if i != best]
+
+
+# ---------------------------------------------------------------------------- per root
+
+
+def make_horizon(spacetime: Spacetime, geometry: Geometry, x_index: int,
+                 polynomial: sympy.Expr, location: sympy.Expr | None, value: mpmath.mpf,
+                 data: HorizonAlgebra | None, points: Sequence[Point]) -> Horizon:
+    x = spacetime.coordinates[x_index]
+    names = [str(c) for c in spacetime.coordinates]
+    reasons: dict[str, str] = {}
+    if location is None:
+        shown_location = H
+        how = (f"root of {sympy.factor(polynomial)} = 0 in h = {x} (no closed form used; "
+               f"h ≈ {mpmath.nstr(value, 12)} at the first sample parameters)")
+    else:
+        shown_location = location
+        how = f"root of {sympy.factor(polynomial.xreplace({H: x}))} = 0, by radicals"
+    place = domain_place(spacetime, x, value, points[0])
+    how += f"; {place}"
+    if data is None:
+        reason = "the metric does not fit the exact field"
+        return Horizon(str(x), shown_location, polynomial, "undetermined", None, None, None,
+                       None, None, None, how, {"all": reason}, mpmath.nstr(value, 20))
+
+    def at(value_frac: Frac | None, key: str) -> sympy.Expr | None:
+        if value_frac is None:
+            reasons[key] = data.reasons.get(key, data.reasons.get("normal_killing_vector",
+                                                                   "not computed"))
+            return None
+        return in_location(data.rf.field.display(value_frac), location)
+
+    omega = shortest(at(data.omega, "angular_velocity"), spacetime, location)
+    vector = None
+    if data.omega is not None:
+        vector = ((names[data.time], sympy.Integer(1)),
+                  *((names[j], omega) for j in data.rotating if omega != 0))
+        if not data.rotating and not data.rotations:
+            omega = None
+            reasons["angular_velocity"] = "no axial Killing coordinate"
+    kappa_squared = at(data.kappa_squared, "surface_gravity")
+    kappa = None
+    numeric_point = {p: points[0][p] for p in spacetime.parameters if p in points[0]}
+    numeric_point[H] = sympy.Rational(mpmath.nstr(value, 25))
+    if kappa_squared is not None:
+        if data.kappa_root is not None:
+            kappa = signed_positive(at(data.kappa_root, "surface_gravity"), numeric_point,
+                                    spacetime)
+        if kappa is None:
+            kappa = positive_root(kappa_squared, spacetime, points)
+    if kappa_squared is not None and kappa is None:
+        reasons["surface_gravity"] = "κ² found but its sign could not be fixed"
+    temperature = None if kappa is None else kappa / (2 * sympy.pi)
+    area, area_how = horizon_area(spacetime, data, location, numeric_point)
+    if area is None:
+        reasons["area"] = area_how
+    else:
+        how += f"; area {area_how}"
+    return Horizon(str(x), shown_location, polynomial, "", vector, omega, kappa_squared, kappa,
+                   temperature, area, how, reasons, mpmath.nstr(value, 20))
+
+
+def domain_place(spacetime: Spacetime, x: sympy.Symbol, value: mpmath.mpf, point: Point) -> str:
+    """Whether the root lies inside the entry's domain, on its boundary, or outside it."""
+    from generator.geometry.sampling import inside_domain
+
+    def inside(v: mpmath.mpf) -> bool:
+        probe = dict(point)
+        probe[x] = sympy.Rational(str(mpmath.nstr(v, 25)))
+        return inside_domain(spacetime, probe)
+
+    step = mpmath.mpf(10) ** -8 * (1 + abs(value))
+    if inside(value):
+        return "inside the entry's domain"
+    if inside(value + step) or inside(value - step):
+        return "on the boundary of the entry's domain"
+    return "outside the entry's domain (in the chart's continuation)"
+
+
+def shortest(expr: sympy.Expr | None, spacetime: Spacetime, location: sympy.Expr | None
+             ) -> sympy.Expr | None:
+    """The shorter of the factored and the canonical (rationalised) form of ``expr``."""
+    if expr is None or location is None:
+        return expr
+    other = canonical(expr, spacetime)
+    return other if sympy.count_ops(other) < sympy.count_ops(expr) else expr
+
+
+def in_location(expr: sympy.Expr, location: sympy.Expr | None) -> sympy.Expr:
+    """An expression in h written at the horizon's closed-form location (kept in h_root
+    when there is none)."""
+    return expr if location is None else expr.xreplace({H: location})
+
+
+def signed_positive(root: sympy.Expr, point: dict, spacetime: Spacetime) -> sympy.Expr | None:
+    """±root, whichever is positive at the point (None when it is zero or not real there)."""
+    number = numeric_value(root.xreplace(point), DIGITS)
+    if number is None or abs(mpmath.im(number)) > mpmath.mpf(10) ** (5 - DIGITS):
+        return None
+    if mpmath.re(number) > 0:
+        return root
+    if mpmath.re(number) < 0:
+        return sympy.factor(-root)
+    return None
+
+
+def positive_root(square: sympy.Expr, spacetime: Spacetime, points: Sequence[Point]
+                  ) -> sympy.Expr | None:
+    """κ ≥ 0 with κ² = ``square``: an exact square root when the field finds one (its sign
+    chosen positive at the sample parameters), else sqrt(κ²) as it stands."""
+    if square == 0:
+        return sympy.Integer(0)
+    root = exact_square_root(square, spacetime)
+    if root is None:
+        root = denested_root(canonical(square, spacetime), spacetime)
+    if root is None:
+        return sympy.sqrt(square)
+    signs = set()
+    for point in points:
+        number = numeric_value(root.xreplace({p: point[p] for p in spacetime.parameters
+                                              if p in point}), DIGITS)
+        if number is None or abs(mpmath.im(number)) > 0:
+            return sympy.sqrt(square)
+        signs.add(mpmath.re(number) > 0)
+    if len(signs) != 1:
+        return sympy.sqrt(square)
+    return root if signs == {True} else canonical(-root, spacetime)
+
+
+def split_in_radical(expr: sympy.Expr, z: sympy.Symbol, d: sympy.Expr
+                     ) -> tuple[sympy.Expr, sympy.Expr]:
+    """(E, O) with expr = E + O z once z² = d (E, O free of z)."""
+    parts = sympy.collect(sympy.expand(expr), z, evaluate=False)
+    even, odd = sympy.Integer(0), sympy.Integer(0)
+    for power, coeff in parts.items():
+        k = 0 if power == 1 else sympy.degree(power, z)
+        if k % 2:
+            odd += coeff * d ** ((k - 1) // 2)
+        else:
+            even += coeff * d ** (k // 2)
+    return even, odd
+
+
+def denested_root(square: sympy.Expr, spacetime: Spacetime) -> sympy.Expr | None:
+    """sqrt(A + B√d) = x + y√d when A² − B²d and (A ± √(A² − B²d))/2 are squares."""
+    radicals = [r for r in square.atoms(sympy.Pow) if r.exp == sympy.Rational(1, 2)]
+    if len(radicals) != 1:
+        return None
+    radical = radicals[0]
+    d = radical.base
+    z = sympy.Dummy("z")
+    num, den = sympy.fraction(sympy.together(square.xreplace({radical: z})))
+    top_even, top_odd = split_in_radical(num, z, d)
+    bottom_even, bottom_odd = split_in_radical(den, z, d)
+    norm = sympy.expand(bottom_even**2 - bottom_odd**2 * d)
+    a = sympy.cancel((top_even * bottom_even - top_odd * bottom_odd * d) / norm)
+    b = sympy.cancel((top_odd * bottom_even - top_even * bottom_odd) / norm)
+    if b == 0:
+        return None
+    inner = exact_square_root(sympy.cancel(a**2 - b**2 * d), spacetime)
+    if inner is None:
+        return None
+    for sign in (1, -1):
+        half = sympy.cancel((a + sign * inner) / 2)
+        x = exact_square_root(half, spacetime) if half != 0 else None
+        if x is None or x == 0:
+            continue
+        y = sympy.cancel(b / (2 * x))
+        candidate = x + y * radical
+        if canonical(candidate**2 - square, spacetime) == 0:
+            return canonical(candidate, spacetime)
+    return None
+
+
+# ---------------------------------------------------------------------------- area
+
+
+def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Expr | None,
+                 numeric_point: dict) -> tuple[sympy.Expr | None, str]:
+    """∫ sqrt(det γ) over the horizon's cross-section t = const: exact when the density is a
+    product of angle factors and a constant whose square root is found, over known ranges."""
+    if data.area_density is None:
+        return None, data.reasons.get("area", "not computed")
+    ranges = []
+    cyclic = set(cyclic_coordinates(spacetime))
+    for a in data.block:
+        y = spacetime.coordinates[a]
+        bounds = polar_range(spacetime, y)
+        if bounds is not None:
+            ranges.append((y, *bounds))
+        elif a in cyclic and str(y) in AZIMUTHS:
+            ranges.append((y, sympy.Integer(0), 2 * sympy.pi))
+        else:
+            return None, (f"the cross-section is not compact in {y} (no range known): an area "
+                          "per unit coordinate range would depend on the chart")
+    angles = [y for y, _, _ in ranges]
+    in_h = data.rf.field.display(data.area_density)
+    root = density_root(in_h, spacetime, angles)
+    if root is not None:
+        root = in_location(root, location)
+    elif location is not None:
+        density = canonical(in_h.xreplace({H: location}), spacetime)
+        root = density_root(density, spacetime, angles)
+    if root is None:
+        return None, "the area density has no exact square root in the field"
+    try:
+        integral = root
+        for y, low, high in reversed(ranges):
+            integral = sympy.integrate(integral, (y, low, high))
+    except (ValueError, TypeError, NotImplementedError):
+        return None, "the area integral is not elementary here"
+    if integral.has(sympy.Integral):
+        return None, "the area integral is not elementary here"
+    area = signed_positive(sympy.factor(integral), numeric_point, spacetime)
+    if area is None:
+        return None, "the area came out zero or not real at the sample parameters"
+    parts = []
+    if any(polar_range(spacetime, y) for y in angles):
+        parts.append("polar angles over (0, π) from the domain")
+    if any(str(y) in AZIMUTHS for y in angles):
+        parts.append(PERIOD_NOTE)
+    return area, "exact" + (": " + "; ".join(parts) if parts else "")
+
+
+def density_root(density: sympy.Expr, spacetime: Spacetime,
+                 angles: list[sympy.Symbol]) -> sympy.Expr | None:
+    """sqrt(density) for a product of angle factors (even powers, taken positive on the
+    ranges: sin of a polar angle is positive on (0, π)) and a constant part (exact square
+    root, denested, or left as sqrt)."""
+    top, bottom = sympy.fraction(sympy.together(density))
+    coefficient, factors = sympy.factor_list(top)
+    bottom_coefficient, bottom_factors = sympy.factor_list(bottom)
+    constant = sympy.Integer(coefficient) / bottom_coefficient
+    angular = sympy.Integer(1)
+    for base, power in factors + [(b, -p) for b, p in bottom_factors]:
+        if base.free_symbols & set(angles):
+            if power % 2:
+                return None
+            piece = base ** (power // 2)
+            if isinstance(base, sympy.sin) or (base.is_Pow and isinstance(base.base, sympy.sin)):
+                angular *= piece
+            elif base.free_symbols <= set(angles) | set(spacetime.parameters):
+                angular *= sympy.Abs(piece)
+            else:
+                return None
+        else:
+            constant *= base**power
+    if constant.free_symbols & set(spacetime.coordinates):
+        return None
+    if constant == 1:
+        return angular
+    if constant.has(H):
+        root = sympy.sqrt(constant)
+        return angular * root if not isinstance(root, sympy.Pow) or root.exp != sympy.Rational(
+            1, 2) else None
+    root = exact_square_root(constant, spacetime) or denested_root(constant, spacetime)
+    return angular * (root if root is not None else sympy.sqrt(constant))
+
+
+def sign_fixed(value: sympy.Expr, spacetime: Spacetime, points: Sequence[Point]) -> sympy.Expr:
+    number = numeric_value(value.xreplace({p: points[0][p] for p in spacetime.parameters
+                                          if p in points[0]}), DIGITS)
+    if number is not None and mpmath.re(number) < 0:
+        return canonical(-value, spacetime)
+    return value
+
+
+def polar_range(spacetime: Spacetime, y: sympy.Symbol) -> tuple[sympy.Expr, sympy.Expr] | None:
+    """(0, π) when the domain says 0 < y < π (a polar angle)."""
+    lower = upper = False
+    for relation in spacetime.domain:
+        if not isinstance(relation, sympy.core.relational.Relational):
+            continue
+        lhs, rhs = relation.lhs, relation.rhs
+        if isinstance(relation, (sympy.StrictLessThan, sympy.LessThan)):
+            small, big = lhs, rhs
+        elif isinstance(relation, (sympy.StrictGreaterThan, sympy.GreaterThan)):
+            small, big = rhs, lhs
+        else:
+            continue
+        lower |= small == 0 and big == y
+        upper |= small == y and big == sympy.pi
+    return (sympy.Integer(0), sympy.pi) if lower and upper else None
+
+
+# ---------------------------------------------------------------------------- kinds
+
+
+def classify_kinds(spacetime: Spacetime, geometry: Geometry, horizons: list[Horizon],
+                   point: Point) -> list[Horizon]:
+    """Kinds from the sign of g^{xx} just below and just above each root (at the first sample
+    point): − → + going outwards is a black-hole horizon (the outermost such is the event
+    horizon), + → − a cosmological horizon, or an inner one when a black-hole horizon lies
+    further out. No sign change (a double root) leaves the kind "horizon"."""
+    from dataclasses import replace
+
+    angles = angle_coordinates(spacetime)
+    from generator.geometry.sampling import substitute
+
+    out = []
+    for coordinate in sorted({h.coordinate for h in horizons}):
+        index = [str(c) for c in spacetime.coordinates].index(coordinate)
+        x = spacetime.coordinates[index]
+        component = geometry.inverse_metric[index, index]
+        group = sorted((h for h in horizons if h.coordinate == coordinate),
+                       key=lambda h: mpmath.mpf(h.numeric_location))
+        turns = []
+        for h in group:
+            value = mpmath.mpf(h.numeric_location)
+            step = mpmath.mpf(10) ** -6 * (1 + abs(value))
+            signs = []
+            for v in (value - step, value + step):
+                probe = dict(point)
+                probe[x] = sympy.Rational(mpmath.nstr(v, 25))
+                number = numeric_value(substitute(component, probe, angles), DIGITS)
+                signs.append(0 if number is None else mpmath.sign(mpmath.re(number)))
+            turns.append(tuple(signs))
+        black = [k for k, turn in enumerate(turns) if turn == (-1, 1)]
+        for k, (h, turn) in enumerate(zip(group, turns, strict=True)):
+            if h.kind == "undetermined":
+                kind = "undetermined"
+            elif turn == (-1, 1):
+                kind = "event" if k == max(black) else "horizon"
+            elif turn == (1, -1):
+                kind = "inner" if any(b > k for b in black) else "cosmological"
+            else:
+                kind = "horizon"
+            out.append(replace(h, kind=kind))
+    return out

@@ -1,0 +1,149 @@
+"""Assembly of an entry's physical data (horizons, orbits, charges, observers) and the check
+of claims about them.
+
+Each part may fail on its own (outside the exact field, a budget); it then becomes None with
+its reason, never a made-up value. Claims name the *principal horizon*: the event horizon if
+there is one, else the outermost cosmological horizon.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+import sympy
+
+from generator.entry.loader import parse_at, symbol_table
+from generator.entry.schema import PHYSICAL_CLAIMS
+from generator.errors import BudgetExceeded, Diagnostic
+from generator.geometry.algebra import NotInField
+from generator.geometry.curvature import DegenerateMetric
+from generator.geometry.equality import decide_equal
+from generator.geometry.sampling import entry_points
+from generator.model import Entry, Geometry, Horizon, PhysicalData, Spacetime, Verdict
+from generator.physics.horizons import H, find_horizons
+from generator.physics.kinematics import observer_kinematics
+from generator.physics.komar import komar_charges
+from generator.physics.orbits import ergosurface, photon_sphere_and_isco
+
+FAILURES = (ValueError, TypeError, ZeroDivisionError, NotImplementedError, ArithmeticError,
+            sympy.PolynomialError, RecursionError, BudgetExceeded, NotInField, DegenerateMetric)
+
+
+def physical_data(spacetime: Spacetime, geometry: Geometry,
+                  declared_velocity: Sequence[sympy.Expr] | None) -> PhysicalData:
+    points = entry_points(spacetime, 3)
+    reasons: dict[str, str] = {}
+    try:
+        horizons, note, extremal = find_horizons(spacetime, geometry)
+    except FAILURES as exc:
+        horizons, note, extremal = (), f"the computer algebra failed ({type(exc).__name__})", ()
+    if not horizons:
+        reasons["horizons"] = note
+    try:
+        photon, photon_why, isco, isco_why = photon_sphere_and_isco(spacetime, horizons, points)
+    except FAILURES as exc:
+        photon = isco = None
+        photon_why = isco_why = f"the computer algebra failed ({type(exc).__name__})"
+    try:
+        ergo, ergo_why = ergosurface(spacetime, horizons, points)
+    except FAILURES as exc:
+        ergo, ergo_why = None, f"the computer algebra failed ({type(exc).__name__})"
+    try:
+        kinematics, kin_why = observer_kinematics(spacetime, geometry, points, declared_velocity)
+    except FAILURES as exc:
+        kinematics, kin_why = None, f"the computer algebra failed ({type(exc).__name__})"
+    for key, value, why in (("photon_sphere", photon, photon_why), ("isco", isco, isco_why),
+                            ("ergosurface", ergo, ergo_why), ("kinematics", kinematics, kin_why)):
+        if value is None:
+            reasons[key] = why
+    try:
+        mass, mass_why, spin, spin_why = komar_charges(spacetime, points)
+    except FAILURES as exc:
+        mass = spin = None
+        mass_why = spin_why = f"the computer algebra failed ({type(exc).__name__})"
+    if mass is None:
+        reasons["komar_mass"] = mass_why
+    if spin is None:
+        reasons["komar_angular_momentum"] = spin_why
+    return PhysicalData(horizons, note, extremal, ergo, photon, isco, mass, spin, kinematics,
+                        reasons)
+
+
+# ---------------------------------------------------------------------------- claims
+
+# claim name -> how to read the computed value off PhysicalData
+HORIZON_CLAIMS = {
+    "horizon_location": "location",
+    "surface_gravity": "surface_gravity",
+    "horizon_area": "area",
+    "horizon_angular_velocity": "angular_velocity",
+}
+ORBIT_CLAIMS = ("photon_sphere", "isco")
+CHARGE_CLAIMS = {"komar_mass": "komar_mass", "komar_angular_momentum": "komar_angular_momentum"}
+KINEMATIC_CLAIMS = ("expansion", "shear_squared", "vorticity_squared", "acceleration_squared")
+assert set(PHYSICAL_CLAIMS) == (set(HORIZON_CLAIMS) | set(ORBIT_CLAIMS) | set(CHARGE_CLAIMS)
+                                | set(KINEMATIC_CLAIMS))
+
+
+def principal_horizon(data: PhysicalData) -> Horizon | None:
+    events = [h for h in data.horizons if h.kind == "event"]
+    if events:
+        return events[-1]
+    cosmological = [h for h in data.horizons if h.kind == "cosmological"]
+    return cosmological[-1] if cosmological else None
+
+
+def computed_claim(name: str, data: PhysicalData) -> tuple[sympy.Expr | None, str]:
+    """The computed value a physical claim is compared with, or why there is none."""
+    if name in HORIZON_CLAIMS:
+        horizon = principal_horizon(data)
+        if horizon is None:
+            return None, data.reasons.get("horizons", "no event or cosmological horizon")
+        value = getattr(horizon, HORIZON_CLAIMS[name])
+        if value is not None and value.has(H):
+            return None, ("the horizon has no closed-form location here, so the claim is not "
+                          "compared exactly")
+        return value, horizon.reasons.get(HORIZON_CLAIMS[name], "not computed")
+    if name in ORBIT_CLAIMS or name in CHARGE_CLAIMS:
+        return getattr(data, name), data.reasons.get(name, "")
+    if data.kinematics is None:
+        return None, data.reasons.get("kinematics", "no observer field")
+    return getattr(data.kinematics, name), ""
+
+
+def check_physical_claims(entry: Entry, spacetime: Spacetime, data: PhysicalData | None
+                          ) -> tuple[list[Verdict], list[Diagnostic]]:
+    verdicts: list[Verdict] = []
+    problems: list[Diagnostic] = []
+    table, _ = symbol_table(entry)
+    for claim in entry.claims.physical:
+        subject = f"claims.{claim.name}"
+        claimed, problem = parse_at(claim.value, table)
+        if problem is not None or claimed is None:
+            problems += [problem] if problem else []
+            verdicts.append(Verdict(subject, False, "failed", "the claim does not parse",
+                                    claim.value.text))
+            continue
+        if data is None:
+            computed, why = None, "the physical data could not be computed"
+        else:
+            computed, why = computed_claim(claim.name, data)
+        label = claim.name.replace("_", " ")
+        if computed is None:
+            verdicts.append(Verdict(subject, False, "failed", why, claim.value.text, "null"))
+            problems.append(Diagnostic.at(claim.pos, "error", f"claimed {label} could not be "
+                                          f"verified: {why}", f"claim.{claim.name}",
+                                          "remove the claim or simplify the chart"))
+            continue
+        decision = decide_equal(claimed, computed, spacetime)
+        ok = decision.equal is True
+        verdicts.append(Verdict(subject, ok, decision.method, decision.detail, claim.value.text,
+                                str(computed), entry.published_source(subject)))
+        if not ok:
+            verb = "does not match" if decision.equal is False else "could not be matched with"
+            problems.append(Diagnostic.at(claim.pos, "error", f"claimed {label} {verb} the "
+                                          f"computed value ({decision.detail})",
+                                          f"claim.{claim.name}", f"computed: {computed}"))
+    return verdicts, problems
+
+

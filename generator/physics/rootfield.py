@@ -1,0 +1,115 @@
+"""Exact arithmetic at a root of a polynomial: the field of an entry's metric with one more
+generator h, and the remainder modulo P(h).
+
+A horizon sits where a factor P of g^{xx} vanishes. Rather than writing its root with radicals
+(impossible in general, and unwieldy even for a quadratic), the root is a new generator ``h``
+of the metric's rational-function field and every quantity at the horizon is a fraction in h.
+Two such fractions are equal at the root exactly when the numerator of their difference is
+divisible by P(h): the pseudo-remainder below decides it without division by P's leading
+coefficient, so no parameter is ever assumed nonzero beyond P's own degree.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import flint
+import sympy
+
+from generator.geometry.algebra import FieldRequest, Frac, RationalField, build_field
+from generator.model import Spacetime
+
+
+@dataclass(frozen=True)
+class RootField:
+    """The metric's field with the root symbol ``h`` added as a parameter."""
+
+    field: RationalField
+    metric: tuple[tuple[Frac, ...], ...]
+    h: sympy.Symbol
+    h_var: int  # flint variable of h
+    x_index: int  # which coordinate the root is a value of
+    x_var: int  # flint variable of that coordinate
+    relation: flint.fmpq_mpoly  # P(h)
+
+    # ------------------------------------------------------------------ at the root
+    def at_root_poly(self, p: flint.fmpq_mpoly) -> flint.fmpq_mpoly:
+        """p with the coordinate x replaced by h."""
+        gens = list(self.field.gens)
+        gens[self.x_var] = gens[self.h_var]
+        return p.compose(*gens)
+
+    def at_root(self, x: Frac) -> Frac | None:
+        """x at the root (as a fraction in h, unreduced modulo P); None where the denominator
+        vanishes at the root (L'Hôpital is then the caller's business)."""
+        den = self.at_root_poly(x.den)
+        if self.vanishes(den):
+            return None
+        return self.field.normal(self.at_root_poly(x.num), den)
+
+    def vanishes(self, p: flint.fmpq_mpoly) -> bool:
+        """Is the polynomial p(h, …) zero at every root h of P, i.e. divisible by P?"""
+        return pseudo_remainder(p, self.relation, self.h_var, self.field.ctx).is_zero()
+
+    def limit(self, value: Frac, max_order: int = 4) -> Frac | None:
+        """lim_{x → h} value by L'Hôpital's rule along x (None: infinite or not found)."""
+        num, den = Frac(value.num, self.field.one().den), Frac(value.den, self.field.one().den)
+        for _ in range(max_order + 1):
+            top, bottom = self.at_root_poly(num.num), self.at_root_poly(den.num)
+            top_zero, bottom_zero = self.vanishes(top), self.vanishes(bottom)
+            if not bottom_zero:
+                num_den = self.at_root_poly(num.den) * self.at_root_poly(den.den)
+                if self.vanishes(num_den):
+                    return None
+                return self.field.normal(top * self.at_root_poly(den.den),
+                                         bottom * self.at_root_poly(num.den))
+            if not top_zero:
+                return None
+            num = self.field.diff(num, self.x_index)
+            den = self.field.diff(den, self.x_index)
+        return None
+
+    def equal_at_root(self, x: Frac, y: Frac) -> bool:
+        difference = self.field.sub(x, y)
+        return difference.is_zero() or self.vanishes(difference.num)
+
+
+def pseudo_remainder(p: flint.fmpq_mpoly, relation: flint.fmpq_mpoly, var: int,
+                     ctx: flint.fmpq_mpoly_ctx) -> flint.fmpq_mpoly:
+    """lc^k p mod relation as polynomials in the variable ``var`` (the others are
+    coefficients): zero exactly when the relation divides p."""
+    degree = relation.degrees()[var]
+    lead = coefficient(relation, var, degree, ctx)
+    gen = ctx.gens()[var]
+    while not p.is_zero() and p.degrees()[var] >= degree:
+        k = p.degrees()[var]
+        p = p * lead - coefficient(p, var, k, ctx) * relation * gen ** (k - degree)
+    return p
+
+
+def coefficient(p: flint.fmpq_mpoly, var: int, k: int, ctx: flint.fmpq_mpoly_ctx
+                ) -> flint.fmpq_mpoly:
+    """The coefficient of var**k in p (a polynomial in the other variables)."""
+    terms = {}
+    for monom, coeff in p.terms():
+        if monom[var] == k:
+            reduced = list(monom)
+            reduced[var] = 0
+            terms[tuple(reduced)] = coeff
+    return ctx.from_dict(terms) if terms else ctx.constant(0)
+
+
+def root_field(spacetime: Spacetime, x_index: int, polynomial: sympy.Expr, h: sympy.Symbol,
+               extra: tuple[sympy.Expr, ...] = ()) -> RootField:
+    """The field of the metric (closed under one derivative) with h added; ``polynomial``
+    is P written in h. Raises algebra.NotInField when the metric does not fit the field."""
+    n = spacetime.dimension
+    entries = tuple(spacetime.metric[a, b] for a in range(n) for b in range(n))
+    request = FieldRequest(spacetime.coordinates, (*spacetime.parameters, h),
+                           spacetime.functions, (*entries, polynomial, *extra), 2)
+    field, values = build_field(request)
+    metric = tuple(tuple(values[a * n:(a + 1) * n]) for a in range(n))
+    relation = values[n * n]
+    h_var = field.index[h]
+    x_var = field.index[spacetime.coordinates[x_index]]
+    return RootField(field, metric, h, h_var, x_index, x_var, relation.num)

@@ -1,0 +1,146 @@
+"""Weyl scalars in a principal null frame, and the complex invariants I and J.
+
+The self-dual Weyl operator Q (``petrov``: Q = ½(W − iσS̃W) on bivectors, σ = √(−det g))
+has tr Q² and tr Q³ proportional to the Newman–Penrose invariants I = Ψ0Ψ4 − 4Ψ1Ψ3 + 3Ψ2²
+and J = det[[Ψ4, Ψ3, Ψ2], [Ψ3, Ψ2, Ψ1], [Ψ2, Ψ1, Ψ0]] (Stephani et al. 2003, ch. 4; from
+memory), so I and J come out exactly, in any chart and without a tetrad.
+
+In a principal frame of a type D field only Ψ2 survives, and it is the same in every such
+frame (boosts, spins and l ↔ n leave it alone); then I = 3Ψ2² and J = −Ψ2³ give
+Ψ2 = −3J/I, exactly. For type O every Ψ vanishes. For the other types this module does not
+build the principal frame; the Ψ's are then those of the tool's orthonormal coordinate frame
+where ``petrov`` has them (diagonal metrics), with the frame named and ``principal`` false
+unless they already have the type's pattern.
+
+Orientation: ε_{0123} = +√(−det g) in the entry's coordinate order, and m̄ = (e2 − i e3)/√2
+pairs with it so that the Kerr metric in Boyer–Lindquist order (t, r, θ, φ) gives
+Ψ2 = −M/(r − i a cos θ)³ (Teukolsky 1973, from memory).
+"""
+
+from __future__ import annotations
+
+import sympy
+
+from generator.geometry.algebra import Frac, NotInField, RationalField
+from generator.geometry.curvature import WeylOperator
+from generator.geometry.exactvalues import sign_at
+from generator.geometry.sampling import entry_points
+from generator.model import Geometry, Spacetime, WeylFrame
+from generator.physics.petrov import (
+    PAIRS,
+    FieldAlgebra,
+    PetrovResult,
+    determinant,
+    field_operators,
+)
+
+# With W normalised as the engine does (pairs a < b once), Q has the eigenvalues −2κΨ2, κΨ2,
+# κΨ2 on the self-dual bivectors of a type D field in a principal frame. κ = 1 is what the
+# Schwarzschild field gives against its textbook Ψ2 = −M/r³ (common practice); Kerr is then
+# an independent check (tests/test_symmetry_stage.py).
+KAPPA = sympy.Integer(1)
+
+Complex = tuple[Frac, Frac]  # x + iσy
+
+
+def traces(ops: WeylOperator, spacetime: Spacetime) -> tuple[Complex, Complex, Frac]:
+    """tr Q², tr Q³ as x + iσy, and σ² = −det g (same formulas as the Petrov test)."""
+    algebra, f = FieldAlgebra(ops.field, spacetime), ops.field
+    W = ops.operator
+    levi = [[f.const(int(sympy.LeviCivita(*PAIRS[E], *PAIRS[B]))) for B in range(6)]
+            for E in range(6)]
+    dual = algebra.matmul(ops.bivector, levi)
+    sigma2 = f.neg(determinant(f, ops.metric))
+    W2, dual_W = algebra.matmul(W, W), algebra.matmul(dual, W)
+    half, minus_half = sympy.Rational(1, 2), sympy.Rational(-1, 2)
+    t2 = (f.scale(algebra.trace_of_product(W, W), half),
+          f.scale(algebra.trace_of_product(dual_W, W), minus_half))
+    t3 = (f.scale(algebra.trace_of_product(W2, W), half),
+          f.scale(algebra.trace_of_product(dual_W, W2), minus_half))
+    return t2, t3, sigma2
+
+
+def divide(f: RationalField, x: Complex, y: Complex, sigma2: Frac) -> Complex:
+    """(a + iσb)/(c + iσd) = ((ac + σ²bd) + iσ(bc − ad))/(c² + σ²d²)."""
+    (a, b), (c, d) = x, y
+    norm = f.add(f.mul(c, c), f.mul(sigma2, f.mul(d, d)))
+    real = f.add(f.mul(a, c), f.mul(sigma2, f.mul(b, d)))
+    imaginary = f.sub(f.mul(b, c), f.mul(a, d))
+    return f.div(real, norm), f.div(imaginary, norm)
+
+
+def to_expr(f: RationalField, x: Complex, sigma: sympy.Expr) -> sympy.Expr:
+    real, imaginary = f.display(x[0]), f.display(x[1])
+    return real + sympy.I * sigma * imaginary if imaginary != 0 else real
+
+
+def sigma_of(f: RationalField, sigma2: Frac, spacetime: Spacetime) -> sympy.Expr:
+    """√(−det g), with |u| written ±u where u has one sign at every sample point of the
+    domain (sin θ on 0 < θ < π), so that the display is not littered with Abs."""
+    root = f.square_root(sigma2)
+    if root is not None:
+        return f.display(root)
+    sigma = sympy.sqrt(f.display(sigma2))
+    points = entry_points(spacetime, 6)
+    for atom in sigma.atoms(sympy.Abs):
+        signs = {sign_at(atom.args[0], p, spacetime) for p in points}
+        if signs in ({1}, {-1}):
+            sigma = sigma.xreplace({atom: signs.pop() * atom.args[0]})
+    return sigma
+
+
+def weyl_frame(geometry: Geometry, spacetime: Spacetime, petrov: PetrovResult,
+               operator: WeylOperator | None) -> tuple[WeylFrame | None, str]:
+    """The frame and scalars, or None with the reason."""
+    if petrov.type is None:
+        return None, petrov.reason
+    if petrov.type == "undecided":
+        return None, "the Petrov type is undecided: " + petrov.reason
+    try:
+        ops = operator or field_operators(geometry, spacetime)
+        t2, t3, sigma2 = traces(ops, spacetime)
+    except (NotInField, ZeroDivisionError) as exc:
+        return None, f"the Weyl operator does not fit the exact engine's field ({exc})"
+    f = ops.field
+    sigma = sigma_of(f, sigma2, spacetime)
+    k2, k3 = KAPPA**2, KAPPA**3
+    # tr Q² = 6κ²Ψ2² = 2κ² I and tr Q³ = −6κ³Ψ2³ = 6κ³ J (read off the type D form; both
+    # sides are invariants, so the relation holds for every type)
+    invariant_i = (f.scale(t2[0], 1 / (2 * k2)), f.scale(t2[1], 1 / (2 * k2)))
+    invariant_j = (f.scale(t3[0], 1 / (6 * k3)), f.scale(t3[1], 1 / (6 * k3)))
+    i_expr, j_expr = to_expr(f, invariant_i, sigma), to_expr(f, invariant_j, sigma)
+    zero = sympy.Integer(0)
+    if petrov.type == "O":
+        scalars = dict.fromkeys(("Psi0", "Psi1", "Psi2", "Psi3", "Psi4"), zero)
+        return WeylFrame("any null tetrad (the Weyl tensor vanishes)", True, (),
+                         tuple(scalars.items()), zero, zero, "conformally flat"), ""
+    if petrov.type == "D":
+        ratio = divide(f, t3, t2, sigma2)  # t3/t2 = −κ Ψ2
+        psi2 = (f.scale(ratio[0], -1 / KAPPA), f.scale(ratio[1], -1 / KAPPA))
+        scalars = {"Psi0": zero, "Psi1": zero, "Psi2": to_expr(f, psi2, sigma),
+                   "Psi3": zero, "Psi4": zero}
+        return WeylFrame("a principal null tetrad (l, n along the two double principal null "
+                         "directions); Ψ2 is the same in all of them", True, (),
+                         tuple(scalars.items()), i_expr, j_expr,
+                         "Ψ2 = −3J/I from the exact invariants; the tetrad itself is not "
+                         "constructed"), ""
+    if petrov.weyl_scalars is not None:
+        principal = _has_pattern(petrov.type, petrov.weyl_scalars)
+        return WeylFrame("orthonormal coordinate frame e_a = ∂_a/√|g_aa| (time first), "
+                         "l, n = (e0 ± e1)/√2, m = (e2 + i e3)/√2", principal,
+                         (), tuple(sorted(petrov.weyl_scalars.items())), i_expr, j_expr,
+                         "" if principal else "no principal frame was constructed for type "
+                         f"{petrov.type}; the scalars are those of the tool's frame"), ""
+    return WeylFrame("none", False, (), (), i_expr, j_expr,
+                     f"no principal frame was constructed for type {petrov.type}, and the "
+                     "tool's frame is built for diagonal metrics only"), ""
+
+
+PATTERN = {"N": ("Psi4",), "III": ("Psi3", "Psi4"), "II": ("Psi2", "Psi3", "Psi4")}
+
+
+def _has_pattern(kind: str, scalars: dict[str, sympy.Expr]) -> bool:
+    allowed = PATTERN.get(kind)
+    if allowed is None:
+        return False
+    return all(scalars[name] == 0 for name in scalars if name not in allowed)
