@@ -185,6 +185,7 @@ class Entry:
     references: tuple[Reference, ...]
     curation: Curation
     related: tuple[RelatedChart, ...]
+    abbreviations: tuple[tuple[str, MathText], ...] = ()  # named shorthands (prose, typesetting)
     positions: dict[str, SourcePos] = field(default_factory=dict, compare=False, hash=False)
     source_text: str = field(default="", compare=False, hash=False, repr=False)
 

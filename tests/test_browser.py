@@ -107,7 +107,7 @@ def test_opening_an_entry_shows_rendered_mathematics(
     page = browser.new_page()  # type: ignore[attr-defined]
     page.goto(root + "browse.html")
     page.fill("#q", "lantern")
-    page.click("li.card:not([hidden]) h3 a")
+    page.click("li.card:not([hidden]) .card-title a")
     page.wait_for_selector("#line-element math")
     assert page.url.endswith("entries/demo-harbour-lantern/index.html")
     assert page.locator("math").count() > 5

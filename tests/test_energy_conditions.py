@@ -252,3 +252,18 @@ def test_an_enclosure_contains_the_exact_value_to_its_stated_precision() -> None
             true = reference()
             assert box.a <= true <= box.b
             assert box.b - box.a < mpmath.mpf(10) ** -40
+
+
+def test_a_free_function_counter_example_names_the_function_values() -> None:
+    """For flat FLRW, ρ + p ≥ 0 exactly when a′² ≥ a a″ (Friedmann equations, common
+    practice): a counter-example is about a, a′, a″ at a point, so those values are given."""
+    import sympy
+
+    from generator.geometry.exactvalues import point_text
+
+    t = sympy.Symbol("t", real=True)
+    a = sympy.Function("a", positive=True)(t)
+    point = {t: sympy.Rational(1, 60), a: sympy.Integer(2), sympy.Derivative(a, t): 1,
+             sympy.Derivative(a, (t, 2)): sympy.Integer(3)}
+    text = point_text(point)
+    assert text == "t = 1/60, a = 2, a′ = 1, a″ = 3"  # violates a′² ≥ a a″ (1 < 6)

@@ -150,3 +150,28 @@ def test_function_names_get_thin_spaces_like_tex_operators() -> None:
     assert spaced == r"a\,\cos\,{\theta}"
     markup = mathtex.latex_to_mathml(mathtex.to_latex(a**2 * sympy.cos(theta) ** 2))
     assert markup.count("<mspace") == 2
+
+
+def test_abbreviations_replace_their_definitions_exactly() -> None:
+    """Kerr in Boyer–Lindquist form with Σ = r² + a² cos²θ and Δ = r² − 2Mr + a²
+    (Boyer & Lindquist, J. Math. Phys. 8, 265 (1967); common practice)."""
+    r, theta, M, a = sympy.symbols("r theta M a", positive=True)
+    Sigma, Delta = sympy.symbols("Sigma Delta")
+    sigma = r**2 + a**2 * sympy.cos(theta) ** 2
+    delta = r**2 - 2 * M * r + a**2
+    g_rr = sigma / delta
+    g_tt = -(1 - 2 * M * r / sigma)
+    pairs = [(Sigma, sigma), (Delta, delta)]
+    assert mathtex.abbreviate(g_rr, pairs) == Sigma / Delta
+    assert mathtex.abbreviate(g_tt, pairs) == -(1 - 2 * M * r / Sigma)
+    assert mathtex.abbreviate(r**2 + a**2, pairs) == r**2 + a**2  # no definition inside
+    for value in (g_rr, g_tt):
+        back = mathtex.abbreviate(value, pairs).subs({Sigma: sigma, Delta: delta})
+        assert sympy.cancel(back - value) == 0
+
+
+def test_sums_that_read_better_negated_get_their_sign_pulled_out() -> None:
+    """g_tt = -(1 - 2M/r) as every textbook writes Schwarzschild (common practice)."""
+    r, M = sympy.symbols("r M", positive=True)
+    assert mathtex.signed_latex(2 * M / r - 1, (r,)) == r"-\left(1 - \frac{2 M}{r}\right)"
+    assert mathtex.signed_latex(1 - 2 * M / r, (r,)) == r"1 - \frac{2 M}{r}"

@@ -118,3 +118,27 @@ def test_domain_that_fails_for_the_parameters_masks_every_radius() -> None:
     assert plots.domain_mask(st, setting, radius).all()
     st_never = replace(st, domain=(never,))
     assert not plots.domain_mask(st_never, setting, radius).any()
+
+
+def test_alt_text_says_what_a_zero_of_g_tt_means() -> None:
+    """−g_tt = 0 is where ∂_t turns null: a horizon only in static charts, the static limit
+    (ergosurface) in rotating ones (e.g. Wald, General Relativity, 1984, §12.3; from memory)."""
+    metric = next(f for f in plots.entry_plots(demo.lantern_report())
+                  if f.file_name == "metric-functions.svg")
+    assert "horizons show where" not in metric.alt
+    assert "static limit" in metric.alt and "−g_tt" in metric.alt
+    assert "$" not in metric.alt and "\\" not in metric.alt
+
+
+def test_labels_are_typeset_and_vacuum_shows_one_panel_for_two_equal_invariants() -> None:
+    """In vacuum R_ab = 0, so C_abcd C^abcd = R_abcd R^abcd (common practice)."""
+    report = demo.lantern_report()
+    assert report.classification is not None
+    vacuum = replace(report, classification=replace(report.classification,
+                                                     matter_kind="vacuum"))
+    (both,) = [f for f in plots.entry_plots(vacuum) if f.file_name == "invariants.svg"]
+    assert "Weyl square" not in both.alt.split(" (equal to the Weyl square)")[0]
+    assert "equal to the Weyl square" in both.alt
+    (other,) = [f for f in plots.entry_plots(report) if f.file_name == "invariants.svg"]
+    assert other.svg.count("<g id=\"axes_") > both.svg.count("<g id=\"axes_")
+    assert "R_abcd" not in "".join(ET.fromstring(other.svg).itertext())

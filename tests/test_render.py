@@ -174,7 +174,13 @@ def test_search_index_is_an_embedded_script_with_published_entries(site: Path) -
     assert rows[0]["authors"] == ["A. Keeper", "B. Tide"]
     browse = page(site, "browse.html")
     assert [s["src"] for s in browse.find("script")] == [
-        "assets/search-index.js", "assets/finder.js"]
+        "assets/print.js", "assets/search-index.js", "assets/vendor/lunr/lunr-2.3.9.min.js",
+        "assets/search-lunr.js", "assets/finder.js"]
+    licence = (site / "assets/vendor/lunr/LICENSE").read_text(encoding="utf-8")
+    assert "Permission is hereby granted" in licence  # the vendored library keeps its licence
+    lunr_index = (site / "assets/search-lunr.js").read_text(encoding="utf-8")
+    assert lunr_index.startswith("window.ALMANAC_SEARCH = ")
+    assert '"demo-harbour-lantern"' in lunr_index
     assert browse.find("label", **{"for": "q"}) and browse.find("input", id="q")
     assert len(browse.find("li", class_="card")) == 2
 
@@ -228,7 +234,8 @@ def test_sympy_script_download_rebuilds_the_metric(site: Path) -> None:
 def test_latex_download_is_a_document_with_the_line_element(site: Path) -> None:
     tex = (site / "entries/demo-harbour-lantern/demo-harbour-lantern.tex").read_text("utf-8")
     assert tex.startswith("\\documentclass{article}")
-    assert "\\mathrm{d}s^{2} = -\\left(1 - \\frac{2 m}{r}" in tex
+    assert "\\mathrm{d}s^{2} &= -\\left(1 - \\frac{2 m}{r}" in tex  # broken over two rows
+    assert "g_{tt} = -\\left(1 - \\frac{2 m}{r} + \\frac{q^{2}}{r^{2}}\\right)" in tex
     assert tex.rstrip().endswith("\\end{document}")
 
 

@@ -18,6 +18,7 @@ import sympy
 
 from generator.entry import schema
 from generator.entry.mathparse import SymbolTable, parse_expression, parse_inequality, valid_name
+from generator.entry.prose import check_prose
 from generator.entry.safefile import read_catalog_file
 from generator.entry.yamlcheck import MAX_FILE_BYTES, validate
 from generator.errors import Diagnostic, MathSyntaxError, SourcePos
@@ -94,6 +95,8 @@ def load_text(source: str, file: str, path: Path, vocabulary: Vocabulary,
         return LoadResult(file, entry, None, tuple(diagnostics))
     spacetime, math_problems = build_spacetime(entry)
     diagnostics += math_problems
+    if spacetime is not None:
+        diagnostics += check_prose(entry, spacetime)
     return LoadResult(file, entry, spacetime, tuple(diagnostics))
 
 
@@ -195,6 +198,7 @@ def _build_entry(data: dict[str, Any], file: str, path: Path,
             for i, item in enumerate(data.get("related", ()))
             if "entry" in item
         ),
+        abbreviations=tuple(data.get("abbreviations", {}).items()),
         positions=_condition_positions(positions),
         source_text=source,
     )

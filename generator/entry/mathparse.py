@@ -74,6 +74,43 @@ _TOKEN = re.compile(
     re.VERBOSE | re.DOTALL,
 )
 _NAME = re.compile(r"[A-Za-z][A-Za-z0-9_]*\Z")
+# Mathematics in prose adds relations, lists, ± and → to the grammar (see parse_prose).
+_PROSE_TOKEN = re.compile(
+    r"""
+    (?P<space>\s+)
+  | (?P<number>(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)
+  | (?P<name>[A-Za-z_][A-Za-z0-9_]*)
+  | (?P<op>\*\*|<=|>=|!=|->|[-+*/()<>,=±∓≤≥≠→≈])
+  | (?P<bad>.)
+    """,
+    re.VERBOSE | re.DOTALL,
+)
+PROSE_RELATIONS = {"=": "=", "!=": "≠", "≠": "≠", "<": "<", "<=": "≤", "≤": "≤", ">": ">",
+                   ">=": "≥", "≥": "≥", "->": "→", "→": "→", "≈": "≈"}
+PROSE_CONSTANTS: dict[str, sympy.Expr] = {"infinity": sympy.oo}
+
+
+class PlusMinus(sympy.Function):
+    """``a ± b`` in prose (``a`` is 0 for a leading ±): kept unevaluated, only ever typeset."""
+
+    nargs = 2
+
+
+class MinusPlus(sympy.Function):
+    """``a ∓ b`` in prose, like `PlusMinus`."""
+
+    nargs = 2
+
+
+@dataclass(frozen=True)
+class ProseChain:
+    """``a = b < c``: expressions and the relations between them (one fewer than parts)."""
+
+    parts: tuple[sympy.Expr, ...]
+    relations: tuple[str, ...]
+
+
+ProseMath = tuple[ProseChain, ...]  # comma-separated chains: ``r = 0, theta = pi/2``
 
 
 @dataclass(frozen=True)
@@ -103,13 +140,13 @@ def valid_name(name: str) -> bool:
             and not keyword.iskeyword(name))
 
 
-def tokenize(text: str) -> list[Token]:
+def tokenize(text: str, prose: bool = False) -> list[Token]:
     if len(text) > MAX_LENGTH:
         raise MathSyntaxError(
             f"math string is {len(text)} characters long (limit {MAX_LENGTH})", MAX_LENGTH
         )
     tokens: list[Token] = []
-    for match in _TOKEN.finditer(text):
+    for match in (_PROSE_TOKEN if prose else _TOKEN).finditer(text):
         kind = match.lastgroup or "bad"
         if kind == "space":
             continue
@@ -185,9 +222,11 @@ def _notation_hint(text: str, offset: int) -> str:
 class _Parser:
     """Precedence-climbing parser; each method returns a SymPy object."""
 
-    def __init__(self, text: str, table: SymbolTable, allow_relations: bool) -> None:
+    def __init__(self, text: str, table: SymbolTable, allow_relations: bool,
+                 prose: bool = False) -> None:
         self.text = text
-        self.tokens = tokenize(text)
+        self.prose = prose
+        self.tokens = tokenize(text, prose)
         self.index = 0
         self.table = table
         self.allow_relations = allow_relations
@@ -259,12 +298,43 @@ class _Parser:
             )
         return parts[0] if len(parts) == 1 else sympy.And(*parts, evaluate=False)
 
+    def prose_math(self) -> ProseMath:
+        """``chain (, chain)*`` where a chain is ``sum (relation sum)*``."""
+        if self.current.kind == "end":
+            raise MathSyntaxError("empty math in prose", 0, "write an expression between the $")
+        chains = [self.prose_chain()]
+        while self.current.text == ",":
+            self.advance()
+            chains.append(self.prose_chain())
+        if self.current.kind != "end":
+            raise MathSyntaxError(
+                f"unexpected {self.current.text!r} after a complete expression",
+                self.current.offset,
+                "a missing operator? products need an explicit * (e.g. 2*M)",
+            )
+        return tuple(chains)
+
+    def prose_chain(self) -> ProseChain:
+        parts = [self.sum()]
+        relations = []
+        while self.current.text in PROSE_RELATIONS:
+            relations.append(PROSE_RELATIONS[self.advance().text])
+            parts.append(self.sum())
+        return ProseChain(tuple(parts), tuple(relations))
+
     def sum(self) -> sympy.Expr:
-        value = self.product()
-        while self.current.text in ("+", "-"):
+        signs = ("+", "-", "±", "∓") if self.prose else ("+", "-")
+        if self.prose and self.current.text in ("±", "∓"):
+            value: sympy.Expr = sympy.S.Zero
+        else:
+            value = self.product()
+        while self.current.text in signs:
             op = self.advance().text
             right = self.product()
-            value = value + right if op == "+" else value - right
+            if op in ("±", "∓"):
+                value = (PlusMinus if op == "±" else MinusPlus)(value, right)
+            else:
+                value = value + right if op == "+" else value - right
         return value
 
     def product(self) -> sympy.Expr:
@@ -332,6 +402,8 @@ class _Parser:
             return self.call_free(name, token)
         if name in CONSTANTS:
             return CONSTANTS[name]
+        if self.prose and name in PROSE_CONSTANTS and name not in self.table.symbols:
+            return PROSE_CONSTANTS[name]
         if name in self.table.symbols:
             return self.table.symbols[name]
         if name in self.table.differentials:
@@ -579,3 +651,18 @@ def parse_math(math: MathText, symbols: Mapping[str, sympy.Basic]) -> sympy.Expr
 def parse_inequality(text: str, table: SymbolTable) -> sympy.Basic:
     """Parse a domain inequality; chains such as ``0 < theta < pi`` become an ``And``."""
     return _check_degree(_Parser(text, table, allow_relations=True).parse())
+
+
+def parse_prose(text: str, table: SymbolTable) -> ProseMath:
+    """Parse the mathematics of one span of prose (notes, summaries, chart descriptions).
+
+    The same whitelisted grammar as every other math string, plus what sentences need and
+    values never do: relations (``=``, ``<``, ``<=``, ``!=``, ``->``), comma-separated lists
+    (``r = 0, theta = pi/2``), ``±``/``∓`` and the word ``infinity``. Unknown names are errors
+    with their offset, exactly as in a metric.
+    """
+    result = _Parser(text, table, allow_relations=False, prose=True).prose_math()
+    for chain in result:
+        for part in chain.parts:
+            _check_degree(part)
+    return result

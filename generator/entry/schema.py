@@ -364,6 +364,9 @@ ENTRY = Field(
               item=PARAMETER),
         Field("functions", "Free functions of coordinates.", "dict", key_pattern=NAME_PATTERN,
               item=FUNCTION),
+        Field("abbreviations", "Named shorthands for sub-expressions, e.g. `Sigma: r**2 + "
+              "a**2*cos(theta)**2`; prose math may use them and pages typeset with them.",
+              "dict", key_pattern=NAME_PATTERN, item=Field("definition", "", "math")),
         Field("domain", "Inequalities that pick the region where sample points are taken.",
               "list", item=Field("inequality", "", "math")),
         METRIC,

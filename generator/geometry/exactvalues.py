@@ -11,6 +11,7 @@ from __future__ import annotations
 from collections.abc import Mapping, Sequence
 
 import sympy
+from sympy.core.function import AppliedUndef
 from sympy.polys.polyerrors import NotAlgebraic
 
 from generator.geometry.equality import decide_zero
@@ -62,9 +63,29 @@ def sign_at(expr: sympy.Expr, point: Point, spacetime: Spacetime) -> int | None:
 
 
 def describe_point(point: Point) -> dict[str, str]:
-    """A witness point as plain strings, coordinates and parameters only."""
-    return {str(k): str(v) for k, v in sorted(point.items(), key=lambda kv: str(kv[0]))
-            if isinstance(k, sympy.Symbol)}
+    """A witness point as plain strings: coordinates and parameters, then the values the free
+    functions and their derivatives take there (a = 3/2, a′ = 5, a″ = −2), which are what a
+    counter-example of a free-function entry is about (its coordinates alone say nothing)."""
+    plain = {str(k): str(v) for k, v in sorted(point.items(), key=lambda kv: str(kv[0]))
+             if isinstance(k, sympy.Symbol)}
+    functions = sorted(((function_value_name(k), str(v)) for k, v in point.items()
+                        if not isinstance(k, sympy.Symbol) and function_value_name(k)),
+                       key=lambda kv: (kv[0].rstrip("′″‴"), len(kv[0]), kv[0]))
+    return {**plain, **dict(functions)}
+
+
+def function_value_name(key: sympy.Basic) -> str:
+    """``a`` for a(t), ``a′``/``a″`` for its derivatives in one variable, ``∂_r∂_t m`` for
+    mixed ones; empty for anything else."""
+    if isinstance(key, AppliedUndef):
+        return key.func.__name__
+    if isinstance(key, sympy.Derivative) and isinstance(key.expr, AppliedUndef):
+        name = key.expr.func.__name__
+        counts = key.variable_count
+        if len(key.expr.args) == 1 and len(counts) == 1 and counts[0][1] <= 3:
+            return name + "′″‴"[int(counts[0][1]) - 1]
+        return "".join(f"∂_{x}" * int(n) for x, n in counts) + " " + name
+    return ""
 
 
 def point_text(point: Point) -> str:

@@ -18,6 +18,7 @@ from markupsafe import Markup, escape
 
 from generator.entry.content_hash import short_hash
 from generator.entry.mathparse import parse_math
+from generator.entry.prose import abbreviation_symbols, abbreviation_values
 from generator.errors import AlmanacError
 from generator.model import (
     CatalogMeta,
@@ -177,6 +178,16 @@ def coordinate_symbols(report: EntryReport) -> tuple[sympy.Symbol, ...]:
     return report.spacetime.coordinates if report.spacetime else ()
 
 
+def abbreviation_pairs(report: EntryReport) -> list[tuple[sympy.Symbol, sympy.Expr]]:
+    """(symbol, definition) of each abbreviation the entry declares, for typesetting."""
+    if report.entry is None or report.spacetime is None:
+        return []
+    symbols = abbreviation_symbols(report.entry)
+    return [(symbols[name], value)
+            for name, value in abbreviation_values(report.entry, report.spacetime).items()
+            if name in symbols]
+
+
 def typeset(expr: sympy.Expr | None, coords: Sequence[sympy.Symbol] = ()) -> Markup | None:
     """MathML for an expression; if conversion fails, the plain SymPy text, escaped."""
     if expr is None:
@@ -241,6 +252,18 @@ def arxiv_url(arxiv: str | None) -> str:
     return "https://arxiv.org/abs/" + quote(arxiv, safe="/.")
 
 
+_SUBSCRIPT = re.compile(r"(?<![\w&;])([A-Za-z])_([a-zξ]{1,4})\b")
+_SUPERSCRIPT = re.compile(r"(?<![\w&;])([A-Za-z])\^([a-z]{1,4})\b")
+
+
+def readable_text(text: str) -> Markup:
+    """A checker's sentence for a page, escaped, with index notation set as real sub- and
+    superscripts (``T_ab k^a k^b`` reads as T<sub>ab</sub>k<sup>a</sup>k<sup>b</sup>)."""
+    html = str(escape(text))
+    html = _SUBSCRIPT.sub(r"\1<sub>\2</sub>", html)
+    return Markup(_SUPERSCRIPT.sub(r"\1<sup>\2</sup>", html))
+
+
 STATE_LABELS = {"agrees": "agrees with source", "computed-only": "computed only",
                 "disagrees": "disagrees", "undecided": "undecided"}
 STATE_ABOUT = {
@@ -276,6 +299,7 @@ def verdict_row(verdict: Verdict) -> dict[str, Any]:
         "method": verdict.method,
         "method_label": METHOD_LABELS.get(verdict.method, verdict.method),
         "detail": verdict.detail,
+        "detail_html": readable_text(verdict.detail),
         "claimed": verdict.claimed,
         "computed": verdict.computed,
     }

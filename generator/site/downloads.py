@@ -8,14 +8,32 @@ import keyword
 from collections.abc import Sequence
 from typing import Any
 
+import sympy
+from sympy.printing.str import StrPrinter
+
 from generator.entry.content_hash import canonical_form
+from generator.entry.prose import prose_table
 from generator.model import (
     CatalogMeta,
     EntryReport,
     Reference,
 )
 from generator.site import cite, export, mathtex
-from generator.site.common import NOWHERE, RenderError, Surroundings, expr_text, verdict_row
+from generator.site.common import (
+    NOWHERE,
+    RenderError,
+    Surroundings,
+    abbreviation_pairs,
+    verdict_row,
+)
+from generator.site.latex_export import (
+    ROW_WIDTH,
+    equation_block,
+    expression_rows,
+    latex_text,
+    line_element_rows,
+    prose_latex_text,
+)
 
 
 def entry_json(report: EntryReport, meta: CatalogMeta,
@@ -90,6 +108,21 @@ def require_identifiers(symbols: Sequence[Any]) -> None:
             raise RenderError(f"symbol name {name!r} cannot be written into the SymPy script")
 
 
+class _ScriptPrinter(StrPrinter):
+    """SymPy's string printer, except that a bare fraction is ``Rational(p, q)``: in a
+    script, ``r**(-3/2)`` would be evaluated by Python as a float power."""
+
+    def _print_Rational(self, expr: sympy.Rational) -> str:
+        if expr.q == 1:
+            return str(expr.p)
+        return f"Rational({expr.p}, {expr.q})"
+
+
+def script_text(expr: sympy.Basic) -> str:
+    """Python source for an expression that evaluates to exactly it."""
+    return _ScriptPrinter({"order": "lex"}).doprint(expr)
+
+
 def sympy_script(report: EntryReport, meta: CatalogMeta) -> str:
     """A standalone script that rebuilds the metric with SymPy (catalog signature)."""
     entry, st = report.entry, report.spacetime
@@ -112,22 +145,23 @@ def sympy_script(report: EntryReport, meta: CatalogMeta) -> str:
         return "\n".join([*lines, "metric = None", ""])
     require_identifiers([*st.coordinates, *st.parameters, *(f.func for f in st.functions)])
     assumptions = {p.name: p.assume for p in entry.parameters}
+    function_assumptions = {f.name: f.assume or "real" for f in entry.functions}
     for symbol in st.coordinates:
         lines.append(f"{symbol} = sympy.Symbol({python_literal(str(symbol))}, real=True)")
     for symbol in st.parameters:
-        kind = assumptions.get(str(symbol), "real")
-        flag = kind if kind in SYMPY_ASSUMPTIONS else "real"
-        lines.append(f"{symbol} = sympy.Symbol({python_literal(str(symbol))}, {flag}=True)")
+        flags = SCRIPT_ASSUMPTIONS.get(assumptions.get(str(symbol), "real"), "real=True")
+        lines.append(f"{symbol} = sympy.Symbol({python_literal(str(symbol))}, {flags})")
     for applied in st.functions:
         name = applied.func.__name__
-        lines.append(f"{name} = sympy.Function({python_literal(name)})")
+        flags = SCRIPT_ASSUMPTIONS.get(function_assumptions.get(name, "real"), "real=True")
+        lines.append(f"{name} = sympy.Function({python_literal(name)}, {flags})")
     n = st.dimension
     lines += ["", f"coordinates = ({', '.join(str(c) for c in st.coordinates)},)",
               f"metric = sympy.zeros({n}, {n})"]
     for i in range(n):
         for j in range(i, n):
             if st.metric[i, j] != 0:
-                value = expr_text(st.metric[i, j])
+                value = script_text(st.metric[i, j])
                 target = f"metric[{i}, {j}]" if i == j else f"metric[{i}, {j}] = metric[{j}, {i}]"
                 lines.append(f"{target} = {value}")
     lines += ["metric = sympy.ImmutableMatrix(metric)", "",
@@ -135,38 +169,53 @@ def sympy_script(report: EntryReport, meta: CatalogMeta) -> str:
     return "\n".join(lines)
 
 
-SYMPY_ASSUMPTIONS = frozenset({"positive", "negative", "nonnegative", "nonzero", "real"})
-LATEX_SPECIALS = {
-    "\\": r"\textbackslash{}", "{": r"\{", "}": r"\}", "$": r"\$", "&": r"\&", "#": r"\#",
-    "%": r"\%", "_": r"\_", "^": r"\^{}", "~": r"\~{}",
+# The loader's assumptions (entry/loader.py), written as keyword arguments: the script's
+# symbols must be the very symbols the entry declares (a test compares the matrices).
+SCRIPT_ASSUMPTIONS = {
+    "positive": "positive=True", "negative": "negative=True",
+    "nonnegative": "nonnegative=True", "nonpositive": "nonpositive=True",
+    "nonzero": "nonzero=True, real=True", "real": "real=True",
 }
-
-
-def latex_escape(text: str) -> str:
-    return "".join(LATEX_SPECIALS.get(ch, ch) for ch in text.replace("\n", " "))
-
-
 def latex_document(report: EntryReport, meta: CatalogMeta) -> str:
-    """A small standalone LaTeX file with the line element and the components."""
+    """A standalone LaTeX file (amsmath only) with the line element, the abbreviations and
+    the components, long formulas broken over rows; compiles with pdflatex and LuaLaTeX."""
     entry, st = report.entry, report.spacetime
     assert entry is not None
+    table = prose_table(entry, st) if st is not None else None
+    coords = st.coordinates if st is not None else ()
     head = [
-        r"\documentclass{article}", r"\usepackage{amsmath}", r"\begin{document}",
-        rf"\section*{{{latex_escape(entry.title)} ({latex_escape(entry.chart)})}}",
-        rf"% Metric Almanac {latex_escape(meta.version)}, entry {latex_escape(entry.id)}",
-        r"% Conventions: signature $-+++$, $G = c = 1$.",
+        r"\documentclass{article}", r"\usepackage{amsmath}", r"\begin{document}", r"\sloppy",
+        rf"\section*{{{latex_text(entry.title)}}}",
+        rf"% Metric Almanac {latex_text(meta.version)}, entry {latex_text(entry.id)}",
+        rf"\noindent Chart: {prose_latex_text(entry.chart, table, coords)}.",
+        "",
+        prose_latex_text(entry.summary, table, coords),
+        "",
+        r"Conventions: signature $-+++$, $G = c = 1$. Machine-checked; check against the "
+        r"original literature before use.",
     ]
     body: list[str] = []
     if st is not None:
-        line = mathtex.line_element_latex(st.metric, st.coordinates).replace(r"\text{d}",
-                                                                            r"\mathrm{d}")
-        body += [r"\begin{equation}", line, r"\end{equation}", r"\begin{align}"]
-        rows = []
+        pairs = abbreviation_pairs(report)
+        metric = mathtex.abbreviate_matrix(st.metric, pairs)
+        rows = line_element_rows(metric, coords)
+        if any(mathtex.visual_width(row) > 1.3 * ROW_WIDTH for row in rows):
+            # a single term wider than the page: name the components, set each broken below
+            body.append(equation_block(r"\mathrm{d}s^{2}",
+                                       [r"g_{ab}\,\mathrm{d}x^{a}\,\mathrm{d}x^{b}"]))
+            body.append("with the components $g_{ab}$ listed below.")
+        else:
+            body.append(equation_block(r"\mathrm{d}s^{2}", rows))
+        if pairs:
+            where = [f"${sympy.latex(symbol)} = {mathtex.to_latex(value, coords)}$"
+                     for symbol, value in pairs]
+            body.append("where " + ", ".join(where) + ".")
+        body.append(r"\paragraph{Nonzero components.}")
         for i in range(st.dimension):
             for j in range(i, st.dimension):
-                if st.metric[i, j] != 0:
-                    rows.append(mathtex.component_latex(st.coordinates[i], st.coordinates[j],
-                                                        st.metric[i, j], st.coordinates)
-                                .replace(" = ", " &= ", 1))
-        body += [" \\\\\n".join(rows), r"\end{align}"]
-    return "\n".join([*head, *body, r"\end{document}", ""])
+                if metric[i, j] != 0:
+                    lhs = (f"g_{{{mathtex.to_latex(coords[i], coords)}"
+                           f"{mathtex.to_latex(coords[j], coords)}}}")
+                    body.append(equation_block(lhs, expression_rows(metric[i, j], coords)))
+    text = "\n".join([*head, *body, r"\end{document}", ""])
+    return text.replace(r"\text{d}", r"\mathrm{d}")

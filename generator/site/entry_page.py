@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import re
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
@@ -11,7 +12,13 @@ import sympy
 from markupsafe import Markup
 
 from generator.entry.content_hash import short_hash
-from generator.entry.mathparse import parse_inequality, table_from_symbols
+from generator.entry.mathparse import (
+    parse_expression,
+    parse_inequality,
+    table_from_symbols,
+    valid_name,
+)
+from generator.entry.prose import abbreviation_values, plain_prose
 from generator.errors import AlmanacError
 from generator.model import (
     CatalogMeta,
@@ -37,14 +44,15 @@ from generator.site.common import (
     SIGNATURE,
     UNITS,
     Surroundings,
+    abbreviation_pairs,
     arxiv_url,
     coordinate_symbols,
     decided_by,
     doi_url,
-    markdown_html,
     math_block,
     math_inline,
     parsed,
+    readable_text,
     relation_latex,
     typeset,
     typeset_text,
@@ -59,6 +67,13 @@ from generator.site.physical_page import (
     physical_section,
     verified_limit_links,
 )
+from generator.site.prose_html import (
+    abbreviation_rows,
+    prose_line,
+    prose_markdown,
+    prose_symbols,
+)
+from generator.site.tensor_tables import tensor_tables
 
 # ---------------------------------------------------------------------------- one entry
 
@@ -133,6 +148,9 @@ def entry_card(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "authors": authors,
         "years": sorted({ref.year for ref in entry.references}),
         "href": f"entries/{entry.id}/index.html",
+        "summary_html": prose_line(entry.summary, prose_symbols(entry, report.spacetime)),
+        "chart_html": prose_line(entry.chart, prose_symbols(entry, report.spacetime)),
+        "notes_text": plain_prose(entry.notes),  # for the search index only
         "limit_links": verified_limit_links(report),
     }
 
@@ -149,10 +167,14 @@ def entry_page_data(
     verdicts = {v.subject: v for v in report.verdicts}
     return {
         "entry": card,
-        "notes": markdown_html(entry.notes, allow_links=False),
-        "metric": metric_data(report),
+        "notes": prose_markdown(entry.notes, prose_symbols(entry, report.spacetime)),
+        "metric": metric_data(report, abbreviation_pairs(report)),
+        "abbreviations": abbreviation_rows(
+            entry, report.spacetime,
+            abbreviation_values(entry, report.spacetime) if report.spacetime else {}),
         "chart": chart_data(entry, report.spacetime),
-        "invariants": invariant_rows(report, verdicts),
+        "invariants": invariant_rows(report, verdicts, abbreviation_pairs(report)),
+        "tensors": tensor_tables(report, abbreviation_pairs(report)),
         "matter": matter_data(report, verdicts),
         "symmetry": symmetry_data(report, verdicts),
         "isometry": isometry_data(report),
@@ -165,6 +187,7 @@ def entry_page_data(
         "references": [reference_data(r) for r in entry.references],
         "checks": [verdict_row(v) for v in report.verdicts],
         "decided_by": decided_by(report.verdicts),
+        "verified": verification_summary(report),
         "provenance": {
             "generator_version": meta.generator_version,
             "sympy_version": meta.sympy_version,
@@ -185,6 +208,56 @@ def entry_page_data(
     }
 
 
+SUBJECT_LABELS = {
+    **{f"claims.{key}": label for key, label, _ in INVARIANTS},
+    "claims.petrov_type": "Petrov type",
+    "claims.hawking_ellis_type": "Hawking–Ellis type",
+    "matter.kind": "Matter content",
+}
+
+
+def subject_label(subject: str, entry: Entry) -> str:
+    """A verdict's subject in readers' words (the check log keeps the key)."""
+    if subject in SUBJECT_LABELS:
+        return SUBJECT_LABELS[subject]
+    head, _, index = subject.rpartition(".")
+    if head == "claims.killing_vectors" and index.isdigit():
+        return f"Killing vector {int(index) + 1}"
+    if head == "related" and index.isdigit() and int(index) < len(entry.related):
+        return f"Map to {entry.related[int(index)].entry}"
+    if subject.startswith("claims.energy_conditions."):
+        return f"{subject.rpartition('.')[2]} energy condition"
+    return subject
+
+
+def verification_summary(report: EntryReport) -> dict[str, Any]:
+    """What only this tool has, for the top of the page: how many stated facts were checked,
+    how, against which published source, and which are the tool's own results (a value no
+    cited publication prints is never counted as agreement)."""
+    entry = report.entry
+    assert entry is not None
+    rows = []
+    for verdict in report.verdicts:
+        source = claim_source(verdict.source, entry) if verdict.source else None
+        rows.append({**verdict_row(verdict), "label": subject_label(verdict.subject, entry),
+                     "against": source["label"] if source and not source["computed_here"]
+                     else ""})
+    states = [row["state"] for row in rows]
+    agreeing = [r for r in rows if r["state"] == "agrees"]
+    return {
+        "rows": rows,
+        "total": len(rows),
+        "agrees": len(agreeing),
+        "exact": sum(1 for r in agreeing if r["method"] == "exact"),
+        "sampled": sum(1 for r in agreeing if r["method"] == "sampled"),
+        "computed_only": states.count("computed-only"),
+        "undecided": states.count("undecided"),
+        "disagrees": states.count("disagrees"),
+        "sources": sorted({r["against"] for r in rows if r["against"]}),
+        "own": [r["label"] for r in rows if r["state"] == "computed-only"],
+    }
+
+
 def download_links(entry_id: str) -> list[dict[str, str]]:
     return [
         {"file": "entry.json", "label": "All data as JSON",
@@ -196,16 +269,18 @@ def download_links(entry_id: str) -> list[dict[str, str]]:
     ]
 
 
-def metric_data(report: EntryReport) -> dict[str, Any]:
+def metric_data(report: EntryReport,
+                pairs: Sequence[tuple[sympy.Symbol, sympy.Expr]] = ()) -> dict[str, Any]:
     st = report.spacetime
     if st is None:
         return {"line_element": None, "components": []}
     coords = st.coordinates
-    line = mathtex.line_element_display_latex(st.metric, coords)
+    metric = mathtex.abbreviate_matrix(st.metric, pairs)
+    line = mathtex.line_element_display_latex(metric, coords)
     components = []
     for i in range(st.dimension):
         for j in range(i, st.dimension):
-            value = st.metric[i, j]
+            value = metric[i, j]
             if value != 0:
                 components.append(
                     Markup(mathtex.latex_to_mathml(
@@ -246,7 +321,9 @@ def domain_row(math: MathText, st: Spacetime | None) -> dict[str, Any]:
     return {"math": math_inline(relation_latex(relation, st.coordinates)), "text": math.text}
 
 
-def invariant_rows(report: EntryReport, verdicts: Mapping[str, Verdict]) -> list[dict[str, Any]]:
+def invariant_rows(report: EntryReport, verdicts: Mapping[str, Verdict],
+                   pairs: Sequence[tuple[sympy.Symbol, sympy.Expr]] = ()
+                   ) -> list[dict[str, Any]]:
     entry, geometry = report.entry, report.geometry
     assert entry is not None
     coords = coordinate_symbols(report)
@@ -261,7 +338,8 @@ def invariant_rows(report: EntryReport, verdicts: Mapping[str, Verdict]) -> list
             "key": key,
             "label": label,
             "symbol": math_inline(symbol),
-            "computed": typeset(computed, coords),
+            "computed": typeset(mathtex.abbreviate(computed, pairs) if computed is not None
+                                else None, coords),
             "claim": claim_data(claim, entry, report.spacetime) if claim else None,
             "verdict": verdict_row(verdicts[f"claims.{key}"]) if f"claims.{key}" in verdicts
             else None,
@@ -314,18 +392,47 @@ def matter_data(report: EntryReport, verdicts: Mapping[str, Verdict]) -> dict[st
         "hawking_ellis_claim": entry.claims.hawking_ellis_type,
         "stress_energy": stress_energy_rows(report),
         "energy_conditions": [
-            {"name": ec.name, "status": ec.status, "how": ec.how,
+            {"name": ec.name, "status": ec.status, "how": readable_text(ec.how),
              "claimed": dict(entry.claims.energy_conditions).get(ec.name, "")}
             for ec in (c.energy_conditions if c else ())
         ],
-        "reasons": sorted((c.reasons if c else {}).items()),
+        "reasons": matter_reasons(c.reasons if c else {}, entry.matter.kind),
         "energy_conditions_na": "",
+        "hawking_ellis_na": "",
     }
     statuses = {ec.status for ec in (c.energy_conditions if c else ())}
     if statuses == {"not-applicable"} and c is not None:
-        data["energy_conditions_na"] = c.energy_conditions[0].how
-        data["reasons"] = [(k, v) for k, v in data["reasons"] if k != "energy_conditions"]
+        data["energy_conditions_na"] = readable_reason(c.energy_conditions[0].how,
+                                                       entry.matter.kind)
+        data["hawking_ellis_na"] = readable_reason(
+            c.reasons.get("hawking_ellis_type", ""), entry.matter.kind)
+        data["reasons"] = [(k, v) for k, v in data["reasons"]
+                           if k not in (REASON_LABELS["energy_conditions"],
+                                        REASON_LABELS["hawking_ellis_type"])]
     return data
+
+
+# What the matter section explains, by the checker's internal key, in readers' words; reasons
+# about other sections (Petrov type, Weyl scalars) are shown there or not at all.
+REASON_LABELS = {
+    "matter_kind": "Matter content",
+    "hawking_ellis_type": "Hawking–Ellis type",
+    "energy_density": "Energy density",
+    "energy_conditions": "Energy conditions",
+}
+
+
+def readable_reason(text: str, matter_kind: str) -> Markup:
+    """A checker's reason for a page: the matter kind's label instead of its key, and
+    ``T_ab`` with a real subscript."""
+    if text.startswith(f"{matter_kind}: "):
+        text = f"{MATTER_LABELS.get(matter_kind, matter_kind)}: " + text[len(matter_kind) + 2:]
+    return readable_text(text)
+
+
+def matter_reasons(reasons: Mapping[str, str], matter_kind: str) -> list[tuple[str, Markup]]:
+    return [(REASON_LABELS[key], readable_reason(reasons[key], matter_kind))
+            for key in REASON_LABELS if key in reasons]
 
 
 def stress_energy_rows(report: EntryReport) -> list[Markup]:
@@ -398,10 +505,31 @@ def related_rows(report: EntryReport, published: Sequence[str]) -> list[dict[str
         rows.append({
             "entry": rel.entry,
             "href": f"../{rel.entry}/index.html" if rel.entry in published else "",
-            "map": [{"coordinate": name, "text": value.text} for name, value in rel.map],
+            "map": [map_item(name, value.text, report.spacetime) for name, value in rel.map],
             "verdict": verdict_row(verdict) if verdict else None,
         })
     return rows
+
+
+def map_item(coordinate: str, text: str, st: Spacetime | None) -> dict[str, Any]:
+    """One coordinate of a map between charts, typeset: ``r = sqrt(X**2 - T**2)`` as math.
+
+    A map is written in the other chart's names, which this entry does not declare; the
+    whitelisted parser reads them as plain symbols (already checked with the map itself).
+    When it still does not parse, the text is shown as code.
+    """
+    known = dict(st.symbols) if st is not None else {}
+    names = {n for n in [*re.findall(r"[A-Za-z_][A-Za-z0-9_]*", text), coordinate]
+             if valid_name(n) and n not in known}
+    table = table_from_symbols({**known, **{n: sympy.Symbol(n) for n in sorted(names)}})
+    coords = st.coordinates if st is not None else ()
+    try:
+        expr = parse_expression(text, table)
+        latex = (f"{mathtex.to_latex(sympy.Symbol(coordinate), coords)} = "
+                 f"{mathtex.to_latex(expr, coords)}")
+        return {"coordinate": coordinate, "text": text, "math": math_inline(latex)}
+    except (AlmanacError, mathtex.UnsafeMathML, ValueError, TypeError, RecursionError):
+        return {"coordinate": coordinate, "text": text, "math": None}
 
 
 def chart_link_row(link: ChartLink) -> dict[str, Any]:
@@ -411,7 +539,7 @@ def chart_link_row(link: ChartLink) -> dict[str, Any]:
         "entry": link.entry,
         "href": f"../{link.entry}/index.html",
         "chart": link.chart,
-        "map": [{"coordinate": name, "text": text} for name, text in link.map],
+        "map": [map_item(name, text, None) for name, text in link.map],
         "method_label": METHOD_LABELS.get(link.method, link.method),
         "route": [{"entry": step, "href": f"../{step}/index.html"} for step in link.route],
     }

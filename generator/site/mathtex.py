@@ -22,6 +22,8 @@ from latex2mathml.converter import convert as _latex_to_mathml
 from sympy.core.function import AppliedUndef
 from sympy.printing.latex import LatexPrinter
 
+from generator.entry.mathparse import ProseMath
+
 # Coordinate names by the role they usually play; the line element lists time first, then
 # radial-type, then the rest in index order, then angles.
 TIME_NAMES = frozenset({"t", "tau", "T", "eta", "u", "v", "U", "V", "t_"})
@@ -152,9 +154,71 @@ class TextbookLatexPrinter(LatexPrinter):
         return super()._print_Derivative(expr)
 
 
+    def _print_PlusMinus(self, expr: sympy.Expr) -> str:
+        return self._print_signed_pair(expr, r"\pm")
+
+    def _print_MinusPlus(self, expr: sympy.Expr) -> str:
+        return self._print_signed_pair(expr, r"\mp")
+
+    def _print_signed_pair(self, expr: sympy.Expr, sign: str) -> str:
+        """``a ± b`` from prose (``± b`` when a is 0); b is bracketed when it is a sum."""
+        left, right = expr.args
+        body = self._print(right)
+        if right.is_Add:
+            body = rf"\left({body}\right)"
+        return f"{sign} {body}" if left == 0 else f"{self._print(left)} {sign} {body}"
+
+
 def to_latex(expr: sympy.Expr, coordinates: Sequence[sympy.Symbol] = ()) -> str:
     """LaTeX for a single expression, sums in textbook order."""
     return TextbookLatexPrinter(coordinates).doprint(sympy.sympify(expr))
+
+
+# ---------------------------------------------------------------------------- prose
+
+PROSE_RELATION_TEX = {"=": "=", "≠": r"\ne", "<": "<", "≤": r"\le", ">": ">", "≥": r"\ge",
+                      "→": r"\to", "≈": r"\approx"}
+
+
+def prose_latex(math: ProseMath, coordinates: Sequence[sympy.Symbol] = ()) -> str:
+    """LaTeX for a span of math from prose: relation chains separated by commas."""
+    printer = TextbookLatexPrinter(coordinates)
+    chains = []
+    for chain in math:
+        text = printer.doprint(chain.parts[0])
+        for relation, part in zip(chain.relations, chain.parts[1:], strict=True):
+            text += f" {PROSE_RELATION_TEX[relation]} {printer.doprint(part)}"
+        chains.append(text)
+    return r",\; ".join(chains)
+
+
+# ---------------------------------------------------------------------------- abbreviations
+
+
+def abbreviate(expr: sympy.Expr, pairs: Sequence[tuple[sympy.Symbol, sympy.Expr]]) -> sympy.Expr:
+    """``expr`` with each declared abbreviation's definition replaced by its symbol
+    (r² + a² cos²θ → Σ), longest definitions first, as textbooks write Kerr.
+
+    A replacement is kept only when putting the definition back gives the same expression
+    exactly, so what is typeset is always the computed value.
+    """
+    result = sympy.sympify(expr)
+    for symbol, definition in sorted(pairs, key=lambda p: (-sympy.count_ops(p[1]), str(p[0]))):
+        candidate = result.subs(definition, symbol)
+        if candidate == result:
+            continue
+        back = candidate.subs(symbol, definition)
+        if back == result or sympy.cancel(back - result) == 0:
+            result = candidate
+    return result
+
+
+def abbreviate_matrix(matrix: sympy.MatrixBase,
+                      pairs: Sequence[tuple[sympy.Symbol, sympy.Expr]]) -> sympy.MatrixBase:
+    if not pairs:
+        return matrix
+    return sympy.ImmutableMatrix(matrix.shape[0], matrix.shape[1],
+                                 lambda i, j: abbreviate(matrix[i, j], pairs))
 
 
 # ---------------------------------------------------------------------------- line element
@@ -349,12 +413,22 @@ def _group_latex(
     return negative, body
 
 
+def signed_latex(expr: sympy.Expr, coordinates: Sequence[sympy.Symbol] = ()) -> str:
+    """A sum that reads better negated as ``-(1 - 2M/r)``, as textbooks write g_tt; anything
+    else as `to_latex` prints it."""
+    expr = sympy.sympify(expr)
+    if expr.is_Add and _prefers_minus(expr):
+        return rf"-\left({to_latex(-expr, coordinates)}\right)"
+    return to_latex(expr, coordinates)
+
+
 def component_latex(
     a: sympy.Symbol, b: sympy.Symbol, value: sympy.Expr, coordinates: Sequence[sympy.Symbol]
 ) -> str:
     """``g_{tt} = ...`` for one lower-index metric component."""
     printer = TextbookLatexPrinter(coordinates)
-    return rf"g_{{{printer.doprint(a)}{printer.doprint(b)}}} = {to_latex(value, coordinates)}"
+    return (rf"g_{{{printer.doprint(a)}{printer.doprint(b)}}} = "
+            rf"{signed_latex(value, coordinates)}")
 
 
 # ---------------------------------------------------------------------------- MathML

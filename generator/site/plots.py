@@ -13,6 +13,7 @@ as text (``svg.fonttype = none``), and matplotlib's global state is only touched
 from __future__ import annotations
 
 import io
+import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -34,14 +35,30 @@ SVG_SETTINGS = {
     "axes.grid": True,
     "grid.alpha": 0.3,
     "path.simplify": False,
-    "axes.formatter.use_mathtext": False,
+    "axes.formatter.use_mathtext": True,  # 10⁻¹ on log axes, not 1e−01
 }
-INVARIANT_LABELS = (
-    ("ricci_scalar", "Ricci scalar R"),
-    ("kretschmann", "Kretschmann R_abcd R^abcd"),
-    ("ricci_squared", "Ricci square R_ab R^ab"),
-    ("weyl_squared", "Weyl square C_abcd C^abcd"),
+INVARIANT_LABELS = (  # key, axis label (mathtext), name in alt text
+    ("ricci_scalar", r"Ricci scalar $R$", "Ricci scalar"),
+    ("kretschmann", r"Kretschmann $R_{abcd}R^{abcd}$", "Kretschmann scalar"),
+    ("ricci_squared", r"Ricci square $R_{ab}R^{ab}$", "Ricci square"),
+    ("weyl_squared", r"Weyl square $C_{abcd}C^{abcd}$", "Weyl square"),
 )
+_READABLE = {"theta": "θ", "phi": "φ", "pi": "π", "chi": "χ", "rho": "ρ", "tau": "τ",
+             "Lambda": "Λ", "ell": "ℓ", "mu": "μ", "sigma": "σ", "eta": "η", "xi": "ξ"}
+
+
+def readable(text: str) -> str:
+    """``theta = pi/2`` as a reader writes it: ``θ = π/2``."""
+    return re.sub(r"\b(" + "|".join(_READABLE) + r")\b", lambda m: _READABLE[m.group(1)], text)
+
+
+def axis_label(setting: PlotSetting) -> str:
+    """``r/M`` when the plot's mass scale M is set to 1 (the axis is then in units of M)."""
+    r = readable(str(setting.radial))
+    mass = next((s for s in setting.values if str(s) == "M"), None)
+    if mass is not None and setting.values[mass] == 1:
+        return f"{r}/M   (G = c = 1)"
+    return f"{r}   (G = c = 1)"
 SAMPLE_BY_ASSUMPTION = {
     "positive": sympy.Integer(1),
     "nonnegative": sympy.Rational(1, 2),
@@ -215,8 +232,13 @@ def domain_mask(st: Spacetime, setting: PlotSetting, radius: numpy.ndarray) -> n
 def invariants_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:
     st, g, entry = report.spacetime, report.geometry, report.entry
     assert st is not None and g is not None and entry is not None
-    series, used = [], []
-    for key, label in INVARIANT_LABELS:
+    series, used, names = [], [], []
+    vacuum = report.classification is not None and report.classification.matter_kind == "vacuum"
+    for key, label, name in INVARIANT_LABELS:
+        if vacuum and key == "weyl_squared" and g.kretschmann is not None:
+            continue  # with R_ab = 0 the Weyl square is the Kretschmann scalar: one panel
+        if vacuum and key == "kretschmann":
+            label, name = label + r" $= C_{abcd}C^{abcd}$", name + " (equal to the Weyl square)"
         expr = getattr(g, key)
         # Plotted against the radial coordinate only if it depends on it (a cheap test:
         # SymPy's is_constant() would run simplify on the whole invariant).
@@ -226,21 +248,22 @@ def invariants_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:
         if values is not None and numpy.isfinite(values).sum() >= 2:
             series.append((label, values))
             used.append(sympy.sympify(expr))
+            names.append(name)
     if not series:
         return None
-    values_text = describe_values(setting, used)
+    values_text = readable(describe_values(setting, used))
     r = str(setting.radial)
     radius = numpy.linspace(setting.low, setting.high, SAMPLE_COUNT)[1:]
     figure = _figure(len(series))
     for axis, (label, values) in zip(figure.axes, series, strict=True):
         _draw(axis, radius, values, label, log=_wants_log(values))
-    figure.axes[-1].set_xlabel(f"{r}  (G = c = 1)")
-    figure.suptitle(f"Curvature invariants along {r}; {values_text}")
-    names = ", ".join(label for label, _ in series)
+    figure.axes[-1].set_xlabel(axis_label(setting))
+    figure.suptitle(f"Curvature invariants along {readable(r)}; {values_text}")
     return Plot(
         file_name="invariants.svg",
         svg=_svg(figure),
-        alt=f"{names} of {entry.title} plotted against {r} for {values_text}.",
+        alt=f"{', '.join(names)} of {entry.title} plotted against {readable(r)} for "
+            f"{values_text}.",
         caption=f"Curvature invariants against {r}, units G = c = 1, with "
                 f"{values_text}. Points outside the entry's domain are left out.",
     )
@@ -256,8 +279,10 @@ def metric_functions_plot(report: EntryReport, setting: PlotSetting) -> Plot | N
     wanted: list[tuple[str, sympy.Expr]] = []
     if time is not None:
         t_index = names.index(str(time))
-        wanted.append((f"-g_{time}{time}", -st.metric[t_index, t_index]))
-    wanted.append((f"g_{setting.radial}{setting.radial}", st.metric[r_index, r_index]))
+        t_tex = sympy.latex(time)
+        wanted.append((f"$-g_{{{t_tex}{t_tex}}}$", -st.metric[t_index, t_index]))
+    r_tex = sympy.latex(setting.radial)
+    wanted.append((f"$g_{{{r_tex}{r_tex}}}$", st.metric[r_index, r_index]))
     series, used = [], []
     for label, expr in wanted:
         expr = sympy.sympify(expr)
@@ -269,8 +294,8 @@ def metric_functions_plot(report: EntryReport, setting: PlotSetting) -> Plot | N
             used.append(expr)
     if not series:
         return None
-    values_text = describe_values(setting, used)
-    r = str(setting.radial)
+    values_text = readable(describe_values(setting, used))
+    r = readable(str(setting.radial))
     radius = numpy.linspace(setting.low, setting.high, SAMPLE_COUNT)[1:]
     figure = _figure(1)
     axis = figure.axes[0]
@@ -281,15 +306,18 @@ def metric_functions_plot(report: EntryReport, setting: PlotSetting) -> Plot | N
     for mark in marks:
         axis.axvline(mark, color="0.3", linestyle=":", linewidth=1.0)
     axis.legend(loc="best", frameon=False)
-    axis.set_xlabel(f"{r}  (G = c = 1)")
+    axis.set_xlabel(axis_label(setting))
     axis.set_ylabel("metric component (clipped to ±20)")
     figure.suptitle(f"Metric functions along {r}; {values_text}")
-    labels = " and ".join(label for label, _ in series)
+    plain = {"$": "", "{": "", "}": "", "-": "−"}
+    labels = " and ".join("".join(plain.get(ch, ch) for ch in readable(label)
+                                  .replace("\\", "")) for label, _ in series)
     return Plot(
         file_name="metric-functions.svg",
         svg=_svg(figure),
-        alt=f"{labels} of {entry.title} against {r} for {values_text}; "
-            "horizons show where -g_tt crosses zero.",
+        alt=f"{labels} of {entry.title} against {r} for {values_text}. Where −g_tt is zero "
+            "the time-translation Killing vector is null (a horizon of a static chart, the "
+            "static limit of a rotating one); where g_rr diverges the chart is singular.",
         caption=f"Metric functions against {r}, units G = c = 1, with "
                 f"{values_text}; values clipped to ±20."
                 + (f" Dotted lines: horizons at {r} ≈ "

@@ -49,6 +49,7 @@ from generator.site.common import (
     revision_file,
 )
 from generator.site.entry_page import EntryView, entry_view, surroundings
+from generator.site.search import search_script
 from generator.versions import library_versions
 
 # ---------------------------------------------------------------------------- the stage
@@ -82,6 +83,7 @@ def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path
     for report in published:
         write_entry_files(report, views[report.entry.id], meta, out_dir)  # type: ignore[union-attr]
     write_text(out_dir / "assets" / "search-index.js", search_index_script(cards))
+    write_text(out_dir / "assets" / "search-lunr.js", search_script(cards))
     entries = [views[r.entry.id].data for r in published if r.entry is not None]
     write_text(out_dir / "catalog.json", catalog_json(entries, meta))
     copy_static(out_dir)
@@ -169,7 +171,8 @@ def copy_static(out_dir: Path) -> None:
 
 
 VIEW_SUFFIX = ".view"
-RENDER_LIBRARIES = ("matplotlib", "latex2mathml", "markdown", "nh3", "markupsafe", "numpy")
+RENDER_LIBRARIES = ("matplotlib", "latex2mathml", "markdown", "nh3", "markupsafe", "numpy",
+                    "lunr")
 
 
 def kept_view(report: EntryReport, meta: CatalogMeta, shelf: ViewShelf | None,

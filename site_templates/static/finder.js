@@ -1,12 +1,23 @@
-// Finder: instant search and filters over the embedded index (window.ALMANAC_INDEX).
-// No network access, so it works from file:// as well as from a server. The state lives in the
-// URL hash (#q=...&family=...) so a search can be shared.
+// Finder: search and filters over the lunr index built at build time (window.ALMANAC_SEARCH,
+// see generator/site/search.py) and the card data (window.ALMANAC_INDEX). No network access,
+// so it works from file:// as well as from a server. The state lives in the URL hash
+// (#q=...&family=...) so a search can be shared.
+//
+// A query is read in three steps: it is folded exactly as the index was (lower case, accents
+// dropped, Greek letters spelt out, other characters separators); phrases that name a property
+// of the trade ("Petrov type D", "type D", "5D", "dimension 5", "vacuum", "Λ-vacuum",
+// "charged", "rotating") become filters; every remaining word must match a whole (stemmed)
+// word of some field, or the start of one, and entries are ranked by lunr's field-boosted
+// score (title > chart > tags > authors > summary > notes).
 (function () {
   "use strict";
-  var index = window.ALMANAC_INDEX || [];
+  var cards = window.ALMANAC_INDEX || [];
+  var search = window.ALMANAC_SEARCH || null;
   var form = document.getElementById("finder");
   var query = document.getElementById("q");
   var status = document.getElementById("finder-status");
+  var understood = document.getElementById("finder-understood");
+  var list = document.querySelector("ol.cards");
   var filters = {
     family: document.getElementById("f-family"),
     dimension: document.getElementById("f-dimension"),
@@ -17,20 +28,97 @@
     tag: document.getElementById("f-tag")
   };
   if (!form || !query) { return; }
+  var idx = (search && search.index && window.lunr) ? window.lunr.Index.load(search.index) : null;
+  var greek = (search && search.greek) || {};
+  var originalOrder = cards.map(function (item) { return item.id; });
+  var byId = {};
+  cards.forEach(function (item) { byId[item.id] = item; });
 
   function fold(text) {
-    return String(text).toLowerCase().normalize("NFKD").replace(/[\u0300-\u036f]/g, "")
-      .replace(/[\u2010-\u2015]/g, "-");
+    var lowered = String(text).toLowerCase().normalize("NFKD").replace(/[\u0300-\u036f]/g, "");
+    var spelt = Array.prototype.map.call(lowered, function (ch) {
+      return Object.prototype.hasOwnProperty.call(greek, ch) ? greek[ch] : ch;
+    }).join("");
+    return spelt.replace(/[^a-z0-9]+/g, " ").trim();
   }
 
-  var haystacks = {};
-  index.forEach(function (item) {
-    haystacks[item.id] = fold([item.id, item.title, item.chart, item.summary, item.family_title,
-      item.matter_label, item.tags.join(" "), item.authors.join(" "), item.years.join(" "),
-      item.petrov ? "petrov " + item.petrov : ""].join(" \u0001 "));
-  });
+  var PETROV = { "i": "I", "ii": "II", "iii": "III", "d": "D", "n": "N", "o": "O" };
+  var MATTER_NAMES = { "lambda-vacuum": "Λ-vacuum", "electrovacuum": "electrovacuum",
+    "vacuum": "vacuum", "perfect-fluid": "perfect fluid", "null-dust": "null dust" };
+  // [pattern on the folded query, what it sets]; earlier rules take their words first.
+  var PHRASES = [
+    [/\bpetrov (?:type )?(iii|ii|i|d|n|o)\b/, function (m, f) { f.petrov = PETROV[m[1]]; }],
+    [/\btype (iii|ii|i|d|n|o)\b/, function (m, f) { f.petrov = PETROV[m[1]]; }],
+    [/\b(?:dimension|dimensions|dim) (\d{1,2})\b/, function (m, f) { f.dimension = m[1]; }],
+    [/\b(\d{1,2}) ?(?:d|dimensional)\b/, function (m, f) { f.dimension = m[1]; }],
+    [/\blambda vacuum\b/, function (m, f) { f.matter = "lambda-vacuum"; }],
+    [/\belectro ?vacuum\b/, function (m, f) { f.matter = "electrovacuum"; }],
+    [/\bvacuum\b/, function (m, f) { f.matter = "vacuum"; }],
+    [/\bperfect fluid\b/, function (m, f) { f.matter = "perfect-fluid"; }],
+    [/\bnull dust\b/, function (m, f) { f.matter = "null-dust"; }],
+    [/\bcharged\b/, function (m, f) { f.tags.push("charged"); }],
+    [/\b(?:rotating|spinning)\b/, function (m, f) { f.tags.push("rotating"); }]
+  ];
 
-  function matches(item, words, chosen) {
+  function readPhrases(folded) {
+    var found = { tags: [] };
+    var rest = " " + folded + " ";
+    PHRASES.forEach(function (rule) {
+      var match = rule[0].exec(rest);
+      if (match) {
+        rule[1](match, found);
+        rest = rest.slice(0, match.index) + " " + rest.slice(match.index + match[0].length);
+      }
+    });
+    rest = rest.trim();
+    if (/^\d{1,2}$/.test(rest) && Number(rest) >= 2 && Number(rest) <= 11 && !found.dimension) {
+      found.dimension = rest;  // a bare small number is a dimension, not a year or a page
+      rest = "";
+    }
+    return { found: found, words: rest ? rest.split(" ") : [] };
+  }
+
+  function describe(found) {
+    var parts = [];
+    if (found.petrov) { parts.push("Petrov type " + found.petrov); }
+    if (found.dimension) { parts.push(found.dimension + " dimensions"); }
+    if (found.matter) { parts.push(MATTER_NAMES[found.matter] || found.matter); }
+    found.tags.forEach(function (tag) { parts.push(tag); });
+    return parts;
+  }
+
+  function isStopWord(word) {
+    return window.lunr && window.lunr.stopWordFilter(new window.lunr.Token(word, {})) === undefined;
+  }
+
+  // Scores of the entries matching one word: the whole (stemmed) word, or its start.
+  function wordScores(word) {
+    var scores = {};
+    var results = idx.query(function (q) {
+      q.term(word, { boost: 10 });
+      if (word.length >= 3) {
+        q.term(word, { wildcard: window.lunr.Query.wildcard.TRAILING, usePipeline: false, boost: 1 });
+      }
+    });
+    results.forEach(function (r) { scores[r.ref] = r.score; });
+    return scores;
+  }
+
+  function ranked(words) {
+    var total = null;
+    words.filter(function (w) { return !isStopWord(w); }).forEach(function (word) {
+      var scores = wordScores(word);
+      if (total === null) { total = scores; return; }
+      var next = {};
+      Object.keys(total).forEach(function (ref) {
+        if (Object.prototype.hasOwnProperty.call(scores, ref)) { next[ref] = total[ref] + scores[ref]; }
+      });
+      total = next;
+    });
+    return total;  // null: no words, everything matches
+  }
+
+  function passes(item, chosen, found) {
     if (chosen.family && item.family !== chosen.family) { return false; }
     if (chosen.dimension && String(item.dimension) !== chosen.dimension) { return false; }
     if (chosen.matter && item.matter !== chosen.matter) { return false; }
@@ -38,8 +126,10 @@
     if (chosen.evidence && item.evidence !== chosen.evidence) { return false; }
     if (chosen.isometry && item.isometry !== chosen.isometry) { return false; }
     if (chosen.tag && item.tags.indexOf(chosen.tag) < 0) { return false; }
-    var hay = haystacks[item.id];
-    return words.every(function (word) { return hay.indexOf(word) >= 0; });
+    if (found.petrov && item.petrov !== found.petrov) { return false; }
+    if (found.dimension && String(item.dimension) !== found.dimension) { return false; }
+    if (found.matter && item.matter !== found.matter) { return false; }
+    return found.tags.every(function (tag) { return item.tags.indexOf(tag) >= 0; });
   }
 
   function currentChoice() {
@@ -59,17 +149,32 @@
 
   function apply(updateHash) {
     var chosen = currentChoice();
-    var words = fold(query.value).split(/\s+/).filter(Boolean);
+    var reading = readPhrases(fold(query.value));
+    var scores = (idx && reading.words.length) ? ranked(reading.words) : null;
+    var order = originalOrder.slice();
+    if (scores) {
+      order.sort(function (a, b) {
+        var sa = scores[a] || 0, sb = scores[b] || 0;
+        return sb !== sa ? sb - sa : originalOrder.indexOf(a) - originalOrder.indexOf(b);
+      });
+    }
     var shown = 0;
-    index.forEach(function (item) {
-      var card = document.getElementById("card-" + item.id);
+    order.forEach(function (id) {
+      var card = document.getElementById("card-" + id);
       if (!card) { return; }
-      var visible = matches(item, words, chosen);
+      var visible = passes(byId[id], chosen, reading.found) &&
+        (scores === null || Object.prototype.hasOwnProperty.call(scores, id));
       card.hidden = !visible;
+      if (list) { list.appendChild(card); }
       if (visible) { shown += 1; }
     });
-    status.textContent = shown === index.length ? index.length + " entries." :
-      shown + " of " + index.length + " entries match.";
+    status.textContent = shown === cards.length ? cards.length + " entries." :
+      shown + " of " + cards.length + " entries match.";
+    if (understood) {
+      var parts = describe(reading.found);
+      understood.textContent = parts.length ? "Read as: " + parts.join(" · ") +
+        (reading.words.length ? " · words: " + reading.words.join(" ") : "") : "";
+    }
     if (updateHash) { writeHash(chosen); }
   }
 
@@ -85,6 +190,8 @@
       }
     });
   }
+
+  window.almanacFinder = { fold: fold, readPhrases: readPhrases };  // for tests and the console
 
   form.addEventListener("submit", function (event) { event.preventDefault(); apply(true); });
   form.addEventListener("reset", function () { window.setTimeout(function () { apply(true); }, 0); });
