@@ -165,6 +165,9 @@ def test_the_pull_request_step_warns_about_a_renamed_copy(tmp_path: Path, monkey
     box.write("catalog/black-holes/schwarzschild.yaml", original)
     box.write("catalog/cosmology/einstein-de-sitter.yaml",
               (ROOT / "catalog/cosmology/einstein-de-sitter.yaml").read_text())
+    # Schwarzschild names Minkowski space as its M → 0 limit: the link must resolve.
+    box.write("catalog/maximally-symmetric/minkowski-spherical.yaml",
+              (ROOT / "catalog/maximally-symmetric/minkowski-spherical.yaml").read_text())
     box.commit("catalog")
     box.git("checkout", "-q", "-b", "contribution")
     copy = re.sub(r"\bM\b", "m", original).replace("id: schwarzschild\n", "id: lamp-hole\n")
