@@ -280,6 +280,13 @@ EVIDENCE_LABELS = {
 }
 
 
+def reader_text(text: str) -> str:
+    """Program syntax a reader should not see in prose the tool writes (reasons, alt text):
+    powers as ^, square roots as √, products as a centred dot."""
+    text = text.replace("**", "^").replace("sqrt(", "√(")
+    return re.sub(r"(?<=\S)\*(?=\S)", "·", text)
+
+
 def verdict_state(verdict: Verdict) -> str:
     """The three statuses of the report, with "disagrees" split for the reader into a proved
     difference and a question the tool could not settle."""
@@ -298,8 +305,8 @@ def verdict_row(verdict: Verdict) -> dict[str, Any]:
         "state_about": STATE_ABOUT[verdict_state(verdict)],
         "method": verdict.method,
         "method_label": METHOD_LABELS.get(verdict.method, verdict.method),
-        "detail": verdict.detail,
-        "detail_html": readable_text(verdict.detail),
+        "detail": reader_text(verdict.detail),
+        "detail_html": readable_text(reader_text(verdict.detail)),
         "claimed": verdict.claimed,
         "computed": verdict.computed,
     }

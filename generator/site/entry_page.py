@@ -53,6 +53,7 @@ from generator.site.common import (
     math_inline,
     parsed,
     readable_text,
+    reader_text,
     relation_latex,
     typeset,
     typeset_text,
@@ -203,7 +204,8 @@ def entry_page_data(
              "summary": r.summary}
             for r in meta.revisions.get(entry.id, ())
         ],
-        "plots": [{"file": p.file_name, "alt": p.alt, "caption": p.caption} for p in figures],
+        "plots": [{"file": p.file_name, "alt": reader_text(p.alt),
+                   "caption": reader_text(p.caption)} for p in figures],
         "downloads": download_links(entry.id),
     }
 

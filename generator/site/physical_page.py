@@ -14,7 +14,7 @@ from markupsafe import Markup
 from generator.model import EntryReport, Horizon, Verdict, related_subject
 from generator.physics.horizons import H
 from generator.site import mathtex
-from generator.site.common import math_inline, verdict_row
+from generator.site.common import math_inline, reader_text, verdict_row
 
 HORIZON_CLAIM_FIELDS = {"horizon_location": "location", "surface_gravity": "surface_gravity",
                         "horizon_area": "area", "horizon_angular_velocity": "angular_velocity"}
@@ -52,15 +52,16 @@ def horizon_row(h: Horizon, coordinates: tuple, verdicts: Mapping[str, dict[str,
             else None
         reason = h.reasons.get(key or label, h.reasons.get("surface_gravity", "")) \
             if value is None else ""
-        rows.append({"label": label, "math": shown, "text": "" if value is None else str(value),
-                     "reason": reason, "verdict": verdict})
+        rows.append({"label": label, "math": shown,
+                     "text": "" if value is None else reader_text(str(value)),
+                     "reason": reader_text(reason), "verdict": verdict})
     generator = None
     if h.normal_killing_vector:
         generator = " + ".join(f"{value}·∂_{name}" if value != 1 else f"∂_{name}"
                                for name, value in h.normal_killing_vector)
     return {"kind": h.kind, "coordinate": h.coordinate, "generator": generator,
-            "polynomial": str(h.polynomial) if h.location.has(H) else "",
-            "how": h.how, "rows": rows}
+            "polynomial": reader_text(str(h.polynomial)) if h.location.has(H) else "",
+            "how": reader_text(h.how), "rows": rows}
 
 
 def physical_section(report: EntryReport) -> dict[str, Any] | None:
@@ -81,8 +82,8 @@ def physical_section(report: EntryReport) -> dict[str, Any] | None:
                                ("komar_angular_momentum", "Komar angular momentum", "J_K")):
         value = getattr(data, key)
         orbits.append({"label": label, "math": _math(symbol, value, coordinates),
-                       "text": "" if value is None else str(value),
-                       "reason": data.reasons.get(key, "") if value is None else "",
+                       "text": "" if value is None else reader_text(str(value)),
+                       "reason": reader_text(data.reasons.get(key, "")) if value is None else "",
                        "verdict": verdicts.get(f"claims.{key}")})
     observers = None
     if data.kinematics is not None:
@@ -96,18 +97,19 @@ def physical_section(report: EntryReport) -> dict[str, Any] | None:
                 ("hubble_rate", "H", k.hubble_rate),
                 ("deceleration", "q", k.deceleration)):
             if value is not None:
-                rows.append({"math": _math(symbol, value, coordinates), "text": str(value),
+                rows.append({"math": _math(symbol, value, coordinates),
+                             "text": reader_text(str(value)),
                              "verdict": verdicts.get(f"claims.{key}")})
-        observer = ", ".join(f"u^{name} = {value}" for name, value in k.observer)
+        observer = reader_text(", ".join(f"u^{name} = {value}" for name, value in k.observer))
         observers = {"source": k.source, "observer": observer, "rows": rows}
     return {
         "horizons": [horizon_row(h, coordinates, verdicts, h is principal)
                      for h in data.horizons],
-        "horizons_note": data.horizons_note,
-        "extremality": list(data.extremality),
+        "horizons_note": reader_text(data.horizons_note),
+        "extremality": [reader_text(str(e)) for e in data.extremality],
         "orbits": orbits,
         "observers": observers,
-        "observers_reason": data.reasons.get("kinematics", ""),
+        "observers_reason": reader_text(data.reasons.get("kinematics", "")),
     }
 
 
