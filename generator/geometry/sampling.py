@@ -209,13 +209,10 @@ def random_point(
 BOUND_DENOMINATOR = 64  # irrational bounds are rounded inwards to this grid
 
 
-def _bounded_value(
-    bounds: tuple[tuple[str, sympy.Expr], ...], point: Point, rng: random.Random
-) -> sympy.Rational | None:
-    """A value between the bounds the domain sets on a coordinate directly (``r > 2*M``,
-    ``r > M + sqrt(M**2 - a**2)``, ``x < 1``) once the parameters are fixed. An irrational
-    bound (a root) is rounded inwards to a nearby rational, so the value stays strictly inside.
-    Other domain conditions are left to rejection; this only makes thin domains reachable."""
+def direct_bounds(bounds: tuple[tuple[str, sympy.Expr], ...], point: Point
+                  ) -> tuple[sympy.Rational | None, sympy.Rational | None]:
+    """The tightest rational lower and upper bounds the domain sets on a coordinate directly,
+    once the parameters of ``point`` are fixed (None where there is none)."""
     low = high = None
     for side, bound in bounds:
         value = _rational_bound(bound, point, side)
@@ -225,6 +222,17 @@ def _bounded_value(
             low = value if low is None else max(low, value)
         else:
             high = value if high is None else min(high, value)
+    return low, high
+
+
+def _bounded_value(
+    bounds: tuple[tuple[str, sympy.Expr], ...], point: Point, rng: random.Random
+) -> sympy.Rational | None:
+    """A value between the bounds the domain sets on a coordinate directly (``r > 2*M``,
+    ``r > M + sqrt(M**2 - a**2)``, ``x < 1``) once the parameters are fixed. An irrational
+    bound (a root) is rounded inwards to a nearby rational, so the value stays strictly inside.
+    Other domain conditions are left to rejection; this only makes thin domains reachable."""
+    low, high = direct_bounds(bounds, point)
     if low is None and high is None:
         return None
     step = random_rational(rng, 1 + abs(low if low is not None else high), "positive")
@@ -600,15 +608,7 @@ def _wide_between(bounds: tuple[tuple[str, sympy.Expr], ...], point: Point,
                   rng: random.Random) -> sympy.Rational | None:
     """A value inside the direct bounds of a coordinate: near either end or anywhere between
     for an interval, at any distance above a lower or below an upper bound."""
-    low = high = None
-    for side, bound in bounds:
-        value = _rational_bound(bound, point, side)
-        if value is None:
-            continue
-        if side == ">":
-            low = value if low is None else max(low, value)
-        else:
-            high = value if high is None else min(high, value)
+    low, high = direct_bounds(bounds, point)
     if low is None and high is None:
         return None
     if low is not None and high is not None:
