@@ -85,6 +85,7 @@ class Matter:
     scalar_potential: MathText | None = None  # V(φ) along the solution; None: massless
     lagrangian: MathText | None = None  # nonlinear electrodynamics: L(F) along the solution
     lagrangian_derivative: MathText | None = None  # dL/dF along the solution
+    coupling: MathText | None = None  # dilaton–Maxwell: a in e^(−2aφ) F²
 
 
 @dataclass(frozen=True)
