@@ -407,7 +407,7 @@ def _backstop_tasks(tmp_path: Path, names: list[str]) -> list:
 
     from generator.run.tasks import Task
 
-    source = (ROOTS / "hostile-valid/black-holes/schwarzschild.yaml").read_text()
+    source = (ROOTS / "hostile-valid/isolated-objects/schwarzschild.yaml").read_text()
     stacks = tmp_path / "stacks"
     stacks.mkdir()
     tasks = []
