@@ -32,7 +32,7 @@ def main() -> None:
         shutil.copytree(ROOT / "catalog", work / "catalog")
         original = (work / "catalog/isolated-objects/schwarzschild.yaml").read_text()
         copy = re.sub(r"\bM\b", "m", original).replace("id: schwarzschild\n", "id: lamp-hole\n")
-        (work / "catalog/black-holes/lamp-hole.yaml").write_text(copy)
+        (work / "catalog/isolated-objects/lamp-hole.yaml").write_text(copy)
         catalog = work / "catalog"
         files = entry_files([catalog])
         options = RunOptions(cache_dir=work / "cache")

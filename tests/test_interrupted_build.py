@@ -224,7 +224,7 @@ class _Planted:
 
 
 def _report() -> EntryReport:
-    return EntryReport(None, "catalog/black-holes/x.yaml", None, None, None, (), ())
+    return EntryReport(None, "catalog/isolated-objects/x.yaml", None, None, None, (), ())
 
 
 @pytest.fixture
