@@ -116,7 +116,7 @@ def test_the_shared_hook_checks_a_group_catalog_with_the_wheel(installed: Path,
                                                                tmp_path: Path) -> None:
     group_catalog(tmp_path)
     (hook,) = HOOKS
-    entry = "catalog/riemannian/round-2-sphere.yaml"
+    entry = "catalog/euclidean-and-initial-data/round-2-sphere.yaml"
     assert re.search(hook["files"], entry)
     done = run_installed(installed, [*shlex.split(hook["entry"]), entry, "--no-progress",
                                      "--jobs", "1"], tmp_path)
