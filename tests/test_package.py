@@ -80,11 +80,12 @@ def group_catalog(folder: Path) -> Path:
     """A research group's catalog outside the repository: the shipped Riemannian entries
     (round spheres, hyperbolic spaces, Eguchi–Hanson; published solutions)."""
     catalog = folder / "catalog"
-    (catalog / "riemannian").mkdir(parents=True)
+    (catalog / "euclidean-and-initial-data").mkdir(parents=True)
     for name in ("tags.yaml", "families.yaml"):
         shutil.copy(ROOT / "catalog" / name, catalog / name)
     for entry in ("round-2-sphere.yaml", "hyperbolic-plane.yaml"):
-        shutil.copy(ROOT / "catalog" / "riemannian" / entry, catalog / "riemannian" / entry)
+        family = "euclidean-and-initial-data"
+        shutil.copy(ROOT / "catalog" / family / entry, catalog / family / entry)
     return catalog
 
 
