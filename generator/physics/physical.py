@@ -14,7 +14,7 @@ import sympy
 
 from generator.entry.loader import parse_at, symbol_table
 from generator.entry.schema import PHYSICAL_CLAIMS
-from generator.errors import BudgetExceeded, Diagnostic
+from generator.errors import Diagnostic
 from generator.geometry.algebra import NotInField
 from generator.geometry.curvature import DegenerateMetric
 from generator.geometry.equality import decide_equal
@@ -25,8 +25,11 @@ from generator.physics.kinematics import observer_kinematics
 from generator.physics.komar import komar_charges
 from generator.physics.orbits import ergosurface, photon_sphere_and_isco
 
+# What one part may fail with and still leave the others. Not BudgetExceeded: a budget hit
+# (the entry's alarm or memory cap) ends the whole entry with the stage named, like every
+# other stage; swallowing it here let a hostile entry run on past its budget.
 FAILURES = (ValueError, TypeError, ZeroDivisionError, NotImplementedError, ArithmeticError,
-            sympy.PolynomialError, RecursionError, BudgetExceeded, NotInField, DegenerateMetric)
+            sympy.PolynomialError, RecursionError, NotInField, DegenerateMetric)
 
 
 def physical_data(spacetime: Spacetime, geometry: Geometry,
