@@ -27,6 +27,10 @@ def horizon_json(h: Horizon) -> dict[str, Any]:
         "surface_gravity": _text(h.surface_gravity),
         "temperature": _text(h.temperature),
         "area": _text(h.area),
+        "area_method": h.area_method or None,
+        "area_numeric": None if h.area_method != "numeric" else {
+            "value": h.area_numeric, "significant_digits": h.area_digits,
+            "parameters": dict(h.area_parameters)},
         "entropy": _text(h.entropy),
         "how": h.how,
         "not_applicable": dict(sorted(h.reasons.items())),

@@ -52,9 +52,16 @@ def horizon_row(h: Horizon, coordinates: tuple, verdicts: Mapping[str, dict[str,
             else None
         reason = h.reasons.get(key or label, h.reasons.get("surface_gravity", "")) \
             if value is None else ""
+        note = ""
+        if label == "area" and value is None and h.area_method == "numeric":
+            shown = math_inline(f"A \\approx {h.area_numeric}")
+            at = ", ".join(f"{name} = {number}" for name, number in h.area_parameters)
+            note = (f"numeric: mpmath quadrature, {h.area_digits} significant digits, at {at}; "
+                    "the area integral is not elementary here")
         rows.append({"label": label, "math": shown,
                      "text": "" if value is None else reader_text(str(value)),
-                     "reason": reader_text(reason), "verdict": verdict})
+                     "reason": reader_text(reason), "verdict": verdict,
+                     "note": reader_text(note)})
     generator = None
     if h.normal_killing_vector:
         generator = " + ".join(f"{value}·∂_{name}" if value != 1 else f"∂_{name}"
