@@ -392,6 +392,9 @@ class PhysicalData:
     komar_angular_momentum: sympy.Expr | None
     kinematics: Kinematics | None
     reasons: dict[str, str] = field(default_factory=dict)
+    # An orbit radius with no closed form ("photon_sphere", "isco" → the value is h_root):
+    # (coordinate, defining polynomial in h_root, numeric value at the first sample point).
+    orbit_roots: dict[str, tuple[str, sympy.Expr, str]] = field(default_factory=dict)
 
 
 @dataclass(frozen=True)

@@ -58,7 +58,7 @@ def physical_json(data: PhysicalData | None) -> dict[str, Any]:
         return {"horizons": [], "horizons_note": why, "extremality": [], "ergosurface": None,
                 "photon_sphere": None, "isco": None,
                 "komar": {"mass": None, "angular_momentum": None}, "kinematics": None,
-                "physical_reasons": {"all": why}}
+                "physical_reasons": {"all": why}, "orbit_roots": {}}
     return {
         "horizons": [horizon_json(h) for h in data.horizons],
         "horizons_note": data.horizons_note,
@@ -70,4 +70,8 @@ def physical_json(data: PhysicalData | None) -> dict[str, Any]:
                   "angular_momentum": _text(data.komar_angular_momentum)},
         "kinematics": kinematics_json(data.kinematics),
         "physical_reasons": dict(sorted(data.reasons.items())),
+        "orbit_roots": {key: {"coordinate": coordinate, "defining_polynomial": str(polynomial),
+                              "numeric_at_first_sample": numeric}
+                        for key, (coordinate, polynomial, numeric)
+                        in sorted(data.orbit_roots.items())},
     }

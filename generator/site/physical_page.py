@@ -88,10 +88,15 @@ def physical_section(report: EntryReport) -> dict[str, Any] | None:
                                ("komar_mass", "Komar mass", "M_K"),
                                ("komar_angular_momentum", "Komar angular momentum", "J_K")):
         value = getattr(data, key)
+        note = ""
+        if key in data.orbit_roots:
+            _, polynomial, numeric = data.orbit_roots[key]
+            note = (f"h_root is the root of {polynomial} = 0 that lies in the static region; "
+                    f"≈ {numeric} at the first sample parameters")
         orbits.append({"label": label, "math": _math(symbol, value, coordinates),
                        "text": "" if value is None else reader_text(str(value)),
                        "reason": reader_text(data.reasons.get(key, "")) if value is None else "",
-                       "verdict": verdicts.get(f"claims.{key}")})
+                       "verdict": verdicts.get(f"claims.{key}"), "note": reader_text(note)})
     observers = None
     if data.kinematics is not None:
         k = data.kinematics
