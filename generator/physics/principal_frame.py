@@ -56,7 +56,7 @@ SIZE_LIMIT = 6000  # terms of one fraction; beyond it the construction stops wit
 ORIENTATION = 1  # ε(l, n, m, m̄) = +i: the sign the Kerr check pins (tests/test_principal_frame)
 NAMES = ("Psi0", "Psi1", "Psi2", "Psi3", "Psi4")
 PATTERN = {"O": (), "D": ("Psi2",), "N": ("Psi4",), "III": ("Psi3", "Psi4"),
-           "II": ("Psi2", "Psi3", "Psi4"), "I": NAMES}
+           "II": ("Psi2", "Psi3", "Psi4"), "I": ("Psi1", "Psi2", "Psi3")}  # I: l, n on two
 
 Vector = list[Frac]
 
@@ -81,6 +81,16 @@ class PrincipalFrame:
 
 
 # ---------------------------------------------------------------------------- arithmetic
+
+
+def carry_into(tower: Tower, base: RationalField, x: Frac) -> Frac:
+    """A fraction of the entry's field as a fraction of the tower over it (the tower's
+    generators come first in its variable order, the base's keep theirs after them)."""
+    f = tower.field
+    shift = len(f.specs) - len(base.specs)
+    return Frac(*(f.ctx.from_dict({(0,) * shift + tuple(k): c for k, c in p.to_dict().items()})
+                  for p in (x.num, x.den)))
+
 
 
 class Frame:
@@ -556,7 +566,8 @@ def _rotated(frame: Frame, spacetime: Spacetime, kind: str, l: Vector, n: Vector
     psi = frame.scalars(l, n, m)
     if kind == "I":
         raise NotFound("type I: the four principal null directions are the roots of a "
-                       "quartic with no repeated root, not sought in closed form here")
+                       "quartic with no repeated root, which the tool does not solve in "
+                       "radicals")
     points = entry_points(spacetime, 4)
     f = frame.f
     steps = []

@@ -191,13 +191,9 @@ def invariants_agree(base: RationalField, found: pf.PrincipalFrame, invariant_i:
     """I and J from the frame's Ψ's equal the operator's x + iσy, with σ = √(−det g) written
     in the tower through the tetrad: ε(l, n, m, m̄) = σ det T = i·ORIENTATION."""
     f = found.tower.field
-    shift = len(f.specs) - len(base.specs)
 
     def carried(x: Frac) -> Frac:
-        return Frac(f.ctx.from_dict({(0,) * shift + tuple(k): c for k, c in x.num.to_dict()
-                                     .items()}),
-                    f.ctx.from_dict({(0,) * shift + tuple(k): c for k, c in x.den.to_dict()
-                                     .items()}))
+        return pf.carry_into(found.tower, base, x)
 
     p0, p1, p2, p3, p4 = (found.psi[name] for name in pf.NAMES)
     frame_i = f.sum([f.mul(p0, p4), f.scale(f.mul(p1, p3), -4), f.scale(f.mul(p2, p2), 3)])
