@@ -19,7 +19,6 @@ import sympy as sp
 from _known_metrics import (
     M,
     Q,
-    a as spin,
     kerr,
     kerr_newman,
     painleve_gullstrand,
@@ -28,6 +27,9 @@ from _known_metrics import (
     schwarzschild,
     spacetime,
     theta,
+)
+from _known_metrics import (
+    a as spin,
 )
 
 from generator.geometry.curvature import compute_geometry_and_weyl

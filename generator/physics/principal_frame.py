@@ -270,15 +270,22 @@ def _orthogonal_frame(frame: Frame, spacetime: Spacetime, points: Sequence[dict]
             is False]
     orders = sorted(itertools.permutations(range(4)),
                     key=lambda o: (o[-1] not in late, o))
+    usable = []  # (order, vectors, norms, position of the timelike one)
     for order in orders:
         found = _gram_schmidt(frame, order)
         if found is None:
             continue
         vectors, norms = found
         signs = [_positive_everywhere(f, norm, points, spacetime) for norm in norms]
-        if signs == [True, True, True, False]:
-            return [vectors[3], vectors[0], vectors[1], vectors[2]], \
-                [norms[3], norms[0], norms[1], norms[2]], order
+        if signs.count(False) == 1 and signs.count(True) == 3:
+            usable.append((order, vectors, norms, signs.index(False)))
+            if signs[3] is False:  # the timelike one last: the first choice
+                break
+    if usable:
+        order, vectors, norms, k = min(usable, key=lambda item: item[3] != 3)
+        rest = [j for j in range(4) if j != k]
+        return [vectors[k], *(vectors[j] for j in rest)], \
+            [norms[k], *(norms[j] for j in rest)], order
     listed = ", ".join(map(str, names))
     raise NotFound("no ordering of the coordinate vectors gives a Gram–Schmidt frame with "
                    f"one timelike vector on the whole sampled domain ({listed})")
