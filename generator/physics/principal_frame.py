@@ -571,6 +571,12 @@ def presented(frame: Frame, spacetime: Spacetime, kind: str, l: Vector, n: Vecto
 def _rotated(frame: Frame, spacetime: Spacetime, kind: str, l: Vector, n: Vector, m: Vector,
              how: str) -> tuple[Frame, Vector, Vector, Vector, str]:
     psi = frame.scalars(l, n, m)
+    if kind == "I" and psi["Psi1"].is_zero() and psi["Psi3"].is_zero():
+        raise NotFound("type I: the tool's tetrad has Ψ1 = Ψ3 = 0 (a transverse frame, the "
+                       "usual canonical frame of type I, up to a boost), but l and n are not "
+                       "principal; the four principal null directions are the roots of a "
+                       "quartic with no repeated root, which the tool does not solve in "
+                       "radicals")
     if kind == "I":
         raise NotFound("type I: the four principal null directions are the roots of a "
                        "quartic with no repeated root, which the tool does not solve in "
