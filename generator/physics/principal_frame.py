@@ -29,6 +29,7 @@ et al. 2003, ch. 3): Ψ0 = C(l,m,l,m), Ψ1 = C(l,n,l,m), Ψ2 = C(l,m,m̄,n), Ψ3
 from __future__ import annotations
 
 import itertools
+import time
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -53,6 +54,8 @@ from generator.physics.tower import (
 )
 
 SIZE_LIMIT = 6000  # terms of one fraction; beyond it the construction stops with a reason
+SECONDS = 30.0  # the frame's share of the entry's time budget (like the isometry stage's)
+_deadline = [float("inf")]  # of the construction under way (one per worker process)
 ORIENTATION = 1  # ε(l, n, m, m̄) = +i: the sign the Kerr check pins (tests/test_principal_frame)
 NAMES = ("Psi0", "Psi1", "Psi2", "Psi3", "Psi4")
 PATTERN = {"O": (), "D": ("Psi2",), "N": ("Psi4",), "III": ("Psi3", "Psi4"),
@@ -104,6 +107,9 @@ class Frame:
         self.c = [list(row) for row in weyl]
 
     def guard(self, *xs: Frac) -> None:
+        if time.monotonic() > _deadline[0]:
+            raise TooLarge(f"the frame construction ran past its {SECONDS:.0f} s share of "
+                           "the entry's time budget")
         for x in xs:
             if x.size() > SIZE_LIMIT:
                 raise TooLarge(f"an expression of the frame has more than {SIZE_LIMIT} terms")
@@ -527,6 +533,7 @@ def principal_frame(ops: WeylOperator, spacetime: Spacetime, kind: str) -> Princ
     """The tool's tetrad rotated into a principal frame for Petrov type ``kind``; when that
     fails, the tool's own tetrad with ``principal`` false and the reason. Raises NotFound or
     TooLarge when no tetrad could be built at all."""
+    _deadline[0] = time.monotonic() + SECONDS
     frame, l, n, m, how, k = build_tetrad(ops, spacetime)
     checks = tetrad_checks(frame, l, n, m)
     psi = frame.scalars(l, n, m)
@@ -537,8 +544,9 @@ def principal_frame(ops: WeylOperator, spacetime: Spacetime, kind: str) -> Princ
                               tuple(tetrad_checks(frame, l, n, m)))
     try:
         found = _rotated(frame, spacetime, kind, l, n, m, how)
-    except (NotFound, ZeroDivisionError) as exc:
-        why = str(exc) if isinstance(exc, NotFound) else "a division by zero in the rotation"
+    except (NotFound, TooLarge, ZeroDivisionError) as exc:
+        why = "a division by zero in the rotation" if isinstance(exc, ZeroDivisionError) \
+            else str(exc)
         return PrincipalFrame(frame.tower, l, n, m, psi, False, how, tuple(checks), why)
     frame, l, n, m, how = found
     l, n, m = presented(frame, spacetime, kind, l, n, m, k)
