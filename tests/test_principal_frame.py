@@ -329,3 +329,32 @@ def _metric(found, operator):
 def _weyl(found, operator):
     return [[pf.carry_into(found.tower, operator.field, x) for x in row]
             for row in pf._lower_weyl(operator.field, operator)]
+
+
+# ---------------------------------------------------------------------------- page and JSON
+
+
+def test_the_page_shows_the_tetrad_the_convention_and_the_checks() -> None:
+    # The symmetry block's partial, rendered alone with the site's template environment.
+    from generator.site.export import weyl_frame_json
+    from generator.site.isometry_page import frame_data
+    from generator.site.writer import template_environment
+
+    st = schwarzschild()
+    _, frame, _ = frame_of(st)
+    data = frame_data(frame, st.coordinates)
+    assert len(data["tetrad"]) == 3 and data["checks"]
+    isometry = {"algebra": {"dimension": None, "name": None, "orbit_dimension": None,
+                            "isotropy": None, "why_null": "demo", "method": "demo",
+                            "listed": 0, "complete": None, "missing": None, "basis": [],
+                            "brackets": []},
+                "tensors": [], "frame": data, "frame_reason": "",
+                "invariants": {"count": None, "used": "", "relation": "",
+                               "consistent": None, "why_null": ""}}
+    html = template_environment().get_template("_isometry.html").render(isometry=isometry)
+    assert "The tetrad" in html and "l·n = −1" in html and "Verified exactly" in html
+    assert "(principal)" in html
+    document = weyl_frame_json(frame)
+    assert set(document["tetrad"]) == {"l", "n", "m"}
+    assert document["checks"] and "-+++" in document["convention"]
+    assert document["Psi2"] == str(scalars(frame)["Psi2"]) and document["principal"] is True
