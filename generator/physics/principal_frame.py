@@ -292,9 +292,96 @@ def _orthogonal_frame(frame: Frame, spacetime: Spacetime, points: Sequence[dict]
         rest = [j for j in range(4) if j != k]
         return [vectors[k], *(vectors[j] for j in rest)], \
             [norms[k], *(norms[j] for j in rest)], order
+    found = _time_function_frame(frame, spacetime, points)
+    if found is not None:
+        return found
     listed = ", ".join(map(str, names))
     raise NotFound("no ordering of the coordinate vectors gives a Gram–Schmidt frame with "
                    f"one timelike vector on the whole sampled domain ({listed})")
+
+
+def _time_function_frame(frame: Frame, spacetime: Spacetime, points: Sequence[dict]
+                         ) -> tuple[list[Vector], list[Frac], tuple[int, ...]] | None:
+    """e_τ = ∇x^a for a coordinate with g^aa < 0 on the sampled domain (x^a a time
+    function: Kerr's ∇t is the zero-angular-momentum observer), and Gram–Schmidt on the
+    other coordinate vectors, which are orthogonal to it (g(∂_b, ∇x^a) = δ_b^a) and span a
+    spacelike hypersurface, for metrics where no coordinate vector keeps its causal
+    character over the domain (a rotating string, Taub–NUT near its axis)."""
+    f = frame.f
+    det = _determinant(f, frame.g)
+    if det.is_zero():
+        return None
+    for a in range(4):
+        others = [b for b in range(4) if b != a]
+        minor = [[frame.g[i][j] for j in others] for i in others]
+        inverse_aa = f.div(_determinant(f, minor), det)
+        if _positive_everywhere(f, inverse_aa, points, spacetime) is not False:
+            continue
+        gradient = []
+        for b in range(4):
+            rows = [i for i in range(4) if i != b]
+            cols = [j for j in range(4) if j != a]
+            cofactor = _determinant(f, [[frame.g[i][j] for j in cols] for i in rows])
+            gradient.append(f.div(cofactor if (a + b) % 2 == 0 else f.neg(cofactor), det))
+        found = _gram_schmidt(frame, others)
+        if found is None:
+            continue
+        vectors, norms = found
+        if all(_positive_everywhere(f, x, points, spacetime) for x in norms):
+            return [gradient, *vectors], [inverse_aa, *norms], (*others, a)
+    return None
+
+
+def _projected_pair(frame: Frame, l: Vector, n: Vector, rest: Sequence[int]
+                    ) -> tuple[Vector, Frac, Vector, Frac]:
+    """Two orthogonal spacelike vectors spanning the complement of the (l, n) plane, from
+    the coordinate vectors ``rest``: P(x) = x + (x·n) l + (x·l) n, then Gram–Schmidt."""
+    f = frame.f
+    projected = []
+    for c in rest:
+        x = _unit(f, c)
+        projected.append(frame.combine([(f.one(), x), (frame.dot(x, n), l),
+                                        (frame.dot(x, l), n)]))
+    f1 = projected[0]
+    n1 = frame.dot(f1, f1)
+    if n1.is_zero():
+        f1, projected[1] = projected[1], f1
+        n1 = frame.dot(f1, f1)
+    f2 = frame.combine([(f.one(), projected[1]),
+                        (f.neg(f.div(frame.dot(projected[1], f1), n1)), f1)])
+    return f1, n1, f2, frame.dot(f2, f2)
+
+
+def _null_plane(frame: Frame, spacetime: Spacetime, points: Sequence[dict]):
+    """l, n = the two null vectors g_bb ∂_a + (−g_ab ± √D) ∂_b, D = g_ab² − g_aa g_bb > 0,
+    of a timelike coordinate plane (∂_a, ∂_b), for metrics where neither a coordinate vector
+    nor a coordinate gradient keeps its causal character on the domain (a rotating string
+    beyond its light cylinder); None when no coordinate plane is timelike throughout."""
+    f = frame.f
+    names = [str(x) for x in spacetime.coordinates]
+    for a, b in itertools.combinations(range(4), 2):
+        g = frame.g
+        if g[b][b].is_zero():
+            continue
+        disc = f.sub(f.mul(g[a][b], g[a][b]), f.mul(g[a][a], g[b][b]))
+        if _positive_everywhere(f, disc, points, spacetime) is not True:
+            continue
+        tower, root, kept = adjoin_square_root(frame.tower, disc, "D",
+                                               [*_flat(frame.g), *_flat(frame.c)])
+        new = _rebuilt(tower, kept[:16], kept[16:52])
+        h = new.f
+        gab, gbb = new.g[a][b], new.g[b][b]
+        plus = new.combine([(gbb, _unit(h, a)), (h.sub(root, gab), _unit(h, b))])
+        minus = new.combine([(gbb, _unit(h, a)), (h.neg(h.add(root, gab)), _unit(h, b))])
+        product = new.dot(plus, minus)
+        if product.is_zero():
+            continue
+        n = new.scale(h.neg(h.inv(product)), minus)
+        spatial = _projected_pair(new, plus, n, [c for c in range(4) if c not in (a, b)])
+        how = (f"l, n = the null vectors of the coordinate plane (∂_{names[a]}, ∂_{names[b]}),"
+               " the other two coordinate vectors projected orthogonally")
+        return new, plus, n, spatial, how, a
+    return None
 
 
 def _null_coordinate(frame: Frame) -> tuple[int, int] | None:
@@ -326,26 +413,20 @@ def build_tetrad(ops: WeylOperator, spacetime: Spacetime
         l = _unit(f, a)
         v = frame.scale(f.neg(f.inv(frame.g[a][b])), _unit(f, b))
         n = frame.combine([(f.one(), v), (f.scale(frame.dot(v, v), sympy.Rational(1, 2)), l)])
-        rest = [c for c in range(4) if c not in (a, b)]
-        projected = []
-        for c in rest:
-            x = _unit(f, c)
-            projected.append(frame.combine([(f.one(), x), (frame.dot(x, n), l),
-                                            (frame.dot(x, l), n)]))
-        f1 = projected[0]
-        n1 = frame.dot(f1, f1)
-        if n1.is_zero():
-            f1, projected[1] = projected[1], f1
-            n1 = frame.dot(f1, f1)
-        f2 = frame.combine([(f.one(), projected[1]),
-                            (f.neg(f.div(frame.dot(projected[1], f1), n1)), f1)])
-        n2 = frame.dot(f2, f2)
+        spatial = _projected_pair(frame, l, n, [c for c in range(4) if c not in (a, b)])
         how = (f"l = ∂_{names[a]} (null), n from ∂_{names[b]}, the other two coordinate "
                "vectors projected orthogonally")
-        spatial = (f1, n1, f2, n2)
         frame, l, n, m = _complete(frame, spacetime, points, l, n, spatial)
         return frame, l, n, m, how, a
-    vectors, norms, order = _orthogonal_frame(frame, spacetime, points)
+    try:
+        vectors, norms, order = _orthogonal_frame(frame, spacetime, points)
+    except NotFound:
+        plane = _null_plane(frame, spacetime, points)
+        if plane is None:
+            raise
+        frame, l, n, spatial, how, a = plane
+        frame, l, n, m = _complete(frame, spacetime, points, l, n, spatial)
+        return frame, l, n, m, how, a
     e_t, e_x, f1, f2 = vectors
     n_t, n_x, n1, n2 = norms
     ratio = f.neg(f.div(n_t, n_x))
