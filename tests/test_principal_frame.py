@@ -161,6 +161,24 @@ def test_plane_wave_is_type_n_with_only_psi4() -> None:
     assert all(psi[k] == 0 for k in NAMES[:4]) and psi["Psi4"] != 0
 
 
+def test_robinson_trautman_is_type_ii_with_psi2_of_the_mass() -> None:
+    # Robinson & Trautman, Proc. R. Soc. A 265 (1962) 463; Stephani et al. 2003 §28.1 (from
+    # memory): with l along the repeated principal direction k = ∂_r, Ψ0 = Ψ1 = 0 and
+    # Ψ2 = −m(u)/r³ (unchanged by every remaining boost, spin and null rotation about l).
+    from pathlib import Path
+
+    from generator.entry.loader import load_entry
+    catalog = Path(__file__).resolve().parent.parent / "catalog"
+    st = load_entry(next(catalog.rglob("robinson-trautman.yaml"))).spacetime
+    kind, frame, _ = frame_of(st)
+    psi = scalars(frame)
+    assert kind == "II" and frame.principal
+    assert psi["Psi0"] == 0 and psi["Psi1"] == 0
+    u, r_ = st.symbols["u"], st.symbols["r"]
+    assert same(psi["Psi2"], -st.symbols["m"].func(u) / r_**3)
+    assert psi["Psi3"] != 0 or psi["Psi4"] != 0
+
+
 def test_type_i_says_not_found_and_names_the_frame() -> None:
     # Curzon's metric (Curzon 1924) is type I (Stephani et al. 2003, §20.2; from memory).
     # Unless the tool's tetrad happens to sit on two principal directions, the page must say
