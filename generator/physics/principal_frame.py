@@ -54,7 +54,7 @@ from generator.physics.tower import (
 )
 
 SIZE_LIMIT = 6000  # terms of one fraction; beyond it the construction stops with a reason
-SECONDS = 30.0  # the frame's share of the entry's time budget (like the isometry stage's)
+SECONDS = 30.0  # CPU seconds: the frame's share of the entry's budget (load does not count)
 _deadline = [float("inf")]  # of the construction under way (one per worker process)
 ORIENTATION = 1  # ε(l, n, m, m̄) = +i: the sign the Kerr check pins (tests/test_principal_frame)
 NAMES = ("Psi0", "Psi1", "Psi2", "Psi3", "Psi4")
@@ -107,9 +107,9 @@ class Frame:
         self.c = [list(row) for row in weyl]
 
     def guard(self, *xs: Frac) -> None:
-        if time.monotonic() > _deadline[0]:
-            raise TooLarge(f"the frame construction ran past its {SECONDS:.0f} s share of "
-                           "the entry's time budget")
+        if time.process_time() > _deadline[0]:
+            raise TooLarge(f"the frame construction ran past {SECONDS:.0f} CPU seconds, "
+                           "its share of the entry's time budget")
         for x in xs:
             if x.size() > SIZE_LIMIT:
                 raise TooLarge(f"an expression of the frame has more than {SIZE_LIMIT} terms")
@@ -614,7 +614,7 @@ def principal_frame(ops: WeylOperator, spacetime: Spacetime, kind: str) -> Princ
     """The tool's tetrad rotated into a principal frame for Petrov type ``kind``; when that
     fails, the tool's own tetrad with ``principal`` false and the reason. Raises NotFound or
     TooLarge when no tetrad could be built at all."""
-    _deadline[0] = time.monotonic() + SECONDS
+    _deadline[0] = time.process_time() + SECONDS
     frame, l, n, m, how, k = build_tetrad(ops, spacetime)
     checks = tetrad_checks(frame, l, n, m)
     psi = frame.scalars(l, n, m)
