@@ -156,7 +156,10 @@ def _has_pattern(kind: str, scalars: dict[str, sympy.Expr]) -> bool:
 # ---------------------------------------------------------------------------- the tool's tetrad
 
 FRAME_FAILURES = (pf.NotFound, TooLarge, NotInField, ZeroDivisionError)
-DISPLAY_FACTOR_LIMIT = 150  # operations; smaller scalars are factored over Q(i) for display
+# Factoring over Q(i) (SymPy's algebraic-extension factoring) costs seconds to minutes beyond
+# small expressions, so only those are tried: Kerr's Ψ2 has 31 operations, Kerr–Newman's 60.
+DISPLAY_FACTOR_LIMIT = 64  # operations
+DISPLAY_FACTOR_SYMBOLS = 5  # free symbols (the norm in the factoring grows with each)
 
 
 def tool_frame(ops: WeylOperator, spacetime: Spacetime, kind: str, invariant_i: Complex,
@@ -173,7 +176,7 @@ def tool_frame(ops: WeylOperator, spacetime: Spacetime, kind: str, invariant_i: 
                       "frame-free ones, so the frame is not shown")
     f = found.tower.field
     names = [str(x) for x in spacetime.coordinates]
-    tetrad = tuple((label, tuple((names[a], readable(f.display(v[a]), spacetime))
+    tetrad = tuple((label, tuple((names[a], readable(f.display(v[a]), spacetime, False))
                                  for a in range(4) if not v[a].is_zero()))
                    for label, v in (("l", found.l), ("n", found.n), ("m", found.m)))
     scalars = tuple((name, readable(f.display(found.psi[name]), spacetime))
@@ -208,15 +211,17 @@ def invariants_agree(base: RationalField, found: pf.PrincipalFrame, invariant_i:
     return True
 
 
-def readable(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr:
-    """|u| written ±u where u keeps one sign on the sampled domain, and small expressions
-    factored over Q(i) (so Kerr's Ψ2 reads −M/(r − i a cos θ)³)."""
+def readable(expr: sympy.Expr, spacetime: Spacetime, factor: bool = True) -> sympy.Expr:
+    """|u| written ±u where u keeps one sign on the sampled domain, and (``factor``) small
+    expressions factored over Q(i) (so Kerr's Ψ2 reads −M/(r − i a cos θ)³). Tetrad
+    components are not factored: their square roots make the factoring slow for little."""
     points = entry_points(spacetime, 6)
     for atom in expr.atoms(sympy.Abs):
         signs = {sign_at(atom.args[0], p, spacetime) for p in points}
         if signs in ({1}, {-1}):
             expr = expr.xreplace({atom: signs.pop() * atom.args[0]})
-    if expr.has(sympy.I) and sympy.count_ops(expr) <= DISPLAY_FACTOR_LIMIT:
+    if factor and expr.has(sympy.I) and sympy.count_ops(expr) <= DISPLAY_FACTOR_LIMIT and \
+            len(expr.free_symbols) <= DISPLAY_FACTOR_SYMBOLS:
         try:
             factored = sympy.factor(expr, extension=sympy.I)
         except (sympy.PolynomialError, NotImplementedError, ValueError, TypeError):
