@@ -133,24 +133,37 @@ class Frame:
         f = self.f
         return [f.sub(f.mul(x[a], y[b]), f.mul(x[b], y[a])) for a, b in PAIRS]
 
-    def weyl(self, u: Sequence[Frac], v: Sequence[Frac]) -> Frac:
-        """C(U, V) for bivectors U, V (pair components)."""
+    def apply(self, v: Sequence[Frac]) -> list[Frac]:
+        """C·V on index pairs (the Weyl tensor applied to a bivector)."""
         f = self.f
-        value = f.sum([f.mul(u[p], f.mul(self.c[p][q], v[q])) for p in range(6)
-                       for q in range(6) if not u[p].is_zero() and not v[q].is_zero()
-                       and not self.c[p][q].is_zero()])
+        out = [f.sum([f.mul(self.c[p][q], v[q]) for q in range(6)
+                      if not v[q].is_zero() and not self.c[p][q].is_zero()])
+               for p in range(6)]
+        self.guard(*out)
+        return out
+
+    def pair(self, u: Sequence[Frac], cv: Sequence[Frac]) -> Frac:
+        """C(U, V) = U·(C·V)."""
+        f = self.f
+        value = f.sum([f.mul(u[p], cv[p]) for p in range(6)
+                       if not u[p].is_zero() and not cv[p].is_zero()])
         self.guard(value)
         return value
+
+    def weyl(self, u: Sequence[Frac], v: Sequence[Frac]) -> Frac:
+        """C(U, V) for bivectors U, V (pair components)."""
+        return self.pair(u, self.apply(v))
 
     def conj(self, v: Vector) -> Vector:
         return [conjugate(self.tower, x) for x in v]
 
     def scalars(self, l: Vector, n: Vector, m: Vector) -> dict[str, Frac]:
         mb = self.conj(m)
-        lm, ln, nmb = self.wedge(l, m), self.wedge(l, n), self.wedge(n, mb)
-        return {"Psi0": self.weyl(lm, lm), "Psi1": self.weyl(ln, lm),
-                "Psi2": self.weyl(lm, self.wedge(mb, n)), "Psi3": self.weyl(ln, self.wedge(mb, n)),
-                "Psi4": self.weyl(nmb, nmb)}
+        lm, ln, mbn = self.wedge(l, m), self.wedge(l, n), self.wedge(mb, n)
+        c_lm, c_mbn = self.apply(lm), self.apply(mbn)
+        return {"Psi0": self.pair(lm, c_lm), "Psi1": self.pair(ln, c_lm),
+                "Psi2": self.pair(lm, c_mbn), "Psi3": self.pair(ln, c_mbn),
+                "Psi4": self.pair(mbn, c_mbn)}
 
     def quartic(self, l: Vector, n: Vector, m: Vector, about_n: bool) -> list[Frac]:
         """Coefficients (constant first) of Ψ0 after the rotation about n by b (``about_n``),
@@ -162,10 +175,11 @@ class Frame:
         else:
             a, v, w = self.wedge(n, mb), _add(f, self.wedge(n, l), self.wedge(m, mb)), \
                 self.wedge(m, l)
+        ca, cv, cw = self.apply(a), self.apply(v), self.apply(w)
         two = sympy.Integer(2)
-        return [self.weyl(a, a), f.scale(self.weyl(a, v), two),
-                f.add(self.weyl(v, v), f.scale(self.weyl(a, w), two)),
-                f.scale(self.weyl(v, w), two), self.weyl(w, w)]
+        return [self.pair(a, ca), f.scale(self.pair(a, cv), two),
+                f.add(self.pair(v, cv), f.scale(self.pair(a, cw), two)),
+                f.scale(self.pair(v, cw), two), self.pair(w, cw)]
 
     def rotate_about_n(self, l: Vector, n: Vector, m: Vector, b: Frac
                        ) -> tuple[Vector, Vector, Vector]:
@@ -624,7 +638,7 @@ def principal_frame(ops: WeylOperator, spacetime: Spacetime, kind: str) -> Princ
                               how + "; already principal",
                               tuple(tetrad_checks(frame, l, n, m)))
     try:
-        found = _rotated(frame, spacetime, kind, l, n, m, how)
+        found = _rotated(frame, spacetime, kind, l, n, m, how, psi)
     except (NotFound, TooLarge, ZeroDivisionError) as exc:
         why = "a division by zero in the rotation" if isinstance(exc, ZeroDivisionError) \
             else str(exc)
@@ -658,8 +672,7 @@ def presented(frame: Frame, spacetime: Spacetime, kind: str, l: Vector, n: Vecto
 
 
 def _rotated(frame: Frame, spacetime: Spacetime, kind: str, l: Vector, n: Vector, m: Vector,
-             how: str) -> tuple[Frame, Vector, Vector, Vector, str]:
-    psi = frame.scalars(l, n, m)
+             how: str, psi: dict[str, Frac]) -> tuple[Frame, Vector, Vector, Vector, str]:
     if kind == "I" and psi["Psi1"].is_zero() and psi["Psi3"].is_zero():
         raise NotFound("type I: the tool's tetrad has Ψ1 = Ψ3 = 0 (a transverse frame, the "
                        "usual canonical frame of type I, up to a boost), but l and n are not "
