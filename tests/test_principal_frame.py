@@ -376,3 +376,32 @@ def test_the_page_shows_the_tetrad_the_convention_and_the_checks() -> None:
     assert set(document["tetrad"]) == {"l", "n", "m"}
     assert document["checks"] and "-+++" in document["convention"]
     assert document["Psi2"] == str(scalars(frame)["Psi2"]) and document["principal"] is True
+
+
+# ---------------------------------------------------------------------------- the tower
+
+
+def test_square_roots_in_the_tower_are_exact() -> None:
+    # √(α + iβ) by ρ = √(α² + β²), x = √((α + ρ)/2), y = β/(2x) (the half-angle formula,
+    # common practice) — the path type D takes when the two double principal directions are
+    # not in the field; every root squares back to its radicand in normal form.
+    from generator.geometry.sampling import entry_points
+    from generator.physics.tower import square_root_in
+
+    st = schwarzschild()
+    frame, ell, n, m, _ = built(st)
+    f = frame.f
+    r_ = f.var(f.index[r])
+    points = entry_points(st, 4)
+    for value in (f.add(r_, frame.tower.i), f.neg(r_), f.mul(r_, f.const(3))):
+        new, root, kept = pf._complex_root(frame, st, points, value, [*ell, *n, *m])
+        g = new.f
+        image = pf.carry_into(new.tower, f, value) if len(g.specs) > len(f.specs) else value
+        assert g.equal(g.mul(root, root), image)
+        assert len(kept) == 12
+    # a square is found in the field, not adjoined: (r + i)² = r² − 1 + 2ir
+    square = f.add(f.sub(f.mul(r_, r_), f.one()), f.scale(f.mul(r_, frame.tower.i), 2))
+    root = square_root_in(f, square)
+    assert root is not None and f.equal(f.mul(root, root), square)
+    # mutation: a non-square is never "found"
+    assert square_root_in(f, f.add(square, f.one())) is None
