@@ -458,6 +458,7 @@ class WeylFrame:
     invariant_i: sympy.Expr | None
     invariant_j: sympy.Expr | None
     why: str = ""
+    checks: tuple[str, ...] = ()  # what was verified exactly about the tetrad and scalars
 
 
 @dataclass(frozen=True)
