@@ -348,6 +348,13 @@ class Horizon:
     how: str
     reasons: dict[str, str] = field(default_factory=dict)
     numeric_location: str = ""  # at the first sample parameters, for ordering and plots
+    # "exact", or "numeric" when the area integral is not elementary: then ``area`` is None
+    # and ``area_numeric`` holds the quadrature's value (``area_digits`` significant digits)
+    # at the parameter values ``area_parameters`` (the entry's first sample point).
+    area_method: str = ""
+    area_numeric: str = ""
+    area_digits: int = 0
+    area_parameters: tuple[tuple[str, str], ...] = ()
 
     @property
     def entropy(self) -> sympy.Expr | None:
@@ -385,6 +392,9 @@ class PhysicalData:
     komar_angular_momentum: sympy.Expr | None
     kinematics: Kinematics | None
     reasons: dict[str, str] = field(default_factory=dict)
+    # An orbit radius with no closed form ("photon_sphere", "isco" → the value is h_root):
+    # (coordinate, defining polynomial in h_root, numeric value at the first sample point).
+    orbit_roots: dict[str, tuple[str, sympy.Expr, str]] = field(default_factory=dict)
 
 
 @dataclass(frozen=True)
