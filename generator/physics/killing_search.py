@@ -395,6 +395,7 @@ def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy
     """Killing vectors independent of ``listed`` (already verified), until together they
     span ``dimension`` or the ansatz is exhausted (see module docstring)."""
     deadline = time.process_time() + seconds
+    listed = [[sympy.sympify(c) for c in xi] for xi in listed]
     n = spacetime.dimension
     cyclic = cyclic_coordinates(spacetime)
     rates = candidate_rates(spacetime)
