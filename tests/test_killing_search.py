@@ -53,7 +53,7 @@ def test_minkowski_in_spherical_chart_gets_all_ten() -> None:
     assert all(is_killing(xi, st) for xi in result.found)
     # The translation along z, ∂_z = cos θ ∂_r − sin θ/r ∂_θ (common practice), lies in the
     # span of what was found: it is among the found vectors up to sign.
-    t, r, theta, phi = st.coordinates
+    _t, r, theta, _phi = st.coordinates
     z_translation = (0, sympy.cos(theta), -sympy.sin(theta) / r, 0)
     assert any(all(sympy.simplify(a - s * b) == 0 for a, b in zip(xi, z_translation,
                                                                   strict=True))
@@ -96,7 +96,7 @@ def test_found_vectors_pass_sympy_diffgeom() -> None:
         plain = [sympy.sympify(str(c), locals=names) for c in xi]
         assert diffgeom_lie_derivative(plain) == [[0] * 4 for _ in range(4)]
     # The independent computation does notice a wrong vector: a boost with one sign flipped.
-    t, r, theta, phi = sympy.symbols("t r theta phi", real=True)
+    t, r, theta, _phi = sympy.symbols("t r theta phi", real=True)
     wrong = [r * sympy.cos(theta), -t * sympy.cos(theta), t * sympy.sin(theta) / r, 0]
     assert diffgeom_lie_derivative(wrong) != [[0] * 4 for _ in range(4)]
 
@@ -116,7 +116,7 @@ def test_rindler_needs_exponentials_of_time() -> None:
     # Minkowski time and x directions carry e^{±t} (W. Rindler, Am. J. Phys. 34 (1966) 1174;
     # common practice). Listed: ∂_t, ∂_y, ∂_z and the rotation in y, z.
     st = spacetime_of("t x y z", "-x**2*dt**2 + dx**2 + dy**2 + dz**2", {}, ("x > 0",))
-    t, x, y, z = st.coordinates
+    t, _x, y, z = st.coordinates
     listed = [[1, 0, 0, 0], [0, 0, 1, 0], [0, 0, 0, 1], [0, 0, -z, y]]
     listed = [[sympy.sympify(c) for c in v] for v in listed]
     result = search_killing_vectors(st, listed, 10)
@@ -132,7 +132,7 @@ def test_conical_deficit_rate_is_read_off_the_metric() -> None:
     # depend on φ through cos((1 − 4μ)φ) and sin((1 − 4μ)φ) (from memory).
     st = spacetime_of("t r phi z", "-dt**2 + dr**2 + (1 - 4*mu)**2*r**2*dphi**2 + dz**2",
                       {"mu": "positive"}, ("r > 0", "mu < 1/4"))
-    t, r, phi, z = st.coordinates
+    t, _r, phi, z = st.coordinates
     listed = [[1, 0, 0, 0], [0, 0, 0, 1], [0, 0, 1, 0], [z, 0, 0, t]]
     listed = [[sympy.sympify(c) for c in v] for v in listed]
     result = search_killing_vectors(st, listed, 10)
@@ -145,7 +145,7 @@ def test_conical_deficit_rate_is_read_off_the_metric() -> None:
 
 def test_verification_rejects_a_wrong_coefficient_and_a_dropped_term() -> None:
     st = minkowski_spherical()
-    t, r, theta, phi = st.coordinates
+    t, r, theta, _phi = st.coordinates
     boost = [-r * sympy.cos(theta), -t * sympy.cos(theta), t * sympy.sin(theta) / r, 0]
     assert is_killing(boost, st)
     assert not is_killing([2 * boost[0], *boost[1:]], st)  # a wrong coefficient
