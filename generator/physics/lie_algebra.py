@@ -9,6 +9,7 @@ test. Only a recognition that follows from invariant data is named: abelian, so(
 
 from __future__ import annotations
 
+import time
 from collections.abc import Sequence
 
 import sympy
@@ -18,6 +19,7 @@ from generator.geometry.sampling import CIRCULAR, entry_points, through_sin_cos
 from generator.model import Spacetime
 
 MAX_BASIS = 10
+SECONDS = 20.0  # CPU budget of the bracket table
 MAX_NAMED = 7  # the names below need the Killing form's eigenvalues: small algebras only
 Structure = tuple[tuple[int, int, tuple[sympy.Expr, ...]], ...]
 
@@ -88,15 +90,20 @@ def expand_in_basis(target: Sequence[sympy.Expr], basis: Sequence[Sequence[sympy
     return coefficients
 
 
-def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], complete: bool
-              ) -> tuple[Structure, str | None]:
+def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], complete: bool,
+              seconds: float = SECONDS) -> tuple[Structure, str | None]:
     """The nonzero brackets [X_i, X_j] = c^k X_k (i < j) of a basis that closes, and a name
-    for the algebra when the basis is complete and the algebra is one of the plain cases."""
+    for the algebra when the basis is complete and the algebra is one of the plain cases.
+    Nothing (no brackets, no name) when the CPU budget ``seconds`` runs out: vectors found by
+    the search can make the symbolic expansions slow, and a partial table is not shown."""
     if not basis or len(basis) > MAX_BASIS:
         return (), None
+    deadline = time.process_time() + seconds
     out = []
     for i in range(len(basis)):
         for j in range(i + 1, len(basis)):
+            if time.process_time() > deadline:
+                return (), None
             bracket = commutator(basis[i], basis[j], spacetime.coordinates)
             coefficients = expand_in_basis(bracket, basis, spacetime)
             if coefficients is None:

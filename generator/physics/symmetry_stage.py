@@ -27,7 +27,7 @@ from generator.model import (
     Verdict,
     WeylFrame,
 )
-from generator.physics import killing_tensors, lie_algebra
+from generator.physics import killing_search, killing_tensors, lie_algebra
 from generator.physics.isometry import IsometryDimension, PointData, isometry_dimension
 from generator.physics.isometry import matrix_rank as rank_mod_p
 from generator.physics.jets import BadPoint
@@ -64,11 +64,14 @@ def symmetry(entry: Entry, spacetime: Spacetime, geometry: Geometry,
     ok_vectors = [(k, xi) for k, xi in vectors if f"claims.killing_vectors.{k}" in verified]
     all_rank = _vector_rank(points, [k for k, _ in vectors], vectors, n)
     basis = _independent(points, ok_vectors, vectors, n)
+    search = missing_vectors(spacetime, [xi for _, xi in basis], computed.dimension)
+    found = list(search.found) if search else []
+    vectors_all = [xi for _, xi in basis] + found
     diagnostics = count_diagnostics(entry, computed, all_rank, len(basis),
-                                    bool(entry.claims.killing_vectors))
+                                    bool(entry.claims.killing_vectors), search, names)
+    complete = None if computed.dimension is None else len(vectors_all) == computed.dimension
     try:
-        structure, algebra_name = lie_algebra.structure(spacetime, [xi for _, xi in basis],
-                                                        len(basis) == computed.dimension)
+        structure, algebra_name = lie_algebra.structure(spacetime, vectors_all, bool(complete))
     except COMPUTATION_FAILURES:
         structure, algebra_name = (), None
     algebra = IsometryAlgebra(
@@ -76,19 +79,38 @@ def symmetry(entry: Entry, spacetime: Spacetime, geometry: Geometry,
         orbit_dimension=computed.orbit_dimension,
         listed=all_rank,
         basis=tuple(tuple((names[a], xi[a]) for a in range(n) if xi[a] != 0)
-                    for _, xi in basis),
-        complete=None if computed.dimension is None else len(basis) == computed.dimension,
+                    for xi in vectors_all),
+        complete=complete,
         method=computed.method + ("" if computed.points_agree else
                                   "; the two points disagreed, the smaller value is kept"),
         why_null=computed.why_null,
         structure=structure,
         algebra_name=algebra_name,
+        found=len(found),
+        search=search.summary if search else None,
     )
     tensors, problems = killing_tensors.check_all(entry, spacetime, geometry)
     count = invariant_count(points, [label for label, _ in invariants], len(vectors) * n,
                             computed, n)
     diagnostics += problems
     return SymmetryResult(algebra, tuple(tensors), count, frame), diagnostics
+
+
+def missing_vectors(spacetime: Spacetime, verified: Sequence[Sequence[sympy.Expr]],
+                    dimension: int | None) -> killing_search.SearchResult | None:
+    """The search for Killing vectors beyond the verified listed ones, run only when they
+    fall short of the computed dimension (the search is the costly part of the stage)."""
+    if dimension is None or len(verified) >= dimension:
+        return None
+    if spacetime.functions:
+        return killing_search.SearchResult(
+            (), False, "not searched: the metric has free functions, and the ansatz holds "
+            "no functions of them")
+    try:
+        return killing_search.search_killing_vectors(spacetime, verified, dimension)
+    except COMPUTATION_FAILURES as exc:
+        return killing_search.SearchResult((), False, f"the search failed "
+                                           f"({type(exc).__name__})")
 
 
 def weyl_invariant_parts(frame: WeylFrame | None) -> list[tuple[str, sympy.Expr]]:
@@ -143,7 +165,8 @@ def _independent(points: Sequence[PointData], candidates: Sequence[tuple[int, li
 
 
 def count_diagnostics(entry: Entry, computed: IsometryDimension, listed: int, verified: int,
-                      has_list: bool) -> list[Diagnostic]:
+                      has_list: bool, search: killing_search.SearchResult | None = None,
+                      names: Sequence[str] = ()) -> list[Diagnostic]:
     """An entry that lists Killing vectors is told when the list falls short of the algebra
     (a warning) or exceeds it (an error). One that lists none gets no message: its page and
     report still give the dimension, with no basis and ``complete`` false."""
@@ -159,12 +182,28 @@ def count_diagnostics(entry: Entry, computed: IsometryDimension, listed: int, ve
                               "one intended")]
     if verified < d and has_list:
         missing = d - verified
-        return [Diagnostic.at(at, "warning", f"the isometry algebra has dimension {d} but the "
-                              f"entry lists {verified} independent verified Killing vector"
-                              f"{'s' if verified != 1 else ''} ({missing} missing)",
-                              "symmetry.incomplete",
-                              "add the missing Killing vectors under claims.killing_vectors")]
+        message = (f"the isometry algebra has dimension {d} but the entry lists {verified} "
+                   f"independent verified Killing vector{'s' if verified != 1 else ''} "
+                   f"({missing} missing)")
+        hint = "add the missing Killing vectors under claims.killing_vectors"
+        if search is not None:
+            found = len(search.found)
+            message += (f"; the tool found {found} of them, so its basis is complete"
+                        if search.complete else
+                        f"; the tool found {found} of them and the list is still incomplete "
+                        f"(the rest are not in the searched ansatz)" if found else
+                        "; the tool's search found none of them")
+            if found:
+                hint += ", e.g. the ones the tool found (verified): " + "; ".join(
+                    as_claim(xi, names) for xi in search.found)
+        return [Diagnostic.at(at, "warning", message, "symmetry.incomplete", hint)]
     return []
+
+
+def as_claim(xi: Sequence[sympy.Expr], names: Sequence[str]) -> str:
+    """A vector the way an entry lists it, e.g. {t: r*cos(theta), r: t*cos(theta)}."""
+    return "{" + ", ".join(f"{name}: {sympy.sstr(value)}"
+                           for name, value in zip(names, xi, strict=True) if value != 0) + "}"
 
 
 def invariant_count(points: Sequence[PointData], labels: Sequence[str], offset: int,

@@ -48,7 +48,10 @@ def isometry_data(report: EntryReport) -> dict[str, Any] | None:
 def algebra_data(iso: IsometryAlgebra, coordinates: tuple[sympy.Symbol, ...]
                  ) -> dict[str, Any]:
     names = {str(x): x for x in coordinates}
-    basis = [math_inline(rf"X_{{{k + 1}}} = " + vector_latex(vector, names, coordinates))
+    first_found = len(iso.basis) - iso.found
+    basis = [{"math": math_inline(rf"X_{{{k + 1}}} = " + vector_latex(vector, names,
+                                                                      coordinates)),
+              "found": k >= first_found}
              for k, vector in enumerate(iso.basis)]
     brackets = [bracket_math(i, j, coefficients, coordinates)
                 for i, j, coefficients in iso.structure]
@@ -57,7 +60,8 @@ def algebra_data(iso: IsometryAlgebra, coordinates: tuple[sympy.Symbol, ...]
     return {"dimension": iso.dimension, "orbit_dimension": iso.orbit_dimension,
             "isotropy": isotropy, "listed": iso.listed, "basis": basis,
             "complete": iso.complete, "method": iso.method, "why_null": iso.why_null,
-            "brackets": brackets, "name": iso.algebra_name,
+            "brackets": brackets, "name": iso.algebra_name, "found": iso.found,
+            "search": iso.search,
             "missing": None if iso.dimension is None else iso.dimension - len(iso.basis)}
 
 

@@ -1,0 +1,598 @@
+"""A search for the Killing vectors an entry does not list, in an ansatz built from its own
+generators, with every vector found verified symbolically before it is accepted.
+
+Why an ansatz: Killing's equation L_ξ g = 0 is linear in ξ, so once each component ξ^a is
+written as a combination Σ_k c_ak m_k of known functions m_k with unknown constants c_ak, the
+equation becomes a linear system for the c's. The functions are monomials in
+
+* the coordinates (powers −2 … 2), the sines and cosines, hyperbolic functions, exponentials
+  and radicals that occur in the metric, and the radical √|g_xx| of every coordinate x the
+  metric does not depend on (the norm of the Killing vector ∂_x);
+* the entry's parameters (powers −1 … 1; constants may depend on them);
+* for every coordinate x the metric does not depend on ("cyclic"), one factor of a class
+  {1, x, x²}, {e^{kx}}, {e^{−kx}} or {cos kx, sin kx}. ∂_x is then a Killing vector and the
+  algebra splits into eigenspaces of [∂_x, ·], whose x-dependence is one of these classes;
+  the rates k are 1 and the square roots (and inverse square roots) of the parameter
+  coefficients of the metric's components — e.g. √(Λ/3) in 1 − Λr²/3, or 1/(1 − 4μ) for a
+  conical deficit (1 − 4μ)² r² dφ².
+
+Each choice of classes is one independent block of the linear system (different classes are
+linearly independent functions of x, and ∂_x keeps each class), which keeps the systems small.
+A block is solved modulo a prime near 2^31 from the values and first derivatives of every
+function at random points of the metric's field (``jets``, order 1): the equations at a point
+are exact, and evaluating at more points than unknowns leaves (with high probability) exactly
+the solutions. The rational coefficients are recovered by rational reconstruction, and each
+vector is then checked with the project's symbolic zero test of L_ξ g, as a listed vector is;
+a vector that fails is dropped, so the search never returns an unverified vector. Independence
+from the listed and already found vectors is judged by their 1-jets (a Killing vector is fixed
+by its value and first derivatives at one point) at two random points.
+
+The search stops as soon as the listed and found vectors span the computed dimension, or when
+the ansatz, the size bound or the time budget is exhausted; it then says how many it found.
+"""
+
+from __future__ import annotations
+
+import itertools
+import math
+import random
+import time
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import flint
+import numpy as np
+import sympy
+
+from generator.geometry.algebra import NotInField
+from generator.geometry.exactvalues import vanishes
+from generator.model import Spacetime
+from generator.physics.isometry import matrix_rank, metric_field
+from generator.physics.jets import BadPoint, FieldJets, primes
+from generator.physics.symmetry import lie_derivative_metric
+
+SEED = 20261204
+SECONDS = 8.0  # CPU seconds for the whole search of one entry
+MAX_UNKNOWNS = 1000  # columns of one block's linear system
+DEGREES = (2, 3, 4)  # total degree of the non-cyclic part, tried in turn
+MAX_CYCLIC_DEGREE = 2  # total degree of the polynomial classes over all cyclic coordinates
+MAX_RATES = 2  # candidate rates k per cyclic coordinate
+EXTRA_POINTS = 16
+SIGNATURE_POINTS = (0,)  # one point: the parameters must keep one value (independence is
+# over functions of the parameters), and one generic 1-jet fixes a Killing vector
+PRIME_TRIES = 6
+CIRCULAR = (sympy.sin, sympy.cos)
+HYPERBOLIC = (sympy.sinh, sympy.cosh)
+
+
+@dataclass(frozen=True)
+class SearchResult:
+    """``found``: verified Killing vectors (components in coordinate order) independent of the
+    listed ones; ``rejected``: candidates the symbolic check refused (never shown)."""
+
+    found: tuple[tuple[sympy.Expr, ...], ...]
+    complete: bool
+    summary: str  # what was searched and with what outcome, in words
+    rejected: int = 0
+
+
+@dataclass(frozen=True)
+class Atom:
+    expr: sympy.Expr
+    low: int
+    high: int
+    parameter: bool = False
+
+
+# ====================================================================== the ansatz
+
+
+def cyclic_coordinates(spacetime: Spacetime) -> list[int]:
+    metric = spacetime.metric
+    return [i for i, x in enumerate(spacetime.coordinates)
+            if not any(x in metric[a, b].free_symbols for a in range(spacetime.dimension)
+                       for b in range(spacetime.dimension))]
+
+
+def _parameter_coefficients(spacetime: Spacetime) -> list[sympy.Expr]:
+    """Non-numeric coefficients of the metric components: their coordinate-free factors, and
+    the coefficients of their numerators and denominators as polynomials in the coordinates
+    and the coordinates' functions (each factored), simplest first."""
+    coordinates = set(spacetime.coordinates)
+    out: list[sympy.Expr] = []
+
+    def add(c: sympy.Expr) -> None:
+        c = sympy.factor(c)
+        if c.free_symbols and not c.free_symbols & coordinates and c not in out:
+            out.append(c)
+
+    n = spacetime.dimension
+    for a in range(n):
+        for b in range(a, n):
+            value = spacetime.metric[a, b]
+            if value == 0:
+                continue
+            for factor in sympy.Mul.make_args(sympy.factor(value)):
+                add(factor)
+            for part in sympy.fraction(sympy.together(value)):
+                generators = sorted((g for g in sympy.expand(part).atoms(sympy.Symbol,
+                                                                        sympy.Function)
+                                     if g.free_symbols & coordinates), key=str)
+                if not generators:
+                    continue
+                try:
+                    coefficients = sympy.Poly(part, *generators).coeffs()
+                except sympy.PolynomialError:
+                    continue
+                if len(coefficients) == 1:
+                    add(coefficients[0])
+                for c in coefficients[:-1]:
+                    add(c / coefficients[-1])
+    return sorted(out, key=sympy.count_ops)
+
+
+def candidate_rates(spacetime: Spacetime) -> list[sympy.Expr]:
+    """1 and √|c|, 1/√|c| for the metric's parameter coefficients c (see module docstring)."""
+    rates = [sympy.Integer(1)]
+    for c in _parameter_coefficients(spacetime):
+        magnitude = -c if c.could_extract_minus_sign() else c
+        root = sympy.sqrt(magnitude).replace(sympy.Abs, lambda x: x)
+        root = sympy.powdenest(root, force=True)
+        for k in (root, 1 / root):
+            k = sympy.simplify(k)
+            if k not in rates and k.free_symbols:
+                rates.append(k)
+        if len(rates) > MAX_RATES:
+            break
+    return rates[: MAX_RATES + 1]
+
+
+def classes_for(x: sympy.Symbol, rates: Sequence[sympy.Expr]
+                ) -> list[tuple[str, tuple[sympy.Expr, ...]]]:
+    out: list[tuple[str, tuple[sympy.Expr, ...]]] = [("poly", (sympy.Integer(1), x, x**2))]
+    for k in rates:
+        out.append(("trig", (sympy.cos(k * x), sympy.sin(k * x))))
+        out.append(("exp", (sympy.exp(k * x),)))
+        out.append(("exp", (sympy.exp(-k * x),)))
+    return out
+
+
+def _function_atoms(spacetime: Spacetime, cyclic: Sequence[int]) -> list[Atom]:
+    coordinates = set(spacetime.coordinates)
+    n = spacetime.dimension
+    values = [spacetime.metric[a, b] for a in range(n) for b in range(a, n)]
+    atoms: list[Atom] = []
+
+    def add(atom: Atom) -> None:
+        if all(a.expr != atom.expr for a in atoms):
+            atoms.append(atom)
+
+    for i, x in enumerate(spacetime.coordinates):
+        if i not in cyclic and any(_bare(value, x) for value in values):
+            add(Atom(x, -2, 2))
+    for value in values:
+        for f in value.atoms(*CIRCULAR, *HYPERBOLIC):
+            arg = f.args[0]
+            if not arg.free_symbols & coordinates:
+                continue
+            sin_f, cos_f = (sympy.sin, sympy.cos) if f.func in CIRCULAR else \
+                (sympy.sinh, sympy.cosh)
+            add(Atom(sin_f(arg), -1, 1))
+            add(Atom(cos_f(arg), 0, 1))
+        for f in value.atoms(sympy.exp):
+            if f.args[0].free_symbols & coordinates:
+                add(Atom(f, -2, 2))
+        for f in value.atoms(sympy.Pow):
+            if f.exp.is_Rational and not f.exp.is_Integer and f.base.free_symbols & coordinates:
+                add(Atom(f.base ** sympy.Rational(1, f.exp.q), -1, 1))
+    for i in cyclic:
+        radicand = spacetime.metric[i, i]
+        if radicand == 0:
+            continue
+        if i < len(spacetime.signature) and spacetime.signature[i] == "-":
+            radicand = -radicand
+        root = sympy.powdenest(sympy.sqrt(sympy.factor(radicand)), force=True)
+        if any(p.exp.is_Rational and not p.exp.is_Integer and p.base.free_symbols & coordinates
+               for p in root.atoms(sympy.Pow)):
+            add(Atom(sympy.sqrt(radicand), -1, 1))
+    return atoms
+
+
+def _bare(value: sympy.Expr, x: sympy.Symbol) -> bool:
+    """Whether x occurs in ``value`` outside sin, cos, sinh, cosh and exp."""
+    stripped = value.replace(lambda e: isinstance(e, (*CIRCULAR, *HYPERBOLIC, sympy.exp)),
+                             lambda e: sympy.Integer(2))
+    return x in stripped.free_symbols
+
+
+def _parameter_atoms(spacetime: Spacetime, rates: Sequence[sympy.Expr]) -> list[Atom]:
+    atoms = [Atom(p, -1, 1, True) for p in spacetime.parameters]
+    known = {a.expr for a in atoms}
+    for k in rates[1:]:
+        for f in k.atoms(sympy.Pow):
+            if f.exp.is_Rational and not f.exp.is_Integer and f.base.free_symbols \
+                    and f not in known:
+                base = f.base ** sympy.Rational(1, f.exp.q)
+                if base not in known:
+                    known.add(base)
+                    atoms.append(Atom(base, -1, 1, True))
+    # A parameter with a root among the atoms is covered by the root's powers.
+    roots = {a.expr.base for a in atoms if isinstance(a.expr, sympy.Pow)}
+    return [Atom(a.expr, -2, 2, True) if isinstance(a.expr, sympy.Pow) else a
+            for a in atoms if a.expr not in roots]
+
+
+def monomials(atoms: Sequence[Atom], degree: int, parameter_degree: int
+              ) -> list[tuple[int, ...]]:
+    """Exponent vectors with Σ|e| ≤ degree over function atoms and ≤ parameter_degree over
+    parameter atoms, simplest first."""
+    ranges = [range(a.low, a.high + 1) for a in atoms]
+    out = []
+    for exps in itertools.product(*ranges):
+        function_degree = sum(abs(e) for e, a in zip(exps, atoms, strict=True)
+                              if not a.parameter)
+        parameter = sum(abs(e) for e, a in zip(exps, atoms, strict=True) if a.parameter)
+        if function_degree <= degree and parameter <= parameter_degree:
+            out.append(exps)
+    return sorted(out, key=lambda e: (sum(abs(v) for v in e), e))
+
+
+# ====================================================================== values at points
+
+
+class PointValues:
+    """Values and first derivatives (mod p) of the metric, the ansatz atoms and the listed
+    vectors' components at many random points of the metric's field."""
+
+    def __init__(self, spacetime: Spacetime, atoms: Sequence[sympy.Expr],
+                 listed: Sequence[Sequence[sympy.Expr]]) -> None:
+        self.n = spacetime.dimension
+        extra = [*atoms, *(c for xi in listed for c in xi)]
+        self.field, self.metric_values, self.extra_values = metric_field(spacetime, extra)
+        self.atom_count = len(atoms)
+        self.rng = random.Random(SEED)
+        self.p = self._prime()
+        self.atoms: list[np.ndarray] = []  # per point: (atoms, 1 + n)
+        self.metric: list[np.ndarray] = []  # per point: (n, n, 1 + n)
+        self.listed: list[np.ndarray] = []  # per point: (vectors, n, 1 + n)
+        self.listed_count = len(listed)
+
+    def _prime(self) -> int:
+        for p in primes()[:PRIME_TRIES]:
+            try:
+                FieldJets(self.field, 1, random.Random(SEED), p)
+                return p
+            except BadPoint:
+                continue
+        raise BadPoint("no prime gave a usable point")
+
+    def _one_jet(self, jets: FieldJets, value) -> list[int]:
+        jet = jets.rational(value)
+        space = jets.space
+        units = [space.index[tuple(1 if v == i else 0 for v in range(self.n))]
+                 for i in range(self.n)]
+        return [int(jet[0]), *(int(jet[u]) for u in units)]
+
+    def grow(self, count: int, deadline: float) -> None:
+        attempts = 0
+        while len(self.atoms) < count and attempts < 4 * count + 40:
+            attempts += 1
+            if time.process_time() > deadline:
+                raise TimeoutError("time budget")
+            try:
+                jets = FieldJets(self.field, 1, self.rng, self.p)
+                atoms = np.array([self._one_jet(jets, v)
+                                  for v in self.extra_values[: self.atom_count]],
+                                 dtype=np.int64).reshape(self.atom_count, self.n + 1)
+                if atoms.size and (atoms[:, 0] == 0).any():
+                    continue  # an atom with a negative power must not vanish
+                metric = np.array([self._one_jet(jets, v) for v in self.metric_values],
+                                  dtype=np.int64).reshape(self.n, self.n, self.n + 1)
+                listed = np.array([self._one_jet(jets, v)
+                                   for v in self.extra_values[self.atom_count:]],
+                                  dtype=np.int64).reshape(self.listed_count, self.n,
+                                                          self.n + 1)
+            except (BadPoint, ZeroDivisionError):
+                continue
+            self.atoms.append(atoms)
+            self.metric.append(metric)
+            self.listed.append(listed)
+        if len(self.atoms) < count:
+            raise BadPoint("too few usable points")
+
+    def monomial_jets(self, point: int, exponents: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Values m_k and derivatives ∂_b m_k of the monomials (rows of ``exponents``)."""
+        p = self.p
+        atoms = self.atoms[point]
+        values = np.ones(len(exponents), dtype=np.int64)
+        log_derivative = np.zeros((len(exponents), self.n), dtype=np.int64)
+        for j in range(atoms.shape[0]):
+            column = exponents[:, j]
+            if not column.any():
+                continue
+            a = int(atoms[j, 0])
+            inverse = pow(a, -1, p)
+            powers = {e: pow(a if e > 0 else inverse, abs(int(e)), p) for e in set(column)}
+            values = values * np.array([powers[e] for e in column], dtype=np.int64) % p
+            rate = (atoms[j, 1:] * inverse) % p  # ∂_b a / a
+            log_derivative = (log_derivative + (column[:, None] % p) * rate[None, :]) % p
+        return values, (log_derivative * values[:, None]) % p
+
+
+# ====================================================================== solving a block
+
+
+def killing_rows(values: PointValues, point: int, exponents: np.ndarray) -> np.ndarray:
+    """Rows (a ≤ b) of L_ξ g at one point for ξ = m_k ∂_c, columns ordered (c, k)."""
+    n, p = values.n, values.p
+    m, dm = values.monomial_jets(point, exponents)
+    g = values.metric[point]
+    rows = []
+    for a in range(n):
+        for b in range(a, n):
+            blocks = []
+            for c in range(n):
+                entry = (m * int(g[a, b, 1 + c]) + dm[:, a] * int(g[c, b, 0])
+                         + dm[:, b] * int(g[a, c, 0])) % p
+                blocks.append(entry)
+            rows.append(np.concatenate(blocks))
+    return np.array(rows, dtype=np.int64)
+
+
+def kernel(rows: np.ndarray, p: int) -> list[list[int]]:
+    """A basis of the null space as flint derives it from the reduced row echelon form
+    (canonical: its entries are the reductions of the rational ones)."""
+    count, size = rows.shape
+    matrix = flint.nmod_mat(count, size, rows.ravel().tolist(), p)
+    basis, nullity = matrix.nullspace()
+    table = basis.tolist()
+    return [[int(table[i][j]) for i in range(size)] for j in range(nullity)]
+
+
+def rational_reconstruction(a: int, p: int) -> sympy.Rational | None:
+    """r/s ≡ a (mod p) with |r|, |s| ≤ √(p/2), if there is one (Wang's method)."""
+    bound = math.isqrt(p // 2)
+    r0, r1, s0, s1 = p, a % p, 0, 1
+    while r1 > bound:
+        q = r0 // r1
+        r0, r1 = r1, r0 - q * r1
+        s0, s1 = s1, s0 - q * s1
+    if s1 == 0 or abs(s1) > bound or math.gcd(r1, abs(s1)) != 1:
+        return None
+    return sympy.Rational(r1, s1)
+
+
+def vector_signature(values: PointValues, points: Sequence[int], exponents: np.ndarray,
+                     coefficients: Sequence[int]) -> list[int]:
+    """Values and first derivatives of the vector's components at ``points``."""
+    n, p = values.n, values.p
+    c = np.array(coefficients, dtype=np.int64).reshape(n, len(exponents))
+    out: list[int] = []
+    for point in points:
+        m, dm = values.monomial_jets(point, exponents)
+        for a in range(n):
+            out.append(int((c[a] * m % p).sum() % p))
+            out.extend(int(v) for v in ((c[a][:, None] * dm) % p).sum(axis=0) % p)
+    return out
+
+
+def listed_signature(values: PointValues, points: Sequence[int], k: int) -> list[int]:
+    return [int(v) for point in points for v in values.listed[point][k].ravel()]
+
+
+# ====================================================================== the search
+
+
+@dataclass
+class _State:
+    signatures: list[list[int]]
+    found: list[tuple[sympy.Expr, ...]]
+    rejected: int = 0
+
+
+def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy.Expr]],
+                           dimension: int, seconds: float = SECONDS) -> SearchResult:
+    """Killing vectors independent of ``listed`` (already verified), until together they
+    span ``dimension`` or the ansatz is exhausted (see module docstring)."""
+    deadline = time.process_time() + seconds
+    listed = [[sympy.sympify(c) for c in xi] for xi in listed]
+    n = spacetime.dimension
+    cyclic = cyclic_coordinates(spacetime)
+    rates = candidate_rates(spacetime)
+    function_atoms = _function_atoms(spacetime, cyclic)
+    parameter_atoms = _parameter_atoms(spacetime, rates)
+    base_atoms = [*function_atoms, *parameter_atoms]
+    classes = [classes_for(spacetime.coordinates[i], rates) for i in cyclic]
+    factor_exprs = list(dict.fromkeys(f for cls in classes for _, fs in cls for f in fs
+                                      if f != 1))
+    atom_exprs = [a.expr for a in base_atoms] + factor_exprs
+    described = describe(spacetime, function_atoms, parameter_atoms, cyclic, rates)
+    try:
+        values = PointValues(spacetime, atom_exprs, listed)
+        values.grow(2, deadline)
+    except (BadPoint, NotInField, ZeroDivisionError, TimeoutError) as exc:
+        return SearchResult((), False, f"not searched: {exc}")
+    state = _State([listed_signature(values, SIGNATURE_POINTS, k) for k in range(len(listed))],
+                   [])
+    target = dimension
+    why = ""
+    bases = {degree: monomials(base_atoms, degree, 1) for degree in DEGREES}
+    blocks = sorted(itertools.product(*classes), key=_complexity)
+    try:
+        for choice in blocks:
+            if _rank(state, values.p) >= target:
+                break
+            combinations = sum(1 for c in itertools.product(*(fs for _, fs in choice))
+                               if sum(map(_polynomial_degree, c)) <= MAX_CYCLIC_DEGREE)
+            fitting = [d for d in DEGREES if n * combinations * len(bases[d]) <= MAX_UNKNOWNS]
+            base = bases[fitting[-1] if fitting else DEGREES[0]]
+            _solve_block(spacetime, values, base, base_atoms, factor_exprs, choice, state,
+                         deadline)
+    except TimeoutError:
+        why = "; stopped at the time budget"
+    except (BadPoint, NotInField, ZeroDivisionError) as exc:
+        why = f"; stopped: {exc}"
+    found = tuple(state.found)
+    total = _rank(state, values.p)
+    complete = total >= target
+    listed_rank = matrix_rank(state.signatures[: len(listed)], values.p) if listed else 0
+    missing = target - listed_rank
+    if complete:
+        summary = (f"{len(found)} of the {missing} missing Killing vectors found by the tool "
+                   f"in {described}; the basis is complete")
+    else:
+        summary = (f"{len(found)} of the {missing} missing Killing vectors found by the tool; "
+                   f"the rest are not in the searched ansatz ({described}){why}")
+    return SearchResult(found, complete, summary, state.rejected)
+
+
+def _complexity(choice) -> tuple[int, int]:
+    """Blocks with fewer exponential or circular classes first."""
+    return (sum(kind != "poly" for kind, _ in choice), sum(len(fs) for _, fs in choice))
+
+
+def _rank(state: _State, p: int) -> int:
+    return matrix_rank(state.signatures, p) if state.signatures else 0
+
+
+def describe(spacetime: Spacetime, function_atoms: Sequence[Atom],
+             parameter_atoms: Sequence[Atom], cyclic: Sequence[int],
+             rates: Sequence[sympy.Expr]) -> str:
+    parts = ["polynomials in the coordinates (powers −2…2)"]
+    if function_atoms:
+        parts.append("the functions " + ", ".join(str(a.expr) for a in function_atoms))
+    if cyclic:
+        names = ", ".join(str(spacetime.coordinates[i]) for i in cyclic)
+        parts.append(f"exp(±kx), cos kx, sin kx for the cyclic coordinates x = {names} with "
+                     f"k in {{{', '.join(str(k) for k in rates)}}}")
+    if parameter_atoms:
+        parts.append("powers −1…1 of " + ", ".join(str(a.expr) for a in parameter_atoms))
+    return "; ".join(parts) + f"; total degree ≤ {DEGREES[-1]}"
+
+
+def _solve_block(spacetime: Spacetime, values: PointValues, base: list[tuple[int, ...]],
+                 base_atoms: Sequence[Atom], factor_exprs: Sequence[sympy.Expr],
+                 choice, state: _State, deadline: float) -> None:
+    n = values.n
+    factor_sets = [fs for _, fs in choice]
+    width = len(base_atoms) + len(factor_exprs)
+    exponent_rows = []
+    for combination in itertools.product(*factor_sets) if factor_sets else [()]:
+        if sum(_polynomial_degree(f) for f in combination) > MAX_CYCLIC_DEGREE:
+            continue
+        tail = [0] * len(factor_exprs)
+        for f in combination:
+            if f == 1:
+                continue
+            tail[factor_exprs.index(f)] = 1
+        for exps in base:
+            exponent_rows.append((*exps, *tail))
+    if not exponent_rows:
+        return
+    exponents = np.array(exponent_rows, dtype=np.int64).reshape(len(exponent_rows), width)
+    exponents = _independent_monomials(values, exponents, deadline)
+    if n * len(exponents) > MAX_UNKNOWNS:
+        exponents = exponents[: MAX_UNKNOWNS // n]
+    # Simplest monomials last: the free variables of the echelon form are then the simple
+    # ones, and each solution comes out with coefficient 1 on a simple term.
+    exponents = exponents[::-1]
+    size = n * len(exponents)
+    per_point = n * (n + 1) // 2
+    needed = size // per_point + EXTRA_POINTS
+    values.grow(needed + 2, deadline)
+    rows = np.concatenate([killing_rows(values, k, exponents) for k in range(2, needed + 2)])
+    if time.process_time() > deadline:
+        raise TimeoutError("time budget")
+    for vector in kernel(rows, values.p):
+        signature = vector_signature(values, SIGNATURE_POINTS, exponents, vector)
+        trial = [*state.signatures, signature]
+        if matrix_rank(trial, values.p) <= _rank(state, values.p):
+            continue
+        candidate = _exact_vector(vector, exponents, base_atoms, factor_exprs, n, values.p,
+                                  spacetime.coordinates)
+        if candidate is None or not is_killing(candidate, spacetime):
+            state.rejected += 1
+            continue
+        state.signatures.append(signature)
+        state.found.append(candidate)
+        if time.process_time() > deadline:
+            raise TimeoutError("time budget")
+
+
+def _polynomial_degree(factor: sympy.Expr) -> int:
+    if factor.is_Symbol:
+        return 1
+    if isinstance(factor, sympy.Pow) and factor.base.is_Symbol:
+        return int(factor.exp)
+    return 0
+
+
+def _independent_monomials(values: PointValues, exponents: np.ndarray, deadline: float
+                           ) -> np.ndarray:
+    """Drop monomials that are linear combinations of earlier ones (sin² = 1 − cos², a
+    radical times its radicand, ...): their values at more points than monomials have the
+    earlier columns as pivots."""
+    count = len(exponents)
+    values.grow(count + 4, deadline)
+    rows = np.array([values.monomial_jets(k, exponents)[0] for k in range(count + 4)],
+                    dtype=np.int64)
+    matrix = flint.nmod_mat(rows.shape[0], count, rows.ravel().tolist(), values.p)
+    reduced, rank = matrix.rref()
+    table = np.array(reduced.tolist()[:rank], dtype=object).astype(np.int64)
+    pivots = [int(np.flatnonzero(row)[0]) for row in table] if rank else []
+    return exponents[pivots]
+
+
+def _exact_vector(vector: Sequence[int], exponents: np.ndarray, base_atoms: Sequence[Atom],
+                  factor_exprs: Sequence[sympy.Expr], n: int, p: int,
+                  coordinates: Sequence[sympy.Symbol]) -> tuple[sympy.Expr, ...] | None:
+    atoms = [a.expr for a in base_atoms] + list(factor_exprs)
+    count = len(exponents)
+    components = []
+    for a in range(n):
+        terms = []
+        for k in range(count):
+            value = vector[a * count + k]
+            if value == 0:
+                continue
+            q = rational_reconstruction(value, p)
+            if q is None:
+                return None
+            monomial = sympy.Mul(*(atom ** int(e) for atom, e in zip(atoms, exponents[k],
+                                                                      strict=True) if e))
+            terms.append(q * monomial)
+        components.append(sympy.Add(*terms))
+    if all(c == 0 for c in components):
+        return None
+    return tuple(tidy(c) for c in without_parameter_factor(components, coordinates))
+
+
+def without_parameter_factor(components: Sequence[sympy.Expr],
+                             coordinates: Sequence[sympy.Symbol]) -> list[sympy.Expr]:
+    """The vector divided by the parameter-only factor of its first non-zero term (a Killing
+    vector times a constant is one; the search's normalisation is arbitrary)."""
+    first = next(c for c in components if c != 0)
+    term = sympy.Add.make_args(sympy.expand(first))[0]
+    factor = sympy.Mul(*(f for f in sympy.Mul.make_args(term)
+                         if not f.free_symbols & set(coordinates)))
+    if factor == 0:
+        return list(components)
+    return [sympy.expand(c / factor) for c in components]
+
+
+
+def tidy(expr: sympy.Expr) -> sympy.Expr:
+    """A readable form: common factors pulled out, with no simplification that could hide
+    an error (the vector is verified afterwards in exactly this form)."""
+    try:
+        return sympy.factor_terms(sympy.together(expr))
+    except (sympy.PolynomialError, TypeError, ValueError):
+        return expr
+
+
+def is_killing(xi: Sequence[sympy.Expr], spacetime: Spacetime) -> bool:
+    """The same symbolic test as for a listed vector: every L_ξ g_ab vanishes."""
+    lie = lie_derivative_metric(list(xi), spacetime.metric, spacetime.coordinates)
+    n = spacetime.dimension
+    return all(vanishes(lie[a, b], spacetime).equal is True
+               for a in range(n) for b in range(a, n))
