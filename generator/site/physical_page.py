@@ -111,7 +111,7 @@ def physical_section(report: EntryReport) -> dict[str, Any] | None:
             if value is not None:
                 rows.append({"math": _math(symbol, value, coordinates),
                              "text": reader_text(str(value)),
-                             "verdict": verdicts.get(f"claims.{key}")})
+                             "verdict": verdicts.get(f"claims.{key}"), "note": ""})
         observer = reader_text(", ".join(f"u^{name} = {value}" for name, value in k.observer))
         observers = {"source": k.source, "observer": observer, "rows": rows}
     return {
