@@ -62,11 +62,11 @@ METRICS: dict[str, Callable[[], Spacetime]] = {
 }
 # The catalog entry of each metric, for the full check.
 ENTRIES: dict[str, str] = {
-    "Schwarzschild": "catalog/black-holes/schwarzschild.yaml",
-    "Kerr": "catalog/black-holes/kerr-boyer-lindquist.yaml",
-    "Kerr–Newman": "catalog/black-holes/kerr-newman.yaml",
-    "Kerr–de Sitter": "catalog/black-holes/kerr-de-sitter.yaml",
-    "flat FLRW a(t)": "catalog/cosmology/flrw-flat.yaml",
+    "Schwarzschild": "catalog/isolated-objects/schwarzschild.yaml",
+    "Kerr": "catalog/isolated-objects/kerr-boyer-lindquist.yaml",
+    "Kerr–Newman": "catalog/isolated-objects/kerr-newman.yaml",
+    "Kerr–de Sitter": "catalog/isolated-objects/kerr-de-sitter.yaml",
+    "flat FLRW a(t)": "catalog/universes/flrw-flat.yaml",
 }
 FULL_CHECK_RUNS = 3
 

@@ -11,7 +11,7 @@ The unmutated entry is first written back through the same YAML round trip and m
 control), so a kill is never caused by the round trip itself. Mutants that leave the metric
 alone reuse the control's geometry, which keeps the run short.
 
-    python bench/mutation_score.py [catalog/black-holes/schwarzschild.yaml ...] [--json]
+    python bench/mutation_score.py [catalog/isolated-objects/schwarzschild.yaml ...] [--json]
 
 With ``--code`` it mutates the verification code instead of the entries: every comparison
 of the equality decision (``generator/geometry/equality.py``, ``canonicity.py``,

@@ -1,6 +1,6 @@
 """The duplicate search for one new entry against the shipped catalog: CPU seconds.
 
-Issue 18: a copy of catalog/black-holes/schwarzschild.yaml with M renamed to m and a new id
+Issue 18: a copy of catalog/isolated-objects/schwarzschild.yaml with M renamed to m and a new id
 must be warned about in CI, so the search has to be quick enough to run for every changed
 entry. This script checks the whole catalog once (through a result cache in a temporary
 folder, so it is measured cold and warm separately from the search), then times
@@ -30,9 +30,9 @@ def main() -> None:
     with tempfile.TemporaryDirectory() as folder:
         work = Path(folder)
         shutil.copytree(ROOT / "catalog", work / "catalog")
-        original = (work / "catalog/black-holes/schwarzschild.yaml").read_text()
+        original = (work / "catalog/isolated-objects/schwarzschild.yaml").read_text()
         copy = re.sub(r"\bM\b", "m", original).replace("id: schwarzschild\n", "id: lamp-hole\n")
-        (work / "catalog/black-holes/lamp-hole.yaml").write_text(copy)
+        (work / "catalog/isolated-objects/lamp-hole.yaml").write_text(copy)
         catalog = work / "catalog"
         files = entry_files([catalog])
         options = RunOptions(cache_dir=work / "cache")

@@ -11,7 +11,7 @@ from dataclasses import replace
 from generator.errors import SourcePos
 from generator.model import Claim, Claims, Curation, Entry, MathText, Matter, Parameter, Reference
 
-FILE = "catalog/black-holes/schwarzschild-test.yaml"
+FILE = "catalog/isolated-objects/schwarzschild-test.yaml"
 
 
 def pos(line: int = 1, column: int = 1) -> SourcePos:
@@ -42,7 +42,7 @@ def schwarzschild(**overrides: object) -> Entry:
     entry = Entry(
         id="schwarzschild-test",
         file=FILE,
-        family="black-holes",
+        family="isolated-objects",
         title="Schwarzschild black hole",
         chart="Schwarzschild coordinates",
         summary="Static spherically symmetric vacuum.",

@@ -46,9 +46,9 @@ def almanac(cwd: Path, *args: str, env: dict[str, str] | None = None,
 # driven by a seeded ``random.Random``). One generator serves both, so the bench explores the
 # same space as CI, only further. Each input class is one a red-team pass found a defect in.
 
-SEED_ENTRY = (ROOTS / "hostile-valid" / "black-holes" / "schwarzschild.yaml").read_text(
+SEED_ENTRY = (ROOTS / "hostile-valid" / "isolated-objects" / "schwarzschild.yaml").read_text(
     encoding="utf-8")
-SEED_FILE = "catalog/black-holes/schwarzschild.yaml"
+SEED_FILE = "catalog/isolated-objects/schwarzschild.yaml"
 SEED_LINE_ELEMENT = ("-(1 - 2*M/r)*dt**2 + dr**2/(1 - 2*M/r) + "
                      "r**2*(dtheta**2 + sin(theta)**2*dphi**2)")
 EXTRA_NAMES = ("a", "b", "c", "d", "e", "f", "g", "h", "k", "q", "s", "w")
@@ -174,7 +174,7 @@ def hostile_catalog(rng, project: Path) -> Path:
     """A catalog folder under ``project``: hostile or valid vocabularies, one to four entries
     (hostile or not), links to files and folders inside and outside, stray files. Returns it."""
     catalog = project / "catalog"
-    family = catalog / "black-holes"
+    family = catalog / "isolated-objects"
     family.mkdir(parents=True)
     for name in ("tags.yaml", "families.yaml"):
         kind = "valid" if rng.random() < 0.5 else rng.choice(VOCABULARY_CHOICES)

@@ -98,7 +98,7 @@ def test_every_shipped_schwarzschild_chart_reaches_every_other() -> None:
     charts = ["schwarzschild", "schwarzschild-ingoing-eddington-finkelstein",
               "schwarzschild-isotropic", "schwarzschild-kruskal-szekeres",
               "schwarzschild-painleve-gullstrand"]
-    files = [catalog / "black-holes" / f"{name}.yaml" for name in charts]
+    files = [catalog / "isolated-objects" / f"{name}.yaml" for name in charts]
     reports = check_files(files, catalog, project, RunOptions(jobs=1, cache_dir=None))
     assert all(r.ok for r in reports), [d.format_text() for r in reports for d in r.diagnostics]
     # checked together, the five are not warned as duplicates of one another: their related

@@ -80,7 +80,8 @@ def workdir(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
     return tmp_path
 
 
-def write(workdir: Path, text: str, family: str = "riemannian", stem: str = "lighthouse-dome"
+def write(workdir: Path, text: str, family: str = "euclidean-and-initial-data",
+          stem: str = "lighthouse-dome"
           ) -> str:
     path = workdir / "catalog" / family / f"{stem}.yaml"
     path.parent.mkdir(parents=True, exist_ok=True)
@@ -127,7 +128,7 @@ def test_the_walkthrough_of_developers_md_runs_end_to_end(workdir: Path, capsys)
     scaffold, show, final = guide_commands()
     assert scaffold[0] == "new" and "--show-computed" in show and final[0] == "check"
     assert cli.main(scaffold) == 0
-    path = workdir / "catalog" / "riemannian" / "lighthouse-dome.yaml"
+    path = workdir / "catalog" / "euclidean-and-initial-data" / "lighthouse-dome.yaml"
     assert path.is_file()
 
     # Step 2: computed values are shown even though TODO markers are left.
@@ -185,12 +186,12 @@ def fill_in(text: str, claims: str) -> str:
 
 def test_1_computed_values_come_beside_the_todo_errors(workdir: Path, capsys) -> None:
     """`check FILE --show-computed` after `new` printed `computed: null`."""
-    assert cli.main(["new", "--family", "riemannian", "--id", "lighthouse-dome",
+    assert cli.main(["new", "--family", "euclidean-and-initial-data", "--id", "lighthouse-dome",
                      "--coordinates", "theta,phi", "--signature", "++",
                      "--parameters", "rho:positive:radius",
                      "--metric", "rho**2*(dtheta**2 + sin(theta)**2*dphi**2)"]) == 0
-    code, out, err = check(["catalog/riemannian/lighthouse-dome.yaml", "--show-computed"],
-                           capsys)
+    code, out, err = check(["catalog/euclidean-and-initial-data/lighthouse-dome.yaml",
+                            "--show-computed"], capsys)
     shown = yaml.safe_load(out.split("\n", 1)[1])
     assert shown["computed"] is not None
     assert shown["computed"]["ricci_scalar"] == "2/rho**2"
@@ -221,7 +222,7 @@ def test_3_values_beginning_with_a_dash_are_values(argv: list[str]) -> None:
 
 
 def test_3_the_help_example_of_new_works(workdir: Path, capsys) -> None:
-    code = cli.main(["new", "--family", "black-holes", "--id", "lamp-post",
+    code = cli.main(["new", "--family", "isolated-objects", "--id", "lamp-post",
                      "--coordinates", "t,x", "--signature", "-+", "--metric", "-dt**2+dx**2",
                      "--stdout"])
     out = capsys.readouterr().out
@@ -292,7 +293,7 @@ def test_5_the_signature_is_compared_per_coordinate(workdir: Path, capsys, decla
                                                     ) -> None:
     """Minkowski space is −+++ (common practice): "+---" gave a self-contradicting message
     and "+-++" passed silently."""
-    file = write(workdir, LAMP.replace("SIGN", declared), "maximally-symmetric", "lamp-room")
+    file = write(workdir, LAMP.replace("SIGN", declared), "backgrounds", "lamp-room")
     code, _, err = check([file], capsys)
     assert code == 1 and "[metric.signature]" in err
     message = next(line for line in err.splitlines() if "[metric.signature]" in line)
@@ -301,7 +302,7 @@ def test_5_the_signature_is_compared_per_coordinate(workdir: Path, capsys, decla
 
 
 def test_5_the_right_signature_passes(workdir: Path, capsys) -> None:
-    file = write(workdir, LAMP.replace("SIGN", "-+++"), "maximally-symmetric", "lamp-room")
+    file = write(workdir, LAMP.replace("SIGN", "-+++"), "backgrounds", "lamp-room")
     code, _, err = check([file], capsys)
     assert code == 0, err
 
@@ -324,12 +325,13 @@ def test_6_a_claim_makes_it_verified(workdir: Path, capsys) -> None:
 
 
 def test_6_the_scaffold_note_is_a_todo_and_not_in_the_hash(workdir: Path, capsys) -> None:
-    cli.main(["new", "--family", "riemannian", "--id", "lighthouse-dome", "--coordinates",
-              "theta,phi", "--metric", "rho**2*(dtheta**2 + sin(theta)**2*dphi**2)",
+    cli.main(["new", "--family", "euclidean-and-initial-data", "--id", "lighthouse-dome",
+              "--coordinates", "theta,phi",
+              "--metric", "rho**2*(dtheta**2 + sin(theta)**2*dphi**2)",
               "--parameters", "rho:positive:radius", "--stdout"])
     text = capsys.readouterr().out
     assert f"# {SCAFFOLD_NOTE_MARKER}" in text
-    path = Path("catalog/riemannian/lighthouse-dome.yaml")
+    path = Path("catalog/euclidean-and-initial-data/lighthouse-dome.yaml")
     loaded = load_text(text, str(path), path, Vocabulary())
     assert any(d.code == "entry.todo" and d.line == 2 for d in loaded.diagnostics)
     without = "\n".join(line for line in text.splitlines()[5:]) + "\n"
@@ -375,7 +377,7 @@ curation:
 def test_7_a_wrong_density_is_reported_at_its_line_with_the_expected_value(workdir: Path,
                                                                           capsys) -> None:
     text = DUST.replace("DENSITY", "1/(8*pi*t**2)")
-    file = write(workdir, text, "cosmology", "harbour-dust")
+    file = write(workdir, text, "universes", "harbour-dust")
     code, _, err = check([file], capsys)
     density_line = text.splitlines().index("  density: 1/(8*pi*t**2)") + 1
     assert code == 1
@@ -386,7 +388,7 @@ def test_7_a_wrong_density_is_reported_at_its_line_with_the_expected_value(workd
 
 def test_7_the_right_density_passes_and_show_computed_uses_entry_keys(workdir: Path,
                                                                        capsys) -> None:
-    file = write(workdir, DUST.replace("DENSITY", "1/(6*pi*t**2)"), "cosmology",
+    file = write(workdir, DUST.replace("DENSITY", "1/(6*pi*t**2)"), "universes",
                  "harbour-dust")
     code, out, err = check([file, "--show-computed"], capsys)
     assert code == 0, err
@@ -503,11 +505,11 @@ def test_10_list_with_filters(workdir: Path, capsys) -> None:
     write(workdir, dome("").replace("lighthouse-dome", "bare-dome"), stem="bare-dome")
     assert cli.main(["list", "--no-cache", "--jobs", "1"]) == 0
     rows = [line.split() for line in capsys.readouterr().out.splitlines()]
-    assert [r[:3] for r in rows] == [["bare-dome", "riemannian", "nothing-claimed"],
-                                     ["lighthouse-dome", "riemannian", "verified"]]
+    assert [r[:3] for r in rows] == [["bare-dome", "euclidean-and-initial-data", "nothing-claimed"],
+                                     ["lighthouse-dome", "euclidean-and-initial-data", "verified"]]
     assert cli.main(["list", "--no-cache", "--status", "verified"]) == 0
     assert capsys.readouterr().out.split()[0] == "lighthouse-dome"
-    assert cli.main(["list", "--no-cache", "--family", "cosmology"]) == 0
+    assert cli.main(["list", "--no-cache", "--family", "universes"]) == 0
     assert capsys.readouterr().out.strip() == "no entries match"
 
 
@@ -569,7 +571,7 @@ def test_12_the_old_energy_condition_key_is_read_with_a_hint(workdir: Path, caps
     practice). The old `null:` key still works for one release, with a warning."""
     text = LAMP.replace("SIGN", "-+++").replace(
         "  ricci_scalar: 0\n", "  ricci_scalar: 0\n  energy_conditions: {null: holds}\n")
-    file = write(workdir, text, "maximally-symmetric", "lamp-room")
+    file = write(workdir, text, "backgrounds", "lamp-room")
     _, _, err = check([file], capsys)
     assert "[entry.renamed-key]" in err and "null_condition" in err
     line = next(x for x in err.splitlines() if "[entry.renamed-key]" in x)
@@ -580,10 +582,10 @@ def test_12_the_old_energy_condition_key_is_read_with_a_hint(workdir: Path, caps
 
 def test_12_the_new_key_is_verified_like_the_old_one(workdir: Path, capsys) -> None:
     """Mutation: a wrong state under the new key is still compared (and fails)."""
-    rn = (ROOT / "catalog/black-holes/reissner-nordstrom.yaml").read_text()
+    rn = (ROOT / "catalog/isolated-objects/reissner-nordstrom.yaml").read_text()
     assert "null_condition: holds" in rn
     broken = rn.replace("null_condition: holds", "null_condition: violated", 1)
-    file = write(workdir, broken, "black-holes", "reissner-nordstrom")
+    file = write(workdir, broken, "isolated-objects", "reissner-nordstrom")
     code, _, err = check([file], capsys)
     assert code == 1 and "[claim.energy-condition]" in err
 

@@ -30,10 +30,10 @@ from generator.run.limits import run_limited
 from tests._hostile import make_catalog
 
 PROJECT = Path(__file__).resolve().parents[1]
-SEED_FILE = PROJECT / "tests/roots/hostile-valid/black-holes/schwarzschild.yaml"
+SEED_FILE = PROJECT / "tests/roots/hostile-valid/isolated-objects/schwarzschild.yaml"
 SEED = SEED_FILE.read_text(encoding="utf-8")
 SEED_LINES = SEED.splitlines(keepends=True)
-FILE = "catalog/black-holes/schwarzschild.yaml"
+FILE = "catalog/isolated-objects/schwarzschild.yaml"
 VOCABULARY = vocabulary(PROJECT / "catalog")
 SECONDS_PER_INPUT = 20.0
 MEMORY_PER_INPUT = 1 << 30
@@ -173,7 +173,7 @@ def test_random_bytes_in_a_file_are_loaded_or_explained(
     tmp_path: Path, noise: bytes, at: int
 ) -> None:
     raw = SEED.encode()[:at] + noise + SEED.encode()[at:]
-    folder = tmp_path / "black-holes"
+    folder = tmp_path / "isolated-objects"
     folder.mkdir(exist_ok=True)
     path = folder / "schwarzschild.yaml"
     path.write_bytes(raw)
@@ -485,7 +485,7 @@ def test_generated_expansion_entries_end_in_a_report(tmp_path_factory, rng) -> N
 
     project = tmp_path_factory.mktemp("expansion")
     catalog = make_catalog(project)
-    path = catalog / "black-holes" / "schwarzschild.yaml"
+    path = catalog / "isolated-objects" / "schwarzschild.yaml"
     path.parent.mkdir(exist_ok=True)
     path.write_text(_with_expansion(rng, SEED_ENTRY), encoding="utf-8")
     [report] = check_files([path], catalog, project, RunOptions(seconds_per_entry=4.0))

@@ -28,9 +28,9 @@ from generator.run.limits import run_limited
 from tests._hostile import PROJECT, ROOTS, almanac, make_catalog
 
 VOCABULARY = vocabulary(PROJECT / "catalog")
-VALID = (ROOTS / "hostile-valid/black-holes/schwarzschild.yaml").read_text(encoding="utf-8")
-HOSTILE = ROOTS / "hostile-content/black-holes/hostile-content.yaml"
-FILE = "catalog/black-holes/schwarzschild.yaml"
+VALID = (ROOTS / "hostile-valid/isolated-objects/schwarzschild.yaml").read_text(encoding="utf-8")
+HOSTILE = ROOTS / "hostile-content/isolated-objects/hostile-content.yaml"
+FILE = "catalog/isolated-objects/schwarzschild.yaml"
 
 
 def load(source: str) -> LoadResult:
@@ -148,7 +148,7 @@ def test_a_control_byte_after_accented_letters_is_placed_by_character() -> None:
 
 
 def test_a_huge_file_is_refused_before_parsing(tmp_path: Path) -> None:
-    path = tmp_path / "black-holes" / "schwarzschild.yaml"
+    path = tmp_path / "isolated-objects" / "schwarzschild.yaml"
     path.parent.mkdir()
     path.write_text(VALID.replace("notes: |\n", "notes: |\n" + "  padding text\n" * 40_000))
     result = load_entry(path, FILE, VOCABULARY)
@@ -163,7 +163,7 @@ def test_a_gigantic_math_string_is_refused_with_its_position() -> None:
 
 
 def test_bytes_that_are_not_utf8_are_refused(tmp_path: Path) -> None:
-    path = tmp_path / "black-holes" / "schwarzschild.yaml"
+    path = tmp_path / "isolated-objects" / "schwarzschild.yaml"
     path.parent.mkdir()
     path.write_bytes(VALID.encode().replace(b"Test Curator", b"Test \xff\xfe Curator"))
     result = load_entry(path, FILE, VOCABULARY)
@@ -178,7 +178,7 @@ def test_hostile_tags_are_refused_by_the_vocabulary() -> None:
 
 def test_hostile_text_is_loaded_verbatim_for_the_renderer_to_escape() -> None:
     """The loader neither runs nor alters text: escaping is the renderer's job (tested below)."""
-    result = load_entry(HOSTILE, "catalog/black-holes/hostile-content.yaml", VOCABULARY)
+    result = load_entry(HOSTILE, "catalog/isolated-objects/hostile-content.yaml", VOCABULARY)
     assert result.ok, [d.format_text() for d in result.diagnostics]
     entry = result.entry
     assert entry is not None
@@ -514,7 +514,7 @@ def test_vocabulary_files_are_capped_in_size_and_encoding(tmp_path, name) -> Non
 def test_family_records_are_checked_field_by_field(tmp_path) -> None:
     found = vocabulary_problems_of(tmp_path, "families.yaml",
                                    "waves:\n  title: Waves\n  about: [not, text]\n"
-                                   "stars: just a line\nblack-holes:\n  script: x\n")
+                                   "stars: just a line\nisolated-objects:\n  script: x\n")
     assert found == [("vocabulary.type", 3, 10), ("vocabulary.type", 4, 8),
                      ("vocabulary.key", 6, 3)]
 
@@ -544,25 +544,25 @@ def test_a_bad_tags_file_is_reported_at_its_own_line_not_at_an_entry(
     with (catalog / "tags.yaml").open("a", encoding="utf-8") as handle:
         handle.write("7: a number\n")
     lines = (catalog / "tags.yaml").read_text().count("\n")
-    entry = catalog / "black-holes" / "schwarzschild.yaml"
+    entry = catalog / "isolated-objects" / "schwarzschild.yaml"
     reports = check_files([entry], catalog, tmp_path, RunOptions(jobs=1))
     by_file = {r.file: r for r in reports}
     [problem] = by_file["catalog/tags.yaml"].diagnostics
     assert (problem.code, problem.line, problem.column) == ("vocabulary.name", lines, 1)
-    assert by_file["catalog/black-holes/schwarzschild.yaml"].ok
+    assert by_file["catalog/isolated-objects/schwarzschild.yaml"].ok
 
 
 # -- symbolic links under catalog/
 
 
 @pytest.mark.parametrize("link, target", [
-    ("black-holes/evil.yaml", "/etc/passwd"),  # the reproduction
-    ("black-holes/twin.yaml", "schwarzschild.yaml"),  # a link to another entry
-    ("black-holes/gone.yaml", "/nonexistent/file.yaml"),  # dangling
+    ("isolated-objects/evil.yaml", "/etc/passwd"),  # the reproduction
+    ("isolated-objects/twin.yaml", "schwarzschild.yaml"),  # a link to another entry
+    ("isolated-objects/gone.yaml", "/nonexistent/file.yaml"),  # dangling
     ("linked-family", "/etc"),  # a linked folder, once skipped without a word
-    ("black-holes/sub", "."),  # a loop
-    ("black-holes/readme.txt", "/etc/hostname"),  # not even named like an entry
-    ("black-holes/zero.yaml", "/dev/zero"),  # endless: hashing it once never ended
+    ("isolated-objects/sub", "."),  # a loop
+    ("isolated-objects/readme.txt", "/etc/hostname"),  # not even named like an entry
+    ("isolated-objects/zero.yaml", "/dev/zero"),  # endless: hashing it once never ended
 ])
 def test_links_in_the_catalog_are_refused_at_their_place(tmp_path, monkeypatch, link,
                                                          target) -> None:
@@ -577,7 +577,7 @@ def test_links_in_the_catalog_are_refused_at_their_place(tmp_path, monkeypatch, 
     by_file = {r.file: r for r in reports}
     refused = by_file[f"catalog/{link}"]
     assert [(d.code, d.line, d.column) for d in refused.diagnostics] == [("file.link", 1, 1)]
-    assert by_file["catalog/black-holes/schwarzschild.yaml"].ok
+    assert by_file["catalog/isolated-objects/schwarzschild.yaml"].ok
 
 
 @pytest.mark.parametrize("name", ["tags.yaml", "families.yaml"])
@@ -593,15 +593,15 @@ def test_a_linked_vocabulary_file_is_refused(tmp_path: Path, name: str) -> None:
 
 
 def test_the_loader_refuses_a_link_even_when_named_directly(tmp_path: Path) -> None:
-    path = tmp_path / "black-holes" / "schwarzschild.yaml"
+    path = tmp_path / "isolated-objects" / "schwarzschild.yaml"
     path.parent.mkdir()
-    os.symlink(ROOTS / "hostile-valid/black-holes/schwarzschild.yaml", path)
+    os.symlink(ROOTS / "hostile-valid/isolated-objects/schwarzschild.yaml", path)
     result = load_entry(path, FILE, VOCABULARY)
     assert [d.code for d in result.diagnostics] == ["file.link"]
 
 
 def test_a_fifo_in_the_catalog_does_not_hang_loading(tmp_path: Path) -> None:
-    path = tmp_path / "black-holes" / "schwarzschild.yaml"
+    path = tmp_path / "isolated-objects" / "schwarzschild.yaml"
     path.parent.mkdir()
     os.mkfifo(path)
     result = run_limited(load_entry, path, FILE, VOCABULARY, seconds=30, memory_bytes=0)
@@ -611,7 +611,7 @@ def test_a_fifo_in_the_catalog_does_not_hang_loading(tmp_path: Path) -> None:
 # -- the output folder of a build
 
 
-@pytest.mark.parametrize("out", ["catalog", ".", "..", "catalog/black-holes", "catalog/site",
+@pytest.mark.parametrize("out", ["catalog", ".", "..", "catalog/isolated-objects", "catalog/site",
                                  "not-ours", "a-file"])
 def test_build_refuses_an_output_folder_it_would_destroy(tmp_path, monkeypatch, out) -> None:
     """`build --out catalog` deleted every entry, `--out .` the whole checkout with .git."""
@@ -701,13 +701,13 @@ def test_no_diagnostic_output_can_forge_a_workflow_command(payload: str, field: 
 def test_a_hostile_key_in_an_entry_prints_no_forged_line(tmp_path: Path) -> None:
     """End to end, as CI runs it: every line starting with :: is one of our diagnostics."""
     catalog = make_catalog(tmp_path, "hostile-valid")
-    entry = catalog / "black-holes" / "schwarzschild.yaml"
+    entry = catalog / "isolated-objects" / "schwarzschild.yaml"
     entry.write_text(entry.read_text() + '"x\\n::error file=README.md,line=1::forged": 1\n')
     for fmt in ("text", "github"):
         done = almanac(tmp_path, "check", "catalog", "--format", fmt, "--no-cache",
                        "--jobs", "1", timeout=600)
         lines = (done.stdout + done.stderr).splitlines()
         commands = [line for line in lines if line.startswith("::")]
-        assert all(line.startswith("::error file=catalog/black-holes/") for line in commands)
+        assert all(line.startswith("::error file=catalog/isolated-objects/") for line in commands)
         assert len(commands) == (1 if fmt == "github" else 0)
         assert done.returncode == 1

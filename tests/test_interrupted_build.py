@@ -79,7 +79,7 @@ def built(tmp_path_factory: pytest.TempPathFactory) -> tuple[Path, dict[str, str
 
 
 def _change_the_catalog(project: Path, marker: str) -> None:
-    entry = project / "catalog/black-holes/schwarzschild.yaml"
+    entry = project / "catalog/isolated-objects/schwarzschild.yaml"
     text = entry.read_text(encoding="utf-8")
     entry.write_text(re.sub(r"Test fixture[^:]*:", f"Test fixture ({marker}):", text, count=1),
                      encoding="utf-8")
@@ -224,7 +224,7 @@ class _Planted:
 
 
 def _report() -> EntryReport:
-    return EntryReport(None, "catalog/black-holes/x.yaml", None, None, None, (), ())
+    return EntryReport(None, "catalog/isolated-objects/x.yaml", None, None, None, (), ())
 
 
 @pytest.fixture

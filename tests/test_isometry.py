@@ -26,35 +26,35 @@ CATALOG = Path(__file__).resolve().parents[1] / "catalog"
 
 DIMENSIONS = [
     # (entry, isometry dimension, orbit dimension, source)
-    ("maximally-symmetric/minkowski-cartesian", 10, 4, "Poincaré group; common practice"),
-    ("maximally-symmetric/minkowski-spherical", 10, 4, "Poincaré group; common practice"),
-    ("maximally-symmetric/de-sitter-static", 10, 4, "Hawking & Ellis 1973 §5.2, from memory"),
-    ("maximally-symmetric/anti-de-sitter-global", 10, 4, "Hawking & Ellis 1973 §5.2, from "
+    ("backgrounds/minkowski-cartesian", 10, 4, "Poincaré group; common practice"),
+    ("backgrounds/minkowski-spherical", 10, 4, "Poincaré group; common practice"),
+    ("backgrounds/de-sitter-static", 10, 4, "Hawking & Ellis 1973 §5.2, from memory"),
+    ("backgrounds/anti-de-sitter-global", 10, 4, "Hawking & Ellis 1973 §5.2, from "
      "memory"),
-    ("maximally-symmetric/einstein-static-universe", 7, 4, "R × SO(4); Hawking & Ellis 1973 "
+    ("universes/einstein-static-universe", 7, 4, "R × SO(4); Hawking & Ellis 1973 "
      "§5.3, from memory"),
-    ("cosmology/flrw-flat", 6, 3, "homogeneous and isotropic slices; common practice"),
-    ("cosmology/flrw-curved", 6, 3, "homogeneous and isotropic slices; common practice"),
-    ("black-holes/schwarzschild", 4, 3, "static, spherically symmetric; common practice"),
-    ("black-holes/reissner-nordstrom", 4, 3, "static, spherically symmetric; common practice"),
-    ("black-holes/kerr-boyer-lindquist", 2, 2, "stationary and axisymmetric only; Stephani et "
+    ("universes/flrw-flat", 6, 3, "homogeneous and isotropic slices; common practice"),
+    ("universes/flrw-curved", 6, 3, "homogeneous and isotropic slices; common practice"),
+    ("isolated-objects/schwarzschild", 4, 3, "static, spherically symmetric; common practice"),
+    ("isolated-objects/reissner-nordstrom", 4, 3, "static, spherically symmetric; common practice"),
+    ("isolated-objects/kerr-boyer-lindquist", 2, 2, "stationary and axisymmetric only; Stephani et "
      "al. 2003, from memory"),
-    ("cosmology/godel", 5, 4, "Gödel 1949, from memory: a 5-dimensional group, homogeneous"),
-    ("black-holes/taub-nut", 4, 3, "SU(2) × R acting on 3-dimensional orbits; Misner 1963, "
+    ("universes/godel", 5, 4, "Gödel 1949, from memory: a 5-dimensional group, homogeneous"),
+    ("isolated-objects/taub-nut", 4, 3, "SU(2) × R acting on 3-dimensional orbits; Misner 1963, "
      "from memory"),
-    ("cosmology/kasner", 3, 3, "Bianchi I: three spatial translations for generic exponents; "
+    ("universes/kasner", 3, 3, "Bianchi I: three spatial translations for generic exponents; "
      "common practice"),
-    ("waves/plane-wave", 5, 3, "the generic plane wave has a 5-dimensional group "
+    ("radiation/plane-wave", 5, 3, "the generic plane wave has a 5-dimensional group "
      "(Heisenberg); Ehlers & Kundt 1962, from memory"),
-    ("waves/pp-wave-general", 1, 1, "only ∂_v for a generic profile; Ehlers & Kundt 1962, "
+    ("radiation/pp-wave-general", 1, 1, "only ∂_v for a generic profile; Ehlers & Kundt 1962, "
      "from memory"),
-    ("electromagnetic-universes/bertotti-robinson", 6, 4, "AdS2 × S2: 3 + 3; Bertotti 1959, "
+    ("throats-and-products/bertotti-robinson", 6, 4, "AdS2 × S2: 3 + 3; Bertotti 1959, "
      "Robinson 1959, from memory"),
-    ("riemannian/round-3-sphere", 6, 3, "SO(4); common practice"),
-    ("riemannian/round-2-sphere", 3, 2, "SO(3); common practice"),
-    ("riemannian/eguchi-hanson", 4, 3, "U(2) acting on 3-dimensional orbits; Eguchi & Hanson "
-     "1978, from memory"),
-    ("black-holes/btz", 6, 3, "locally AdS3 (Bañados, Teitelboim & Zanelli 1992, from "
+    ("euclidean-and-initial-data/round-3-sphere", 6, 3, "SO(4); common practice"),
+    ("euclidean-and-initial-data/round-2-sphere", 3, 2, "SO(3); common practice"),
+    ("euclidean-and-initial-data/eguchi-hanson", 4, 3, "U(2) acting on 3-dimensional orbits; "
+     "Eguchi & Hanson 1978, from memory"),
+    ("other-dimensions/btz", 6, 3, "locally AdS3 (Bañados, Teitelboim & Zanelli 1992, from "
      "memory): 6 locally, 2 after the identification"),
 ]
 
@@ -76,7 +76,7 @@ def test_isometry_dimension_of_textbook_spacetimes(name: str, dimension: int, or
 @pytest.mark.slow
 def test_tangherlini_in_five_dimensions_has_seven() -> None:
     # R × SO(4) (Tangherlini 1963, from memory): 1 + 6 on 4-dimensional orbits.
-    result = computed("black-holes/schwarzschild-tangherlini-5d")
+    result = computed("other-dimensions/schwarzschild-tangherlini-5d")
     assert (result.dimension, result.orbit_dimension) == (7, 4)
 
 
@@ -147,7 +147,7 @@ def test_dependent_listed_vectors_count_once() -> None:
 
 
 def test_sphere_rotations_are_recognised_as_so3() -> None:
-    spacetime = load_entry(CATALOG / "riemannian/round-2-sphere.yaml").spacetime
+    spacetime = load_entry(CATALOG / "euclidean-and-initial-data/round-2-sphere.yaml").spacetime
     theta, phi = spacetime.coordinates
     basis = [[0, 1], [sympy.sin(phi), sympy.cos(phi) * sympy.cos(theta) / sympy.sin(theta)],
              [sympy.cos(phi), -sympy.sin(phi) * sympy.cos(theta) / sympy.sin(theta)]]
@@ -171,8 +171,8 @@ def test_complete_bases_of_the_curated_three_spheres() -> None:
     # so(4) ⊕ ℝ, dimensions 6 and 7 (common practice); the entries list complete bases.
     from generator.physics.symmetry_stage import listed_vectors
 
-    for name, expected in (("riemannian/round-3-sphere", "so(4)"),
-                           ("maximally-symmetric/einstein-static-universe", "so(4) ⊕ ℝ")):
+    for name, expected in (("euclidean-and-initial-data/round-3-sphere", "so(4)"),
+                           ("universes/einstein-static-universe", "so(4) ⊕ ℝ")):
         loaded = load_entry(CATALOG / f"{name}.yaml")
         names = [str(x) for x in loaded.spacetime.coordinates]
         basis = [xi for _, xi in listed_vectors(loaded.entry, loaded.spacetime, names)]

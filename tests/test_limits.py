@@ -289,12 +289,12 @@ def test_a_call_stuck_in_c_code_ends_the_worker_instead_of_hanging() -> None:
 
 
 def test_budget_failure_report_is_a_positioned_uncached_failure() -> None:
-    load = LoadResult("catalog/black-holes/x.yaml", None, None, ())
+    load = LoadResult("catalog/isolated-objects/x.yaml", None, None, ())
     report = budget_failure_report(load, BudgetExceeded("Riemann tensor", "time limit of 3 s"))
     assert not report.ok
     (diagnostic,) = report.diagnostics
     assert diagnostic.format_text().splitlines()[0] == (
-        "catalog/black-holes/x.yaml:1:1: error: computation ran out of its budget in stage "
+        "catalog/isolated-objects/x.yaml:1:1: error: computation ran out of its budget in stage "
         "'Riemann tensor' (time limit of 3 s) [budget.exceeded]")
     assert diagnostic.code == BUDGET_CODE == "budget.exceeded"  # pipeline never caches these
 
@@ -336,7 +336,7 @@ def test_a_pathological_entry_fails_alone_naming_its_stage(tmp_path: Path) -> No
     # engine is inside a library call that only the alarm can interrupt
     assert re.search(r"time limit of (3|8\.75) s", budget["message"]), budget["message"]
     assert (budget["file"], budget["line"]) == (
-        "catalog/black-holes/pathological-expansion.yaml", 15)
+        "catalog/isolated-objects/pathological-expansion.yaml", 15)
 
 
 # Stage names of the engine's own cooperative budget (generator/geometry/curvature.py) and of
@@ -383,9 +383,9 @@ def test_the_proposed_wiring_turns_a_pathological_entry_into_a_report() -> None:
     from generator.entry.loader import load_entry
 
     root = Path(__file__).resolve().parent / "roots"
-    path = root / "hostile-pathological/black-holes/pathological-expansion.yaml"
+    path = root / "hostile-pathological/isolated-objects/pathological-expansion.yaml"
     project = Path(__file__).resolve().parents[1]
-    load = load_entry(path, "catalog/black-holes/pathological-expansion.yaml",
+    load = load_entry(path, "catalog/isolated-objects/pathological-expansion.yaml",
                       vocabulary(project / "catalog"))
     assert load.ok
     report = _proposed_run_task_body(load, {}, 3.0, 2 << 30)
@@ -407,15 +407,15 @@ def _backstop_tasks(tmp_path: Path, names: list[str]) -> list:
 
     from generator.run.tasks import Task
 
-    source = (ROOTS / "hostile-valid/black-holes/schwarzschild.yaml").read_text()
+    source = (ROOTS / "hostile-valid/isolated-objects/schwarzschild.yaml").read_text()
     stacks = tmp_path / "stacks"
     stacks.mkdir()
     tasks = []
     for i, name in enumerate(names):
-        path = tmp_path / "catalog" / "black-holes" / f"{name}.yaml"
+        path = tmp_path / "catalog" / "isolated-objects" / f"{name}.yaml"
         path.parent.mkdir(parents=True, exist_ok=True)
         path.write_text(source)
-        task = Task(path, f"catalog/black-holes/{name}.yaml", None, tmp_path, (), 5.0)
+        task = Task(path, f"catalog/isolated-objects/{name}.yaml", None, tmp_path, (), 5.0)
         tasks.append(replace(task, backstop_file=stacks / f"{i}.stack"))
     return tasks
 

@@ -19,10 +19,10 @@ import pytest
 PROJECT = Path(__file__).resolve().parents[1]
 CATALOG = PROJECT / "catalog"
 SAMPLE = (
-    "black-holes/schwarzschild.yaml",
-    "black-holes/schwarzschild-isotropic.yaml",
-    "black-holes/reissner-nordstrom.yaml",
-    "cosmology/einstein-de-sitter.yaml",
+    "isolated-objects/schwarzschild.yaml",
+    "isolated-objects/schwarzschild-isotropic.yaml",
+    "isolated-objects/reissner-nordstrom.yaml",
+    "universes/einstein-de-sitter.yaml",
 )
 
 
@@ -42,7 +42,7 @@ bench = _bench()
 def schwarzschild_data() -> dict:
     import yaml
 
-    return yaml.safe_load((PROJECT / "tests/roots/hostile-valid/black-holes/"
+    return yaml.safe_load((PROJECT / "tests/roots/hostile-valid/isolated-objects/"
                            "schwarzschild.yaml").read_text(encoding="utf-8"))
 
 

@@ -21,14 +21,15 @@ import pytest
 from generator.cli import main
 
 ROOT = Path(__file__).resolve().parents[1]
-BARDEEN = (ROOT / "catalog" / "black-holes" / "bardeen.yaml").read_text(encoding="utf-8")
-RN = (ROOT / "catalog" / "black-holes" / "reissner-nordstrom.yaml").read_text(encoding="utf-8")
+FAMILY = ROOT / "catalog" / "isolated-objects"
+BARDEEN = (FAMILY / "bardeen.yaml").read_text(encoding="utf-8")
+RN = (FAMILY / "reissner-nordstrom.yaml").read_text(encoding="utf-8")
 
 
 @pytest.fixture
 def catalog(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
     folder = tmp_path / "catalog"
-    (folder / "black-holes").mkdir(parents=True)
+    (folder / "isolated-objects").mkdir(parents=True)
     for name in ("tags.yaml", "families.yaml"):
         shutil.copyfile(ROOT / "catalog" / name, folder / name)
     monkeypatch.chdir(tmp_path)
@@ -37,7 +38,7 @@ def catalog(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
 
 def check(catalog: Path, entry_id: str, text: str,
           capsys: pytest.CaptureFixture[str]) -> tuple[int, str]:
-    path = catalog / "black-holes" / f"{entry_id}.yaml"
+    path = catalog / "isolated-objects" / f"{entry_id}.yaml"
     path.write_text(text, encoding="utf-8")
     status = main(["check", str(path.relative_to(catalog.parent)), "--no-cache", "--jobs", "1"])
     return status, capsys.readouterr().err

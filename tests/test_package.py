@@ -80,11 +80,12 @@ def group_catalog(folder: Path) -> Path:
     """A research group's catalog outside the repository: the shipped Riemannian entries
     (round spheres, hyperbolic spaces, Eguchi–Hanson; published solutions)."""
     catalog = folder / "catalog"
-    (catalog / "riemannian").mkdir(parents=True)
+    (catalog / "euclidean-and-initial-data").mkdir(parents=True)
     for name in ("tags.yaml", "families.yaml"):
         shutil.copy(ROOT / "catalog" / name, catalog / name)
     for entry in ("round-2-sphere.yaml", "hyperbolic-plane.yaml"):
-        shutil.copy(ROOT / "catalog" / "riemannian" / entry, catalog / "riemannian" / entry)
+        family = "euclidean-and-initial-data"
+        shutil.copy(ROOT / "catalog" / family / entry, catalog / family / entry)
     return catalog
 
 
@@ -116,7 +117,7 @@ def test_the_shared_hook_checks_a_group_catalog_with_the_wheel(installed: Path,
                                                                tmp_path: Path) -> None:
     group_catalog(tmp_path)
     (hook,) = HOOKS
-    entry = "catalog/riemannian/round-2-sphere.yaml"
+    entry = "catalog/euclidean-and-initial-data/round-2-sphere.yaml"
     assert re.search(hook["files"], entry)
     done = run_installed(installed, [*shlex.split(hook["entry"]), entry, "--no-progress",
                                      "--jobs", "1"], tmp_path)

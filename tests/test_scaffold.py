@@ -24,7 +24,7 @@ ROOT = Path(__file__).resolve().parent.parent
 SCHWARZSCHILD = "-(1 - 2*M/r)*dt**2 + dr**2/(1 - 2*M/r) + r**2*(dtheta**2 + sin(theta)**2*dphi**2)"
 FLAGS = [
     "--id", "lantern-hole",
-    "--family", "black-holes",
+    "--family", "isolated-objects",
     "--title", "Lantern hole",
     "--coordinates", "t, r, theta, phi",
     "--parameters", "M:positive:mass",
@@ -72,7 +72,7 @@ def errors(path: Path) -> list[str]:
 
 def test_scaffold_is_written_in_its_family_folder_and_loads(catalog: Path) -> None:
     code, output = run(FLAGS, catalog)
-    path = catalog / "black-holes" / "lantern-hole.yaml"
+    path = catalog / "isolated-objects" / "lantern-hole.yaml"
     assert code == 0, output
     assert output.startswith(f"wrote {path} (")
     result = load_entry(path)
@@ -90,7 +90,7 @@ def test_scaffold_is_written_in_its_family_folder_and_loads(catalog: Path) -> No
 
 def test_scaffold_starts_with_the_editor_schema_line_and_validates(catalog: Path) -> None:
     run(FLAGS, catalog)
-    text = (catalog / "black-holes" / "lantern-hole.yaml").read_text()
+    text = (catalog / "isolated-objects" / "lantern-hole.yaml").read_text()
     assert text.splitlines()[0] == "# yaml-language-server: $schema=../../schema/entry.schema.json"
     schema = json.loads((ROOT / SCHEMA_PATH).read_text())
     jsonschema.validate(editor_view(text), schema)
@@ -98,7 +98,7 @@ def test_scaffold_starts_with_the_editor_schema_line_and_validates(catalog: Path
 
 def test_every_placeholder_is_a_todo_error_at_its_position(catalog: Path) -> None:
     run(FLAGS, catalog)
-    path = catalog / "black-holes" / "lantern-hole.yaml"
+    path = catalog / "isolated-objects" / "lantern-hole.yaml"
     text = path.read_text()
     todos = find_todos(str(path), text)
     lines = text.splitlines()
@@ -113,7 +113,7 @@ def test_every_placeholder_is_a_todo_error_at_its_position(catalog: Path) -> Non
 
 def test_filling_in_the_placeholders_clears_every_todo(catalog: Path) -> None:
     run(FLAGS, catalog)
-    path = catalog / "black-holes" / "lantern-hole.yaml"
+    path = catalog / "isolated-objects" / "lantern-hole.yaml"
     filled = fill_in(path.read_text())
     assert find_todos(str(path), filled) == []
     result = load_text(filled, str(path), path, Vocabulary())
@@ -150,12 +150,13 @@ def test_stdout_prints_and_writes_nothing(catalog: Path) -> None:
     code, output = run([*FLAGS, "--stdout"], catalog)
     assert code == 0
     assert output.startswith("# yaml-language-server:")
-    assert not (catalog / "black-holes").exists()
+    assert not (catalog / "isolated-objects").exists()
 
 
 def test_components_and_default_riemannian_signature(catalog: Path) -> None:
-    argv = ["--id", "lantern-sheet", "--family", "riemannian", "--coordinates", "x y",
-            "--component", "x x=1", "--component", "y y=exp(2*x)", "--stdout"]  # fmt: skip
+    argv = ["--id", "lantern-sheet", "--family", "euclidean-and-initial-data",
+            "--coordinates", "x y", "--component", "x x=1", "--component", "y y=exp(2*x)",
+            "--stdout"]  # fmt: skip
     code, output = run(argv, catalog)
     assert code == 0, output
     assert 'signature: "++"' in output
@@ -174,16 +175,16 @@ def test_refuses_an_id_already_used_in_another_family(catalog: Path) -> None:
         f"error: id 'lantern-hole' is already used by {catalog}/cosmology/lantern-hole.yaml"
         in output
     )
-    assert not (catalog / "black-holes").exists()
+    assert not (catalog / "isolated-objects").exists()
 
 
 def test_refuses_an_id_that_was_used_by_a_removed_entry(tmp_path: Path) -> None:
     box = Sandbox(tmp_path / "repo")
     for name in ("families.yaml", "tags.yaml"):
         box.write(f"catalog/{name}", (ROOT / "catalog" / name).read_text())
-    box.write("catalog/black-holes/lantern-hole.yaml", demo_entry("lantern-hole"))
+    box.write("catalog/isolated-objects/lantern-hole.yaml", demo_entry("lantern-hole"))
     box.commit("Add")
-    (box.root / "catalog/black-holes/lantern-hole.yaml").unlink()
+    (box.root / "catalog/isolated-objects/lantern-hole.yaml").unlink()
     box.commit("Remove")
     code, output = run(FLAGS, box.root / "catalog")
     assert code == 2
@@ -193,7 +194,7 @@ def test_refuses_an_id_that_was_used_by_a_removed_entry(tmp_path: Path) -> None:
 @pytest.mark.parametrize(
     ("change", "message"),
     [
-        (["--family", "planets"], "family 'planets' is not one of: maximally-symmetric"),
+        (["--family", "planets"], "family 'planets' is not one of: isolated-objects"),
         (["--id", "Lantern_Hole"], "must be lower-case letters, digits and single hyphens"),
         (["--signature=-++"], "has 3 signs for 4 coordinates"),
         (["--matter", "dark"], "matter kind 'dark' is not one of"),
@@ -209,7 +210,7 @@ def test_bad_flags_are_refused_with_a_reason(
     code, output = run([*FLAGS, *change], catalog)
     assert code == 2
     assert message in output, output
-    assert not (catalog / "black-holes").exists()
+    assert not (catalog / "isolated-objects").exists()
 
 
 def test_missing_required_flags_are_listed(catalog: Path) -> None:
@@ -250,7 +251,7 @@ def test_interactive_asks_for_what_is_missing_and_re_asks_bad_answers(catalog: P
         "Bad Id",  # refused
         "lantern-room",
         "planets",  # refused
-        "riemannian",
+        "euclidean-and-initial-data",
         "Lantern room",
         "Harbour coordinates",
         "A demo room.",
@@ -264,7 +265,7 @@ def test_interactive_asks_for_what_is_missing_and_re_asks_bad_answers(catalog: P
     code, output = run(["--interactive"], catalog, answers)
     assert code == 0, output
     assert output.count("try again") == 4
-    path = catalog / "riemannian" / "lantern-room.yaml"
+    path = catalog / "euclidean-and-initial-data" / "lantern-room.yaml"
     assert errors(path) == []
     entry = load_entry(path).entry
     assert entry is not None and entry.chart == "Harbour coordinates"
@@ -296,7 +297,7 @@ def test_check_refuses_the_scaffold_until_the_todos_are_filled(
     catalog: Path, monkeypatch, capsys
 ) -> None:
     run(FLAGS, catalog)
-    path = catalog / "black-holes" / "lantern-hole.yaml"
+    path = catalog / "isolated-objects" / "lantern-hole.yaml"
     capsys.readouterr()
     code, report = check_json(path, monkeypatch, capsys)
     assert code == 1
@@ -309,7 +310,7 @@ def test_check_refuses_the_scaffold_until_the_todos_are_filled(
 @pytest.mark.slow
 def test_check_accepts_the_scaffold_once_filled_in(catalog: Path, monkeypatch, capsys) -> None:
     run(FLAGS, catalog)
-    path = catalog / "black-holes" / "lantern-hole.yaml"
+    path = catalog / "isolated-objects" / "lantern-hole.yaml"
     path.write_text(fill_in(path.read_text()))
     capsys.readouterr()
     code, report = check_json(path, monkeypatch, capsys)

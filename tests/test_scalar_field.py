@@ -115,7 +115,7 @@ curation:
 @pytest.fixture
 def catalog(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
     folder = tmp_path / "catalog"
-    (folder / "cosmology").mkdir(parents=True)
+    (folder / "universes").mkdir(parents=True)
     for name in ("tags.yaml", "families.yaml"):
         shutil.copyfile(ROOT / "catalog" / name, folder / name)
     monkeypatch.chdir(tmp_path)
@@ -124,7 +124,7 @@ def catalog(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
 
 def check(catalog: Path, text: str, capsys: pytest.CaptureFixture[str]) -> tuple[int, str]:
     entry_id = text.split("\n", 1)[0].removeprefix("id: ")
-    path = catalog / "cosmology" / f"{entry_id}.yaml"
+    path = catalog / "universes" / f"{entry_id}.yaml"
     path.write_text(text, encoding="utf-8")
     status = main(["check", str(path.relative_to(catalog.parent)), "--no-cache", "--jobs", "1"])
     return status, capsys.readouterr().err

@@ -39,7 +39,7 @@ from generator.physics.symmetry import lie_derivative_metric
 from generator.physics.verify import check_loaded
 
 CATALOG = Path(__file__).resolve().parent.parent / "catalog"
-SCHWARZSCHILD_FILE = CATALOG / "black-holes" / "schwarzschild.yaml"
+SCHWARZSCHILD_FILE = CATALOG / "isolated-objects" / "schwarzschild.yaml"
 KRETSCHMANN = 48 * M**2 / r**6  # Cherubini et al. 2002 (from memory)
 # bench/mutation_score.py --code lowers the number of examples per mutant (ALMANAC_EXAMPLES).
 SETTINGS = settings(max_examples=int(os.environ.get("ALMANAC_EXAMPLES", "12")), deadline=None,
@@ -70,7 +70,7 @@ def vanishing_at(points, variable: sp.Symbol) -> sp.Expr:
 
 def _check_with_claim(tmp_path: Path, old: str, new: str):
     """The shipped Schwarzschild entry with one line changed, checked in process."""
-    family = tmp_path / "catalog" / "black-holes"
+    family = tmp_path / "catalog" / "isolated-objects"
     family.mkdir(parents=True)
     for name in ("families.yaml", "tags.yaml"):
         shutil.copy(CATALOG / name, tmp_path / "catalog" / name)

@@ -124,7 +124,7 @@ def frame_of(spacetime):
 
 def test_schwarzschild_principal_psi2() -> None:
     # Ψ2 = −M/r³ (e.g. Chandrasekhar 1983, §21; common practice), I = 3Ψ2², J = −Ψ2³.
-    spacetime = load_entry(CATALOG / "black-holes/schwarzschild.yaml").spacetime
+    spacetime = load_entry(CATALOG / "isolated-objects/schwarzschild.yaml").spacetime
     frame = frame_of(spacetime)
     scalars = dict(frame.scalars)
     M, r = spacetime.symbols["M"], spacetime.symbols["r"]
@@ -138,7 +138,7 @@ def test_schwarzschild_principal_psi2() -> None:
 def test_kerr_principal_psi2_matches_teukolsky_at_random_points() -> None:
     # Ψ2 = −M/(r − i a cos θ)³ in the Kinnersley tetrad (Teukolsky, ApJ 185 (1973) 635,
     # from memory), compared numerically at random points.
-    spacetime = load_entry(CATALOG / "black-holes/kerr-boyer-lindquist.yaml").spacetime
+    spacetime = load_entry(CATALOG / "isolated-objects/kerr-boyer-lindquist.yaml").spacetime
     psi2 = dict(frame_of(spacetime).scalars)["Psi2"]
     s = spacetime.symbols
     M, a, r, theta = s["M"], s["a"], s["r"], s["theta"]
@@ -163,7 +163,7 @@ def test_kerr_principal_psi2_matches_teukolsky_at_random_points() -> None:
 def test_melvin_type_d_frame_has_only_psi2() -> None:
     # Melvin's magnetic universe is type D (Melvin 1964; Stephani et al. 2003 §22.2, from
     # memory): in a principal frame Ψ0 = Ψ4 = 0, unlike the coordinate frame.
-    spacetime = load_entry(CATALOG / "electromagnetic-universes/melvin.yaml").spacetime
+    spacetime = load_entry(CATALOG / "strings-tubes-and-bubbles/melvin.yaml").spacetime
     frame = frame_of(spacetime)
     scalars = dict(frame.scalars)
     assert frame.principal and scalars["Psi0"] == 0 and scalars["Psi4"] == 0

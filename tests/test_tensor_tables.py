@@ -23,7 +23,7 @@ ROOT = Path(__file__).resolve().parent.parent
 
 @pytest.fixture(scope="module")
 def schwarzschild() -> EntryReport:
-    loaded = load_entry(ROOT / "catalog" / "black-holes" / "schwarzschild.yaml")
+    loaded = load_entry(ROOT / "catalog" / "isolated-objects" / "schwarzschild.yaml")
     assert loaded.entry is not None and loaded.spacetime is not None
     return EntryReport(loaded.entry, loaded.file, loaded.spacetime,
                        compute_geometry(loaded.spacetime), None, (), ())

@@ -304,3 +304,66 @@ def test_the_cheapest_chart_represents_its_group(schwarzschild_charts) -> None:
                    geometry=replace(geometry, kretschmann=sp.LambertW(r) + 1))
     assert group_representatives([slow, plain], {"slow-chart": "g", "schwarzschild": "g"}) \
         == [plain]
+
+
+def test_a_copy_with_renamed_symbols_is_found_literally_and_nothing_else_is() -> None:
+    """Two entries holding the same metric with other names (M → m, r → rho) are one
+    spacetime written twice; the literal test says so without the numerical search (which a
+    loaded machine can time out), and never confuses a different metric or a related chart.
+    Schwarzschild f = 1 − 2M/r against Reissner–Nordström f = 1 − 2M/r + Q²/r² (common
+    practice)."""
+    from generator.physics.twins import LITERAL_REASON, literal_key, literal_twins
+
+    f = 1 - 2 * M / r
+    original = report("schwarzschild", static_spherical(f, [M], [r > 2 * M, *ANGLES]), "vacuum")
+    renamed = spacetime([t, rho, th, ph], [m],
+                        sp.diag(-(1 - 2 * m / rho), 1 / (1 - 2 * m / rho), rho**2,
+                                rho**2 * sp.sin(th) ** 2), [rho > 2 * m, *ANGLES])
+    copy = report("lamp-hole", renamed, "vacuum")
+    charged = report("reissner", static_spherical(f + Q**2 / r**2, [M, Q], [r > 2 * M, *ANGLES]),
+                     "electrovacuum")
+    assert literal_key(original.spacetime) == literal_key(copy.spacetime)
+    assert literal_key(original.spacetime) != literal_key(charged.spacetime)
+    assert literal_twins([copy], [original, copy, charged]) == {
+        "lamp-hole": [("schwarzschild", LITERAL_REASON)]}
+    # the parameters in another order, or another signature, are not literally the same
+    swapped = replace(charged.spacetime, parameters=(Q, M))
+    assert literal_key(swapped) != literal_key(charged.spacetime)
+    # joined by a `related` link: not a duplicate
+    assert literal_twins([copy], [original], {"lamp-hole": "g", "schwarzschild": "g"}) == {}
+
+
+def test_a_literal_twin_is_reported_even_when_the_numerical_search_runs_out_of_time(
+        monkeypatch) -> None:
+    from generator.errors import BudgetExceeded
+    from generator.run import pipeline
+
+    f = 1 - 2 * M / r
+    original = report("schwarzschild", static_spherical(f, [M], [r > 2 * M, *ANGLES]), "vacuum")
+    copy = report("lamp-hole", static_spherical(1 - 2 * m / r, [m], [r > 2 * m, *ANGLES]),
+                  "vacuum")
+    copy = replace(copy, file="catalog/isolated-objects/lamp-hole.yaml")
+
+    def out_of_time(*args, **kwargs):
+        raise BudgetExceeded("twin search", "time limit of 120 s")
+
+    monkeypatch.setattr(pipeline, "run_limited_in_child", out_of_time)
+    monkeypatch.setattr(pipeline, "run_limited", out_of_time)
+    warnings = pipeline.twin_warnings([copy], [original, copy])[copy.file]
+    assert [w.severity for w in warnings] == ["warning", "note"]
+    assert "'schwarzschild'" in warnings[0].message and "same metric components" in \
+        warnings[0].message
+
+
+def test_a_whole_catalog_run_still_reports_literal_twins() -> None:
+    """Runs too large for the numerical search (more than eight entries) keep its exact part."""
+    from generator.run.pipeline import literal_twin_warnings
+
+    f = 1 - 2 * M / r
+    original = report("schwarzschild", static_spherical(f, [M], [r > 2 * M, *ANGLES]), "vacuum")
+    copy = replace(report("lamp-hole", static_spherical(1 - 2 * m / r, [m],
+                                                        [r > 2 * m, *ANGLES]), "vacuum"),
+                   file="catalog/isolated-objects/lamp-hole.yaml")
+    found = literal_twin_warnings([original, copy], {})
+    assert set(found) == {original.file, copy.file}
+    assert literal_twin_warnings([original, copy], {"schwarzschild": "g", "lamp-hole": "g"}) == {}

@@ -90,7 +90,7 @@ def test_pre_commit_runs_the_same_checks_locally() -> None:
     assert PRE_COMMIT["repos"][0]["repo"] == "local"
     check = HOOKS["almanac-check"]
     assert check["entry"] == "python -m generator check" and check["pass_filenames"] is True
-    cli.build_parser().parse_args(["check", "catalog/black-holes/schwarzschild.yaml"])
+    cli.build_parser().parse_args(["check", "catalog/isolated-objects/schwarzschild.yaml"])
     workflow_lines = runs("catalog")
     assert any(HOOKS["almanac-schema"]["entry"] in line for line in workflow_lines)
 
@@ -98,7 +98,7 @@ def test_pre_commit_runs_the_same_checks_locally() -> None:
 @pytest.mark.parametrize(
     ("path", "selected"),
     [
-        ("catalog/black-holes/schwarzschild.yaml", True),
+        ("catalog/isolated-objects/schwarzschild.yaml", True),
         ("catalog/tags.yaml", False),
         ("catalog/families.yaml", False),
         ("catalog/black-holes/notes.md", False),
@@ -132,7 +132,8 @@ def test_hook_commands_parse_with_the_cli() -> None:
     for hook in HOOKS.values():
         words = shlex.split(hook["entry"])
         if words[:3] == ["python", "-m", "generator"]:
-            extra = ["catalog/black-holes/schwarzschild.yaml"] if hook["pass_filenames"] else []
+            extra = (["catalog/isolated-objects/schwarzschild.yaml"] if hook["pass_filenames"]
+                     else [])
             cli.build_parser().parse_args(words[3:] + extra)
 
 
@@ -161,13 +162,13 @@ def test_the_pull_request_step_warns_about_a_renamed_copy(tmp_path: Path, monkey
     box = Sandbox(tmp_path / "repo")
     for name in ("families.yaml", "tags.yaml"):
         box.write(f"catalog/{name}", (ROOT / "catalog" / name).read_text())
-    original = (ROOT / "catalog/black-holes/schwarzschild.yaml").read_text()
-    box.write("catalog/black-holes/schwarzschild.yaml", original)
-    box.write("catalog/cosmology/einstein-de-sitter.yaml",
-              (ROOT / "catalog/cosmology/einstein-de-sitter.yaml").read_text())
+    original = (ROOT / "catalog/isolated-objects/schwarzschild.yaml").read_text()
+    box.write("catalog/isolated-objects/schwarzschild.yaml", original)
+    box.write("catalog/universes/einstein-de-sitter.yaml",
+              (ROOT / "catalog/universes/einstein-de-sitter.yaml").read_text())
     # Schwarzschild names Minkowski space as its M → 0 limit: the link must resolve.
-    box.write("catalog/maximally-symmetric/minkowski-spherical.yaml",
-              (ROOT / "catalog/maximally-symmetric/minkowski-spherical.yaml").read_text())
+    box.write("catalog/backgrounds/minkowski-spherical.yaml",
+              (ROOT / "catalog/backgrounds/minkowski-spherical.yaml").read_text())
     box.commit("catalog")
     box.git("checkout", "-q", "-b", "contribution")
     copy = re.sub(r"\bM\b", "m", original).replace("id: schwarzschild\n", "id: lamp-hole\n")

@@ -93,9 +93,14 @@ class Draft:
     by: str = ""
 
 
+# Families whose entries are positive definite: the shipped catalog's, and the older folder name
+# that research groups' own catalogs (and the demo catalog) still use.
+RIEMANNIAN_FAMILIES = ("euclidean-and-initial-data", "riemannian")
+
+
 def default_signature(family: str, dimension: int) -> str:
-    """Lorentzian "-++..." (the catalog convention), or all "+" in the riemannian family."""
-    if family == "riemannian":
+    """Lorentzian "-++..." (the catalog convention), or all "+" in a Riemannian family."""
+    if family in RIEMANNIAN_FAMILIES:
         return "+" * dimension
     return "-" + "+" * (dimension - 1)
 

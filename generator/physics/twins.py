@@ -185,6 +185,49 @@ def search_twins(new: Sequence[EntryReport], catalog: Sequence[EntryReport],
     return TwinSearch(out, ranks)
 
 
+LITERAL_REASON = ("the same metric components, up to the names of the coordinates and "
+                  "parameters")
+
+
+def literal_key(spacetime: Spacetime) -> str:
+    """The metric with coordinates and parameters renamed by position: two entries with the
+    same key are one spacetime written twice (a copy with renamed symbols), found without
+    any numerical search — the cheap first test, which no load on the machine can time out."""
+    names = {**{c: sympy.Symbol(f"_x{i}") for i, c in enumerate(spacetime.coordinates)},
+             **{p: sympy.Symbol(f"_p{j}") for j, p in enumerate(spacetime.parameters)}}
+    return f"{spacetime.signature}|" + sympy.srepr(spacetime.metric.xreplace(names))
+
+
+def literal_twins(new: Sequence[EntryReport], catalog: Sequence[EntryReport],
+                  groups: Mapping[str, str] | None = None) -> dict[str, list[tuple[str, str]]]:
+    """New entry id → (other id, reason) for catalog entries whose metric is literally the new
+    entry's (see ``literal_key``); charts already joined by ``related`` links are skipped.
+
+    Run before the numerical search and outside its time limit: it is exact, costs one
+    expression walk per entry, and must not be lost when the search runs out of time."""
+    keys: dict[int, str] = {}
+
+    def key(report: EntryReport) -> str | None:
+        if report.spacetime is None or report.entry is None:
+            return None
+        if id(report) not in keys:
+            keys[id(report)] = literal_key(report.spacetime)
+        return keys[id(report)]
+
+    out: dict[str, list[tuple[str, str]]] = {}
+    for report in new:
+        mine = key(report)
+        if mine is None:
+            continue
+        found = [(other.entry.id, LITERAL_REASON) for other in catalog  # type: ignore
+                 if other is not report and key(other) == mine
+                 and other.entry.id != report.entry.id  # type: ignore[union-attr]
+                 and not _same_group(report.entry.id, other.entry.id, groups)]  # type: ignore
+        if found:
+            out[report.entry.id] = found  # type: ignore[union-attr]
+    return out
+
+
 def group_representatives(reports: Sequence[EntryReport],
                           groups: Mapping[str, str]) -> list[EntryReport]:
     """One entry per group of charts joined by ``related`` maps, the cheapest to evaluate.

@@ -30,7 +30,7 @@ import resource
 import signal
 import threading
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 from types import FrameType, TracebackType
 from typing import Any, TypeVar
@@ -244,57 +244,73 @@ class _Alarm:
             signal.setitimer(signal.ITIMER_REAL, *self.previous_timer)
 
 
+def _lower_soft_limit(kind: int, cap: int) -> tuple[int, int] | None:
+    """Lower the soft limit ``kind`` to ``cap`` (never above the hard limit, never raising it).
+
+    Returns the limits to restore afterwards, or None when nothing changed: both budget caps
+    below go through here so they restore exactly what they found.
+    """
+    soft, hard = resource.getrlimit(kind)
+    if hard != resource.RLIM_INFINITY:
+        cap = min(cap, hard)
+    if soft == resource.RLIM_INFINITY or cap < soft:
+        resource.setrlimit(kind, (cap, hard))
+        return soft, hard
+    return None
+
+
 @dataclass
-class _AddressSpaceCap:
-    """Lower the soft RLIMIT_AS to current size + ``extra`` bytes; restore it afterwards."""
+class _SoftLimit:
+    """A soft resource limit lowered on entry and restored on exit; subclasses say to what."""
 
-    extra: int
-    previous: tuple[int, int] | None = None
+    previous: tuple[int, int] | None = field(default=None, init=False)
 
-    def __enter__(self) -> _AddressSpaceCap:
-        if self.extra <= 0:
-            return self
-        soft, hard = resource.getrlimit(resource.RLIMIT_AS)
-        cap = address_space_in_use() + self.extra
-        if hard != resource.RLIM_INFINITY:
-            cap = min(cap, hard)
-        if soft == resource.RLIM_INFINITY or cap < soft:
-            self.previous = (soft, hard)
-            resource.setrlimit(resource.RLIMIT_AS, (cap, hard))
+    kind = resource.RLIMIT_AS
+
+    def cap(self) -> int | None:
+        """The new soft limit, or None for no change."""
+        raise NotImplementedError
+
+    def __enter__(self) -> _SoftLimit:
+        cap = self.cap()
+        if cap is not None:
+            self.previous = _lower_soft_limit(self.kind, cap)
         return self
 
     def __exit__(self, *exc: object) -> None:
         if self.previous is not None:
-            resource.setrlimit(resource.RLIMIT_AS, self.previous)
+            resource.setrlimit(self.kind, self.previous)
 
 
 @dataclass
-class _CpuBackstop:
+class _AddressSpaceCap(_SoftLimit):
+    """Lower the soft RLIMIT_AS to current size + ``extra`` bytes; restore it afterwards."""
+
+    extra: int = 0
+
+    kind = resource.RLIMIT_AS
+
+    def cap(self) -> int | None:
+        return address_space_in_use() + self.extra if self.extra > 0 else None
+
+
+@dataclass
+class _CpuBackstop(_SoftLimit):
     """Soft RLIMIT_CPU at (CPU time used so far + ``seconds``); SIGXCPU ends the process.
 
     Only the soft limit moves (an unprivileged process can raise it back, not the hard one),
     and SIGXCPU keeps its default action: nothing in Python can run while a C call is stuck.
     """
 
-    seconds: float
-    previous: tuple[int, int] | None = None
+    seconds: float = 0.0
 
-    def __enter__(self) -> _CpuBackstop:
+    kind = resource.RLIMIT_CPU
+
+    def cap(self) -> int | None:
         if self.seconds <= 0:
-            return self
-        soft, hard = resource.getrlimit(resource.RLIMIT_CPU)
+            return None
         usage = resource.getrusage(resource.RUSAGE_SELF)
-        cap = int(usage.ru_utime + usage.ru_stime + self.seconds) + 1
-        if hard != resource.RLIM_INFINITY:
-            cap = min(cap, hard)
-        if soft == resource.RLIM_INFINITY or cap < soft:
-            self.previous = (soft, hard)
-            resource.setrlimit(resource.RLIMIT_CPU, (cap, hard))
-        return self
-
-    def __exit__(self, *exc: object) -> None:
-        if self.previous is not None:
-            resource.setrlimit(resource.RLIMIT_CPU, self.previous)
+        return int(usage.ru_utime + usage.ru_stime + self.seconds) + 1
 
 
 def address_space_in_use() -> int:

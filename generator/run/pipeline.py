@@ -105,6 +105,8 @@ def check_files(
                                   groups)
         twins = twin_warnings(reports, [*reports, *others.reports], others.ranks,
                               others.keep_ranks, groups)
+    elif search_duplicates:
+        twins = literal_twin_warnings(reports, chart_groups(outline_links(outlines)))
     return [*vocabulary_reports(root, base),
             *(_with_extra(report, cross.get(report.file, []) + twins.get(report.file, [])
                           + (sampled_refusals(report) if options.refuse_sampled else []))
@@ -235,10 +237,11 @@ def twin_warnings(new: list[EntryReport], catalog: list[EntryReport],
                   ) -> dict[str, list[Diagnostic]]:
     """Warnings for entries whose spacetime is probably already in the catalog (never for
     charts joined to it by ``related`` links, directly or through chains: ``groups``)."""
-    from generator.physics.twins import search_twins, twin_diagnostics
+    from generator.physics.twins import literal_twins, search_twins, twin_diagnostics
 
     verified = [r for r in new if r.ok]
     others = [r for r in catalog if r.ok and all(r is not v for v in verified)]
+    literal = literal_twins(verified, [r for r in catalog if r.ok], groups)
     # With candidates to compare, the search runs in a child process: its CPU-time backstop
     # must end that child, never `check` itself (which would end with nothing printed).
     limited = run_limited_in_child if verified and others else run_limited
@@ -247,11 +250,28 @@ def twin_warnings(new: list[EntryReport], catalog: list[EntryReport],
                          known_ranks or {}, groups, seconds=TWIN_SEARCH_SECONDS,
                          memory_bytes=MEMORY_PER_ENTRY)
     except BudgetExceeded:
-        return {r.file: [_twin_search_stopped(r)] for r in verified}
+        return {r.file: [*twin_diagnostics(r, literal.get(r.entry.id, [])),  # type: ignore
+                         _twin_search_stopped(r)] for r in verified}
     if keep_ranks is not None:
         keep_ranks(search.ranks)
-    return {r.file: twin_diagnostics(r, search.found[r.entry.id]) for r in verified
-            if r.entry is not None and r.entry.id in search.found}
+    found = {name: literal.get(name, []) + [pair for pair in pairs
+                                            if pair[0] not in dict(literal.get(name, []))]
+             for name, pairs in {**{n: [] for n in literal}, **search.found}.items()}
+    return {r.file: twin_diagnostics(r, found[r.entry.id]) for r in verified
+            if r.entry is not None and found.get(r.entry.id)}
+
+
+def literal_twin_warnings(reports: list[EntryReport],
+                          groups: dict[str, str]) -> dict[str, list[Diagnostic]]:
+    """Only the exact, cheap part of the duplicate search, for runs too large for the
+    numerical part (a whole catalog): a metric entered twice under other names is still
+    told, so two pull requests adding the same solution cannot both land."""
+    from generator.physics.twins import literal_twins, twin_diagnostics
+
+    verified = [r for r in reports if r.ok]
+    found = literal_twins(verified, verified, groups)
+    return {r.file: twin_diagnostics(r, found[r.entry.id]) for r in verified
+            if r.entry is not None and r.entry.id in found}
 
 
 def _task(outline: Outline, by_id: dict[str, Outline], root: Path | None, base: Path,
