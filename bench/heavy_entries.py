@@ -3,8 +3,8 @@
 Run from the repository root:
 
     python bench/heavy_entries.py                       # the heavy families (see HEAVY)
-    python bench/heavy_entries.py catalog/black-holes/kerr-newman.yaml --repeats 3
-    python bench/heavy_entries.py --json-dir /tmp/reports catalog/black-holes/*.yaml
+    python bench/heavy_entries.py catalog/isolated-objects/kerr-newman.yaml --repeats 3
+    python bench/heavy_entries.py --json-dir /tmp/reports catalog/isolated-objects/*.yaml
 
 Each entry is checked by ``check_files`` in this process (``in_process``: no worker pool, no
 duplicate search, no cache), after one untimed warm-up check of a tiny entry so that imports

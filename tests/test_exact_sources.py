@@ -8,7 +8,7 @@ Sources beside each check:
   memory).
 * Carter's Killing tensor of Kerr–Newman: B. Carter, "Global structure of the Kerr family of
   gravitational fields", Phys. Rev. 174, 1559 (1968); components as written in
-  catalog/black-holes/kerr-newman.yaml (from memory, verified there by the SymPy path).
+  catalog/isolated-objects/kerr-newman.yaml (from memory, verified there by the SymPy path).
 * The metric itself is a Killing tensor (∇g = 0): common practice.
 """
 
