@@ -51,7 +51,10 @@ def run(command: list[str]) -> dict:
     cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
     return {"wall_s": round(wall, 2), "cpu_s": round(cpu, 2),
             "load_before": round(load_before, 2), "load_after": round(os.getloadavg()[0], 2),
-            "exit": done.returncode, "stderr_tail": done.stderr[-400:]}
+            "exit": done.returncode, "stderr_tail": done.stderr[-400:],
+            "files_with_errors": sorted({line.split(":", 1)[0] for line in
+                                         (done.stdout + done.stderr).splitlines()
+                                         if ": error:" in line})}
 
 
 def retitle(path: Path, mark: str) -> None:
