@@ -85,6 +85,7 @@ class Matter:
     scalar_potential: MathText | None = None  # V(φ) along the solution; None: massless
     lagrangian: MathText | None = None  # nonlinear electrodynamics: L(F) along the solution
     lagrangian_derivative: MathText | None = None  # dL/dF along the solution
+    coupling: MathText | None = None  # dilaton–Maxwell: a in e^(−2aφ) F²
 
 
 @dataclass(frozen=True)
@@ -348,6 +349,13 @@ class Horizon:
     how: str
     reasons: dict[str, str] = field(default_factory=dict)
     numeric_location: str = ""  # at the first sample parameters, for ordering and plots
+    # "exact", or "numeric" when the area integral is not elementary: then ``area`` is None
+    # and ``area_numeric`` holds the quadrature's value (``area_digits`` significant digits)
+    # at the parameter values ``area_parameters`` (the entry's first sample point).
+    area_method: str = ""
+    area_numeric: str = ""
+    area_digits: int = 0
+    area_parameters: tuple[tuple[str, str], ...] = ()
 
     @property
     def entropy(self) -> sympy.Expr | None:
@@ -385,6 +393,9 @@ class PhysicalData:
     komar_angular_momentum: sympy.Expr | None
     kinematics: Kinematics | None
     reasons: dict[str, str] = field(default_factory=dict)
+    # An orbit radius with no closed form ("photon_sphere", "isco" → the value is h_root):
+    # (coordinate, defining polynomial in h_root, numeric value at the first sample point).
+    orbit_roots: dict[str, tuple[str, sympy.Expr, str]] = field(default_factory=dict)
 
 
 @dataclass(frozen=True)
@@ -447,6 +458,7 @@ class WeylFrame:
     invariant_i: sympy.Expr | None
     invariant_j: sympy.Expr | None
     why: str = ""
+    checks: tuple[str, ...] = ()  # what was verified exactly about the tetrad and scalars
 
 
 @dataclass(frozen=True)

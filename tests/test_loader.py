@@ -188,7 +188,7 @@ def test_wrong_types_and_choices(catalog: Path) -> None:
     found = errors(load(path))
     assert (20, 9, "entry.choice", "'matter.kind' must be one of vacuum, lambda-vacuum, "
             "electrovacuum, perfect-fluid, null-dust, anisotropic-fluid, scalar-field, "
-            "nonlinear-electrodynamics, unspecified; got 'vacum'") in found
+            "nonlinear-electrodynamics, dilaton-maxwell, unspecified; got 'vacum'") in found
     assert any(code == "entry.type" and "year" in message for _, _, code, message in found)
 
 

@@ -40,6 +40,8 @@ from generator.physics.verify import check_loaded
 
 CATALOG = Path(__file__).resolve().parent.parent / "catalog"
 SCHWARZSCHILD_FILE = CATALOG / "isolated-objects" / "schwarzschild.yaml"
+# The start of the shipped entry's Ricci-scalar claim (long form), replaced by each test's claim.
+RICCI_LINE = "ricci_scalar: {value: 0,"
 KRETSCHMANN = 48 * M**2 / r**6  # Cherubini et al. 2002 (from memory)
 # bench/mutation_score.py --code lowers the number of examples per mutant (ALMANAC_EXAMPLES).
 SETTINGS = settings(max_examples=int(os.environ.get("ALMANAC_EXAMPLES", "12")), deadline=None,
@@ -88,7 +90,7 @@ def _check_with_claim(tmp_path: Path, old: str, new: str):
 def test_overflowing_and_sign_dependent_ricci_claims_are_rejected(tmp_path, claim) -> None:
     # Issue 15.1 (the first three overflowed a Python float) and issue 22 (Abs: zero for
     # M <= 3 only; the true value is R = 0, vacuum).
-    report = _check_with_claim(tmp_path, "ricci_scalar: 0", f"ricci_scalar: {claim}")
+    report = _check_with_claim(tmp_path, RICCI_LINE, f"ricci_scalar: {{value: {claim},")
     verdict = next(v for v in report.verdicts if v.subject == "claims.ricci_scalar")
     assert not verdict.ok and not report.ok
     if verdict.detail == "the claim does not parse":  # refused by the grammar's size limits
@@ -98,7 +100,7 @@ def test_overflowing_and_sign_dependent_ricci_claims_are_rejected(tmp_path, clai
 
 
 def test_the_shipped_entry_still_verifies_exactly(tmp_path) -> None:
-    report = _check_with_claim(tmp_path, "ricci_scalar: 0", "ricci_scalar: 0")
+    report = _check_with_claim(tmp_path, RICCI_LINE, RICCI_LINE)
     assert report.ok
     assert {v.method for v in report.verdicts if v.ok} <= {"exact", "by cases"}
 
@@ -284,7 +286,8 @@ def test_a_sampled_claim_is_labelled_and_refused_on_request(tmp_path) -> None:
     from generator.run.pipeline import sampled_refusals
     from generator.site.export import report_json
 
-    report = _check_with_claim(tmp_path, "ricci_scalar: 0", "ricci_scalar: log(r**2) - 2*log(r)")
+    report = _check_with_claim(tmp_path, RICCI_LINE,
+                               "ricci_scalar: {value: log(r**2) - 2*log(r),")
     verdict = next(v for v in report.verdicts if v.subject == "claims.ricci_scalar")
     assert verdict.ok and verdict.method == "sampled" and report.ok
     data = report_json(report)

@@ -219,6 +219,7 @@ def _build_matter(data: dict[str, Any], pos: SourcePos) -> Matter:
         scalar_potential=data.get("scalar_potential"),
         lagrangian=data.get("lagrangian"),
         lagrangian_derivative=data.get("lagrangian_derivative"),
+        coupling=data.get("coupling"),
     )
 
 

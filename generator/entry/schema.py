@@ -68,6 +68,7 @@ MATTER_KINDS = (
     "anisotropic-fluid",
     "scalar-field",
     "nonlinear-electrodynamics",
+    "dilaton-maxwell",
     "unspecified",
 )
 PETROV_TYPES = ("I", "II", "III", "D", "N", "O")
@@ -208,7 +209,8 @@ MATTER = Field(
     fields=(
         Field("kind", "The kind of source.", "choice", required=True, choices=MATTER_KINDS),
         Field("cosmological_constant", "Λ in G_ab + Λ g_ab = 8π T_ab.", "math"),
-        _vector("potential", "Electrovacuum and nonlinear electrodynamics: the potential A_a, "
+        _vector("potential", "Electrovacuum, nonlinear electrodynamics and dilaton–Maxwell: the "
+                "potential A_a, "
                 "lower index, by coordinate."),
         Field("density", "Fluids and null dust: the energy density.", "math"),
         Field("pressure", "Perfect fluid: the isotropic pressure.", "math"),
@@ -218,13 +220,16 @@ MATTER = Field(
             "principal_pressures",
             "Anisotropic fluid: T^i_i by coordinate, for T^a_b diagonal in this chart.",
         ),
-        Field("scalar", "Scalar field: the field φ as a function of the coordinates.", "math"),
+        Field("scalar", "Scalar field and dilaton–Maxwell: the field φ as a function of the "
+              "coordinates.", "math"),
         Field("scalar_potential", "Scalar field: the potential V(φ) along the solution, as a "
               "function of the coordinates (omit for a massless field).", "math"),
         Field("lagrangian", "Nonlinear electrodynamics: the Lagrangian L(F), F = ¼ F_ab F^ab, "
               "along the solution, as a function of the coordinates.", "math"),
         Field("lagrangian_derivative", "Nonlinear electrodynamics: dL/dF along the solution, "
               "as a function of the coordinates.", "math"),
+        Field("coupling", "Dilaton–Maxwell: the constant a of the coupling e^(−2aφ) F_ab F^ab.",
+              "math"),
     ),
 )
 

@@ -19,6 +19,7 @@ is usually singular there), with ∇_a χ_b = ∂_[a χ_b] because χ is Killing
 from __future__ import annotations
 
 from collections.abc import Sequence
+from dataclasses import dataclass
 
 import mpmath
 import sympy
@@ -492,12 +493,25 @@ def make_horizon(spacetime: Spacetime, geometry: Geometry, x_index: int,
         reasons["surface_gravity"] = "κ² found but its sign could not be fixed"
     temperature = None if kappa is None else kappa / (2 * sympy.pi)
     area, area_how = horizon_area(spacetime, data, location, numeric_point)
+    numeric_area: NumericArea | None = None
     if area is None:
-        reasons["area"] = area_how
+        numeric_area, numeric_why = numeric_area_at(spacetime, data, value, numeric_point)
+        if numeric_area is None:
+            reasons["area"] = area_how if numeric_why in ("", area_how) else \
+                f"{area_how}; {numeric_why}"
+        else:
+            reasons["area"] = (f"{area_how}: the area is given numerically ({NUMERIC_AREA_DIGITS} "
+                               "significant digits) at the first sample parameters")
+            how += f"; area numeric ({numeric_area.how})"
     else:
         how += f"; area {area_how}"
+    extra = {} if numeric_area is None else {
+        "area_method": "numeric", "area_numeric": numeric_area.value,
+        "area_digits": NUMERIC_AREA_DIGITS, "area_parameters": numeric_area.parameters}
+    if area is not None:
+        extra["area_method"] = "exact"
     return Horizon(str(x), shown_location, polynomial, "", vector, omega, kappa_squared, kappa,
-                   temperature, area, how, reasons, mpmath.nstr(value, 20))
+                   temperature, area, how, reasons, mpmath.nstr(value, 20), **extra)
 
 
 def domain_place(spacetime: Spacetime, x: sympy.Symbol, value: mpmath.mpf, point: Point) -> str:
@@ -615,24 +629,37 @@ def denested_root(square: sympy.Expr, spacetime: Spacetime) -> sympy.Expr | None
 # ---------------------------------------------------------------------------- area
 
 
-def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Expr | None,
-                 numeric_point: dict) -> tuple[sympy.Expr | None, str]:
-    """∫ sqrt(det γ) over the horizon's cross-section t = const: exact when the density is a
-    product of angle factors and a constant whose square root is found, over known ranges."""
-    if data.area_density is None:
-        return None, data.reasons.get("area", "not computed")
+def cross_section_ranges(spacetime: Spacetime, data: HorizonAlgebra
+                         ) -> list[tuple[sympy.Symbol, sympy.Expr, sympy.Expr]] | str:
+    """The coordinate ranges of the horizon's cross-section (polar angles from the domain,
+    azimuths of period 2π), or why it has none."""
     ranges = []
     cyclic = set(cyclic_coordinates(spacetime))
     for a in data.block:
         y = spacetime.coordinates[a]
-        bounds = polar_range(spacetime, y)
+        bounds = angle_range(spacetime, y)
         if bounds is not None:
             ranges.append((y, *bounds))
         elif a in cyclic and str(y) in AZIMUTHS:
             ranges.append((y, sympy.Integer(0), 2 * sympy.pi))
         else:
-            return None, (f"the cross-section is not compact in {y} (no range known): an area "
-                          "per unit coordinate range would depend on the chart")
+            return (f"the cross-section is not compact in {y} (no range known): an area "
+                    "per unit coordinate range would depend on the chart")
+    return ranges
+
+
+def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Expr | None,
+                 numeric_point: dict) -> tuple[sympy.Expr | None, str]:
+    """∫ sqrt(det γ) over the horizon's cross-section t = const: exact when the density is a
+    product of angle factors and a constant whose square root is found, over known ranges.
+    Where the root has no closed form, the density is first reduced modulo its polynomial
+    (terms that vanish only at the root drop out) and the constant part may stay a square
+    root of an expression in h_root: still exact at the root."""
+    if data.area_density is None:
+        return None, data.reasons.get("area", "not computed")
+    ranges = cross_section_ranges(spacetime, data)
+    if isinstance(ranges, str):
+        return None, ranges
     angles = [y for y, _, _ in ranges]
     in_h = data.rf.field.display(data.area_density)
     root = density_root(in_h, spacetime, angles)
@@ -641,8 +668,14 @@ def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Exp
     elif location is not None:
         density = canonical(in_h.xreplace({H: location}), spacetime)
         root = density_root(density, spacetime, angles)
+    else:
+        reduced = data.rf.reduce(data.area_density)
+        if reduced is not None:
+            root = density_root(data.rf.field.display(reduced), spacetime, angles,
+                                radical_in_root=True)
     if root is None:
         return None, "the area density has no exact square root in the field"
+    root = positive_cosines(root, ranges)
     try:
         integral = root
         for y, low, high in reversed(ranges):
@@ -657,16 +690,103 @@ def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Exp
     parts = []
     if any(polar_range(spacetime, y) for y in angles):
         parts.append("polar angles over (0, π) from the domain")
+    elif any(angle_range(spacetime, y) for y in angles):
+        parts.append("polar angles over (0, π/2) from the domain")
     if any(str(y) in AZIMUTHS for y in angles):
         parts.append(PERIOD_NOTE)
     return area, "exact" + (": " + "; ".join(parts) if parts else "")
 
 
+NUMERIC_AREA_DIGITS = 15  # significant digits reported for a numeric area
+QUADRATURE_DIGITS = 40  # working precision of the quadrature (the root is known to 30)
+
+
+@dataclass(frozen=True)
+class NumericArea:
+    value: str
+    parameters: tuple[tuple[str, str], ...]
+    how: str
+
+
+def numeric_area_at(spacetime: Spacetime, data: HorizonAlgebra, root: mpmath.mpf,
+                    point: dict) -> tuple[NumericArea | None, str]:
+    """The area by mpmath quadrature (tanh–sinh) at the first sample parameters, where the
+    integral is not elementary. Refused — never shown — when the density is not real and
+    positive, the value not finite, or the quadrature's error estimate too large."""
+    if data.area_density is None:
+        return None, "no area density"
+    ranges = cross_section_ranges(spacetime, data)
+    if isinstance(ranges, str):
+        return None, ranges
+    reduced = data.rf.reduce(data.area_density) if location_free(data) else None
+    density = data.rf.field.display(reduced if reduced is not None else data.area_density)
+    fixed = {p: v for p, v in point.items() if p != H}
+    with mpmath.workdps(QUADRATURE_DIGITS):
+        memo = {p: mpmath.mpf(sympy.Rational(v).p) / sympy.Rational(v).q
+                for p, v in fixed.items()}
+        memo[H] = mpmath.mpf(root)
+        integrated = [(y, low, high) for y, low, high in ranges if density.has(y)]
+        factor = mpmath.mpf(1)
+        for y, low, high in ranges:
+            if not density.has(y):
+                factor *= mpmath.mpf(numeric_value(high - low, QUADRATURE_DIGITS).real)
+        try:
+            value, error = quadrature(density, memo, integrated)
+        except (ValueError, TypeError, ZeroDivisionError, KeyError, ArithmeticError) as exc:
+            return None, f"the numeric quadrature failed ({type(exc).__name__})"
+        if value is None:
+            return None, "the area density is not real and positive on the cross-section"
+        value *= factor
+        error *= factor
+        if not mpmath.isfinite(value) or value <= 0 or not mpmath.isfinite(error) or \
+                error > abs(value) * mpmath.mpf(10) ** -(NUMERIC_AREA_DIGITS + 2):
+            return None, "the numeric quadrature did not converge to a finite value"
+        shown = mpmath.nstr(value, NUMERIC_AREA_DIGITS)
+    parameters = tuple(sorted((str(p), str(v)) for p, v in fixed.items()))
+    how = (f"mpmath tanh–sinh quadrature at {QUADRATURE_DIGITS} digits, at the root "
+           f"{mpmath.nstr(root, 20)} for " + ", ".join(f"{p} = {v}" for p, v in parameters))
+    if any(str(y) in AZIMUTHS for y, _, _ in ranges):
+        how += "; " + PERIOD_NOTE
+    return NumericArea(shown, parameters, how), ""
+
+
+def location_free(data: HorizonAlgebra) -> bool:
+    return data.rf.relation.degrees()[data.rf.h_var] > 1
+
+
+def quadrature(density: sympy.Expr, memo: dict, ranges: Sequence[tuple[sympy.Symbol,
+               sympy.Expr, sympy.Expr]]) -> tuple[mpmath.mpf | None, mpmath.mpf]:
+    """∫ sqrt(density) over ``ranges`` (value, error estimate); value None where the density
+    is negative or not real somewhere the rule samples it."""
+    from generator.geometry.sampling import numeric_tree
+
+    bad = []
+
+    def integrand(*angles: mpmath.mpf) -> mpmath.mpf:
+        local = dict(memo)
+        local.update({y: mpmath.mpf(v) for (y, _, _), v in zip(ranges, angles, strict=True)})
+        number = mpmath.mpc(numeric_tree(density, local))
+        if not mpmath.isfinite(number) or abs(number.imag) > abs(number.real) * \
+                mpmath.mpf(10) ** (8 - QUADRATURE_DIGITS) or number.real < 0:
+            bad.append(number)
+            return mpmath.mpf(0)
+        return mpmath.sqrt(number.real)
+
+    if not ranges:
+        return integrand(), mpmath.mpf(0)
+    bounds = [[numeric_value(low, QUADRATURE_DIGITS).real, numeric_value(high,
+               QUADRATURE_DIGITS).real] for _, low, high in ranges]
+    value, error = mpmath.quad(integrand, *bounds, error=True)
+    return (None if bad else mpmath.mpf(value)), mpmath.mpf(error)
+
+
 def density_root(density: sympy.Expr, spacetime: Spacetime,
-                 angles: list[sympy.Symbol]) -> sympy.Expr | None:
+                 angles: list[sympy.Symbol], radical_in_root: bool = False
+                 ) -> sympy.Expr | None:
     """sqrt(density) for a product of angle factors (even powers, taken positive on the
     ranges: sin of a polar angle is positive on (0, π)) and a constant part (exact square
-    root, denested, or left as sqrt)."""
+    root, denested, or left as sqrt). A constant part in h_root is kept under sqrt only
+    when ``radical_in_root`` (the caller then checks it is real and positive at the root)."""
     top, bottom = sympy.fraction(sympy.together(density))
     coefficient, factors = sympy.factor_list(top)
     bottom_coefficient, bottom_factors = sympy.factor_list(bottom)
@@ -691,6 +811,8 @@ def density_root(density: sympy.Expr, spacetime: Spacetime,
         return angular
     if constant.has(H):
         root = sympy.sqrt(constant)
+        if radical_in_root:
+            return angular * root
         return angular * root if not isinstance(root, sympy.Pow) or root.exp != sympy.Rational(
             1, 2) else None
     root = exact_square_root(constant, spacetime) or denested_root(constant, spacetime)
@@ -703,6 +825,40 @@ def sign_fixed(value: sympy.Expr, spacetime: Spacetime, points: Sequence[Point])
     if number is not None and mpmath.re(number) < 0:
         return canonical(-value, spacetime)
     return value
+
+
+def angle_range(spacetime: Spacetime, y: sympy.Symbol) -> tuple[sympy.Expr, sympy.Expr] | None:
+    """(0, π) for a polar angle, or (0, π/2) when the domain says 0 < y < π/2 (the angle
+    between the two rotation planes of a five-dimensional chart, as in Myers–Perry)."""
+    found = polar_range(spacetime, y)
+    if found is not None:
+        return found
+    return (sympy.Integer(0), sympy.pi / 2) if bounded_by(spacetime, y, sympy.pi / 2) else None
+
+
+def bounded_by(spacetime: Spacetime, y: sympy.Symbol, top: sympy.Expr) -> bool:
+    """The domain holds 0 < y and y < top (strict or not)."""
+    lower = upper = False
+    for relation in spacetime.domain:
+        if not isinstance(relation, sympy.core.relational.Relational):
+            continue
+        if isinstance(relation, (sympy.StrictLessThan, sympy.LessThan)):
+            small, big = relation.lhs, relation.rhs
+        elif isinstance(relation, (sympy.StrictGreaterThan, sympy.GreaterThan)):
+            small, big = relation.rhs, relation.lhs
+        else:
+            continue
+        lower |= small == 0 and big == y
+        upper |= small == y and big == top
+    return lower and upper
+
+
+def positive_cosines(root: sympy.Expr, ranges: Sequence[tuple[sympy.Symbol, sympy.Expr,
+                                                              sympy.Expr]]) -> sympy.Expr:
+    """|cos y| is cos y on a range inside (0, π/2): said so, so that the integral is
+    elementary."""
+    inside = [y for y, low, high in ranges if low == 0 and high == sympy.pi / 2]
+    return root.xreplace({sympy.Abs(sympy.cos(y)): sympy.cos(y) for y in inside})
 
 
 def polar_range(spacetime: Spacetime, y: sympy.Symbol) -> tuple[sympy.Expr, sympy.Expr] | None:

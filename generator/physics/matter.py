@@ -22,7 +22,7 @@ from generator.model import Entry, Geometry, MathText, Spacetime
 from generator.physics.exact_sources import exact_electrovacuum
 
 SOURCE_KINDS = ("electrovacuum", "perfect-fluid", "null-dust", "anisotropic-fluid",
-                "scalar-field", "nonlinear-electrodynamics")
+                "scalar-field", "nonlinear-electrodynamics", "dilaton-maxwell")
 EINSTEIN_KINDS = ("vacuum", "lambda-vacuum")
 EIGHT_PI = 8 * sympy.pi
 
@@ -468,6 +468,69 @@ def build_nonlinear(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> B
                  SourceData(kind))
 
 
+def dilaton_maxwell_stress(field: sympy.Expr, weight: sympy.Expr, F: sympy.Matrix,
+                           geometry: Geometry, coordinates: Sequence[sympy.Symbol]
+                           ) -> sympy.Matrix:
+    """T_ab = [∇_aφ ∇_bφ − ½ g_ab (∇φ)² + e^(−2aφ) (F_ac F_b^c − ¼ g_ab F_cd F^cd)]/4π for the
+    Einstein-frame action ∫ √−g (R − 2(∇φ)² − e^(−2aφ) F_cd F^cd)/16π, with `weight` the
+    factor e^(−2aφ). The dilaton is dimensionless in this normalisation (common practice in
+    the dilaton black-hole literature, e.g. Garfinkle, Horowitz and Strominger 1991)."""
+    kinetic = scalar_stress(field, sympy.Integer(0), geometry, coordinates) / (4 * sympy.pi)
+    return kinetic + weight * maxwell_stress(F, geometry)
+
+
+def dilaton_maxwell_problems(entry: Entry, spacetime: Spacetime, geometry: Geometry,
+                             field: sympy.Expr, coupling: sympy.Expr, F: sympy.Matrix
+                             ) -> tuple[Diagnostic, ...]:
+    """The two matter equations of the same action: ∇_a(e^(−2aφ) F^ab) = 0 and
+    □φ = −(a/2) e^(−2aφ) F_cd F^cd, each decided exactly (``vanishes``)."""
+    x = spacetime.coordinates
+    names = coordinate_names(spacetime)
+    weight = sympy.exp(-2 * coupling * field)
+    problems = []
+    divergence = maxwell_divergence(weight * F, geometry, x)
+    bad = [f"∇_a(e^(−2aφ) F^a{index_label(names, (b,))})" for b, value in enumerate(divergence)
+           if vanishes(value, spacetime).equal is not True]
+    if bad:
+        problems.append(Diagnostic.at(
+            entry.pos("matter.potential"), "error",
+            f"the field does not solve the dilaton-coupled Maxwell equations: {', '.join(bad)} "
+            "≠ 0 (or undecided)", "matter.dilaton-maxwell",
+            "check A_a (lower index), the dilaton φ and the coupling a (e^(−2aφ) F²)"))
+    # F_cd F^cd = 4 F with F = ¼ F_ab F^ab.
+    dilaton = wave_operator(field, geometry, x) + 2 * coupling * weight * invariant_f(F, geometry)
+    if vanishes(dilaton, spacetime).equal is not True:
+        problems.append(Diagnostic.at(
+            entry.pos("matter.scalar"), "error",
+            "the dilaton does not solve its field equation □φ = −(a/2) e^(−2aφ) F_cd F^cd "
+            "(or undecided)", "matter.dilaton",
+            "check φ (dimensionless, normalised as in the action ∫ √−g (R − 2(∇φ)² − "
+            "e^(−2aφ) F²)/16π) and the sign of the coupling a"))
+    return tuple(problems)
+
+
+def build_dilaton_maxwell(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> Built:
+    m = entry.matter
+    kind = "dilaton-maxwell"
+    for key, value in (("potential", m.potential), ("scalar", m.scalar),
+                       ("coupling", m.coupling)):
+        require(entry, key, value, kind)
+    assert m.scalar is not None and m.coupling is not None
+    potential = parse_vector(entry, spacetime, "matter.potential", m.potential)
+    field = parse_field(entry, spacetime, "matter.scalar", m.scalar)
+    coupling = parse_field(entry, spacetime, "matter.coupling", m.coupling)
+    if coupling.free_symbols & set(spacetime.coordinates):
+        raise SourceProblem(Diagnostic.at(
+            entry.pos("matter.coupling"), "error",
+            "the dilaton coupling must be a constant (it depends on a coordinate)",
+            "matter.coupling", "give the constant a of e^(−2aφ) F², e.g. 1 for the string case"))
+    F = field_strength(potential, spacetime.coordinates)
+    problems = dilaton_maxwell_problems(entry, spacetime, geometry, field, coupling, F)
+    stress = dilaton_maxwell_stress(field, sympy.exp(-2 * coupling * field), F, geometry,
+                                    spacetime.coordinates)
+    return Built(stress, False, problems, SourceData(kind))
+
+
 BUILDERS: dict[str, Callable[[Entry, Spacetime, Geometry], Built]] = {
     "electrovacuum": build_electrovacuum,
     "perfect-fluid": build_perfect_fluid,
@@ -475,6 +538,7 @@ BUILDERS: dict[str, Callable[[Entry, Spacetime, Geometry], Built]] = {
     "anisotropic-fluid": build_anisotropic,
     "scalar-field": build_scalar_field,
     "nonlinear-electrodynamics": build_nonlinear,
+    "dilaton-maxwell": build_dilaton_maxwell,
 }
 
 

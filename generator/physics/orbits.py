@@ -4,8 +4,10 @@ Static spherically symmetric entries written as −f(r) dt² + … + r² dΩ² (
 cross terms with t): circular null orbits sit where d(f/r²)/dr = 0, i.e. 2f − r f' = 0, and the
 marginally stable timelike circular orbits where r f f'' − 2 r f'² + 3 f f' = 0 (from the
 effective potential f (1 + L²/r²); common practice). The reported orbit is the outermost real
-root outside every horizon, at the first sample parameters; a root without a closed form is
-refused with its polynomial rather than shown approximately.
+root in the static region (f > 0 between the event and any cosmological horizon) at the first
+sample parameters — the innermost one for the ISCO, since with Λ > 0 an outermost stable orbit
+lies further out; a root without a closed form stays exact as the generator h_root of its
+irreducible polynomial (``OrbitRoot``), never shown only approximately.
 
 The ergosurface of a stationary rotating entry is where the stationary Killing vector turns
 null, g_tt = 0, outside the event horizon; for a static entry it coincides with the horizon.
@@ -14,13 +16,14 @@ null, g_tt = 0, outside the event horizon; for a static entry it coincides with 
 from __future__ import annotations
 
 from collections.abc import Sequence
+from dataclasses import dataclass, field
 
 import mpmath
 import sympy
 
 from generator.geometry.sampling import Point, numeric_value
 from generator.model import Horizon, Spacetime
-from generator.physics.horizons import closed_form_roots, cyclic_coordinates, polar_range
+from generator.physics.horizons import H, closed_form_roots, cyclic_coordinates, polar_range
 
 DIGITS = 30
 
@@ -52,10 +55,27 @@ def static_spherical_f(spacetime: Spacetime) -> tuple[sympy.Expr, sympy.Symbol] 
     return f, r
 
 
-def orbit_radius(condition: sympy.Expr, r: sympy.Symbol, outside: float,
-                 params: dict, what: str) -> tuple[sympy.Expr | None, str]:
+@dataclass(frozen=True)
+class OrbitRoot:
+    """An orbit radius with no closed form, kept exact: the root h_root of ``polynomial`` (in
+    h_root, irreducible over the parameters' field), ≈ ``numeric`` at the first sample
+    parameters."""
+
+    coordinate: str
+    polynomial: sympy.Expr
+    numeric: str
+
+
+def orbit_radius(condition: sympy.Expr, r: sympy.Symbol, f: sympy.Expr,
+                 window: tuple[float, float], params: dict, what: str, innermost: bool
+                 ) -> tuple[sympy.Expr | None, str, OrbitRoot | None]:
+    """The root of ``condition`` (a rational function of r) in the static region between
+    the horizons (``window``, where f > 0), at the first sample parameters: the innermost
+    one for the ISCO (with Λ > 0 an outermost stable orbit lies further out), else the
+    outermost. Exact: a closed form by radicals where its factor has one, else the
+    generator h_root of its irreducible factor."""
     numerator = sympy.factor(sympy.numer(sympy.together(condition)))
-    best: tuple[mpmath.mpf, sympy.Expr | None, sympy.Expr] | None = None
+    found: list[tuple[mpmath.mpf, sympy.Expr]] = []
     for factor in sympy.Mul.make_args(numerator):
         base = factor.base if factor.is_Pow else factor
         if not base.has(r) or not sympy.Poly(base, r).degree() >= 1:
@@ -64,46 +84,67 @@ def orbit_radius(condition: sympy.Expr, r: sympy.Symbol, outside: float,
         with mpmath.workdps(DIGITS):
             roots = mpmath.polyroots([mpmath.mpf(sympy.Rational(c).p) / sympy.Rational(c).q
                                       for c in coeffs], maxsteps=200, extraprec=60)
-        for root in roots:
-            if abs(mpmath.im(root)) > mpmath.mpf(10) ** (5 - DIGITS):
-                continue
-            value = mpmath.re(root)
-            if value <= outside or (best is not None and value <= best[0]):
-                continue
-            closed = None
-            for candidate in closed_form_roots(base, r) or []:
-                number = numeric_value(candidate.xreplace(params), DIGITS)
-                with mpmath.workdps(DIGITS):
-                    if number is not None and abs(number - value) < mpmath.mpf(10) ** (
-                            10 - DIGITS) * (1 + abs(value)):
-                        closed = candidate
-            best = (value, closed, base)
-    if best is None:
+            for root in roots:
+                if abs(mpmath.im(root)) > mpmath.mpf(10) ** (5 - DIGITS):
+                    continue
+                value = mpmath.re(root)
+                if window[0] < value < window[1] and static_at(f, r, value, params):
+                    found.append((value, base))
+    if not found:
         at = ", ".join(f"{k} = {v}" for k, v in sorted(params.items(), key=str))
         return None, (f"no {what} outside the horizons at the first sample parameters "
-                      f"({at}); it may exist elsewhere in the parameter range")
-    if best[1] is None:
-        return None, (f"the {what} is the root r ≈ {mpmath.nstr(best[0], 10)} (at the first "
-                      f"sample parameters) of {best[2]} = 0, which has no closed form here")
-    return sympy.factor(best[1]), ""
+                      f"({at}); it may exist elsewhere in the parameter range"), None
+    value, base = min(found, key=lambda item: item[0]) if innermost else max(
+        found, key=lambda item: item[0])
+    with mpmath.workdps(DIGITS):
+        for candidate in closed_form_roots(base, r) or []:
+            number = numeric_value(candidate.xreplace(params), DIGITS)
+            if number is not None and abs(number - value) < mpmath.mpf(10) ** (
+                    10 - DIGITS) * (1 + abs(value)):
+                return sympy.factor(candidate), "", None
+        shown = mpmath.nstr(value, 20)
+    polynomial = sympy.expand(base.xreplace({r: H}))
+    return H, "", OrbitRoot(str(r), polynomial, shown)
+
+
+def static_at(f: sympy.Expr, r: sympy.Symbol, value: mpmath.mpf, params: dict) -> bool:
+    """f > 0 at r = value (a static region, where circular orbits of the Killing time exist)."""
+    number = numeric_value(f.xreplace(params).xreplace({r: sympy.Rational(mpmath.nstr(
+        value, 25))}), DIGITS)
+    return number is not None and abs(mpmath.im(number)) < 1e-20 and mpmath.re(number) > 0
 
 
 def photon_sphere_and_isco(spacetime: Spacetime, horizons: Sequence[Horizon],
-                           points: Sequence[Point]) -> tuple[sympy.Expr | None, str,
-                                                             sympy.Expr | None, str]:
+                           points: Sequence[Point]) -> Orbits:
     form = static_spherical_f(spacetime)
     if isinstance(form, str):
-        return None, form, None, form
+        return Orbits(None, form, None, form)
     f, r = form
     params = {p: points[0][p] for p in spacetime.parameters if p in points[0]}
-    outside = max([float(h.numeric_location) for h in horizons
-                   if h.coordinate == str(r) and h.kind in ("event", "horizon")], default=0.0)
+    radii = [float(h.numeric_location) for h in horizons if h.coordinate == str(r)]
+    inner = max([float(h.numeric_location) for h in horizons if h.coordinate == str(r)
+                 and h.kind in ("event", "horizon")], default=0.0)
+    outer = min([v for v, h in zip(radii, [h for h in horizons if h.coordinate == str(r)],
+                                   strict=True)
+                 if h.kind == "cosmological" and v > inner], default=float("inf"))
     fp = sympy.diff(f, r)
-    photon, photon_why = orbit_radius(2 * f - r * fp, r, outside, params, "photon sphere")
+    photon, photon_why, photon_root = orbit_radius(2 * f - r * fp, r, f, (inner, outer), params,
+                                                   "photon sphere", innermost=False)
     isco_condition = r * f * sympy.diff(f, r, 2) - 2 * r * fp**2 + 3 * f * fp
-    isco, isco_why = orbit_radius(isco_condition, r, outside, params,
-                                  "innermost stable circular orbit")
-    return photon, photon_why, isco, isco_why
+    isco, isco_why, isco_root = orbit_radius(isco_condition, r, f, (inner, outer), params,
+                                             "innermost stable circular orbit", innermost=True)
+    roots = {key: root for key, root in (("photon_sphere", photon_root), ("isco", isco_root))
+             if root is not None}
+    return Orbits(photon, photon_why, isco, isco_why, roots)
+
+
+@dataclass(frozen=True)
+class Orbits:
+    photon_sphere: sympy.Expr | None
+    photon_why: str
+    isco: sympy.Expr | None
+    isco_why: str
+    roots: dict[str, OrbitRoot] = field(default_factory=dict)
 
 
 def outer_value(root: sympy.Expr, spacetime: Spacetime, point: Point) -> mpmath.mpf:

@@ -14,19 +14,32 @@ import sympy
 
 from generator.entry.loader import parse_at, symbol_table
 from generator.entry.schema import PHYSICAL_CLAIMS
-from generator.errors import BudgetExceeded, Diagnostic
+from generator.errors import Diagnostic
+from generator.geometry import decisions
 from generator.geometry.algebra import NotInField
 from generator.geometry.curvature import DegenerateMetric
 from generator.geometry.equality import decide_equal
 from generator.geometry.sampling import entry_points
-from generator.model import Entry, Geometry, Horizon, PhysicalData, Spacetime, Verdict
+from generator.model import (
+    Decision,
+    Entry,
+    Geometry,
+    Horizon,
+    PhysicalData,
+    Spacetime,
+    Verdict,
+)
 from generator.physics.horizons import H, find_horizons
 from generator.physics.kinematics import observer_kinematics
 from generator.physics.komar import komar_charges
 from generator.physics.orbits import ergosurface, photon_sphere_and_isco
+from generator.physics.rootclaims import decide_at_root, relation_at_root
 
+# What one part may fail with and still leave the others. Not BudgetExceeded: a budget hit
+# (the entry's alarm or memory cap) ends the whole entry with the stage named, like every
+# other stage; swallowing it here let a hostile entry run on past its budget.
 FAILURES = (ValueError, TypeError, ZeroDivisionError, NotImplementedError, ArithmeticError,
-            sympy.PolynomialError, RecursionError, BudgetExceeded, NotInField, DegenerateMetric)
+            sympy.PolynomialError, RecursionError, NotInField, DegenerateMetric)
 
 
 def physical_data(spacetime: Spacetime, geometry: Geometry,
@@ -39,8 +52,13 @@ def physical_data(spacetime: Spacetime, geometry: Geometry,
         horizons, note, extremal = (), f"the computer algebra failed ({type(exc).__name__})", ()
     if not horizons:
         reasons["horizons"] = note
+    orbit_roots: dict[str, tuple[str, sympy.Expr, str]] = {}
     try:
-        photon, photon_why, isco, isco_why = photon_sphere_and_isco(spacetime, horizons, points)
+        orbits = photon_sphere_and_isco(spacetime, horizons, points)
+        photon, photon_why, isco, isco_why = (orbits.photon_sphere, orbits.photon_why,
+                                              orbits.isco, orbits.isco_why)
+        orbit_roots = {key: (root.coordinate, root.polynomial, root.numeric)
+                       for key, root in orbits.roots.items()}
     except FAILURES as exc:
         photon = isco = None
         photon_why = isco_why = f"the computer algebra failed ({type(exc).__name__})"
@@ -66,10 +84,13 @@ def physical_data(spacetime: Spacetime, geometry: Geometry,
     if spin is None:
         reasons["komar_angular_momentum"] = spin_why
     return PhysicalData(horizons, note, extremal, ergo, photon, isco, mass, spin, kinematics,
-                        reasons)
+                        reasons, orbit_roots)
 
 
 # ---------------------------------------------------------------------------- claims
+# A horizon or orbit at an algebraic root (value h_root) is claimed in the entry's symbols
+# with the radius coordinate standing for the root, and its location as a relation that
+# vanishes there (generator.physics.rootclaims).
 
 # claim name -> how to read the computed value off PhysicalData
 HORIZON_CLAIMS = {
@@ -100,9 +121,6 @@ def computed_claim(name: str, data: PhysicalData) -> tuple[sympy.Expr | None, st
         if horizon is None:
             return None, data.reasons.get("horizons", "no event or cosmological horizon")
         value = getattr(horizon, HORIZON_CLAIMS[name])
-        if value is not None and value.has(H):
-            return None, ("the horizon has no closed-form location here, so the claim is not "
-                          "compared exactly")
         return value, horizon.reasons.get(HORIZON_CLAIMS[name], "not computed")
     if name in ORBIT_CLAIMS or name in CHARGE_CLAIMS:
         return getattr(data, name), data.reasons.get(name, "")
@@ -135,15 +153,56 @@ def check_physical_claims(entry: Entry, spacetime: Spacetime, data: PhysicalData
                                           f"verified: {why}", f"claim.{claim.name}",
                                           "remove the claim or simplify the chart"))
             continue
-        decision = decide_equal(claimed, computed, spacetime)
+        at_root = root_of_claim(claim.name, data, spacetime) if data is not None else None
+        if at_root is not None:
+            with decisions.subject(subject):
+                decision = decide_root_claim(claim.name, claimed, computed, spacetime, at_root)
+        else:
+            decision = decide_equal(claimed, computed, spacetime)
         ok = decision.equal is True
+        shown = str(computed)
+        hint = f"computed: {computed}"
+        if at_root is not None:
+            x = spacetime.coordinates[at_root[0]]
+            shown = f"{computed}, h_root a root of {at_root[1]} = 0"
+            hint = (f"computed: {shown}; write the claim in {x} (standing for the root), and a "
+                    f"location as an expression in {x} that vanishes there")
         verdicts.append(Verdict(subject, ok, decision.method, decision.detail, claim.value.text,
-                                str(computed), entry.published_source(subject)))
+                                shown, entry.published_source(subject)))
         if not ok:
             verb = "does not match" if decision.equal is False else "could not be matched with"
             problems.append(Diagnostic.at(claim.pos, "error", f"claimed {label} {verb} the "
                                           f"computed value ({decision.detail})",
-                                          f"claim.{claim.name}", f"computed: {computed}"))
+                                          f"claim.{claim.name}", hint))
     return verdicts, problems
 
 
+
+def root_of_claim(name: str, data: PhysicalData, spacetime: Spacetime
+                  ) -> tuple[int, sympy.Expr, str] | None:
+    """(coordinate index, polynomial in h_root, numeric root) when the claimed quantity sits
+    at an algebraic root without closed form; None otherwise."""
+    names = [str(x) for x in spacetime.coordinates]
+    if name in HORIZON_CLAIMS:
+        horizon = principal_horizon(data)
+        if horizon is None or not horizon.location.has(H) or horizon.coordinate not in names:
+            return None
+        return names.index(horizon.coordinate), horizon.polynomial, horizon.numeric_location
+    if name in data.orbit_roots:
+        coordinate, polynomial, numeric = data.orbit_roots[name]
+        if coordinate in names:
+            return names.index(coordinate), polynomial, numeric
+    return None
+
+
+def decide_root_claim(name: str, claimed: sympy.Expr, computed: sympy.Expr,
+                      spacetime: Spacetime, at_root: tuple[int, sympy.Expr, str]) -> Decision:
+    """A claim at an algebraic root, decided in the root's extension field."""
+    x_index, polynomial, numeric = at_root
+    if name in ("horizon_location", *ORBIT_CLAIMS):
+        found = relation_at_root(claimed, spacetime, x_index, polynomial, H)
+    else:
+        found = decide_at_root(claimed, computed, spacetime, x_index, polynomial, H, numeric)
+    if found.equal is True:
+        decisions.record(found.method)
+    return Decision(found.equal, found.method, found.detail)

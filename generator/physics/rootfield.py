@@ -70,6 +70,19 @@ class RootField:
             den = self.field.diff(den, self.x_index)
         return None
 
+    def reduce(self, x: Frac) -> Frac | None:
+        """x rewritten with numerator and denominator of degree < deg P in h, equal to x at
+        every root of P (None where the denominator vanishes there). Terms that vanish at
+        the root only modulo P (Δ(h)·… in an unreduced expression) are gone, so a factor
+        structure hidden by them (an area density sin²θ·C(h)) shows."""
+        lead = coefficient(self.relation, self.h_var, self.relation.degrees()[self.h_var],
+                           self.field.ctx)
+        top, k_top = reduced_power(x.num, self.relation, self.h_var, self.field.ctx)
+        bottom, k_bottom = reduced_power(x.den, self.relation, self.h_var, self.field.ctx)
+        if bottom.is_zero():
+            return None
+        return self.field.normal(top * lead ** k_bottom, bottom * lead ** k_top)
+
     def equal_at_root(self, x: Frac, y: Frac) -> bool:
         difference = self.field.sub(x, y)
         return difference.is_zero() or self.vanishes(difference.num)
@@ -86,6 +99,22 @@ def pseudo_remainder(p: flint.fmpq_mpoly, relation: flint.fmpq_mpoly, var: int,
         k = p.degrees()[var]
         p = p * lead - coefficient(p, var, k, ctx) * relation * gen ** (k - degree)
     return p
+
+
+def reduced_power(p: flint.fmpq_mpoly, relation: flint.fmpq_mpoly, var: int,
+                  ctx: flint.fmpq_mpoly_ctx) -> tuple[flint.fmpq_mpoly, int]:
+    """(R, k) with lc^k p ≡ R modulo the relation and deg_var R < deg_var relation (the
+    pseudo-remainder with its power of the leading coefficient lc, so that p = R / lc^k at
+    every root)."""
+    degree = relation.degrees()[var]
+    lead = coefficient(relation, var, degree, ctx)
+    gen = ctx.gens()[var]
+    k = 0
+    while not p.is_zero() and p.degrees()[var] >= degree:
+        top = p.degrees()[var]
+        p = p * lead - coefficient(p, var, top, ctx) * relation * gen ** (top - degree)
+        k += 1
+    return p, k
 
 
 def coefficient(p: flint.fmpq_mpoly, var: int, k: int, ctx: flint.fmpq_mpoly_ctx

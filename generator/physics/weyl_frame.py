@@ -19,6 +19,8 @@ pairs with it so that the Kerr metric in Boyer–Lindquist order (t, r, θ, φ) 
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import sympy
 
 from generator.geometry.algebra import Frac, NotInField, RationalField
@@ -26,6 +28,7 @@ from generator.geometry.curvature import WeylOperator
 from generator.geometry.exactvalues import sign_at
 from generator.geometry.sampling import entry_points
 from generator.model import Geometry, Spacetime, WeylFrame
+from generator.physics import principal_frame as pf
 from generator.physics.petrov import (
     PAIRS,
     FieldAlgebra,
@@ -33,6 +36,7 @@ from generator.physics.petrov import (
     determinant,
     field_operators,
 )
+from generator.physics.tower import TooLarge
 
 # With W normalised as the engine does (pairs a < b once), Q has the eigenvalues −2κΨ2, κΨ2,
 # κΨ2 on the self-dual bivectors of a type D field in a principal frame. κ = 1 is what the
@@ -114,6 +118,9 @@ def weyl_frame(geometry: Geometry, spacetime: Spacetime, petrov: PetrovResult,
         scalars = dict.fromkeys(("Psi0", "Psi1", "Psi2", "Psi3", "Psi4"), zero)
         return WeylFrame("any null tetrad (the Weyl tensor vanishes)", True, (),
                          tuple(scalars.items()), zero, zero, "conformally flat"), ""
+    built, why_not = tool_frame(ops, spacetime, petrov.type, invariant_i, invariant_j)
+    if built is not None:
+        return replace(built, invariant_i=i_expr, invariant_j=j_expr), ""
     if petrov.type == "D":
         ratio = divide(f, t3, t2, sigma2)  # t3/t2 = −κ Ψ2
         psi2 = (f.scale(ratio[0], -1 / KAPPA), f.scale(ratio[1], -1 / KAPPA))
@@ -122,18 +129,18 @@ def weyl_frame(geometry: Geometry, spacetime: Spacetime, petrov: PetrovResult,
         return WeylFrame("a principal null tetrad (l, n along the two double principal null "
                          "directions); Ψ2 is the same in all of them", True, (),
                          tuple(scalars.items()), i_expr, j_expr,
-                         "Ψ2 = −3J/I from the exact invariants; the tetrad itself is not "
-                         "constructed"), ""
+                         "Ψ2 = −3J/I from the exact invariants; the tetrad itself was not "
+                         f"constructed ({why_not})"), ""
     if petrov.weyl_scalars is not None:
         principal = _has_pattern(petrov.type, petrov.weyl_scalars)
         return WeylFrame("orthonormal coordinate frame e_a = ∂_a/√|g_aa| (time first), "
                          "l, n = (e0 ± e1)/√2, m = (e2 + i e3)/√2", principal,
                          (), tuple(sorted(petrov.weyl_scalars.items())), i_expr, j_expr,
                          "" if principal else "no principal frame was constructed for type "
-                         f"{petrov.type}; the scalars are those of the tool's frame"), ""
+                         f"{petrov.type} ({why_not}); the scalars are those of the tool's "
+                         "frame"), ""
     return WeylFrame("none", False, (), (), i_expr, j_expr,
-                     f"no principal frame was constructed for type {petrov.type}, and the "
-                     "tool's frame is built for diagonal metrics only"), ""
+                     f"no null tetrad was built for type {petrov.type}: {why_not}"), ""
 
 
 PATTERN = {"N": ("Psi4",), "III": ("Psi3", "Psi4"), "II": ("Psi2", "Psi3", "Psi4")}
@@ -144,3 +151,81 @@ def _has_pattern(kind: str, scalars: dict[str, sympy.Expr]) -> bool:
     if allowed is None:
         return False
     return all(scalars[name] == 0 for name in scalars if name not in allowed)
+
+
+# ---------------------------------------------------------------------------- the tool's tetrad
+
+FRAME_FAILURES = (pf.NotFound, TooLarge, NotInField, ZeroDivisionError)
+# Factoring over Q(i) (SymPy's algebraic-extension factoring) costs seconds to minutes beyond
+# small expressions, so only those are tried: Kerr's Ψ2 has 31 operations, Kerr–Newman's 60.
+DISPLAY_FACTOR_LIMIT = 64  # operations
+DISPLAY_FACTOR_SYMBOLS = 5  # free symbols (the norm in the factoring grows with each)
+
+
+def tool_frame(ops: WeylOperator, spacetime: Spacetime, kind: str, invariant_i: Complex,
+               invariant_j: Complex) -> tuple[WeylFrame | None, str]:
+    """The tool's null tetrad, rotated into a principal frame where ``principal_frame``
+    reaches one, with I and J of its scalars checked against the frame-free ones."""
+    try:
+        found = pf.principal_frame(ops, spacetime, kind)
+        agreement = invariants_agree(ops.field, found, invariant_i, invariant_j)
+    except FRAME_FAILURES as exc:
+        return None, str(exc) or type(exc).__name__
+    if not agreement:
+        return None, ("the invariants I, J of the constructed frame's scalars differ from the "
+                      "frame-free ones, so the frame is not shown")
+    f = found.tower.field
+    names = [str(x) for x in spacetime.coordinates]
+    tetrad = tuple((label, tuple((names[a], readable(f.display(v[a]), spacetime, False))
+                                 for a in range(4) if not v[a].is_zero()))
+                   for label, v in (("l", found.l), ("n", found.n), ("m", found.m)))
+    scalars = tuple((name, readable(f.display(found.psi[name]), spacetime))
+                    for name in pf.NAMES)
+    checks = (*found.checks, "I = Ψ0Ψ4 − 4Ψ1Ψ3 + 3Ψ2² and J = det[[Ψ4,Ψ3,Ψ2],[Ψ3,Ψ2,Ψ1],"
+              "[Ψ2,Ψ1,Ψ0]] equal the frame-free I and J (normal form)")
+    name = "null tetrad built by the tool: " + found.how
+    why = "" if found.principal else ("principal frame not found in closed form: "
+                                      f"{found.why}; the scalars are those of the tool's tetrad")
+    return WeylFrame(name, found.principal, tetrad, scalars, None, None, why, checks), ""
+
+
+def invariants_agree(base: RationalField, found: pf.PrincipalFrame, invariant_i: Complex,
+                     invariant_j: Complex) -> bool:
+    """I and J from the frame's Ψ's equal the operator's x + iσy, with σ = √(−det g) written
+    in the tower through the tetrad: ε(l, n, m, m̄) = σ det T = i·ORIENTATION."""
+    f = found.tower.field
+
+    def carried(x: Frac) -> Frac:
+        return pf.carry_into(found.tower, base, x)
+
+    p0, p1, p2, p3, p4 = (found.psi[name] for name in pf.NAMES)
+    frame_i = f.sum([f.mul(p0, p4), f.scale(f.mul(p1, p3), -4), f.scale(f.mul(p2, p2), 3)])
+    rows = [[p4, p3, p2], [p3, p2, p1], [p2, p1, p0]]
+    frame_j = pf._determinant(f, rows)
+    mb = [pf.conjugate(found.tower, x) for x in found.m]
+    det = pf._determinant(f, [found.l, found.n, found.m, mb])
+    for frame_value, (x, y) in ((frame_i, invariant_i), (frame_j, invariant_j)):
+        expected = f.sub(carried(x), f.scale(f.div(carried(y), det), pf.ORIENTATION))
+        if not f.equal(frame_value, expected):
+            return False
+    return True
+
+
+def readable(expr: sympy.Expr, spacetime: Spacetime, factor: bool = True) -> sympy.Expr:
+    """|u| written ±u where u keeps one sign on the sampled domain, and (``factor``) small
+    expressions factored over Q(i) (so Kerr's Ψ2 reads −M/(r − i a cos θ)³). Tetrad
+    components are not factored: their square roots make the factoring slow for little."""
+    points = entry_points(spacetime, 6)
+    for atom in expr.atoms(sympy.Abs):
+        signs = {sign_at(atom.args[0], p, spacetime) for p in points}
+        if signs in ({1}, {-1}):
+            expr = expr.xreplace({atom: signs.pop() * atom.args[0]})
+    if factor and expr.has(sympy.I) and sympy.count_ops(expr) <= DISPLAY_FACTOR_LIMIT and \
+            len(expr.free_symbols) <= DISPLAY_FACTOR_SYMBOLS:
+        try:
+            factored = sympy.factor(expr, extension=sympy.I)
+        except (sympy.PolynomialError, NotImplementedError, ValueError, TypeError):
+            return expr
+        if sympy.count_ops(factored) < sympy.count_ops(expr):
+            return factored
+    return expr

@@ -72,6 +72,7 @@ MATTER_LABELS = {
     "null-dust": "null dust",
     "scalar-field": "scalar field",
     "nonlinear-electrodynamics": "nonlinear electrodynamics",
+    "dilaton-maxwell": "dilaton–Maxwell",
     "unspecified": "no declared source",
     "non-vacuum": "unidentified source",
     "not-applicable": "no field equations (2D)",

@@ -153,9 +153,18 @@ def symmetry_json(c: Classification, names: list[str]) -> dict[str, Any]:
     }
 
 
+TETRAD_CONVENTION = ("signature -+++: l.n = -1, m.mbar = 1, all other products 0, "
+                     "g_ab = -l_a n_b - n_a l_b + m_a mbar_b + mbar_a m_b; "
+                     "epsilon_abcd l^a n^b m^c mbar^d = +i with epsilon_0123 = +sqrt(-det g); "
+                     "Psi0 = C(l,m,l,m), Psi1 = C(l,n,l,m), Psi2 = C(l,m,mbar,n), "
+                     "Psi3 = C(l,n,mbar,n), Psi4 = C(n,mbar,n,mbar); components contravariant")
+
+
 def weyl_frame_json(frame: Any) -> dict[str, Any]:
     return {"tetrad": {k: {name: str(v) for name, v in vector} for k, vector in frame.tetrad},
             "principal": frame.principal, "frame": frame.name, "why": frame.why,
+            "checks": list(frame.checks),
+            "convention": TETRAD_CONVENTION if frame.tetrad else None,
             **{k: str(v) for k, v in frame.scalars}}
 
 

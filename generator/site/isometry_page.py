@@ -93,5 +93,10 @@ def frame_data(frame: WeylFrame | None, coordinates: tuple[sympy.Symbol, ...]
     for label, value in (("I", frame.invariant_i), ("J", frame.invariant_j)):
         if value is not None:
             invariants.append(math_inline(f"{label} = {mathtex.to_latex(value, coordinates)}"))
+    names = {str(x): x for x in coordinates}
+    symbols = {"l": "l", "n": "n", "m": "m"}
+    tetrad = [math_inline(f"{symbols[label]} = " + vector_latex(vector, names, coordinates))
+              for label, vector in frame.tetrad]
     return {"name": frame.name, "principal": frame.principal, "scalars": scalars,
-            "invariants": invariants, "why": frame.why}
+            "invariants": invariants, "why": frame.why, "tetrad": tetrad,
+            "checks": list(frame.checks)}

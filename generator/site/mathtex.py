@@ -74,7 +74,8 @@ def textbook_order(terms: Sequence[sympy.Expr], coords: frozenset[sympy.Symbol])
     With a positive number among the terms (``1 - 2M/r + Q^2/r^2``, ``1 - k r^2``) the number
     comes first and the rest by growing power of the coordinates; a negative number goes last
     (``Lambda r^2 - 3``); otherwise (``r^2 - 2Mr + a^2``) by falling power, plain coordinate
-    powers before terms carrying parameters.
+    powers before terms carrying parameters, positive before negative among equals. A sum
+    never opens with a minus sign when it has a positive term (``positive_first``).
     """
     numbers = [t for t in terms if t.is_Number]
     others = [t for t in terms if not t.is_Number]
@@ -85,15 +86,26 @@ def textbook_order(terms: Sequence[sympy.Expr], coords: frozenset[sympy.Symbol])
     if numbers and numbers[0].is_negative and others:
         others.sort(key=lambda t: (-_coordinate_degree(t, coords), params(t),
                                    sympy.default_sort_key(t)))
-        return others + numbers  # Lambda r^2 - 3, not -3 + Lambda r^2
+        return positive_first(others + numbers)  # Lambda r^2 - 3, not -3 + Lambda r^2
     if numbers:
         others.sort(key=lambda t: (abs(_coordinate_degree(t, coords)),
                                    _coordinate_degree(t, coords) > 0, params(t),
                                    sympy.default_sort_key(t)))
         return numbers + others
     others.sort(key=lambda t: (-_coordinate_degree(t, coords), params(t),
-                               sympy.default_sort_key(t)))
-    return others
+                               t.could_extract_minus_sign(), sympy.default_sort_key(t)))
+    return positive_first(others)
+
+
+def positive_first(terms: list) -> list:
+    """A sum opens with a positive term where it has one (X² − T², not −T² + X²): the first
+    positive term of the ordered list moves to the front, the rest keep their order."""
+    if not terms or not terms[0].could_extract_minus_sign():
+        return terms
+    lead = next((k for k, t in enumerate(terms) if not t.could_extract_minus_sign()), None)
+    if lead is None:
+        return terms
+    return [terms[lead], *terms[:lead], *terms[lead + 1:]]
 
 
 def _prefers_minus(expr: sympy.Expr) -> bool:

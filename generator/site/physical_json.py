@@ -27,6 +27,10 @@ def horizon_json(h: Horizon) -> dict[str, Any]:
         "surface_gravity": _text(h.surface_gravity),
         "temperature": _text(h.temperature),
         "area": _text(h.area),
+        "area_method": h.area_method or None,
+        "area_numeric": None if h.area_method != "numeric" else {
+            "value": h.area_numeric, "significant_digits": h.area_digits,
+            "parameters": dict(h.area_parameters)},
         "entropy": _text(h.entropy),
         "how": h.how,
         "not_applicable": dict(sorted(h.reasons.items())),
@@ -54,7 +58,7 @@ def physical_json(data: PhysicalData | None) -> dict[str, Any]:
         return {"horizons": [], "horizons_note": why, "extremality": [], "ergosurface": None,
                 "photon_sphere": None, "isco": None,
                 "komar": {"mass": None, "angular_momentum": None}, "kinematics": None,
-                "physical_reasons": {"all": why}}
+                "physical_reasons": {"all": why}, "orbit_roots": {}}
     return {
         "horizons": [horizon_json(h) for h in data.horizons],
         "horizons_note": data.horizons_note,
@@ -66,4 +70,8 @@ def physical_json(data: PhysicalData | None) -> dict[str, Any]:
                   "angular_momentum": _text(data.komar_angular_momentum)},
         "kinematics": kinematics_json(data.kinematics),
         "physical_reasons": dict(sorted(data.reasons.items())),
+        "orbit_roots": {key: {"coordinate": coordinate, "defining_polynomial": str(polynomial),
+                              "numeric_at_first_sample": numeric}
+                        for key, (coordinate, polynomial, numeric)
+                        in sorted(data.orbit_roots.items())},
     }

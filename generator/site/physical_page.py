@@ -52,9 +52,16 @@ def horizon_row(h: Horizon, coordinates: tuple, verdicts: Mapping[str, dict[str,
             else None
         reason = h.reasons.get(key or label, h.reasons.get("surface_gravity", "")) \
             if value is None else ""
+        note = ""
+        if label == "area" and value is None and h.area_method == "numeric":
+            shown = math_inline(f"A \\approx {h.area_numeric}")
+            at = ", ".join(f"{name} = {number}" for name, number in h.area_parameters)
+            note = (f"numeric: mpmath quadrature, {h.area_digits} significant digits, at {at}; "
+                    "the area integral is not elementary here")
         rows.append({"label": label, "math": shown,
                      "text": "" if value is None else reader_text(str(value)),
-                     "reason": reader_text(reason), "verdict": verdict})
+                     "reason": reader_text(reason), "verdict": verdict,
+                     "note": reader_text(note)})
     generator = None
     if h.normal_killing_vector:
         generator = " + ".join(f"{value}·∂_{name}" if value != 1 else f"∂_{name}"
@@ -81,10 +88,15 @@ def physical_section(report: EntryReport) -> dict[str, Any] | None:
                                ("komar_mass", "Komar mass", "M_K"),
                                ("komar_angular_momentum", "Komar angular momentum", "J_K")):
         value = getattr(data, key)
+        note = ""
+        if key in data.orbit_roots:
+            _, polynomial, numeric = data.orbit_roots[key]
+            note = (f"h_root is the root of {polynomial} = 0 that lies in the static region; "
+                    f"≈ {numeric} at the first sample parameters")
         orbits.append({"label": label, "math": _math(symbol, value, coordinates),
                        "text": "" if value is None else reader_text(str(value)),
                        "reason": reader_text(data.reasons.get(key, "")) if value is None else "",
-                       "verdict": verdicts.get(f"claims.{key}")})
+                       "verdict": verdicts.get(f"claims.{key}"), "note": reader_text(note)})
     observers = None
     if data.kinematics is not None:
         k = data.kinematics

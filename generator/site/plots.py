@@ -21,7 +21,7 @@ import matplotlib
 import numpy
 import sympy
 from matplotlib.figure import Figure
-from matplotlib.ticker import LogFormatter, NullFormatter
+from matplotlib.ticker import LogFormatterSciNotation, NullFormatter
 
 from generator.model import EntryReport, Spacetime
 from generator.site.mathtex import ANGLE_NAMES, TIME_NAMES, radial_coordinate
@@ -229,11 +229,72 @@ def domain_mask(st: Spacetime, setting: PlotSetting, radius: numpy.ndarray) -> n
     return mask
 
 
+@dataclass(frozen=True)
+class Profile:
+    """One line of sight through the spacetime: the plot's setting with the polar angle fixed
+    (the equator, or the rotation axis of a rotating entry)."""
+
+    setting: PlotSetting
+    label: str  # mathtext legend label, "" when there is one profile
+    words: str  # the same for alt text and captions
+
+
+POLAR_NAMES = ("theta", "vartheta")
+
+
+def rotating(st: Spacetime) -> bool:
+    """A time coordinate with a cross term to an angle (g_tφ ≠ 0): a rotating chart, whose
+    equator alone hides the rotation (Kerr's Kretschmann scalar on the equator is
+    Schwarzschild's)."""
+    names = [str(c) for c in st.coordinates]
+    times = [i for i, n in enumerate(names) if n in TIME_NAMES]
+    return bool(times) and any(polar in names for polar in POLAR_NAMES) and any(
+        st.metric[times[0], j] != 0 for j, n in enumerate(names) if n in ANGLE_NAMES
+        and n not in POLAR_NAMES)
+
+
+def profiles(report: EntryReport, setting: PlotSetting, exprs: Sequence[sympy.Expr]
+             ) -> list[Profile]:
+    """The equator alone, or for a rotating entry whose plotted expressions depend on the
+    polar angle, the equator θ = π/2 and the axis θ = 0 (θ = π/12 near the axis where the
+    axis itself gives no finite value)."""
+    st = report.spacetime
+    assert st is not None
+    polar = next((c for c in st.coordinates if str(c) in POLAR_NAMES), None)
+    if polar is None or not rotating(st) or not any(polar in sympy.sympify(e).free_symbols
+                                                     for e in exprs):
+        return [Profile(setting, "", "")]
+    equator = Profile(setting, r"equator $\theta = \pi/2$", "on the equator θ = π/2")
+    for angle, label, words in ((sympy.Integer(0), r"axis $\theta = 0$", "on the axis θ = 0"),
+                                (sympy.pi / 12, r"near the axis $\theta = \pi/12$",
+                                 "near the axis θ = π/12")):
+        values = dict(setting.values)
+        values[polar] = angle
+        candidate = PlotSetting(setting.radial, values, setting.low, setting.high,
+                                setting.parameters)
+        if all(_finite_count(sample(e, candidate, st)) >= 2 for e in exprs
+               if polar in sympy.sympify(e).free_symbols):
+            return [equator, Profile(candidate, label, words)]
+    return [equator]
+
+
+def _finite_count(values: numpy.ndarray | None) -> int:
+    return 0 if values is None else int(numpy.isfinite(values).sum())
+
+
+def without_polar(setting: PlotSetting, text_of: Sequence[sympy.Expr]) -> str:
+    """The values shown on a two-profile plot: the polar angle is named per profile."""
+    kept = {k: v for k, v in setting.values.items() if str(k) not in POLAR_NAMES}
+    return describe_values(PlotSetting(setting.radial, kept, setting.low, setting.high,
+                                       setting.parameters), text_of)
+
+
 def invariants_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:
     st, g, entry = report.spacetime, report.geometry, report.entry
     assert st is not None and g is not None and entry is not None
-    series, used, names = [], [], []
+    panels, used, names = [], [], []
     vacuum = report.classification is not None and report.classification.matter_kind == "vacuum"
+    wanted = []
     for key, label, name in INVARIANT_LABELS:
         if vacuum and key == "weyl_squared" and g.kretschmann is not None:
             continue  # with R_ab = 0 the Weyl square is the Kretschmann scalar: one panel
@@ -244,29 +305,101 @@ def invariants_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:
         # SymPy's is_constant() would run simplify on the whole invariant).
         if expr is None or setting.radial not in sympy.sympify(expr).free_symbols:
             continue
-        values = sample(expr, setting, st)
-        if values is not None and numpy.isfinite(values).sum() >= 2:
-            series.append((label, values))
-            used.append(sympy.sympify(expr))
+        wanted.append((label, name, sympy.sympify(expr)))
+    lines = profiles(report, setting, [e for _, _, e in wanted])
+    for label, name, expr in wanted:
+        series = [(profile, sample(expr, profile.setting, st)) for profile in lines]
+        series = [(profile, values) for profile, values in series if _finite_count(values) >= 2]
+        if series:
+            panels.append((label, series))
+            used.append(expr)
             names.append(name)
-    if not series:
+    if not panels:
         return None
-    values_text = readable(describe_values(setting, used))
+    two = len(lines) > 1
+    values_text = readable(without_polar(setting, used) if two else describe_values(setting,
+                                                                                    used))
     r = str(setting.radial)
     radius = numpy.linspace(setting.low, setting.high, SAMPLE_COUNT)[1:]
-    figure = _figure(len(series))
-    for axis, (label, values) in zip(figure.axes, series, strict=True):
-        _draw(axis, radius, values, label, log=_wants_log(values))
+    figure = _figure(len(panels))
+    marks = horizon_marks(report, setting)
+    ergo = ergosurface_mark(report, setting)
+    for axis, (label, series) in zip(figure.axes, panels, strict=True):
+        _draw_profiles(axis, radius, series, label)
+        _mark(axis, marks, ergo)
+    if two:
+        figure.axes[0].legend(loc="best", frameon=False, fontsize=7)
     figure.axes[-1].set_xlabel(axis_label(setting))
+    where = f" {lines[0].words} and {lines[1].words}" if two else ""
     figure.suptitle(f"Curvature invariants along {readable(r)}; {values_text}")
     return Plot(
         file_name="invariants.svg",
         svg=_svg(figure),
-        alt=f"{', '.join(names)} of {entry.title} plotted against {readable(r)} for "
-            f"{values_text}.",
-        caption=f"Curvature invariants against {r}, units G = c = 1, with "
-                f"{values_text}. Points outside the entry's domain are left out.",
+        alt=f"{', '.join(names)} of {entry.title} plotted against {readable(r)}{where} for "
+            f"{values_text}.{marks_sentence(marks, ergo, readable(r))}",
+        caption=f"Curvature invariants against {r}{where}, units G = c = 1, with "
+                f"{values_text}. Points outside the entry's domain are left out."
+                f"{marks_sentence(marks, ergo, readable(r))}",
     )
+
+
+def marks_sentence(marks: Sequence[float], ergo: float | None, r: str) -> str:
+    parts = []
+    if marks:
+        parts.append(("dotted lines mark the horizons at " if len(marks) > 1 else
+                      "the dotted line marks the horizon at ") + r + " ≈ "
+                     + ", ".join(f"{m:.4g}" for m in marks))
+    if ergo is not None:
+        parts.append(f"the dash-dotted line the ergosurface on the equator at {r} ≈ {ergo:.4g}")
+    return (" " + "; ".join(parts)[0].upper() + "; ".join(parts)[1:] + ".") if parts else ""
+
+
+def _mark(axis: object, marks: Sequence[float], ergo: float | None) -> None:
+    for mark in marks:
+        axis.axvline(mark, color="0.3", linestyle=":", linewidth=1.0)  # type: ignore[attr-defined]
+    if ergo is not None:
+        axis.axvline(ergo, color="0.3", linestyle="-.", linewidth=1.0)  # type: ignore[attr-defined]
+
+
+def ergosurface_mark(report: EntryReport, setting: PlotSetting) -> float | None:
+    """The ergosurface's radius on the equator at the plot's values (None when there is none,
+    or it falls outside the plotted range)."""
+    c = report.classification
+    if c is None or c.physical is None or c.physical.ergosurface is None:
+        return None
+    value = sympy.sympify(c.physical.ergosurface).xreplace(setting.values)
+    try:
+        number = complex(sympy.N(value))
+    except (TypeError, ValueError):
+        return None
+    if abs(number.imag) > 1e-12 or not setting.low < number.real < setting.high:
+        return None
+    return float(number.real)
+
+
+def _draw_profiles(axis: object, x: numpy.ndarray,
+                   series: Sequence[tuple[Profile, numpy.ndarray]], label: str) -> None:
+    """Each profile as its own line (solid equator, dashed axis); log scale when every line is
+    positive over orders of magnitude, symmetric log when one changes sign over them."""
+    styles = ("-", "--")
+    for (profile, values), style in zip(series, styles, strict=False):
+        axis.plot(x, values, linewidth=1.4, linestyle=style,  # type: ignore[attr-defined]
+                  label=profile.label or None)
+    axis.set_ylabel(label, fontsize=8)  # type: ignore[attr-defined]
+    everything = numpy.concatenate([values for _, values in series])
+    if _wants_log(everything):
+        axis.set_yscale("log")  # type: ignore[attr-defined]
+        axis.yaxis.set_major_formatter(LogFormatterSciNotation())  # type: ignore[attr-defined]
+        axis.yaxis.set_minor_formatter(NullFormatter())  # type: ignore[attr-defined]
+    elif len(series) > 1 and _wants_symlog(everything):
+        finite = numpy.abs(everything[numpy.isfinite(everything)])
+        axis.set_yscale("symlog", linthresh=float(finite.max()) * 1e-4)  # type: ignore[attr-defined]
+
+
+def _wants_symlog(values: numpy.ndarray) -> bool:
+    finite = numpy.abs(values[numpy.isfinite(values)])
+    finite = finite[finite > 0]
+    return finite.size > 0 and bool(finite.max() / finite.min() > 1e3)
 
 
 def metric_functions_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:
@@ -284,45 +417,55 @@ def metric_functions_plot(report: EntryReport, setting: PlotSetting) -> Plot | N
     r_tex = sympy.latex(setting.radial)
     wanted.append((f"$g_{{{r_tex}{r_tex}}}$", st.metric[r_index, r_index]))
     series, used = [], []
-    for label, expr in wanted:
+    lines = profiles(report, setting, [e for _, e in wanted[:1]])
+    for k, (label, expr) in enumerate(wanted):
         expr = sympy.sympify(expr)
         if expr == 0 or setting.radial not in expr.free_symbols:
             continue
-        values = sample(expr, setting, st)
-        if values is not None and numpy.isfinite(values).sum() >= 2:
-            series.append((label, numpy.clip(values, -20.0, 20.0)))
-            used.append(expr)
+        # −g_tt on each profile (its zero on the equator is the ergosurface); g_rr once
+        for profile in lines if k == 0 else lines[:1]:
+            values = sample(expr, profile.setting, st)
+            if values is not None and numpy.isfinite(values).sum() >= 2:
+                shown = f"{label}, {profile.label}" if profile.label and k == 0 else label
+                series.append((shown, numpy.clip(values, -20.0, 20.0)))
+                used.append(expr)
     if not series:
         return None
-    values_text = readable(describe_values(setting, used))
+    two = len(lines) > 1
+    values_text = readable(without_polar(setting, used) if two else describe_values(setting,
+                                                                                    used))
     r = readable(str(setting.radial))
     radius = numpy.linspace(setting.low, setting.high, SAMPLE_COUNT)[1:]
     figure = _figure(1)
     axis = figure.axes[0]
     for label, values in series:
-        axis.plot(radius, values, label=label, linewidth=1.4)
+        axis.plot(radius, values, label=label, linewidth=1.4,
+                  linestyle="--" if two and "axis" in label else "-")
     axis.axhline(0.0, color="0.5", linewidth=0.6)
     marks = horizon_marks(report, setting)
-    for mark in marks:
-        axis.axvline(mark, color="0.3", linestyle=":", linewidth=1.0)
+    ergo = ergosurface_mark(report, setting)
+    _mark(axis, marks, ergo)
     axis.legend(loc="best", frameon=False)
     axis.set_xlabel(axis_label(setting))
     axis.set_ylabel("metric component (clipped to ±20)")
     figure.suptitle(f"Metric functions along {r}; {values_text}")
-    plain = {"$": "", "{": "", "}": "", "-": "−"}
-    labels = " and ".join("".join(plain.get(ch, ch) for ch in readable(label)
-                                  .replace("\\", "")) for label, _ in series)
+    labels = " and ".join(plain_label(label) for label, _ in series)
     return Plot(
         file_name="metric-functions.svg",
         svg=_svg(figure),
         alt=f"{labels} of {entry.title} against {r} for {values_text}. Where −g_tt is zero "
             "the time-translation Killing vector is null (a horizon of a static chart, the "
-            "static limit of a rotating one); where g_rr diverges the chart is singular.",
+            "static limit of a rotating one); where g_rr diverges the chart is singular."
+            f"{marks_sentence(marks, ergo, r)}",
         caption=f"Metric functions against {r}, units G = c = 1, with "
-                f"{values_text}; values clipped to ±20."
-                + (f" Dotted lines: horizons at {r} ≈ "
-                   + ", ".join(f"{m:.4g}" for m in marks) + "." if marks else ""),
+                f"{values_text}; values clipped to ±20.{marks_sentence(marks, ergo, r)}",
     )
+
+
+def plain_label(label: str) -> str:
+    """A mathtext label as alt text: ``$-g_{tt}$, axis $\\theta = 0$`` → ``−g_tt, axis θ = 0``."""
+    text = label.replace("\\theta", "θ").replace("\\pi", "π").replace("\\", "")
+    return "".join({"$": "", "{": "", "}": "", "-": "−"}.get(ch, ch) for ch in readable(text))
 
 
 def horizon_marks(report: EntryReport, setting: PlotSetting) -> list[float]:
@@ -379,7 +522,7 @@ def scale_factor_plot(report: EntryReport, setting: PlotSetting) -> Plot | None:
         axis.plot(x, values, label=label, linewidth=1.4)
     if all(_wants_log(v) for _, v in series):
         axis.set_yscale("log")
-        axis.yaxis.set_major_formatter(LogFormatter())
+        axis.yaxis.set_major_formatter(LogFormatterSciNotation())
         axis.yaxis.set_minor_formatter(NullFormatter())
     axis.legend(loc="best", frameon=False)
     axis.set_xlabel(f"{time}  (G = c = 1)")
@@ -412,15 +555,6 @@ def _figure(rows: int) -> Figure:
     figure.subplots_adjust(left=0.15, right=0.97, top=1 - 0.5 / height, bottom=0.45 / height,
                            hspace=0.12)
     return figure
-
-
-def _draw(axis: object, x: numpy.ndarray, y: numpy.ndarray, label: str, log: bool) -> None:
-    axis.plot(x, y, linewidth=1.4)  # type: ignore[attr-defined]
-    axis.set_ylabel(label, fontsize=8)  # type: ignore[attr-defined]
-    if log:
-        axis.set_yscale("log")  # type: ignore[attr-defined]
-        axis.yaxis.set_major_formatter(LogFormatter())  # type: ignore[attr-defined]
-        axis.yaxis.set_minor_formatter(NullFormatter())  # type: ignore[attr-defined]
 
 
 def _svg(figure: Figure) -> str:
