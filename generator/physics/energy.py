@@ -78,13 +78,32 @@ def coupled_blocks(mixed: sympy.Matrix, metric: sympy.Matrix, spacetime: Spaceti
 def lorentzian_block(blocks: list[list[int]], metric: sympy.Matrix, points: Sequence[Point],
                      spacetime: Spacetime) -> int | None:
     """Which block holds the time direction (its metric block has det < 0) at the points."""
-    determinants = [metric.extract(block, block).det() for block in blocks]
+    quick = [quick_determinant(metric.extract(block, block)) for block in blocks]
+    simplified: dict[int, sympy.Expr] = {}
     found = set()
     for point in points:
-        for k, determinant in enumerate(determinants):
-            if sign_at(determinant, point, spacetime) == -1:
+        for k, determinant in enumerate(quick):
+            sign = sign_at(determinant, point, spacetime)
+            if sign is None and len(blocks[k]) > 1:
+                # The product form may be undefined where a factor's pole cancels: ask the
+                # simplified determinant there (SymPy's det, computed once per block).
+                if k not in simplified:
+                    simplified[k] = metric.extract(blocks[k], blocks[k]).det()
+                sign = sign_at(simplified[k], point, spacetime)
+            if sign == -1:
                 found.add(k)
     return found.pop() if len(found) == 1 else None
+
+
+def quick_determinant(block: sympy.Matrix) -> sympy.Expr:
+    """det of a 1×1 or 2×2 block as the plain product formula (SymPy's det simplifies every
+    entry product first, which took most of the Hawking–Ellis test of Kerr–Newman); only its
+    sign at exact sample points is used, and that is the same number either way."""
+    if block.rows == 1:
+        return block[0, 0]
+    if block.rows == 2:
+        return block[0, 0] * block[1, 1] - block[0, 1] * block[1, 0]
+    return block.det()
 
 
 # ---------------------------------------------------------------------------- the type

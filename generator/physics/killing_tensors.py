@@ -22,6 +22,7 @@ from generator.entry.mathparse import parse_math
 from generator.errors import Diagnostic, MathSyntaxError
 from generator.geometry.exactvalues import coordinate_names, index_label, vanishes
 from generator.model import ConformalClaim, Entry, Geometry, Spacetime, TensorClaim, Verdict
+from generator.physics.exact_sources import killing_tensor_vanishes
 from generator.physics.symmetry import (
     Unreadable,
     lie_derivative_metric,
@@ -76,6 +77,9 @@ def check_killing_tensor(entry: Entry, spacetime: Spacetime, geometry: Geometry,
             return Verdict(subject, False, "failed", exc.message, shown), problem
         i, j = names.index(first), names.index(second)
         k[i][j] = k[j][i] = value
+    if killing_tensor_vanishes(spacetime, k):
+        return _verdict(subject, shown, claim.pos, "Killing tensor", "∇_(a K_bc) = 0", [], [],
+                        "exact", "claim.killing-tensor", "")
     residual = killing_tensor_residual(k, geometry, spacetime.coordinates)
     failing, undecided, method = [], [], "exact"
     for key, value in residual.items():

@@ -19,6 +19,7 @@ from generator.errors import Diagnostic, MathSyntaxError
 from generator.geometry.equality import canonical_all, decide_equal
 from generator.geometry.exactvalues import coordinate_names, index_label, vanishes
 from generator.model import Entry, Geometry, MathText, Spacetime
+from generator.physics.exact_sources import exact_electrovacuum
 
 SOURCE_KINDS = ("electrovacuum", "perfect-fluid", "null-dust", "anisotropic-fluid",
                 "scalar-field", "nonlinear-electrodynamics", "dilaton-maxwell")
@@ -244,6 +245,22 @@ def build_electrovacuum(entry: Entry, spacetime: Spacetime, geometry: Geometry) 
             "check A_a (lower index) and its sign; sources outside the field are not allowed "
             "in an electrovacuum"),)
     return Built(maxwell_stress(F, geometry), False, problems, SourceData("electrovacuum"))
+
+
+def exact_maxwell(entry: Entry, spacetime: Spacetime, geometry: Geometry,
+                  Lambda: sympy.Expr | None) -> Built | None:
+    """The Maxwell source when all its equations hold in the exact field (``exact_sources``);
+    None sends the check down the SymPy path, which names what fails."""
+    if not entry.matter.potential:
+        return None
+    try:
+        potential = parse_vector(entry, spacetime, "matter.potential", entry.matter.potential)
+    except SourceProblem:
+        return None
+    found = exact_electrovacuum(spacetime, geometry.einstein, potential, Lambda)
+    if found is None:
+        return None
+    return Built(found.stress, False, (), SourceData("electrovacuum"))
 
 
 def build_perfect_fluid(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> Built:
@@ -549,6 +566,10 @@ def check_source(entry: Entry, spacetime: Spacetime, geometry: Geometry,
                  Lambda: sympy.Expr | None) -> tuple[Built | None, list[Diagnostic]]:
     """Rebuild the declared source and test each component of the field equations."""
     kind = entry.matter.kind
+    if kind == "electrovacuum":
+        exact = exact_maxwell(entry, spacetime, geometry, Lambda)
+        if exact is not None:
+            return exact, []
     try:
         built = BUILDERS[kind](entry, spacetime, geometry)
     except SourceProblem as problem:
