@@ -365,7 +365,7 @@ def test_the_page_shows_the_tetrad_the_convention_and_the_checks() -> None:
     isometry = {"algebra": {"dimension": None, "name": None, "orbit_dimension": None,
                             "isotropy": None, "why_null": "demo", "method": "demo",
                             "listed": 0, "complete": None, "missing": None, "basis": [],
-                            "brackets": []},
+                            "brackets": [], "found": 0, "search": ""},
                 "tensors": [], "frame": data, "frame_reason": "",
                 "invariants": {"count": None, "used": "", "relation": "",
                                "consistent": None, "why_null": ""}}

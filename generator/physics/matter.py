@@ -147,6 +147,13 @@ def require(entry: Entry, key: str, value: object, kind: str) -> None:
             "matter.missing", f"add matter.{key} (see the entry format)"))
 
 
+def require_all(entry: Entry, kind: str, **values: object) -> None:
+    """``require`` for each key of a matter kind, in the order given (the first missing one
+    is the one reported)."""
+    for key, value in values.items():
+        require(entry, key, value, kind)
+
+
 def declared_lambda(entry: Entry, spacetime: Spacetime) -> sympy.Expr | None:
     text = entry.matter.cosmological_constant
     if text is None:
@@ -454,9 +461,8 @@ def nonlinear_problems(entry: Entry, spacetime: Spacetime, geometry: Geometry,
 def build_nonlinear(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> Built:
     m = entry.matter
     kind = "nonlinear-electrodynamics"
-    for key, value in (("potential", m.potential), ("lagrangian", m.lagrangian),
-                       ("lagrangian_derivative", m.lagrangian_derivative)):
-        require(entry, key, value, kind)
+    require_all(entry, kind, potential=m.potential, lagrangian=m.lagrangian,
+                lagrangian_derivative=m.lagrangian_derivative)
     assert m.lagrangian is not None and m.lagrangian_derivative is not None
     potential = parse_vector(entry, spacetime, "matter.potential", m.potential)
     lagrangian = parse_field(entry, spacetime, "matter.lagrangian", m.lagrangian)
@@ -512,9 +518,7 @@ def dilaton_maxwell_problems(entry: Entry, spacetime: Spacetime, geometry: Geome
 def build_dilaton_maxwell(entry: Entry, spacetime: Spacetime, geometry: Geometry) -> Built:
     m = entry.matter
     kind = "dilaton-maxwell"
-    for key, value in (("potential", m.potential), ("scalar", m.scalar),
-                       ("coupling", m.coupling)):
-        require(entry, key, value, kind)
+    require_all(entry, kind, potential=m.potential, scalar=m.scalar, coupling=m.coupling)
     assert m.scalar is not None and m.coupling is not None
     potential = parse_vector(entry, spacetime, "matter.potential", m.potential)
     field = parse_field(entry, spacetime, "matter.scalar", m.scalar)

@@ -41,7 +41,7 @@ from generator.geometry.curvature import WeylOperator
 from generator.geometry.equality import nonzero_in_field
 from generator.geometry.sampling import entry_points
 from generator.model import Spacetime
-from generator.physics.petrov import PAIRS
+from generator.physics.petrov import PAIRS, determinant
 from generator.physics.tower import (
     I_KEY,
     TooLarge,
@@ -322,20 +322,20 @@ def _time_function_frame(frame: Frame, spacetime: Spacetime, points: Sequence[di
     spacelike hypersurface, for metrics where no coordinate vector keeps its causal
     character over the domain (a rotating string, Taub–NUT near its axis)."""
     f = frame.f
-    det = _determinant(f, frame.g)
+    det = determinant(f, frame.g)
     if det.is_zero():
         return None
     for a in range(4):
         others = [b for b in range(4) if b != a]
         minor = [[frame.g[i][j] for j in others] for i in others]
-        inverse_aa = f.div(_determinant(f, minor), det)
+        inverse_aa = f.div(determinant(f, minor), det)
         if _positive_everywhere(f, inverse_aa, points, spacetime) is not False:
             continue
         gradient = []
         for b in range(4):
             rows = [i for i in range(4) if i != b]
             cols = [j for j in range(4) if j != a]
-            cofactor = _determinant(f, [[frame.g[i][j] for j in cols] for i in rows])
+            cofactor = determinant(f, [[frame.g[i][j] for j in cols] for i in rows])
             gradient.append(f.div(cofactor if (a + b) % 2 == 0 else f.neg(cofactor), det))
         found = _gram_schmidt(frame, others)
         if found is None:
@@ -493,8 +493,8 @@ def _orientation(frame: Frame, spacetime: Spacetime, points: Sequence[dict], l: 
     """The sign s with ε(l, n, m, m̄) = s·i, read at a sample point (|ε| = 1 there)."""
     f = frame.f
     matrix = [l, n, m, frame.conj(m)]
-    det = _determinant(f, matrix)
-    metric_det = _determinant(f, frame.g)
+    det = determinant(f, matrix)
+    metric_det = determinant(f, frame.g)
     for point in points:
         d, g = value_at(f, det, point, spacetime), value_at(f, metric_det, point, spacetime)
         if d is None or g is None or g.real >= 0:
@@ -504,18 +504,6 @@ def _orientation(frame: Frame, spacetime: Spacetime, points: Sequence[dict], l: 
             return 1 if epsilon.imag > 0 else -1
     raise NotFound("the orientation of the tetrad could not be read at a sample point")
 
-
-def _determinant(f: RationalField, m: Sequence[Sequence[Frac]]) -> Frac:
-    if len(m) == 1:
-        return m[0][0]
-    terms = []
-    for j, entry in enumerate(m[0]):
-        if entry.is_zero():
-            continue
-        minor = [[*row[:j], *row[j + 1:]] for row in m[1:]]
-        term = f.mul(entry, _determinant(f, minor))
-        terms.append(term if j % 2 == 0 else f.neg(term))
-    return f.sum(terms)
 
 
 def _lower_weyl(f: RationalField, ops: WeylOperator) -> list[list[Frac]]:

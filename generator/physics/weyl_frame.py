@@ -201,9 +201,9 @@ def invariants_agree(base: RationalField, found: pf.PrincipalFrame, invariant_i:
     p0, p1, p2, p3, p4 = (found.psi[name] for name in pf.NAMES)
     frame_i = f.sum([f.mul(p0, p4), f.scale(f.mul(p1, p3), -4), f.scale(f.mul(p2, p2), 3)])
     rows = [[p4, p3, p2], [p3, p2, p1], [p2, p1, p0]]
-    frame_j = pf._determinant(f, rows)
+    frame_j = determinant(f, rows)
     mb = [pf.conjugate(found.tower, x) for x in found.m]
-    det = pf._determinant(f, [found.l, found.n, found.m, mb])
+    det = determinant(f, [found.l, found.n, found.m, mb])
     for frame_value, (x, y) in ((frame_i, invariant_i), (frame_j, invariant_j)):
         expected = f.sub(carried(x), f.scale(f.div(carried(y), det), pf.ORIENTATION))
         if not f.equal(frame_value, expected):
