@@ -208,7 +208,10 @@ def numeric_curvature(metric: sp.Matrix, coords: tuple, point: list) -> tuple[mp
 
 
 def engine_value(expr: sp.Expr, values: dict) -> mpmath.mpf:
-    return mpmath.mpf(sp.N(expr.xreplace(values), DIGITS))
+    """The engine's expression at the point, evaluated numerically (evalf with subs keeps
+    track of precision; an exact substitution of large values into rational powers can take
+    SymPy minutes of perfect-power tests)."""
+    return mpmath.mpf(sp.N(expr, DIGITS, subs=values))
 
 
 def close(x: mpmath.mpf, y: mpmath.mpf) -> bool:

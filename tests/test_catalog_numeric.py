@@ -77,7 +77,9 @@ def assert_matches_numerics(coordinates: tuple[sp.Symbol, ...], geometry: Geomet
                             values: dict, metric: sp.Matrix) -> None:
     with mpmath.workdps(DIGITS):
         point = [mpmath.mpf(sp.N(values[x], DIGITS)) for x in coordinates]
-        concrete = metric.xreplace({k: v for k, v in values.items() if k not in coordinates})
+        # parameters as high-precision floats, for the same reason as in engine_value
+        concrete = metric.xreplace({k: sp.Float(v, DIGITS + 10) for k, v in values.items()
+                                    if k not in coordinates})
         numeric = numeric_curvature(concrete, coordinates, point)
         exact = (engine_value(geometry.ricci_scalar, values),
                  engine_value(geometry.kretschmann, values))
