@@ -172,16 +172,16 @@ def test_the_pull_request_step_warns_about_a_renamed_copy(tmp_path: Path, monkey
     box.commit("catalog")
     box.git("checkout", "-q", "-b", "contribution")
     copy = re.sub(r"\bM\b", "m", original).replace("id: schwarzschild\n", "id: lamp-hole\n")
-    box.write("catalog/black-holes/lamp-hole.yaml", copy)
+    box.write("catalog/isolated-objects/lamp-hole.yaml", copy)
     box.commit("a new black hole")
     monkeypatch.chdir(box.root)
     capsys.readouterr()
     code = cli.main([*pull_request_command(), "--no-progress", "--jobs", "1"])
     out = capsys.readouterr().out
-    assert code == 0
+    assert code == 0, out
     warnings = [line for line in out.splitlines() if line.startswith("::warning")]
     assert len(warnings) == 1, out
-    assert "file=catalog/black-holes/lamp-hole.yaml,line=2" in warnings[0]
+    assert "file=catalog/isolated-objects/lamp-hole.yaml,line=2" in warnings[0]
     assert "schwarzschild" in warnings[0] and "entry.duplicate" in warnings[0]
 
 
