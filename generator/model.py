@@ -356,10 +356,30 @@ class Horizon:
     area_numeric: str = ""
     area_digits: int = 0
     area_parameters: tuple[tuple[str, str], ...] = ()
+    # Where the horizon's generator turns in more than one plane (∂_t + Σ_j Ω_j ∂_{φ_j},
+    # e.g. two planes in five dimensions): (coordinate, Ω_j) for each; ``angular_velocity``
+    # is then None. Empty with one plane or none.
+    angular_velocities: tuple[tuple[str, sympy.Expr], ...] = ()
+    # A cross-section not compact in cyclic directions with no declared range (a black
+    # string's z, a planar horizon's x, y): ``area`` is None and ``area_per_unit`` is the
+    # area per unit coordinate range of the directions ``area_per`` (also set for a numeric
+    # area, whose ``area_numeric`` is then per unit range too).
+    area_per_unit: sympy.Expr | None = None
+    area_per: tuple[str, ...] = ()
+    # Range ends of a cross-section coordinate fixed by the metric without closed form (the
+    # C-metric's x between two roots of its structure function): (symbol in ``area``,
+    # coordinate, defining polynomial in the symbol, numeric value at the first sample
+    # parameters, "lower" | "upper").
+    area_roots: tuple[tuple[str, str, sympy.Expr, str, str], ...] = ()
 
     @property
     def entropy(self) -> sympy.Expr | None:
         return None if self.area is None else self.area / 4
+
+    @property
+    def entropy_per_unit(self) -> sympy.Expr | None:
+        """S = A/4 per unit coordinate range of ``area_per`` (Bekenstein–Hawking density)."""
+        return None if self.area_per_unit is None else self.area_per_unit / 4
 
 
 @dataclass(frozen=True)

@@ -34,6 +34,7 @@ from generator.geometry.curvature import Budget, FieldArithmetic, Limits, invers
 from generator.geometry.equality import canonical, exact_square_root
 from generator.geometry.sampling import Point, angle_coordinates, entry_points, numeric_value
 from generator.model import Geometry, Horizon, Spacetime
+from generator.physics.cross_section import AxisRange, RangeRoot, axis_range, per_unit_words
 from generator.physics.rootfield import RootField, root_field
 
 H = sympy.Symbol("h_root", real=True)
@@ -95,6 +96,11 @@ def closed_form_roots(polynomial: sympy.Expr, x: sympy.Symbol) -> list[sympy.Exp
         root = sympy.sqrt(sympy.factor(b**2 - 4 * a * c))
         squares = [(-b + root) / (2 * a), (-b - root) / (2 * a)]
         return [s * sympy.sqrt(q) for q in squares for s in (1, -1)]
+    if degree > 2 and all(c == 0 for c in coeffs[1:-1]):
+        # a binomial a x^n + c (the planar AdS black hole's r³ = 2mℓ²): the real n-th roots
+        value = sympy.factor(-coeffs[-1] / coeffs[0])
+        return [sympy.root(value, degree), -sympy.root(value, degree),
+                -sympy.root(-value, degree), sympy.root(-value, degree)]
     return None
 
 
@@ -239,7 +245,9 @@ class HorizonAlgebra:
         self.reasons: dict[str, str] = {}
         self.time, self.rotations = killing_coordinates(spacetime, points)
         self.probe = simple_point(spacetime, points[0])
-        self.omega: Frac | None = None
+        self.probes = simple_probes(spacetime, self.probe, self.others())
+        self.omega: Frac | None = None  # Ω_H when at most one rotation plane
+        self.omegas: dict[int, Frac] = {}  # Ω_j by coordinate index, every rotation plane
         self.kappa_squared: Frac | None = None
         self.kappa_root: Frac | None = None  # ±κ when κ² is visibly a square in h
         self.area_density: Frac | None = None
@@ -264,8 +272,17 @@ class HorizonAlgebra:
                    if not field.diff(value, i).is_zero())
 
     def fixed(self, value: Frac) -> Frac | None:
-        """``value`` with the other coordinates set to a sample point (valid when it is
-        constant on the horizon); None when a generator has no rational value there."""
+        """``value`` with the other coordinates set to a point (valid when it is constant on
+        the horizon: then every point where it is defined gives the same value at the root);
+        the shortest of the sample point and simple points (angles at 0 or π/2, other
+        coordinates at 0 or 1), so that no digits of a random sample point are shown. None
+        when no generator has a rational value at any of them."""
+        found = [v for v in (self._fixed_at(value, probe) for probe in self.probes)
+                 if v is not None]
+        return min(found, key=lambda v: (v.size(), len(str(v.num)) + len(str(v.den))),
+                   default=None)
+
+    def _fixed_at(self, value: Frac, point: Point) -> Frac | None:
         field = self.rf.field
         angles = angle_coordinates(self.spacetime)
         from generator.geometry.sampling import substitute
@@ -278,7 +295,10 @@ class HorizonAlgebra:
                 continue
             if value.num.degrees()[k] == 0 and value.den.degrees()[k] == 0:
                 continue
-            number = substitute(spec.meaning, self.probe, angles)
+            try:
+                number = substitute(spec.meaning, point, angles)
+            except (ZeroDivisionError, ValueError, TypeError):
+                return None
             if not number.is_Rational:
                 return None
             replacements[f"g{k}"] = number
@@ -294,36 +314,26 @@ class HorizonAlgebra:
 
     # -- the generator of the horizon
     def _generator(self) -> None:
+        """χ = ∂_t + Σ_j Ω_j ∂_{φ_j} over every axial Killing coordinate coupled to t
+        (one Ω per commuting rotation: two in five dimensions, ⌊(n−1)/2⌋ in general), with
+        the Ω_j solving χ_a = 0 on the horizon for each rotation a (Cramer's rule in the
+        root's field): then χ_a is along dx there, checked for every other a."""
         g, field = self.rf.metric, self.rf.field
         if self.time is None:
             self.reasons["normal_killing_vector"] = ("the metric depends on every coordinate "
                                                      "but x: no stationary Killing vector ∂_t")
             return
         t = self.time
-        rotating = [j for j in self.rotations if not g[t][j].is_zero()]
-        if len(rotating) > 1:
-            self.reasons["normal_killing_vector"] = "more than one rotation plane"
+        rotating = coupled_rotations(g, t, self.rotations)
+        omegas = self._angular_velocities(rotating)
+        if omegas is None:
             return
-        omega = field.zero()
-        if rotating:
-            j = rotating[0]
-            top, bottom = self.rf.at_root(g[t][j]), self.rf.at_root(g[j][j])
-            if top is None or bottom is None or bottom.is_zero():
-                self.reasons["normal_killing_vector"] = "g_tφ / g_φφ is singular there"
-                return
-            omega = field.neg(field.div(top, bottom))
-            if not self.constant_on_horizon(omega):
-                self.reasons["normal_killing_vector"] = ("the angular velocity -g_tφ/g_φφ is "
-                                                         "not constant on it")
-                return
-            omega = self.fixed(omega)
-            if omega is None:
-                self.reasons["normal_killing_vector"] = "Ω_H has no rational sample value"
-                return
-        self.omega = omega
+        self.omegas = omegas
+        self.omega = omegas[rotating[0]] if len(rotating) == 1 else (
+            field.zero() if not rotating else None)
         self.rotating = rotating
         n = self.spacetime.dimension
-        chi = {a: field.sum([g[a][t]] + [field.mul(omega, g[a][j]) for j in rotating])
+        chi = {a: field.sum([g[a][t]] + [field.mul(omegas[j], g[a][j]) for j in rotating])
                for a in range(n)}
         for a in range(n):
             if a == self.rf.x_index:
@@ -331,9 +341,48 @@ class HorizonAlgebra:
             lowered = self.rf.at_root(chi[a])
             if lowered is None or (not lowered.is_zero() and not self.rf.vanishes(lowered.num)):
                 self.reasons["normal_killing_vector"] = (
-                    "no Killing vector ∂_t + Ω ∂_φ is normal to it (χ_a is not along dx)")
+                    "no Killing vector ∂_t + Σ Ω ∂_φ is normal to it (χ_a is not along dx)")
+                self.omega, self.omegas = None, {}
                 return
         self.chi = chi
+
+    def _angular_velocities(self, rotating: list[int]) -> dict[int, Frac] | None:
+        """Ω_j for the rotations ``rotating`` (Σ_j g_aj Ω_j = −g_at at the root), each
+        constant on the horizon and fixed at a sample point; None with the reason recorded
+        where they do not exist."""
+        g, field = self.rf.metric, self.rf.field
+        t = self.time
+        if not rotating:
+            return {}
+        ar = FieldArithmetic(field)
+        matrix, rhs = [], []
+        for a in rotating:
+            row = [self.rf.at_root(g[a][j]) for j in rotating]
+            right = self.rf.at_root(g[a][t])
+            if right is None or any(v is None for v in row):
+                self.reasons["normal_killing_vector"] = "g_tφ / g_φφ is singular there"
+                return None
+            matrix.append(row)
+            rhs.append(field.neg(right))
+        det = field_det(ar, matrix)
+        if det.is_zero() or self.rf.vanishes(det.num):
+            self.reasons["normal_killing_vector"] = ("the rotations' metric block is degenerate "
+                                                     "there: no unique angular velocities")
+            return None
+        omegas: dict[int, Frac] = {}
+        for k, j in enumerate(rotating):
+            replaced = [[*row[:k], rhs[i], *row[k + 1:]] for i, row in enumerate(matrix)]
+            omega = field.div(field_det(ar, replaced), det)
+            if not self.constant_on_horizon(omega):
+                self.reasons["normal_killing_vector"] = ("the angular velocity -g_tφ/g_φφ is "
+                                                         "not constant on it")
+                return None
+            omega = self.fixed(omega)
+            if omega is None:
+                self.reasons["normal_killing_vector"] = "Ω_H has no rational sample value"
+                return None
+            omegas[j] = omega
+        return omegas
 
     # -- κ²
     def _surface_gravity(self) -> None:
@@ -360,6 +409,14 @@ class HorizonAlgebra:
         self.kappa_squared = self.fixed(value)
         if self.kappa_squared is not None:
             self.kappa_root = self.rf.field.square_root(self.kappa_squared)
+        if self.kappa_squared is not None and location_free(self):
+            # the remainder modulo P(h) is equal at every root; shown when it has fewer
+            # terms and loses no visible square root
+            reduced = self.rf.reduce(self.kappa_squared)
+            if reduced is not None and reduced.size() < self.kappa_squared.size():
+                root = self.rf.field.square_root(reduced)
+                if root is not None or self.kappa_root is None:
+                    self.kappa_squared, self.kappa_root = reduced, root
         if self.kappa_squared is None:
             self.reasons["surface_gravity"] = "κ² has no rational sample value"
 
@@ -396,6 +453,35 @@ def simple_point(spacetime: Spacetime, point: Point) -> Point:
     return probe
 
 
+SIMPLE_PROBES = 16  # at most this many simple points are tried per quantity
+
+
+def simple_probes(spacetime: Spacetime, probe: Point, others: Sequence[int]) -> list[Point]:
+    """The sample point, then points with each other coordinate moved to a simple value:
+    angles to 0 or π/2 (sin and cos 0 or 1), other coordinates to 0 or 1."""
+    from itertools import islice, product
+
+    angles = set(angle_coordinates(spacetime))
+    choices = []
+    for i in others:
+        y = spacetime.coordinates[i]
+        if y in angles:
+            choices.append([(y, sympy.Integer(0), 0, 1), (y, sympy.pi / 2, 1, 0)])
+        else:
+            choices.append([(y, sympy.Integer(0), None, None), (y, sympy.Integer(1), None,
+                                                                 None)])
+    out = [probe]
+    for combination in islice(product(*choices), SIMPLE_PROBES):
+        point = dict(probe)
+        for y, value, sine, cosine in combination:
+            point[y] = value
+            if sine is not None:
+                point[sympy.sin(y)] = sympy.Integer(sine)
+                point[sympy.cos(y)] = sympy.Integer(cosine)
+        out.append(point)
+    return out
+
+
 def field_det(ar: FieldArithmetic, m: list[list[Frac]]) -> Frac:
     size = len(m)
     if size == 0:
@@ -410,6 +496,20 @@ def field_det(ar: FieldArithmetic, m: list[list[Frac]]) -> Frac:
         term = ar.product(m[0][j], field_det(ar, minor))
         terms.append(term if j % 2 == 0 else ar.scale(term, -1))
     return ar.sum(terms)
+
+
+def coupled_rotations(g: Sequence[Sequence[Frac]], t: int, rotations: list[int]) -> list[int]:
+    """The axial Killing coordinates coupled to t: those with g_tφ ≠ 0 and, closing the set,
+    those with g_φψ ≠ 0 to one already in it (their Ω must cancel that coupling)."""
+    found = [j for j in rotations if not g[t][j].is_zero()]
+    grown = True
+    while grown:
+        grown = False
+        for j in rotations:
+            if j not in found and any(not g[j][k].is_zero() for k in found):
+                found.append(j)
+                grown = True
+    return sorted(found)
 
 
 def cyclic_coordinates(spacetime: Spacetime) -> list[int]:
@@ -471,15 +571,24 @@ def make_horizon(spacetime: Spacetime, geometry: Geometry, x_index: int,
             return None
         return in_location(data.rf.field.display(value_frac), location)
 
-    omega = shortest(at(data.omega, "angular_velocity"), spacetime, location)
     vector = None
-    if data.omega is not None:
+    omegas: tuple[tuple[str, sympy.Expr], ...] = ()
+    if data.chi:
+        omegas = tuple((names[j], shortest(at(data.omegas[j], "angular_velocity"), spacetime,
+                                           location)) for j in data.rotating)
         vector = ((names[data.time], sympy.Integer(1)),
-                  *((names[j], omega) for j in data.rotating if omega != 0))
-        if not data.rotating and not data.rotations:
-            omega = None
-            reasons["angular_velocity"] = "no axial Killing coordinate"
-    kappa_squared = at(data.kappa_squared, "surface_gravity")
+                  *((name, w) for name, w in omegas if w != 0))
+    if len(data.rotating) > 1 and data.chi:
+        omega = None
+        reasons["angular_velocity"] = (f"{len(data.rotating)} rotation planes: one angular "
+                                       "velocity each (" + ", ".join(
+                                           f"Ω_{name}" for name, _ in omegas) + ")")
+    else:
+        omega = shortest(at(data.omega, "angular_velocity"), spacetime, location)
+    if data.chi and not data.rotating and not data.rotations:
+        omega = None
+        reasons["angular_velocity"] = "no axial Killing coordinate"
+    kappa_squared = shortest(at(data.kappa_squared, "surface_gravity"), spacetime, location)
     kappa = None
     numeric_point = {p: points[0][p] for p in spacetime.parameters if p in points[0]}
     numeric_point[H] = sympy.Rational(mpmath.nstr(value, 25))
@@ -492,8 +601,12 @@ def make_horizon(spacetime: Spacetime, geometry: Geometry, x_index: int,
     if kappa_squared is not None and kappa is None:
         reasons["surface_gravity"] = "κ² found but its sign could not be fixed"
     temperature = None if kappa is None else kappa / (2 * sympy.pi)
-    area, area_how = horizon_area(spacetime, data, location, numeric_point)
+    exact = horizon_area(spacetime, data, location, numeric_point)
+    if exact.value is not None and exact.roots:
+        exact = cross_checked(exact, spacetime, data, value, numeric_point)
+    area, area_how = exact.value, exact.how
     numeric_area: NumericArea | None = None
+    extra: dict = {}
     if area is None:
         numeric_area, numeric_why = numeric_area_at(spacetime, data, value, numeric_point)
         if numeric_area is None:
@@ -503,15 +616,54 @@ def make_horizon(spacetime: Spacetime, geometry: Geometry, x_index: int,
             reasons["area"] = (f"{area_how}: the area is given numerically ({NUMERIC_AREA_DIGITS} "
                                "significant digits) at the first sample parameters")
             how += f"; area numeric ({numeric_area.how})"
+            extra = {"area_method": "numeric", "area_numeric": numeric_area.value,
+                     "area_digits": NUMERIC_AREA_DIGITS,
+                     "area_parameters": numeric_area.parameters,
+                     "area_per": numeric_area.per_unit}
+            if numeric_area.per_unit:
+                reasons["area"] = (f"the cross-section is not compact in "
+                                   f"{', '.join(numeric_area.per_unit)}: the area is given "
+                                   f"{per_unit_words(numeric_area.per_unit)}, numerically")
     else:
         how += f"; area {area_how}"
-    extra = {} if numeric_area is None else {
-        "area_method": "numeric", "area_numeric": numeric_area.value,
-        "area_digits": NUMERIC_AREA_DIGITS, "area_parameters": numeric_area.parameters}
-    if area is not None:
         extra["area_method"] = "exact"
+        extra["area_roots"] = tuple((str(r.symbol), r.coordinate, r.polynomial, r.numeric,
+                                     r.end) for r in exact.roots)
+        if exact.per_unit:
+            extra["area_per_unit"], extra["area_per"] = area, exact.per_unit
+            reasons["area"] = (f"the cross-section is not compact in {', '.join(exact.per_unit)}"
+                               f": the area is given {per_unit_words(exact.per_unit)} instead "
+                               "(a total would depend on an identification the entry does not "
+                               "declare)")
+            area = None
+    if len(omegas) > 1:
+        extra["angular_velocities"] = omegas
     return Horizon(str(x), shown_location, polynomial, "", vector, omega, kappa_squared, kappa,
                    temperature, area, how, reasons, mpmath.nstr(value, 20), **extra)
+
+
+def cross_checked(exact: ExactArea, spacetime: Spacetime, data: HorizonAlgebra,
+                  value: mpmath.mpf, numeric_point: dict) -> ExactArea:
+    """An exact area that holds range ends without closed form, kept only when mpmath's
+    quadrature of the density between the numeric ends agrees with it at the first sample
+    parameters (a pole of the density inside the range would make the antiderivative
+    lie)."""
+    from dataclasses import replace
+
+    numeric, _ = numeric_area_at(spacetime, data, value, numeric_point)
+    point = dict(numeric_point)
+    point.update({sympy.Symbol(r.symbol.name, real=True): sympy.Rational(r.numeric)
+                  for r in exact.roots})
+    number = numeric_value(exact.value.xreplace(point), DIGITS)
+    if numeric is None or number is None or abs(mpmath.im(number)) > 0 or abs(
+            mpmath.re(number) - mpmath.mpf(numeric.value)) > mpmath.mpf(10) ** (
+            3 - NUMERIC_AREA_DIGITS) * abs(mpmath.mpf(numeric.value)):
+        return replace(exact, value=None, how=(
+            "no area: the antiderivative between the range's ends is not confirmed by "
+            "quadrature, as where the density diverges on the range (a horizon that reaches "
+            "conformal infinity has no finite area)"))
+    return replace(exact, how=exact.how + "; agrees with mpmath quadrature at the first "
+                   "sample parameters")
 
 
 def domain_place(spacetime: Spacetime, x: sympy.Symbol, value: mpmath.mpf, point: Point) -> str:
@@ -629,39 +781,84 @@ def denested_root(square: sympy.Expr, spacetime: Spacetime) -> sympy.Expr | None
 # ---------------------------------------------------------------------------- area
 
 
-def cross_section_ranges(spacetime: Spacetime, data: HorizonAlgebra
-                         ) -> list[tuple[sympy.Symbol, sympy.Expr, sympy.Expr]] | str:
+@dataclass(frozen=True)
+class CrossSection:
+    """The horizon cross-section's coordinate ranges: ``ranges`` are integrated over;
+    ``per_unit`` are cyclic directions with no range (the area is per unit coordinate
+    range of them); ``roots`` stand for range ends without closed form; ``words`` say how
+    each range was fixed."""
+
+    ranges: tuple[tuple[sympy.Symbol, sympy.Expr, sympy.Expr], ...]
+    per_unit: tuple[sympy.Symbol, ...]
+    roots: tuple[RangeRoot, ...]
+    numeric_ends: dict
+    words: tuple[str, ...]
+
+
+def cross_section_ranges(spacetime: Spacetime, data: HorizonAlgebra) -> CrossSection | str:
     """The coordinate ranges of the horizon's cross-section (polar angles from the domain,
-    azimuths of period 2π), or why it has none."""
-    ranges = []
+    azimuths of period 2π, a coordinate between two axes from the metric, cyclic directions
+    with no range per unit coordinate range), or why it has none."""
+    ranges, per_unit, roots, words = [], [], [], []
+    numeric_ends: dict = {}
     cyclic = set(cyclic_coordinates(spacetime))
+    azimuths = [a for a in data.block if a in cyclic and str(spacetime.coordinates[a])
+                in AZIMUTHS]
     for a in data.block:
         y = spacetime.coordinates[a]
         bounds = angle_range(spacetime, y)
         if bounds is not None:
             ranges.append((y, *bounds))
-        elif a in cyclic and str(y) in AZIMUTHS:
+            continue
+        if a in azimuths:
             ranges.append((y, sympy.Integer(0), 2 * sympy.pi))
+            continue
+        found = axis_range(spacetime, a, azimuths, data.points) if a not in cyclic else None
+        if isinstance(found, AxisRange):
+            ranges.append((y, found.low, found.high))
+            roots += found.roots
+            words.append(found.describe(y))
+            for end, number in zip((found.low, found.high), found.numeric, strict=True):
+                numeric_ends[end] = number
+        elif a in cyclic:
+            per_unit.append(y)
         else:
-            return (f"the cross-section is not compact in {y} (no range known): an area "
-                    "per unit coordinate range would depend on the chart")
-    return ranges
+            return found or (f"the cross-section is not compact in {y} and {y} is not a "
+                             "cyclic direction: no range is known and an area per unit "
+                             "coordinate range would not be constant")
+    return CrossSection(tuple(ranges), tuple(per_unit), tuple(roots), numeric_ends,
+                        tuple(words))
+
+
+@dataclass(frozen=True)
+class ExactArea:
+    """The area (or the area per unit coordinate range of ``per_unit``), how it was found,
+    and the range ends without closed form it holds."""
+
+    value: sympy.Expr | None
+    how: str
+    per_unit: tuple[str, ...] = ()
+    roots: tuple[RangeRoot, ...] = ()
 
 
 def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Expr | None,
-                 numeric_point: dict) -> tuple[sympy.Expr | None, str]:
+                 numeric_point: dict) -> ExactArea:
     """∫ sqrt(det γ) over the horizon's cross-section t = const: exact when the density is a
     product of angle factors and a constant whose square root is found, over known ranges.
     Where the root has no closed form, the density is first reduced modulo its polynomial
     (terms that vanish only at the root drop out) and the constant part may stay a square
     root of an expression in h_root: still exact at the root."""
     if data.area_density is None:
-        return None, data.reasons.get("area", "not computed")
-    ranges = cross_section_ranges(spacetime, data)
-    if isinstance(ranges, str):
-        return None, ranges
+        return ExactArea(None, data.reasons.get("area", "not computed"))
+    section = cross_section_ranges(spacetime, data)
+    if isinstance(section, str):
+        return ExactArea(None, section)
+    ranges = section.ranges
     angles = [y for y, _, _ in ranges]
+    free = {r.symbol for r in section.roots}
     in_h = data.rf.field.display(data.area_density)
+    if any(in_h.has(y) for y in section.per_unit):
+        return ExactArea(None, "the area density depends on a direction with no range")
     root = density_root(in_h, spacetime, angles)
     if root is not None:
         root = in_location(root, location)
@@ -674,19 +871,23 @@ def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Exp
             root = density_root(data.rf.field.display(reduced), spacetime, angles,
                                 radical_in_root=True)
     if root is None:
-        return None, "the area density has no exact square root in the field"
+        return ExactArea(None, "the area density has no exact square root in the field")
     root = positive_cosines(root, ranges)
     try:
         integral = root
         for y, low, high in reversed(ranges):
             integral = sympy.integrate(integral, (y, low, high))
     except (ValueError, TypeError, NotImplementedError):
-        return None, "the area integral is not elementary here"
+        return ExactArea(None, "the area integral is not elementary here")
     if integral.has(sympy.Integral):
-        return None, "the area integral is not elementary here"
-    area = signed_positive(sympy.factor(integral), numeric_point, spacetime)
+        return ExactArea(None, "the area integral is not elementary here")
+    point = dict(numeric_point)
+    point.update({r.symbol: sympy.Rational(r.numeric) for r in section.roots})
+    area = signed_positive(sympy.factor(integral), point, spacetime)
     if area is None:
-        return None, "the area came out zero or not real at the sample parameters"
+        return ExactArea(None, "the area came out zero or not real at the sample parameters")
+    if free and not area.free_symbols & free:
+        area = sympy.factor(area)
     parts = []
     if any(polar_range(spacetime, y) for y in angles):
         parts.append("polar angles over (0, π) from the domain")
@@ -694,7 +895,12 @@ def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Exp
         parts.append("polar angles over (0, π/2) from the domain")
     if any(str(y) in AZIMUTHS for y in angles):
         parts.append(PERIOD_NOTE)
-    return area, "exact" + (": " + "; ".join(parts) if parts else "")
+    parts += list(section.words)
+    names = tuple(str(y) for y in section.per_unit)
+    if names:
+        parts.append(f"{per_unit_words(names)} (not compact: no range known, no total area)")
+    return ExactArea(area, "exact" + (": " + "; ".join(parts) if parts else ""), names,
+                     section.roots)
 
 
 NUMERIC_AREA_DIGITS = 15  # significant digits reported for a numeric area
@@ -706,6 +912,7 @@ class NumericArea:
     value: str
     parameters: tuple[tuple[str, str], ...]
     how: str
+    per_unit: tuple[str, ...] = ()
 
 
 def numeric_area_at(spacetime: Spacetime, data: HorizonAlgebra, root: mpmath.mpf,
@@ -715,9 +922,14 @@ def numeric_area_at(spacetime: Spacetime, data: HorizonAlgebra, root: mpmath.mpf
     positive, the value not finite, or the quadrature's error estimate too large."""
     if data.area_density is None:
         return None, "no area density"
-    ranges = cross_section_ranges(spacetime, data)
-    if isinstance(ranges, str):
-        return None, ranges
+    section = cross_section_ranges(spacetime, data)
+    if isinstance(section, str):
+        return None, section
+    ranges = [(y, section.numeric_ends.get(low, low), section.numeric_ends.get(high, high))
+              for y, low, high in section.ranges]
+    ranges = [(y, sympy.Rational(low) if isinstance(low, str) else low,
+               sympy.Rational(high) if isinstance(high, str) else high)
+              for y, low, high in ranges]
     reduced = data.rf.reduce(data.area_density) if location_free(data) else None
     density = data.rf.field.display(reduced if reduced is not None else data.area_density)
     fixed = {p: v for p, v in point.items() if p != H}
@@ -747,7 +959,9 @@ def numeric_area_at(spacetime: Spacetime, data: HorizonAlgebra, root: mpmath.mpf
            f"{mpmath.nstr(root, 20)} for " + ", ".join(f"{p} = {v}" for p, v in parameters))
     if any(str(y) in AZIMUTHS for y, _, _ in ranges):
         how += "; " + PERIOD_NOTE
-    return NumericArea(shown, parameters, how), ""
+    if section.per_unit:
+        how += "; " + per_unit_words([str(y) for y in section.per_unit])
+    return NumericArea(shown, parameters, how, tuple(str(y) for y in section.per_unit)), ""
 
 
 def location_free(data: HorizonAlgebra) -> bool:
@@ -799,7 +1013,7 @@ def density_root(density: sympy.Expr, spacetime: Spacetime,
             piece = base ** (power // 2)
             if isinstance(base, sympy.sin) or (base.is_Pow and isinstance(base.base, sympy.sin)):
                 angular *= piece
-            elif base.free_symbols <= set(angles) | set(spacetime.parameters):
+            elif base.free_symbols <= set(angles) | set(spacetime.parameters) | {H}:
                 angular *= sympy.Abs(piece)
             else:
                 return None
@@ -882,6 +1096,36 @@ def polar_range(spacetime: Spacetime, y: sympy.Symbol) -> tuple[sympy.Expr, symp
 # ---------------------------------------------------------------------------- kinds
 
 
+def inward_coordinate(spacetime: Spacetime, x_index: int, point: Point) -> bool:
+    """Does the coordinate x grow inwards? Outwards is where the orbits of the other
+    spatial coordinates grow: the determinant of the metric on them (t and x left out)
+    shrinks as x grows at the sample point (e.g. the C-metric's y, which is like 1/r). A
+    determinant that does not change (a product with a constant sphere) keeps x's own
+    direction."""
+    from generator.geometry.sampling import substitute
+
+    time, _ = killing_coordinates(spacetime, [point])
+    block = [a for a in range(spacetime.dimension) if a not in (x_index, time)]
+    if time is None or not block:
+        return False
+    x = spacetime.coordinates[x_index]
+    if x not in point or not point[x].is_Rational:
+        return False
+    angles = angle_coordinates(spacetime)
+    det = spacetime.metric.extract(block, block).det(method="berkowitz")
+    step = sympy.Rational(1, 10**6) * (1 + abs(point[x]))
+    values = []
+    for shifted in (point[x] - step, point[x] + step):
+        probe = dict(point)
+        probe[x] = shifted
+        number = numeric_value(substitute(det, probe, angles), DIGITS)
+        if number is None or abs(mpmath.im(number)) > abs(mpmath.re(number)) * 1e-20:
+            return False
+        values.append(abs(mpmath.re(number)))
+    return values[1] < values[0] * (1 - mpmath.mpf(10) ** -12)
+
+
+
 def classify_kinds(spacetime: Spacetime, geometry: Geometry, horizons: list[Horizon],
                    point: Point) -> list[Horizon]:
     """Kinds from the sign of g^{xx} just below and just above each root (at the first sample
@@ -911,6 +1155,9 @@ def classify_kinds(spacetime: Spacetime, geometry: Geometry, horizons: list[Hori
                 number = numeric_value(substitute(component, probe, angles), DIGITS)
                 signs.append(0 if number is None else mpmath.sign(mpmath.re(number)))
             turns.append(tuple(signs))
+        if inward_coordinate(spacetime, index, point):
+            # x grows inwards (the C-metric's y ~ 1/r): "outwards" is decreasing x
+            group, turns = group[::-1], [(above, below) for below, above in turns[::-1]]
         black = [k for k, turn in enumerate(turns) if turn == (-1, 1)]
         for k, (h, turn) in enumerate(zip(group, turns, strict=True)):
             if h.kind == "undetermined":
