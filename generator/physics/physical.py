@@ -121,6 +121,10 @@ def computed_claim(name: str, data: PhysicalData) -> tuple[sympy.Expr | None, st
         if horizon is None:
             return None, data.reasons.get("horizons", "no event or cosmological horizon")
         value = getattr(horizon, HORIZON_CLAIMS[name])
+        if name == "horizon_area" and value is not None and horizon.area_roots:
+            return None, ("the area holds the roots " + ", ".join(
+                r[0] for r in horizon.area_roots) + " that bound the cross-section; a claim "
+                "of it is not compared in this version")
         return value, horizon.reasons.get(HORIZON_CLAIMS[name], "not computed")
     if name in ORBIT_CLAIMS or name in CHARGE_CLAIMS:
         return getattr(data, name), data.reasons.get(name, "")

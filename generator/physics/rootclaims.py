@@ -58,14 +58,46 @@ def has_radical(expr: sympy.Expr) -> bool:
     return any(not p.exp.is_Integer for p in expr.atoms(sympy.Pow))
 
 
+REFINED_DIGITS = 80  # the root is refined to this many digits before a sign is read
+
+
 def numeric_at_root(expr: sympy.Expr, spacetime: Spacetime, h: sympy.Symbol,
-                    root: str) -> mpmath.mpc | None:
+                    root: str, polynomial: sympy.Expr | None = None) -> mpmath.mpc | None:
+    """expr at the first sample parameters and the root (refined from its 20-digit value to
+    REFINED_DIGITS when the polynomial is given: a long expression in h_root cancels many
+    digits, and a sign read at a rough root could be the wrong one)."""
     point = entry_points(spacetime, 1)
     if not point:
         return None
     values = {p: point[0][p] for p in spacetime.parameters if p in point[0]}
-    values[h] = sympy.Rational(root)
-    return numeric_value(expr.xreplace(values), DIGITS)
+    refined = refine_root(polynomial, h, values, root) if polynomial is not None else None
+    values[h] = sympy.Rational(refined if refined is not None else root)
+    return numeric_value(expr.xreplace(values), REFINED_DIGITS if refined else DIGITS)
+
+
+def refine_root(polynomial: sympy.Expr, h: sympy.Symbol, values: dict, root: str
+                ) -> str | None:
+    """The real root of the polynomial (at the sample parameters) nearest ``root``, to
+    REFINED_DIGITS digits; None when there is no real root near it."""
+    try:
+        coeffs = sympy.Poly(polynomial.xreplace(values), h).all_coeffs()
+    except sympy.PolynomialError:
+        return None
+    with mpmath.workdps(REFINED_DIGITS + 20):
+        try:
+            found = mpmath.polyroots([mpmath.mpf(sympy.Rational(c).p) / sympy.Rational(c).q
+                                      for c in coeffs], maxsteps=400, extraprec=400)
+        except (mpmath.libmp.NoConvergence, ZeroDivisionError, ValueError):
+            return None
+        target = mpmath.mpf(root)
+        real = [mpmath.re(r) for r in found
+                if abs(mpmath.im(r)) < mpmath.mpf(10) ** -REFINED_DIGITS * (1 + abs(r))]
+        if not real:
+            return None
+        best = min(real, key=lambda r: abs(r - target))
+        if abs(best - target) > mpmath.mpf(10) ** -12 * (1 + abs(target)):
+            return None
+        return mpmath.nstr(best, REFINED_DIGITS)
 
 
 def decide_at_root(claimed: sympy.Expr, computed: sympy.Expr, spacetime: Spacetime,
@@ -77,13 +109,13 @@ def decide_at_root(claimed: sympy.Expr, computed: sympy.Expr, spacetime: Spaceti
     claim_h = claimed.xreplace({x: h})
     if not has_radical(claim_h) and not has_radical(computed):
         return exact_at_root(claim_h, computed, spacetime, x_index, polynomial, h)
-    squares = exact_at_root(sympy.expand(claim_h**2), sympy.expand(computed**2), spacetime,
+    squares = exact_at_root(claim_h**2, computed**2, spacetime,
                             x_index, polynomial, h, radicals_allowed=False)
     if squares.equal is not True:
         return squares if squares.equal is None else RootDecision(
             False, "exact", "the squares differ at the root (exact, modulo its polynomial)")
-    left = numeric_at_root(claim_h, spacetime, h, root)
-    right = numeric_at_root(computed, spacetime, h, root)
+    left = numeric_at_root(claim_h, spacetime, h, root, polynomial)
+    right = numeric_at_root(computed, spacetime, h, root, polynomial)
     if left is None or right is None or not (mpmath.isfinite(left) and mpmath.isfinite(right)):
         return RootDecision(None, "failed", "the sign at the sample root could not be read")
     tiny = mpmath.mpf(10) ** (10 - DIGITS)

@@ -32,6 +32,15 @@ def horizon_json(h: Horizon) -> dict[str, Any]:
             "value": h.area_numeric, "significant_digits": h.area_digits,
             "parameters": dict(h.area_parameters)},
         "entropy": _text(h.entropy),
+        "angular_velocities": None if not h.angular_velocities
+        else {name: str(value) for name, value in h.angular_velocities},
+        "area_per_unit": None if not h.area_per else {
+            "value": _text(h.area_per_unit), "entropy": _text(h.entropy_per_unit),
+            "per_unit_of": list(h.area_per)},
+        "area_roots": [{"symbol": symbol, "coordinate": coordinate,
+                        "defining_polynomial": str(polynomial),
+                        "numeric_at_first_sample": numeric, "end": end}
+                       for symbol, coordinate, polynomial, numeric, end in h.area_roots],
         "how": h.how,
         "not_applicable": dict(sorted(h.reasons.items())),
     }

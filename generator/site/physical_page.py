@@ -29,6 +29,37 @@ def _math(name: str, value: sympy.Expr | None, coordinates: tuple) -> Markup | N
         return None
 
 
+def _many(pairs: Sequence[tuple[str, sympy.Expr]], coordinates: tuple) -> Markup | None:
+    """Several typeset equations in one formula, separated by commas."""
+    try:
+        return math_inline(r",\quad ".join(f"{name} = {mathtex.to_latex(value, coordinates)}"
+                                             for name, value in pairs))
+    except (ValueError, TypeError, RecursionError):
+        return None
+
+
+def per_unit_words(names: Sequence[str]) -> str:
+    measure = {1: "length", 2: "area", 3: "volume"}.get(len(names), f"{len(names)}-volume")
+    return f"per unit coordinate {measure} of {', '.join(names)}"
+
+
+def killing_generator(h: Horizon, coordinates: tuple) -> Markup | None:
+    """χ = ∂_t + Ω ∂_φ (+ Ω' ∂_ψ …) typeset."""
+    if not h.normal_killing_vector:
+        return None
+    terms = []
+    try:
+        for name, value in h.normal_killing_vector:
+            d = rf"\partial_{{{sympy.latex(sympy.Symbol(name))}}}"
+            if value == 1:
+                terms.append(d)
+            else:
+                terms.append(rf"\left({mathtex.to_latex(value, coordinates)}\right) {d}")
+        return math_inline(r"\chi = " + " + ".join(terms))
+    except (ValueError, TypeError, RecursionError):
+        return None
+
+
 def horizon_row(h: Horizon, coordinates: tuple, verdicts: Mapping[str, dict[str, Any]],
                 principal: bool) -> dict[str, Any]:
     symbol = sympy.Symbol(h.coordinate)
@@ -58,14 +89,31 @@ def horizon_row(h: Horizon, coordinates: tuple, verdicts: Mapping[str, dict[str,
             at = ", ".join(f"{name} = {number}" for name, number in h.area_parameters)
             note = (f"numeric: mpmath quadrature, {h.area_digits} significant digits, at {at}; "
                     "the area integral is not elementary here")
-        rows.append({"label": label, "math": shown,
-                     "text": "" if value is None else reader_text(str(value)),
+            if h.area_per:
+                label, reason = f"area {per_unit_words(h.area_per)}", ""
+        if label == "area" and h.area_roots:
+            note = "; ".join(f"{name} is the root of {polynomial} = 0 at the {end} end of "
+                             f"{coordinate}'s range (≈ {numeric} at the first sample "
+                             "parameters)"
+                             for name, coordinate, polynomial, numeric, end in h.area_roots)
+        if label == "angular velocity" and h.angular_velocities:
+            value = h.angular_velocities
+            shown = _many([(f"\\Omega_{{{sympy.latex(sympy.Symbol(name))}}}", w)
+                           for name, w in h.angular_velocities], coordinates)
+            reason = ""
+        if h.area_per_unit is not None and label in ("area", "entropy"):
+            per = per_unit_words(h.area_per)
+            value = h.area_per_unit if label == "area" else h.entropy_per_unit
+            shown = _math(r"\mathcal{A}" if label == "area" else r"\mathcal{S}", value,
+                          coordinates)
+            label, reason = f"{label} {per}", ""
+        text = "" if value is None else reader_text(
+            ", ".join(f"Ω_{n} = {w}" for n, w in value) if isinstance(value, tuple)
+            else str(value))
+        rows.append({"label": label, "math": shown, "text": text,
                      "reason": reader_text(reason), "verdict": verdict,
                      "note": reader_text(note)})
-    generator = None
-    if h.normal_killing_vector:
-        generator = " + ".join(f"{value}·∂_{name}" if value != 1 else f"∂_{name}"
-                               for name, value in h.normal_killing_vector)
+    generator = killing_generator(h, coordinates)
     return {"kind": h.kind, "coordinate": h.coordinate, "generator": generator,
             "polynomial": reader_text(str(h.polynomial)) if h.location.has(H) else "",
             "how": reader_text(h.how), "rows": rows}
