@@ -28,15 +28,19 @@ from the listed and already found vectors is judged by their 1-jets (a Killing v
 by its value and first derivatives at one point) at two random points.
 
 The search stops as soon as the listed and found vectors span the computed dimension, or when
-the ansatz, the size bound or the time budget is exhausted; it then says how many it found.
+the ansatz, the size bound or the work bound is exhausted; it then says how many it found.
+The work bound counts what the search does — random points evaluated, unknowns of the linear
+systems solved and symbolic checks of candidates — never the time it takes, so that what is
+found is the same on a slow and a fast machine (the entry's own time budget in the run stage
+stays the backstop).
 """
 
 from __future__ import annotations
 
 import itertools
 import math
+import re
 import random
-import time
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -52,8 +56,7 @@ from generator.physics.jets import BadPoint, FieldJets, primes
 from generator.physics.symmetry import lie_derivative_metric
 
 SEED = 20261204
-SECONDS = 8.0  # CPU seconds for the whole search of one entry
-MAX_UNKNOWNS = 1000  # columns of one block's linear system
+MAX_UNKNOWNS = 1400  # columns of one block's linear system
 DEGREES = (2, 3, 4)  # total degree of the non-cyclic part, tried in turn
 MAX_CYCLIC_DEGREE = 2  # total degree of the polynomial classes over all cyclic coordinates
 MAX_RATES = 2  # candidate rates k per cyclic coordinate
@@ -66,14 +69,54 @@ HYPERBOLIC = (sympy.sinh, sympy.cosh)
 
 
 @dataclass(frozen=True)
+class WorkBound:
+    """How much work one entry's search may do, counted in deterministic units (see module
+    docstring): random points of the metric's field evaluated, unknowns (columns) of the linear
+    systems solved — the reductions of the monomials included — and symbolic checks of
+    candidate vectors by Killing's equation."""
+
+    points: int = 1500
+    unknowns: int = 40000
+    checks: int = 60
+
+
+WORK_BOUND = WorkBound()
+WORK_KINDS = ("points", "unknowns", "checks")
+
+
+class WorkBoundReached(Exception):
+    """The search has done as much work as its bound allows."""
+
+
+class Work:
+    """The work done so far against a bound; ``spend`` is called before the work is done."""
+
+    def __init__(self, bound: WorkBound) -> None:
+        self.bound = bound
+        self.used = dict.fromkeys(WORK_KINDS, 0)
+
+    def spend(self, kind: str, amount: int = 1) -> None:
+        if self.used[kind] + amount > getattr(self.bound, kind):
+            raise WorkBoundReached(kind)
+        self.used[kind] += amount
+
+    def snapshot(self) -> tuple[tuple[str, int], ...]:
+        return tuple((kind, self.used[kind]) for kind in WORK_KINDS)
+
+
+@dataclass(frozen=True)
 class SearchResult:
     """``found``: verified Killing vectors (components in coordinate order) independent of the
-    listed ones; ``rejected``: candidates the symbolic check refused (never shown)."""
+    listed ones; ``rejected``: candidates the symbolic check refused (never shown); ``work``:
+    the work done (points, unknowns, checks) and ``work_at_last_find`` the work done when the
+    last vector was found (for the benchmark that sets the bound)."""
 
     found: tuple[tuple[sympy.Expr, ...], ...]
     complete: bool
     summary: str  # what was searched and with what outcome, in words
     rejected: int = 0
+    work: tuple[tuple[str, int], ...] = ()
+    work_at_last_find: tuple[tuple[str, int], ...] = ()
 
 
 @dataclass(frozen=True)
@@ -149,11 +192,15 @@ def candidate_rates(spacetime: Spacetime) -> list[sympy.Expr]:
 
 def classes_for(x: sympy.Symbol, rates: Sequence[sympy.Expr]
                 ) -> list[tuple[str, tuple[sympy.Expr, ...]]]:
-    out: list[tuple[str, tuple[sympy.Expr, ...]]] = [("poly", (sympy.Integer(1), x, x**2))]
-    for k in rates:
-        out.append(("trig", (sympy.cos(k * x), sympy.sin(k * x))))
-        out.append(("exp", (sympy.exp(k * x),)))
-        out.append(("exp", (sympy.exp(-k * x),)))
+    # The polynomial class in levels {1} ⊂ {1, x} ⊂ {1, x, x²}: a smaller class leaves room
+    # for a higher degree in the other coordinates within the size bound.
+    # Each class is named by its kind and level or rate index (see ``_complexity``).
+    out: list[tuple[str, tuple[sympy.Expr, ...]]] = [
+        (f"poly{level}", (sympy.Integer(1), x, x**2)[:level]) for level in (1, 2, 3)]
+    for index, k in enumerate(rates):
+        out.append((f"trig{index}", (sympy.cos(k * x), sympy.sin(k * x))))
+        out.append((f"exp{index}", (sympy.exp(k * x),)))
+        out.append((f"exp{index}", (sympy.exp(-k * x),)))
     return out
 
 
@@ -171,18 +218,20 @@ def _function_atoms(spacetime: Spacetime, cyclic: Sequence[int]) -> list[Atom]:
         if i not in cyclic and any(_bare(value, x) for value in values):
             add(Atom(x, -2, 2))
     for value in values:
-        for f in value.atoms(*CIRCULAR, *HYPERBOLIC):
+        for f in _ordered(value.atoms(*CIRCULAR, *HYPERBOLIC)):
             arg = f.args[0]
             if not arg.free_symbols & coordinates:
                 continue
             sin_f, cos_f = (sympy.sin, sympy.cos) if f.func in CIRCULAR else \
                 (sympy.sinh, sympy.cosh)
             add(Atom(sin_f(arg), -1, 1))
-            add(Atom(cos_f(arg), 0, 1))
-        for f in value.atoms(sympy.exp):
+            # cosh never vanishes, and 1/cosh (tanh = sinh/cosh) is common in Killing vectors
+            # (anti-de Sitter's global chart); 1/cos is left out to keep the blocks small.
+            add(Atom(cos_f(arg), -1 if cos_f is sympy.cosh else 0, 1))
+        for f in _ordered(value.atoms(sympy.exp)):
             if f.args[0].free_symbols & coordinates:
                 add(Atom(f, -2, 2))
-        for f in value.atoms(sympy.Pow):
+        for f in _ordered(value.atoms(sympy.Pow)):
             if f.exp.is_Rational and not f.exp.is_Integer and f.base.free_symbols & coordinates:
                 add(Atom(f.base ** sympy.Rational(1, f.exp.q), -1, 1))
     for i in cyclic:
@@ -198,6 +247,12 @@ def _function_atoms(spacetime: Spacetime, cyclic: Sequence[int]) -> list[Atom]:
     return atoms
 
 
+def _ordered(found: set[sympy.Expr]) -> list[sympy.Expr]:
+    """A set of subexpressions in a fixed order (a set's order follows string hashes, which
+    change from one process to the next; the ansatz, and so what is found, must not)."""
+    return sorted(found, key=sympy.default_sort_key)
+
+
 def _bare(value: sympy.Expr, x: sympy.Symbol) -> bool:
     """Whether x occurs in ``value`` outside sin, cos, sinh, cosh and exp."""
     stripped = value.replace(lambda e: isinstance(e, (*CIRCULAR, *HYPERBOLIC, sympy.exp)),
@@ -206,20 +261,27 @@ def _bare(value: sympy.Expr, x: sympy.Symbol) -> bool:
 
 
 def _parameter_atoms(spacetime: Spacetime, rates: Sequence[sympy.Expr]) -> list[Atom]:
+    """The parameters, and each rate k with a radical in it as an atom of its own (powers −2…2):
+    a Killing vector's components then carry k itself, e.g. k = √(Λ/3) in de Sitter, with a
+    rational coefficient — written in √Λ they would need the irrational 1/√3. A parameter whose
+    square root is such a rate (up to a rational factor) is covered by the rate's powers."""
     atoms = [Atom(p, -1, 1, True) for p in spacetime.parameters]
-    known = {a.expr for a in atoms}
+    rate_atoms: list[sympy.Expr] = []
     for k in rates[1:]:
-        for f in k.atoms(sympy.Pow):
-            if f.exp.is_Rational and not f.exp.is_Integer and f.base.free_symbols \
-                    and f not in known:
-                base = f.base ** sympy.Rational(1, f.exp.q)
-                if base not in known:
-                    known.add(base)
-                    atoms.append(Atom(base, -1, 1, True))
-    # A parameter with a root among the atoms is covered by the root's powers.
-    roots = {a.expr.base for a in atoms if isinstance(a.expr, sympy.Pow)}
-    return [Atom(a.expr, -2, 2, True) if isinstance(a.expr, sympy.Pow) else a
-            for a in atoms if a.expr not in roots]
+        radical = any(f.exp.is_Rational and not f.exp.is_Integer and f.base.free_symbols
+                      for f in k.atoms(sympy.Pow))
+        if radical and not any(_rational_ratio(k * other) or _rational_ratio(k / other)
+                               for other in rate_atoms):
+            rate_atoms.append(k)
+    covered = {p for p in spacetime.parameters
+               if any(_rational_ratio(k**2 / p) or _rational_ratio(k**2 * p)
+                      for k in rate_atoms)}
+    return ([a for a in atoms if a.expr not in covered]
+            + [Atom(k, -2, 2, True) for k in rate_atoms])
+
+
+def _rational_ratio(ratio: sympy.Expr) -> bool:
+    return sympy.simplify(ratio).is_Rational is True
 
 
 def monomials(atoms: Sequence[Atom], degree: int, parameter_degree: int
@@ -273,12 +335,11 @@ class PointValues:
                  for i in range(self.n)]
         return [int(jet[0]), *(int(jet[u]) for u in units)]
 
-    def grow(self, count: int, deadline: float) -> None:
+    def grow(self, count: int, work: Work) -> None:
         attempts = 0
         while len(self.atoms) < count and attempts < 4 * count + 40:
             attempts += 1
-            if time.process_time() > deadline:
-                raise TimeoutError("time budget")
+            work.spend("points")
             try:
                 jets = FieldJets(self.field, 1, self.rng, self.p)
                 atoms = np.array([self._one_jet(jets, v)
@@ -345,8 +406,8 @@ def kernel(rows: np.ndarray, p: int) -> list[list[int]]:
     count, size = rows.shape
     matrix = flint.nmod_mat(count, size, rows.ravel().tolist(), p)
     basis, nullity = matrix.nullspace()
-    table = basis.tolist()
-    return [[int(table[i][j]) for i in range(size)] for j in range(nullity)]
+    # Only the first ``nullity`` columns hold the basis: read those, not the whole square.
+    return [[int(basis[i, j]) for i in range(size)] for j in range(nullity)]
 
 
 def rational_reconstruction(a: int, p: int) -> sympy.Rational | None:
@@ -388,13 +449,14 @@ class _State:
     signatures: list[list[int]]
     found: list[tuple[sympy.Expr, ...]]
     rejected: int = 0
+    work_at_last_find: tuple[tuple[str, int], ...] = ()
 
 
 def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy.Expr]],
-                           dimension: int, seconds: float = SECONDS) -> SearchResult:
+                           dimension: int, bound: WorkBound = WORK_BOUND) -> SearchResult:
     """Killing vectors independent of ``listed`` (already verified), until together they
     span ``dimension`` or the ansatz is exhausted (see module docstring)."""
-    deadline = time.process_time() + seconds
+    work = Work(bound)
     listed = [[sympy.sympify(c) for c in xi] for xi in listed]
     n = spacetime.dimension
     cyclic = cyclic_coordinates(spacetime)
@@ -409,8 +471,11 @@ def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy
     described = describe(spacetime, function_atoms, parameter_atoms, cyclic, rates)
     try:
         values = PointValues(spacetime, atom_exprs, listed)
-        values.grow(2, deadline)
-    except (BadPoint, NotInField, ZeroDivisionError, TimeoutError) as exc:
+        values.grow(2, work)
+    except WorkBoundReached:
+        return SearchResult((), False, "not searched: the work bound was reached while "
+                            "sampling points", work=work.snapshot())
+    except (BadPoint, NotInField, ZeroDivisionError) as exc:
         return SearchResult((), False, f"not searched: {exc}")
     state = _State([listed_signature(values, SIGNATURE_POINTS, k) for k in range(len(listed))],
                    [])
@@ -427,9 +492,9 @@ def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy
             fitting = [d for d in DEGREES if n * combinations * len(bases[d]) <= MAX_UNKNOWNS]
             base = bases[fitting[-1] if fitting else DEGREES[0]]
             _solve_block(spacetime, values, base, base_atoms, factor_exprs, choice, state,
-                         deadline)
-    except TimeoutError:
-        why = "; stopped at the time budget"
+                         work)
+    except WorkBoundReached:
+        why = "; stopped at the work bound"
     except (BadPoint, NotInField, ZeroDivisionError) as exc:
         why = f"; stopped: {exc}"
     found = tuple(state.found)
@@ -443,12 +508,16 @@ def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy
     else:
         summary = (f"{len(found)} of the {missing} missing Killing vectors found by the tool; "
                    f"the rest are not in the searched ansatz ({described}){why}")
-    return SearchResult(found, complete, summary, state.rejected)
+    return SearchResult(found, complete, summary, state.rejected, work.snapshot(),
+                        state.work_at_last_find)
 
 
-def _complexity(choice) -> tuple[int, int]:
-    """Blocks with fewer exponential or circular classes first."""
-    return (sum(kind != "poly" for kind, _ in choice), sum(len(fs) for _, fs in choice))
+def _complexity(choice) -> tuple[int, int, int]:
+    """Simplest blocks first: each exponential or circular class counts 1 and a polynomial
+    class its degree; then the rates in their order (1 first); then the number of functions."""
+    weight = sum(int(kind[4:]) - 1 if kind.startswith("poly") else 1 for kind, _ in choice)
+    rates = sum(int(kind[-1]) for kind, _ in choice if not kind.startswith("poly"))
+    return (weight, rates, sum(len(fs) for _, fs in choice))
 
 
 def _rank(state: _State, p: int) -> int:
@@ -460,19 +529,34 @@ def describe(spacetime: Spacetime, function_atoms: Sequence[Atom],
              rates: Sequence[sympy.Expr]) -> str:
     parts = ["polynomials in the coordinates (powers −2…2)"]
     if function_atoms:
-        parts.append("the functions " + ", ".join(str(a.expr) for a in function_atoms))
+        parts.append("the functions " + ", ".join(readable(a.expr) for a in function_atoms))
     if cyclic:
-        names = ", ".join(str(spacetime.coordinates[i]) for i in cyclic)
+        names = ", ".join(readable(spacetime.coordinates[i]) for i in cyclic)
         parts.append(f"exp(±kx), cos kx, sin kx for the cyclic coordinates x = {names} with "
-                     f"k in {{{', '.join(str(k) for k in rates)}}}")
+                     f"k in {{{', '.join(readable(k) for k in rates)}}}")
     if parameter_atoms:
-        parts.append("powers −1…1 of " + ", ".join(str(a.expr) for a in parameter_atoms))
+        parts.append("powers −1…1 of " + ", ".join(readable(a.expr) for a in parameter_atoms))
     return "; ".join(parts) + f"; total degree ≤ {DEGREES[-1]}"
+
+
+SUPERSCRIPT = str.maketrans("0123456789-", "⁰¹²³⁴⁵⁶⁷⁸⁹⁻")
+
+
+def readable(expr: sympy.Expr) -> str:
+    """One line of mathematics as a reader writes it — √(1 − Λr²/3), θ, r⁻¹ — never program
+    syntax (the sentence is shown on the entry's page as it is)."""
+    names = {x: sympy.Symbol(sympy.pretty(x, use_unicode=True)) for x in expr.free_symbols}
+    text = sympy.sstr(expr.xreplace(names))
+    text = re.sub(r"\*\*\((-?\d+)\)|\*\*(\d+)",
+                  lambda m: (m.group(1) or m.group(2)).translate(SUPERSCRIPT), text)
+    text = re.sub(r"\*\*\(([^()]*)\)", r"^(\1)", text)
+    return (text.replace("sqrt(", "√(").replace("*", "·").replace(" - ", " − ")
+            .replace("-", "−"))
 
 
 def _solve_block(spacetime: Spacetime, values: PointValues, base: list[tuple[int, ...]],
                  base_atoms: Sequence[Atom], factor_exprs: Sequence[sympy.Expr],
-                 choice, state: _State, deadline: float) -> None:
+                 choice, state: _State, work: Work) -> None:
     n = values.n
     factor_sets = [fs for _, fs in choice]
     width = len(base_atoms) + len(factor_exprs)
@@ -490,7 +574,7 @@ def _solve_block(spacetime: Spacetime, values: PointValues, base: list[tuple[int
     if not exponent_rows:
         return
     exponents = np.array(exponent_rows, dtype=np.int64).reshape(len(exponent_rows), width)
-    exponents = _independent_monomials(values, exponents, deadline)
+    exponents = _independent_monomials(values, exponents, work)
     if n * len(exponents) > MAX_UNKNOWNS:
         exponents = exponents[: MAX_UNKNOWNS // n]
     # Simplest monomials last: the free variables of the echelon form are then the simple
@@ -499,10 +583,9 @@ def _solve_block(spacetime: Spacetime, values: PointValues, base: list[tuple[int
     size = n * len(exponents)
     per_point = n * (n + 1) // 2
     needed = size // per_point + EXTRA_POINTS
-    values.grow(needed + 2, deadline)
+    values.grow(needed + 2, work)
+    work.spend("unknowns", size)
     rows = np.concatenate([killing_rows(values, k, exponents) for k in range(2, needed + 2)])
-    if time.process_time() > deadline:
-        raise TimeoutError("time budget")
     for vector in kernel(rows, values.p):
         signature = vector_signature(values, SIGNATURE_POINTS, exponents, vector)
         trial = [*state.signatures, signature]
@@ -510,13 +593,14 @@ def _solve_block(spacetime: Spacetime, values: PointValues, base: list[tuple[int
             continue
         candidate = _exact_vector(vector, exponents, base_atoms, factor_exprs, n, values.p,
                                   spacetime.coordinates)
+        if candidate is not None:
+            work.spend("checks")
         if candidate is None or not is_killing(candidate, spacetime):
             state.rejected += 1
             continue
         state.signatures.append(signature)
         state.found.append(candidate)
-        if time.process_time() > deadline:
-            raise TimeoutError("time budget")
+        state.work_at_last_find = work.snapshot()
 
 
 def _polynomial_degree(factor: sympy.Expr) -> int:
@@ -527,15 +611,18 @@ def _polynomial_degree(factor: sympy.Expr) -> int:
     return 0
 
 
-def _independent_monomials(values: PointValues, exponents: np.ndarray, deadline: float
+def _independent_monomials(values: PointValues, exponents: np.ndarray, work: Work
                            ) -> np.ndarray:
     """Drop monomials that are linear combinations of earlier ones (sin² = 1 − cos², a
     radical times its radicand, ...): their values at more points than monomials have the
-    earlier columns as pivots."""
+    earlier columns as pivots. A relation among the monomials holds with its first derivatives,
+    so each point gives n + 1 rows (values and derivatives) and few points are needed."""
     count = len(exponents)
-    values.grow(count + 4, deadline)
-    rows = np.array([values.monomial_jets(k, exponents)[0] for k in range(count + 4)],
-                    dtype=np.int64)
+    points = -(-(count + 4) // (values.n + 1)) + 2
+    values.grow(points, work)
+    work.spend("unknowns", count)
+    rows = np.concatenate([np.vstack([m[None, :], dm.T]) for m, dm in
+                           (values.monomial_jets(k, exponents) for k in range(points))])
     matrix = flint.nmod_mat(rows.shape[0], count, rows.ravel().tolist(), values.p)
     reduced, rank = matrix.rref()
     table = np.array(reduced.tolist()[:rank], dtype=object).astype(np.int64)
