@@ -150,8 +150,9 @@ def test_abelian_and_descriptions() -> None:
     # sl(2,ℝ) ⋉ ℝ² (the affine special linear algebra): Levi factor sl(2,ℝ), radical ℝ²,
     # not an iso(p, q) (sl(2,ℝ) preserves no symmetric form on ℝ²): described, not named.
     asl2 = []
-    for x in so_basis(2, 1)[:0] + [sympy.Matrix([[1, 0], [0, -1]]), sympy.Matrix([[0, 1], [0, 0]]),
-                                   sympy.Matrix([[0, 0], [1, 0]])]:
+    sl2 = [sympy.Matrix([[1, 0], [0, -1]]), sympy.Matrix([[0, 1], [0, 0]]),
+           sympy.Matrix([[0, 0], [1, 0]])]
+    for x in sl2:
         m = sympy.zeros(3, 3)
         m[:2, :2] = x
         asl2.append(m)

@@ -39,10 +39,10 @@ from __future__ import annotations
 
 import itertools
 import math
-import re
 import random
+import re
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import flint
 import numpy as np
@@ -53,6 +53,7 @@ from generator.geometry.exactvalues import vanishes
 from generator.model import Spacetime
 from generator.physics.isometry import matrix_rank, metric_field
 from generator.physics.jets import BadPoint, FieldJets, primes
+from generator.physics.lie_algebra import commutator
 from generator.physics.symmetry import lie_derivative_metric
 
 SEED = 20261204
@@ -76,7 +77,7 @@ class WorkBound:
     candidate vectors by Killing's equation."""
 
     points: int = 1500
-    unknowns: int = 40000
+    unknowns: int = 30000
     checks: int = 60
 
 
@@ -450,6 +451,9 @@ class _State:
     found: list[tuple[sympy.Expr, ...]]
     rejected: int = 0
     work_at_last_find: tuple[tuple[str, int], ...] = ()
+    listed: list[tuple[sympy.Expr, ...]] = field(default_factory=list)
+    from_brackets: int = 0  # found vectors that are brackets (no 1-jet in ``signatures``)
+    tried: set = field(default_factory=set)  # pairs of basis positions already bracketed
 
 
 def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy.Expr]],
@@ -478,7 +482,7 @@ def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy
     except (BadPoint, NotInField, ZeroDivisionError) as exc:
         return SearchResult((), False, f"not searched: {exc}")
     state = _State([listed_signature(values, SIGNATURE_POINTS, k) for k in range(len(listed))],
-                   [])
+                   [], listed=[tuple(xi) for xi in listed])
     target = dimension
     why = ""
     bases = {degree: monomials(base_atoms, degree, 1) for degree in DEGREES}
@@ -491,8 +495,11 @@ def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy
                                if sum(map(_polynomial_degree, c)) <= MAX_CYCLIC_DEGREE)
             fitting = [d for d in DEGREES if n * combinations * len(bases[d]) <= MAX_UNKNOWNS]
             base = bases[fitting[-1] if fitting else DEGREES[0]]
+            before = len(state.found)
             _solve_block(spacetime, values, base, base_atoms, factor_exprs, choice, state,
                          work)
+            if len(state.found) > before:
+                _close_under_brackets(spacetime, state, target, values.p, work)
     except WorkBoundReached:
         why = "; stopped at the work bound"
     except (BadPoint, NotInField, ZeroDivisionError) as exc:
@@ -521,7 +528,99 @@ def _complexity(choice) -> tuple[int, int, int]:
 
 
 def _rank(state: _State, p: int) -> int:
-    return matrix_rank(state.signatures, p) if state.signatures else 0
+    """Independent vectors known: the rank of the 1-jets, plus the brackets (each proved
+    outside the span of everything before it)."""
+    return (matrix_rank(state.signatures, p) if state.signatures else 0) + state.from_brackets
+
+
+# ====================================================================== closing the algebra
+
+
+def _close_under_brackets(spacetime: Spacetime, state: _State, target: int, p: int,
+                          work: Work) -> None:
+    """The bracket of two Killing vectors is one: bracket each vector found with the listed
+    and found ones, keep the brackets whose 1-jets at a random point of a field holding them
+    all raise the rank (exact arithmetic modulo a prime: a rank that goes up proves
+    independence) and that pass Killing's equation symbolically. In a maximally symmetric
+    space one boost and the rotations give the other boosts."""
+    while _rank(state, p) < target:
+        basis = [*state.listed, *state.found]
+        pairs = [(j, i) for i in range(len(state.listed), len(basis)) for j in range(len(basis))
+                 if i != j and (min(i, j), max(i, j)) not in state.tried]
+        if not pairs:
+            return
+        candidates = []
+        for j, i in pairs:
+            state.tried.add((min(i, j), max(i, j)))
+            bracket = tuple(tidy(_one_for_sin_squared(c, spacetime.coordinates))
+                            for c in commutator(basis[j], basis[i], spacetime.coordinates))
+            if any(c != 0 for c in bracket):
+                candidates.append(bracket)
+        if not candidates:
+            return
+        work.spend("points")
+        flags = raises_rank(spacetime, basis, candidates)
+        added = 0
+        for candidate, new in zip(candidates, flags, strict=True):
+            if not new or _rank(state, p) >= target:
+                continue
+            work.spend("checks")
+            if not is_killing(candidate, spacetime):
+                state.rejected += 1
+                continue
+            state.found.append(candidate)
+            state.from_brackets += 1
+            state.work_at_last_find = work.snapshot()
+            added += 1
+        if not added:
+            return
+
+
+def _one_for_sin_squared(expr: sympy.Expr, coordinates: Sequence[sympy.Symbol]) -> sympy.Expr:
+    """sin²x → 1 − cos²x for each coordinate x, so that sin²x + cos²x cancels in a bracket
+    (an exact identity; the result is verified afterwards in exactly this form)."""
+    for x in coordinates:
+        if expr.has(sympy.sin(x)):
+            expr = sympy.expand(expr.subs(sympy.sin(x) ** 2, 1 - sympy.cos(x) ** 2))
+    return expr
+
+
+def raises_rank(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]],
+                candidates: Sequence[Sequence[sympy.Expr]]) -> list[bool]:
+    """For each candidate in turn, whether its 1-jet raises the rank of the 1-jets of the
+    basis and the candidates kept before it, at one random point of the field of the metric
+    and all these components (modulo a prime near 2³¹; a rank mod p never exceeds the true
+    one, so True is certain). All False when no usable point is found."""
+    n = spacetime.dimension
+    vectors = [*basis, *candidates]
+    field, _, extra = metric_field(spacetime, [sympy.sympify(c) for xi in vectors for c in xi])
+    rng = random.Random(SEED + 1)
+    for q in primes()[:PRIME_TRIES]:
+        for _ in range(20):
+            try:
+                jets = FieldJets(field, 1, rng, q)
+                rows = [[v for a in range(n) for v in _jet_of(jets, extra[k * n + a], n)]
+                        for k in range(len(vectors))]
+            except (BadPoint, ZeroDivisionError, NotInField):
+                continue
+            kept = rows[: len(basis)]
+            rank = matrix_rank(kept, q) if kept else 0
+            flags = []
+            for row in rows[len(basis):]:
+                trial = matrix_rank([*kept, row], q)
+                flags.append(trial > rank)
+                if trial > rank:
+                    kept.append(row)
+                    rank = trial
+            return flags
+    return [False] * len(candidates)
+
+
+def _jet_of(jets: FieldJets, value, n: int) -> list[int]:
+    """Value and first derivatives of a field element at the jets' point."""
+    jet = jets.rational(value)
+    units = [jets.space.index[tuple(1 if v == i else 0 for v in range(n))] for i in range(n)]
+    return [int(jet[0]) % jets.p, *(int(jet[u]) % jets.p for u in units)]
 
 
 def describe(spacetime: Spacetime, function_atoms: Sequence[Atom],
@@ -589,10 +688,14 @@ def _solve_block(spacetime: Spacetime, values: PointValues, base: list[tuple[int
     for vector in kernel(rows, values.p):
         signature = vector_signature(values, SIGNATURE_POINTS, exponents, vector)
         trial = [*state.signatures, signature]
-        if matrix_rank(trial, values.p) <= _rank(state, values.p):
+        if matrix_rank(trial, values.p) <= (matrix_rank(state.signatures, values.p)
+                                            if state.signatures else 0):
             continue
         candidate = _exact_vector(vector, exponents, base_atoms, factor_exprs, n, values.p,
                                   spacetime.coordinates)
+        if candidate is not None and state.from_brackets and not raises_rank(
+                spacetime, [*state.listed, *state.found], [candidate])[0]:
+            continue  # a combination of brackets already found (they have no 1-jets here)
         if candidate is not None:
             work.spend("checks")
         if candidate is None or not is_killing(candidate, spacetime):

@@ -31,6 +31,7 @@ Levi factor where that one has a name (``describe``).
 
 from __future__ import annotations
 
+import itertools
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -73,7 +74,7 @@ def table_from_brackets(brackets: Sequence[tuple[int, int, Sequence[sympy.Expr]]
     c = [[[sympy.Integer(0)] * d for _ in range(d)] for _ in range(d)]
     for i, j, coefficients in brackets:
         for k, value in enumerate(coefficients):
-            value = sympy.nsimplify(value) if value.is_number else value
+            value = sympy.sympify(value)
             if not value.is_Rational:
                 return None
             c[i][j][k], c[j][i][k] = value, -value
@@ -252,7 +253,7 @@ def _inertia(form: sympy.Matrix) -> tuple[int, int]:
 
     def changes(p: sympy.Poly) -> int:
         signs = [sympy.sign(co) for co in p.all_coeffs() if co != 0]
-        return sum(1 for s, t in zip(signs, signs[1:], strict=False) if s != t)
+        return sum(1 for s, t in itertools.pairwise(signs) if s != t)
 
     mirrored = sympy.Poly(poly.as_expr().subs(lam, -lam), lam)
     return changes(poly), changes(mirrored)
