@@ -234,7 +234,7 @@ def _function_atoms(spacetime: Spacetime, cyclic: Sequence[int]) -> list[Atom]:
                 add(Atom(f, -2, 2))
         for f in _ordered(value.atoms(sympy.Pow)):
             if f.exp.is_Rational and not f.exp.is_Integer and f.base.free_symbols & coordinates:
-                add(Atom(f.base ** sympy.Rational(1, f.exp.q), -1, 1))
+                add(Atom(_root_atom(f.base, f.exp.q), -1, 1))
     for i in cyclic:
         radicand = spacetime.metric[i, i]
         if radicand == 0:
@@ -244,8 +244,24 @@ def _function_atoms(spacetime: Spacetime, cyclic: Sequence[int]) -> list[Atom]:
         root = sympy.powdenest(sympy.sqrt(sympy.factor(radicand)), force=True)
         if any(p.exp.is_Rational and not p.exp.is_Integer and p.base.free_symbols & coordinates
                for p in root.atoms(sympy.Pow)):
-            add(Atom(sympy.sqrt(radicand), -1, 1))
+            add(Atom(_root_atom(radicand, 2), -1, 1))
     return atoms
+
+
+def _root_atom(radicand: sympy.Expr, q: int) -> sympy.Expr:
+    """The q-th root as an atom, with a denominator that is a q-th power of the parameters
+    taken out: √(1 + r²/ℓ²) becomes √(ℓ² + r²) (1/ℓ is among the parameter powers). The
+    field adjoins the root of such a denominator with a sign of its own at each point, which
+    made the vectors built on √(1 + r²/ℓ²) inconsistent from point to point."""
+    numerator, denominator = sympy.fraction(sympy.together(radicand))
+    root_of_denominator = sympy.powdenest(denominator ** sympy.Rational(1, q), force=True)
+    if denominator != 1 and not any(
+            f.exp.is_Rational and not f.exp.is_Integer
+            for f in root_of_denominator.atoms(sympy.Pow)) and not \
+            root_of_denominator.free_symbols & radicand.free_symbols - set(
+                x for x in radicand.free_symbols if x.is_positive):
+        return sympy.expand(numerator) ** sympy.Rational(1, q)
+    return radicand ** sympy.Rational(1, q)
 
 
 def _ordered(found: set[sympy.Expr]) -> list[sympy.Expr]:
@@ -394,8 +410,10 @@ def killing_rows(values: PointValues, point: int, exponents: np.ndarray) -> np.n
         for b in range(a, n):
             blocks = []
             for c in range(n):
-                entry = (m * int(g[a, b, 1 + c]) + dm[:, a] * int(g[c, b, 0])
-                         + dm[:, b] * int(g[a, c, 0])) % p
+                # Each product is below 2⁶², a sum of three is not: reduce them one by one
+                # (an int64 overflow made a rare point inconsistent and lost whole blocks).
+                entry = (m * int(g[a, b, 1 + c]) % p + dm[:, a] * int(g[c, b, 0]) % p
+                         + dm[:, b] * int(g[a, c, 0]) % p) % p
                 blocks.append(entry)
             rows.append(np.concatenate(blocks))
     return np.array(rows, dtype=np.int64)
@@ -488,13 +506,10 @@ def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy
     bases = {degree: monomials(base_atoms, degree, 1) for degree in DEGREES}
     blocks = sorted(itertools.product(*classes), key=_complexity)
     try:
-        for choice in blocks:
+        for choice, degree in _undominated(blocks, bases, n):
             if _rank(state, values.p) >= target:
                 break
-            combinations = sum(1 for c in itertools.product(*(fs for _, fs in choice))
-                               if sum(map(_polynomial_degree, c)) <= MAX_CYCLIC_DEGREE)
-            fitting = [d for d in DEGREES if n * combinations * len(bases[d]) <= MAX_UNKNOWNS]
-            base = bases[fitting[-1] if fitting else DEGREES[0]]
+            base = bases[degree]
             before = len(state.found)
             _solve_block(spacetime, values, base, base_atoms, factor_exprs, choice, state,
                          work)
@@ -519,12 +534,38 @@ def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy
                         state.work_at_last_find)
 
 
-def _complexity(choice) -> tuple[int, int, int]:
-    """Simplest blocks first: each exponential or circular class counts 1 and a polynomial
-    class its degree; then the rates in their order (1 first); then the number of functions."""
-    weight = sum(int(kind[4:]) - 1 if kind.startswith("poly") else 1 for kind, _ in choice)
+def _combinations(choice) -> frozenset:
+    return frozenset(c for c in itertools.product(*(fs for _, fs in choice))
+                     if sum(map(_polynomial_degree, c)) <= MAX_CYCLIC_DEGREE)
+
+
+def _undominated(blocks, bases, n: int) -> list[tuple[tuple, int]]:
+    """Each block with the highest degree of the non-cyclic part that fits the size bound,
+    without the blocks another one contains (its functions of the cyclic coordinates and at
+    least its degree): with polynomial classes in levels, {1, x} is inside {1, x, x²}, and
+    solving both at the same degree would repeat the work."""
+    sized = []
+    for choice in blocks:
+        combinations = _combinations(choice)
+        fitting = [d for d in DEGREES if n * len(combinations) * len(bases[d]) <= MAX_UNKNOWNS]
+        sized.append((choice, combinations, fitting[-1] if fitting else DEGREES[0]))
+    kept = []
+    for k, (choice, combinations, degree) in enumerate(sized):
+        dominated = any(other != k and combinations <= c2 and degree <= d2
+                        and (combinations != c2 or degree != d2 or other < k)
+                        for other, (_, c2, d2) in enumerate(sized))
+        if not dominated:
+            kept.append((choice, degree))
+    return kept
+
+
+def _complexity(choice) -> tuple[int, int, int, int]:
+    """Simplest blocks first: fewer exponential or circular classes; then lower polynomial
+    levels; then the rates in their order (1 first); then fewer functions."""
+    transcendental = sum(not kind.startswith("poly") for kind, _ in choice)
+    degree = sum(int(kind[4:]) - 1 for kind, _ in choice if kind.startswith("poly"))
     rates = sum(int(kind[-1]) for kind, _ in choice if not kind.startswith("poly"))
-    return (weight, rates, sum(len(fs) for _, fs in choice))
+    return (transcendental, degree, rates, sum(len(fs) for _, fs in choice))
 
 
 def _rank(state: _State, p: int) -> int:
