@@ -27,6 +27,10 @@ a vector that fails is dropped, so the search never returns an unverified vector
 from the listed and already found vectors is judged by their 1-jets (a Killing vector is fixed
 by its value and first derivatives at one point) at two random points.
 
+After a block finds a vector, the basis is closed under brackets (the bracket of two Killing
+vectors is one): a bracket is kept when its 1-jet raises the rank at a random point of a field
+holding every component, and it passes the symbolic check like any other candidate.
+
 The search stops as soon as the listed and found vectors span the computed dimension, or when
 the ansatz, the size bound or the work bound is exhausted; it then says how many it found.
 The work bound counts what the search does — random points evaluated, unknowns of the linear
