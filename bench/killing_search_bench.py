@@ -69,7 +69,16 @@ def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("entries", nargs="*", default=list(WARNED))
     parser.add_argument("--json", type=Path)
+    parser.add_argument("--search-module", type=Path,
+                        help="another version of killing_search.py to measure (before/after)")
     args = parser.parse_args()
+    if args.search_module:
+        global killing_search
+        import importlib.util
+        spec = importlib.util.spec_from_file_location("other_search", args.search_module)
+        killing_search = importlib.util.module_from_spec(spec)
+        sys.modules["other_search"] = killing_search
+        spec.loader.exec_module(killing_search)
     rows = []
     for name in args.entries:
         path = entry_path(name)
