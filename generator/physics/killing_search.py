@@ -553,11 +553,19 @@ def _undominated(blocks, bases, n: int) -> list[tuple[tuple, int]]:
         combinations = _combinations(choice)
         fitting = [d for d in DEGREES if n * len(combinations) * len(bases[d]) <= MAX_UNKNOWNS]
         sized.append((choice, combinations, fitting[-1] if fitting else DEGREES[0]))
+    # Only blocks with the same exponential and circular classes can contain one another.
+    groups: dict[tuple, list[int]] = {}
+    for k, (choice, _, _) in enumerate(sized):
+        pattern = tuple("poly" if kind.startswith("poly") else fs for kind, fs in choice)
+        groups.setdefault(pattern, []).append(k)
     kept = []
     for k, (choice, combinations, degree) in enumerate(sized):
-        dominated = any(other != k and combinations <= c2 and degree <= d2
-                        and (combinations != c2 or degree != d2 or other < k)
-                        for other, (_, c2, d2) in enumerate(sized))
+        pattern = tuple("poly" if kind.startswith("poly") else fs for kind, fs in choice)
+        dominated = any(other != k and combinations <= sized[other][1]
+                        and degree <= sized[other][2]
+                        and (combinations != sized[other][1] or degree != sized[other][2]
+                             or other < k)
+                        for other in groups[pattern])
         if not dominated:
             kept.append((choice, degree))
     return kept
