@@ -104,7 +104,8 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
     operations: vectors found by the search can make the symbolic expansions slow."""
     if not basis or len(basis) > MAX_BASIS:
         return (), None
-    if sum(sympy.count_ops(c) for xi in basis for c in xi) > MAX_OPS:
+    if sum(sympy.count_ops(c) for xi in basis for c in xi) > MAX_OPS or any(
+            _has_radical(c, spacetime) for xi in basis for c in xi):
         return (), None
     out = []
     for i in range(len(basis)):
@@ -116,6 +117,15 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
             if any(c != 0 for c in coefficients):
                 out.append((i, j, coefficients))
     return tuple(out), (recognise(tuple(out), len(basis)) if complete else None)
+
+
+def _has_radical(expr: sympy.Expr, spacetime: Spacetime) -> bool:
+    """A root of an expression in the coordinates: linear solving over such expressions is
+    where SymPy becomes slow (and once crashed on a complete de Sitter basis), so a basis
+    with radicals gets no table — a bound on the kind of work, not on its time."""
+    coordinates = set(spacetime.coordinates)
+    return any(p.exp.is_Rational and not p.exp.is_Integer and p.base.free_symbols & coordinates
+               for p in sympy.sympify(expr).atoms(sympy.Pow))
 
 
 def recognise(brackets: Structure, d: int) -> str | None:
