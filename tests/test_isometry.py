@@ -178,3 +178,27 @@ def test_complete_bases_of_the_curated_three_spheres() -> None:
         basis = [xi for _, xi in listed_vectors(loaded.entry, loaded.spacetime, names)]
         _, algebra = structure(loaded.spacetime, basis, True)
         assert algebra == expected, name
+
+
+def test_brackets_through_a_conical_angle_come_out_and_are_checked() -> None:
+    """The cosmic string (Vilenkin 1981): off the axis it is flat space with φ′ = (1 − 4μ)φ,
+    so ∂_φ and the two translations across the axis, X = cos φ′ ∂_r − sin φ′/((1 − 4μ) r) ∂_φ
+    and Y = sin φ′ ∂_r + cos φ′/((1 − 4μ) r) ∂_φ, satisfy [∂_φ, X] = −(1 − 4μ) Y,
+    [∂_φ, Y] = (1 − 4μ) X, [X, Y] = 0 (the Euclidean plane's algebra, by hand; common
+    practice). A bracket through cos((1 − 4μ)φ) once kept the linear solve busy for minutes."""
+    spacetime = load_entry(CATALOG / "strings-tubes-and-bubbles/cosmic-string.yaml").spacetime
+    _, r, phi, _ = spacetime.coordinates
+    (mu,) = spacetime.parameters
+    k = 1 - 4 * mu
+    x = [0, sympy.cos(k * phi), -sympy.sin(k * phi) / (k * r), 0]
+    y = [0, sympy.sin(k * phi), sympy.cos(k * phi) / (k * r), 0]
+    basis = [[sympy.sympify(v) for v in b] for b in ([0, 0, 1, 0], x, y)]
+    brackets, _ = structure(spacetime, basis, True)
+    table = {(i, j): tuple(sympy.factor(c) for c in cs) for i, j, cs in brackets}
+    assert set(table) == {(0, 1), (0, 2)}
+    assert table[(0, 1)] == (0, 0, sympy.factor(-k))
+    assert table[(0, 2)] == (0, sympy.factor(k), 0)
+    # Mutation: a vector outside the span (the dilation r ∂_r) has no expansion.
+    from generator.physics.lie_algebra import expand_in_basis
+    assert expand_in_basis([sympy.Integer(0), r, sympy.Integer(0), sympy.Integer(0)], basis,
+                           spacetime) is None

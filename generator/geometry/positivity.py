@@ -15,6 +15,7 @@ turn the roots back into their radicands (at most SQUARINGS times in a row). Any
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Callable
 
 import sympy
@@ -111,12 +112,16 @@ def _usable_bounds(domain: tuple[sympy.Basic, ...],
             and (b := reader(rel, x)) is not None and not b[1].free_symbols & replaced]
 
 
+@functools.lru_cache(maxsize=2048)
 def square_lower_bound(relation: sympy.Basic, x: sympy.Symbol) -> Bound | None:
     """A lower bound on x² from a relation in which a positive x occurs only squared
     (``3*r**2 < Rt**2 - A**2`` bounds Rt² below by A² + 3r²), read as a bound on a stand-in
     for x² by ``linear_bound``. For x > 0 every point with x² ≥ b is x = √(b + s), s ≥ 0,
     so the substitution reaches the whole domain; upper bounds are not used (x = √(b − s)
-    would need b − s ≥ 0, which nothing proves)."""
+    would need b − s ≥ 0, which nothing proves). Remembered (a pure function of the
+    relation and x; the stand-in for x² never appears in the bound): every proof of an
+    entry reads the same domain again, and expanding its relations was half the prover's
+    time on a seven-parameter domain."""
     if not x.is_positive or not isinstance(relation, sympy.core.relational.Relational):
         return None
     square = sympy.Dummy(f"{x}_squared", positive=True)

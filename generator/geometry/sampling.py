@@ -115,12 +115,14 @@ def _bounds_on(spacetime: Spacetime, x: sympy.Symbol):
             yield (">" if found[0] == "lower" else "<"), found[1]
 
 
+@functools.lru_cache(maxsize=4096)
 def linear_bound(relation: sympy.Basic, x: sympy.Symbol) -> tuple[str, sympy.Expr, bool] | None:
     """('lower'|'upper', bound, strict) if ``relation`` bounds ``x`` by an x-free expression:
     any relation linear in x with a rational coefficient (``8*M < 3*Rs`` bounds Rs below by
     8*M/3, and M above by 3*Rs/8). A relation with a bare symbol on one side belongs to that
     symbol (``r > 2*v`` bounds r, not v), so it stays available for it. The sampler and the
-    sign prover read bounds through this one function, so they agree on what a domain says."""
+    sign prover read bounds through this one function, so they agree on what a domain says.
+    Remembered: a pure function, asked again for every proof and every sample of an entry."""
     if not isinstance(relation, sympy.core.relational.Relational):
         return None
     op = relation.rel_op

@@ -34,7 +34,7 @@ from generator.geometry.curvature import Budget, FieldArithmetic, Limits, invers
 from generator.geometry.equality import canonical, exact_square_root
 from generator.geometry.sampling import Point, angle_coordinates, entry_points, numeric_value
 from generator.model import Geometry, Horizon, Spacetime
-from generator.physics.rootfield import RootField, root_field
+from generator.physics.rootfield import RootField, coefficient, root_field
 
 H = sympy.Symbol("h_root", real=True)
 DIGITS = 30
@@ -259,9 +259,14 @@ class HorizonAlgebra:
                 if i != self.rf.x_index and i not in cyclic]
 
     def constant_on_horizon(self, value: Frac) -> bool:
+        """Every derivative along the horizon's other coordinates vanishes at the root (each
+        derivative taken once: for a many-parameter κ² it is a large fraction)."""
         field = self.rf.field
-        return all(self.rf.vanishes(field.diff(value, i).num) for i in self.others()
-                   if not field.diff(value, i).is_zero())
+        for i in self.others():
+            derivative = field.diff(value, i)
+            if not derivative.is_zero() and not self.rf.vanishes(derivative.num):
+                return False
+        return True
 
     def fixed(self, value: Frac) -> Frac | None:
         """``value`` with the other coordinates set to a sample point (valid when it is
@@ -565,7 +570,7 @@ def positive_root(square: sympy.Expr, spacetime: Spacetime, points: Sequence[Poi
     if square == 0:
         return sympy.Integer(0)
     root = exact_square_root(square, spacetime)
-    if root is None:
+    if root is None and has_fractional_power(square):
         root = denested_root(canonical(square, spacetime), spacetime)
     if root is None:
         return sympy.sqrt(square)
@@ -581,46 +586,67 @@ def positive_root(square: sympy.Expr, spacetime: Spacetime, points: Sequence[Poi
     return root if signs == {True} else canonical(-root, spacetime)
 
 
-def split_in_radical(expr: sympy.Expr, z: sympy.Symbol, d: sympy.Expr
-                     ) -> tuple[sympy.Expr, sympy.Expr]:
-    """(E, O) with expr = E + O z once z² = d (E, O free of z)."""
-    parts = sympy.collect(sympy.expand(expr), z, evaluate=False)
-    even, odd = sympy.Integer(0), sympy.Integer(0)
-    for power, coeff in parts.items():
-        k = 0 if power == 1 else sympy.degree(power, z)
-        if k % 2:
-            odd += coeff * d ** ((k - 1) // 2)
-        else:
-            even += coeff * d ** (k // 2)
-    return even, odd
+def has_fractional_power(expr: sympy.Expr) -> bool:
+    """Whether ``expr`` holds a root (a power with a non-integer rational exponent). Without
+    one its canonical form holds none either (the field's radical generators come only from
+    such powers), so ``denested_root`` has nothing to denest and the costly canonical form
+    of a large κ² in h_root is not built."""
+    return any(p.exp.is_Rational and not p.exp.is_Integer for p in expr.atoms(sympy.Pow))
+
+
+def radical_parts(square: sympy.Expr, radical: sympy.Pow, spacetime: Spacetime
+                  ) -> tuple[sympy.Expr, sympy.Expr, sympy.Expr] | None:
+    """(A, B, w) with ``square`` = A + B·w, where w is the exact field's generator for the
+    radical (w = D·√d, D the denominator of the radicand d) and A, B are free of it.
+
+    Read off the normal form in the field (python-flint): its denominators are rationalised
+    and its numerators reduced modulo w² = D²d, so the numerator is A' + B'·w. None when
+    ``square`` does not fit the field or holds another radical."""
+    try:
+        field, (value,) = build_field(FieldRequest(spacetime.coordinates, spacetime.parameters,
+                                                   spacetime.functions, (square,), 0))
+    except (NotInField, ZeroDivisionError):
+        return None
+    found = [k for k, spec in enumerate(field.specs) if spec.kind == "radical"]
+    if len(found) != 1:
+        return None
+    z = found[0]
+    spec = field.specs[z]
+    if spec.degree != 2 or value.den.degrees()[z] > 0 or value.num.degrees()[z] > 1 or \
+            sympy.cancel(spec.base - radical.base) != 0:
+        return None
+    one = field.ctx.constant(1)
+    den = field.normal(value.den, one)
+    even = field.div(field.normal(coefficient(value.num, z, 0, field.ctx), one), den)
+    odd = field.div(field.normal(coefficient(value.num, z, 1, field.ctx), one), den)
+    return field.display(even), field.display(odd), spec.meaning
 
 
 def denested_root(square: sympy.Expr, spacetime: Spacetime) -> sympy.Expr | None:
-    """sqrt(A + B√d) = x + y√d when A² − B²d and (A ± √(A² − B²d))/2 are squares."""
+    """sqrt(A + B√W) = x + y√W when A² − B²W and (A ± √(A² − B²W))/2 are squares.
+
+    A and B come from the exact field's normal form of ``square`` (``radical_parts``, with
+    √W the field's generator for the radical); ``exact_square_root`` and ``canonical``
+    normalise whatever form they are given, so the intermediate fractions need no SymPy
+    ``cancel`` (that was most of the time of Kerr–Newman's horizons). The result is
+    ``canonical`` of the root, whose square is checked against ``square`` exactly."""
     radicals = [r for r in square.atoms(sympy.Pow) if r.exp == sympy.Rational(1, 2)]
     if len(radicals) != 1:
         return None
-    radical = radicals[0]
-    d = radical.base
-    z = sympy.Dummy("z")
-    num, den = sympy.fraction(sympy.together(square.xreplace({radical: z})))
-    top_even, top_odd = split_in_radical(num, z, d)
-    bottom_even, bottom_odd = split_in_radical(den, z, d)
-    norm = sympy.expand(bottom_even**2 - bottom_odd**2 * d)
-    a = sympy.cancel((top_even * bottom_even - top_odd * bottom_odd * d) / norm)
-    b = sympy.cancel((top_odd * bottom_even - top_even * bottom_odd) / norm)
+    parts = radical_parts(square, radicals[0], spacetime)
+    if parts is None:
+        return None
+    a, b, w = parts
     if b == 0:
         return None
-    inner = exact_square_root(sympy.cancel(a**2 - b**2 * d), spacetime)
+    inner = exact_square_root(a**2 - b**2 * w**2, spacetime)
     if inner is None:
         return None
     for sign in (1, -1):
-        half = sympy.cancel((a + sign * inner) / 2)
-        x = exact_square_root(half, spacetime) if half != 0 else None
+        x = exact_square_root((a + sign * inner) / 2, spacetime)
         if x is None or x == 0:
             continue
-        y = sympy.cancel(b / (2 * x))
-        candidate = x + y * radical
+        candidate = x + b / (2 * x) * w
         if canonical(candidate**2 - square, spacetime) == 0:
             return canonical(candidate, spacetime)
     return None

@@ -11,6 +11,7 @@ preserves); where no name is certain, what is known is said in words.
 from __future__ import annotations
 
 from collections.abc import Sequence
+from dataclasses import dataclass
 
 import sympy
 
@@ -65,6 +66,49 @@ def _angles(exprs: Sequence[sympy.Expr], spacetime: Spacetime) -> list[sympy.Sym
     return sorted(found, key=str)
 
 
+@dataclass(frozen=True)
+class GenericCircular:
+    """Circular functions of arguments other than a whole multiple of one coordinate (such as
+    cos((1 − 4μ)φ) for a conical deficit), each argument's sin and cos replaced by a pair of
+    symbols. Substituting the angle's sample value into such a function leaves a transcendental
+    function of the parameters, on which the linear solve crawls (minutes for one bracket of
+    the cosmic string); as functions of the coordinates these pairs are independent of the
+    other atoms, so each gets its own rational point of the unit circle instead. The solution
+    is still verified symbolically, so a bad choice can only withdraw a bracket."""
+
+    replacements: dict[sympy.Expr, sympy.Expr]
+    pairs: tuple[tuple[sympy.Symbol, sympy.Symbol], ...]
+
+
+def _generic_circular(exprs: Sequence[sympy.Expr], spacetime: Spacetime) -> GenericCircular:
+    coordinates = set(spacetime.coordinates)
+    arguments = set()
+    for e in exprs:
+        for f in e.atoms(*CIRCULAR):
+            argument = f.args[0]
+            coeff, unit = argument.as_coeff_Mul()
+            plain = unit in coordinates and coeff.is_Integer
+            if not plain and argument.free_symbols & coordinates:
+                arguments.add(argument)
+    replacements: dict[sympy.Expr, sympy.Expr] = {}
+    pairs = []
+    for k, argument in enumerate(sorted(arguments, key=sympy.default_sort_key)):
+        s, c = sympy.Dummy(f"sin{k}"), sympy.Dummy(f"cos{k}")
+        pairs.append((s, c))
+        replacements.update({sympy.sin(argument): s, sympy.cos(argument): c,
+                             sympy.tan(argument): s / c, sympy.cot(argument): c / s,
+                             sympy.sec(argument): 1 / c, sympy.csc(argument): 1 / s})
+    return GenericCircular(replacements, tuple(pairs))
+
+
+def _unit_circle_values(generic: GenericCircular, point: int) -> dict[sympy.Symbol, sympy.Expr]:
+    values = {}
+    for j, (s, c) in enumerate(generic.pairs):
+        q = sympy.Rational(3 + point + 2 * j, 11 + 5 * point)
+        values[s], values[c] = 2 * q / (1 + q**2), (1 - q**2) / (1 + q**2)
+    return values
+
+
 def expand_in_basis(target: Sequence[sympy.Expr], basis: Sequence[Sequence[sympy.Expr]],
                     spacetime: Spacetime) -> tuple[sympy.Expr, ...] | None:
     """Constants c_k with target = Σ c_k basis_k, verified; None when there are none."""
@@ -74,10 +118,15 @@ def expand_in_basis(target: Sequence[sympy.Expr], basis: Sequence[Sequence[sympy
     equations = []
     everything = [*target, *(v for b in basis for v in b)]
     angles = _angles(everything, spacetime)
-    for values in _coordinate_values(spacetime, 4, angles):
+    generic = _generic_circular(everything, spacetime)
+    for k, values in enumerate(_coordinate_values(spacetime, 4, angles)):
+        values = {**values, **_unit_circle_values(generic, k)}
         for a in range(len(target)):
             combination = sum(c * b[a] for c, b in zip(unknowns, basis, strict=True))
-            equation = through_sin_cos(combination - target[a], tuple(angles)).xreplace(values)
+            difference = through_sin_cos(combination - target[a], tuple(angles))
+            # In lowest terms: a coefficient that is zero only after cancelling (such as
+            # −16μ² + (4μ − 1)(4μ + 1) + 1) made SymPy's linear solver divide by zero.
+            equation = sympy.cancel(difference.xreplace(generic.replacements).xreplace(values))
             if equation != 0:
                 equations.append(equation)
     solutions = sympy.linsolve(equations, unknowns)

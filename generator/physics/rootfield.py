@@ -11,6 +11,7 @@ coefficient, so no parameter is ever assumed nonzero beyond P's own degree.
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 
@@ -49,8 +50,17 @@ class RootField:
         return self.field.normal(self.at_root_poly(x.num), den)
 
     def vanishes(self, p: flint.fmpq_mpoly) -> bool:
-        """Is the polynomial p(h, …) zero at every root h of P, i.e. divisible by P?"""
-        return pseudo_remainder(p, self.relation, self.h_var, self.field.ctx).is_zero()
+        """Is the polynomial p(h, …) zero at every root h of P, i.e. divisible by P?
+
+        Decided by one exact division in flint by P's primitive part in h (``divides``),
+        the same answer as the pseudo-remainder and far cheaper on the large numerators of
+        a many-parameter horizon."""
+        return divides(self.primitive_relation, p)
+
+    @functools.cached_property
+    def primitive_relation(self) -> flint.fmpq_mpoly:
+        """P divided by its content as a polynomial in h (``primitive_part``)."""
+        return primitive_part(self.relation, self.h_var, self.field.ctx)
 
     def limit(self, value: Frac, max_order: int = 4) -> Frac | None:
         """lim_{x → h} value by L'Hôpital's rule along x (None: infinite or not found)."""
@@ -99,6 +109,31 @@ def pseudo_remainder(p: flint.fmpq_mpoly, relation: flint.fmpq_mpoly, var: int,
         k = p.degrees()[var]
         p = p * lead - coefficient(p, var, k, ctx) * relation * gen ** (k - degree)
     return p
+
+
+def primitive_part(relation: flint.fmpq_mpoly, var: int, ctx: flint.fmpq_mpoly_ctx
+                   ) -> flint.fmpq_mpoly:
+    """The relation divided by the gcd of its coefficients as a polynomial in ``var``: the
+    same roots in ``var`` (over the field of the other variables), and primitive, so that by
+    Gauss's lemma it divides p in Q(others)[var] exactly when it divides p in the polynomial
+    ring Q[others, var]."""
+    content = ctx.constant(0)
+    for k in range(relation.degrees()[var] + 1):
+        content = content.gcd(coefficient(relation, var, k, ctx))
+        if content.is_constant() and not content.is_zero():
+            return relation
+    if content.is_zero() or content.is_constant():
+        return relation
+    return relation / content
+
+
+def divides(primitive: flint.fmpq_mpoly, p: flint.fmpq_mpoly) -> bool:
+    """Does the polynomial ``primitive`` divide p? One multivariate division: with a single
+    divisor the remainder is zero exactly when it divides ({primitive} is a Gröbner basis of
+    the ideal it generates)."""
+    if p.is_zero():
+        return True
+    return divmod(p, primitive)[1].is_zero()
 
 
 def reduced_power(p: flint.fmpq_mpoly, relation: flint.fmpq_mpoly, var: int,

@@ -223,7 +223,10 @@ def readable(expr: sympy.Expr, spacetime: Spacetime, factor: bool = True) -> sym
     if factor and expr.has(sympy.I) and sympy.count_ops(expr) <= DISPLAY_FACTOR_LIMIT and \
             len(expr.free_symbols) <= DISPLAY_FACTOR_SYMBOLS:
         try:
-            factored = sympy.factor(expr, extension=sympy.I)
+            # The Gaussian rationals QQ_I: SymPy factors them through Q(i) itself (the same
+            # algorithm and normalisation as extension=I), but reads the coefficients into
+            # the domain directly instead of through minimal polynomials, about twice as fast.
+            factored = sympy.factor(expr, domain=sympy.QQ_I)
         except (sympy.PolynomialError, NotImplementedError, ValueError, TypeError):
             return expr
         if sympy.count_ops(factored) < sympy.count_ops(expr):
