@@ -1,7 +1,7 @@
 """The vectors the search finds for shipped (anti-)de Sitter and BTZ entries, checked against
 the Killing vectors known in closed form: each known vector must lie in the span of the listed
-and found ones (its 1-jet at a random point raises
-no rank, exact modulo a prime; a wrong vector must raise it), and every found vector satisfies Killing's equation.
+and found ones (its 1-jet at a random point raises no rank, exact modulo a prime; a wrong
+vector must raise it), and every found vector satisfies Killing's equation.
 
 Known vectors (from memory; they are the rotations X_A ∂_B − X_B ∂_A of the embedding
 hyperboloid written in each chart, e.g. Hawking & Ellis, The Large Scale Structure of
