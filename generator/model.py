@@ -453,6 +453,7 @@ class IsometryAlgebra:
     why_null: str | None
     structure: tuple[tuple[int, int, tuple[sympy.Expr, ...]], ...] = ()  # [X_i, X_j] = c^k X_k
     algebra_name: str | None = None
+    algebra_structure: str | None = None  # what is known of the algebra, in words
     found: int = 0  # the last ``found`` vectors of ``basis`` were found by the tool's search
     search: str | None = None  # what the search for missing vectors did, in words
 

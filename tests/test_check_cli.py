@@ -106,6 +106,10 @@ def test_json_contract(catalog: Path, capsys: pytest.CaptureFixture[str]) -> Non
     assert computed["isometry"]["complete"] is True
     assert computed["isometry"]["basis_found_by_tool"] == [False, True, True]
     assert computed["isometry"]["algebra"] == "so(3)"
+    # What is known of the algebra, in words: so(3) is semisimple with a negative definite
+    # Killing form (Cartan's criterion, common practice).
+    assert computed["isometry"]["algebra_structure"] == (
+        "semisimple, 3-dimensional, Killing form of signature (0, 3)")
     assert computed["weyl_frame"] is None and computed["weyl_invariants"] is None
     assert computed.keys() >= CONTRACT_KEYS
     assert computed["dimension"] == 2 and computed["signature"] == "++"

@@ -163,7 +163,7 @@ def test_recognition_mutations() -> None:
     sl2 = ((0, 1, (0, 0, -1)), (0, 2, (0, -1, 0)), (1, 2, (1, 0, 0)))
     assert recognise(so3, 3) == "so(3)"
     assert recognise(sl2, 3) == "sl(2,ℝ)"
-    assert recognise((), 2) == "abelian ℝ^2"
+    assert recognise((), 2) == "abelian ℝ²"
 
 
 def test_complete_bases_of_the_curated_three_spheres() -> None:

@@ -243,10 +243,38 @@ def _root(field: RationalField, k: int, values: list[int | None], p: int) -> int
     target = (-poly_at(rest, known, p)) % p
     if target == 0:
         return 0
+    if degree == 2:
+        return square_root_mod(target, p)
     roots = sympy.ntheory.residue_ntheory.nthroot_mod(target, degree, p, all_roots=False)
     if roots is None:
         raise BadPoint("a radicand has no root modulo p at this point")
     return int(roots)
+
+
+def square_root_mod(a: int, p: int) -> int:
+    """The square root of a ≠ 0 modulo the odd prime p that is at most p // 2 (the one SymPy's
+    ``sqrt_mod`` gives), by Euler's criterion and Tonelli–Shanks: SymPy factorises p first,
+    which made square roots the costliest step of drawing a point."""
+    a %= p
+    if pow(a, (p - 1) // 2, p) != 1:
+        raise BadPoint("a radicand has no root modulo p at this point")
+    if p % 4 == 3:
+        r = pow(a, (p + 1) // 4, p)
+    else:
+        q, s = p - 1, 0
+        while q % 2 == 0:
+            q, s = q // 2, s + 1
+        z = 2
+        while pow(z, (p - 1) // 2, p) != p - 1:
+            z += 1
+        m, c, t, r = s, pow(z, q, p), pow(a, q, p), pow(a, (q + 1) // 2, p)
+        while t != 1:
+            i, t2 = 0, t
+            while t2 != 1:
+                t2, i = t2 * t2 % p, i + 1
+            b = pow(c, 1 << (m - i - 1), p)
+            m, c, t, r = i, b * b % p, t * b * b % p, r * b % p
+    return min(r, p - r)
 
 
 def poly_at(poly: flint.fmpq_mpoly, values: Sequence[int], p: int) -> int:

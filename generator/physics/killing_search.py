@@ -27,8 +27,16 @@ a vector that fails is dropped, so the search never returns an unverified vector
 from the listed and already found vectors is judged by their 1-jets (a Killing vector is fixed
 by its value and first derivatives at one point) at two random points.
 
+After a block finds a vector, the basis is closed under brackets (the bracket of two Killing
+vectors is one): a bracket is kept when its 1-jet raises the rank at a random point of a field
+holding every component, and it passes the symbolic check like any other candidate.
+
 The search stops as soon as the listed and found vectors span the computed dimension, or when
-the ansatz, the size bound or the time budget is exhausted; it then says how many it found.
+the ansatz, the size bound or the work bound is exhausted; it then says how many it found.
+The work bound counts what the search does — random points evaluated, unknowns of the linear
+systems solved and symbolic checks of candidates — never the time it takes, so that what is
+found is the same on a slow and a fast machine (the entry's own time budget in the run stage
+stays the backstop).
 """
 
 from __future__ import annotations
@@ -36,9 +44,9 @@ from __future__ import annotations
 import itertools
 import math
 import random
-import time
+import re
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import flint
 import numpy as np
@@ -49,11 +57,11 @@ from generator.geometry.exactvalues import vanishes
 from generator.model import Spacetime
 from generator.physics.isometry import matrix_rank, metric_field
 from generator.physics.jets import BadPoint, FieldJets, primes
+from generator.physics.lie_algebra import commutator
 from generator.physics.symmetry import lie_derivative_metric
 
 SEED = 20261204
-SECONDS = 8.0  # CPU seconds for the whole search of one entry
-MAX_UNKNOWNS = 1000  # columns of one block's linear system
+MAX_UNKNOWNS = 1400  # columns of one block's linear system
 DEGREES = (2, 3, 4)  # total degree of the non-cyclic part, tried in turn
 MAX_CYCLIC_DEGREE = 2  # total degree of the polynomial classes over all cyclic coordinates
 MAX_RATES = 2  # candidate rates k per cyclic coordinate
@@ -66,14 +74,54 @@ HYPERBOLIC = (sympy.sinh, sympy.cosh)
 
 
 @dataclass(frozen=True)
+class WorkBound:
+    """How much work one entry's search may do, counted in deterministic units (see module
+    docstring): random points of the metric's field evaluated, unknowns (columns) of the linear
+    systems solved — the reductions of the monomials included — and symbolic checks of
+    candidate vectors by Killing's equation."""
+
+    points: int = 1500
+    unknowns: int = 30000
+    checks: int = 60
+
+
+WORK_BOUND = WorkBound()
+WORK_KINDS = ("points", "unknowns", "checks")
+
+
+class WorkBoundReached(Exception):
+    """The search has done as much work as its bound allows."""
+
+
+class Work:
+    """The work done so far against a bound; ``spend`` is called before the work is done."""
+
+    def __init__(self, bound: WorkBound) -> None:
+        self.bound = bound
+        self.used = dict.fromkeys(WORK_KINDS, 0)
+
+    def spend(self, kind: str, amount: int = 1) -> None:
+        if self.used[kind] + amount > getattr(self.bound, kind):
+            raise WorkBoundReached(kind)
+        self.used[kind] += amount
+
+    def snapshot(self) -> tuple[tuple[str, int], ...]:
+        return tuple((kind, self.used[kind]) for kind in WORK_KINDS)
+
+
+@dataclass(frozen=True)
 class SearchResult:
     """``found``: verified Killing vectors (components in coordinate order) independent of the
-    listed ones; ``rejected``: candidates the symbolic check refused (never shown)."""
+    listed ones; ``rejected``: candidates the symbolic check refused (never shown); ``work``:
+    the work done (points, unknowns, checks) and ``work_at_last_find`` the work done when the
+    last vector was found (for the benchmark that sets the bound)."""
 
     found: tuple[tuple[sympy.Expr, ...], ...]
     complete: bool
     summary: str  # what was searched and with what outcome, in words
     rejected: int = 0
+    work: tuple[tuple[str, int], ...] = ()
+    work_at_last_find: tuple[tuple[str, int], ...] = ()
 
 
 @dataclass(frozen=True)
@@ -149,11 +197,15 @@ def candidate_rates(spacetime: Spacetime) -> list[sympy.Expr]:
 
 def classes_for(x: sympy.Symbol, rates: Sequence[sympy.Expr]
                 ) -> list[tuple[str, tuple[sympy.Expr, ...]]]:
-    out: list[tuple[str, tuple[sympy.Expr, ...]]] = [("poly", (sympy.Integer(1), x, x**2))]
-    for k in rates:
-        out.append(("trig", (sympy.cos(k * x), sympy.sin(k * x))))
-        out.append(("exp", (sympy.exp(k * x),)))
-        out.append(("exp", (sympy.exp(-k * x),)))
+    # The polynomial class in levels {1} ⊂ {1, x} ⊂ {1, x, x²}: a smaller class leaves room
+    # for a higher degree in the other coordinates within the size bound.
+    # Each class is named by its kind and level or rate index (see ``_complexity``).
+    out: list[tuple[str, tuple[sympy.Expr, ...]]] = [
+        (f"poly{level}", (sympy.Integer(1), x, x**2)[:level]) for level in (1, 2, 3)]
+    for index, k in enumerate(rates):
+        out.append((f"trig{index}", (sympy.cos(k * x), sympy.sin(k * x))))
+        out.append((f"exp{index}", (sympy.exp(k * x),)))
+        out.append((f"exp{index}", (sympy.exp(-k * x),)))
     return out
 
 
@@ -171,20 +223,22 @@ def _function_atoms(spacetime: Spacetime, cyclic: Sequence[int]) -> list[Atom]:
         if i not in cyclic and any(_bare(value, x) for value in values):
             add(Atom(x, -2, 2))
     for value in values:
-        for f in value.atoms(*CIRCULAR, *HYPERBOLIC):
+        for f in _ordered(value.atoms(*CIRCULAR, *HYPERBOLIC)):
             arg = f.args[0]
             if not arg.free_symbols & coordinates:
                 continue
             sin_f, cos_f = (sympy.sin, sympy.cos) if f.func in CIRCULAR else \
                 (sympy.sinh, sympy.cosh)
             add(Atom(sin_f(arg), -1, 1))
-            add(Atom(cos_f(arg), 0, 1))
-        for f in value.atoms(sympy.exp):
+            # cosh never vanishes, and 1/cosh (tanh = sinh/cosh) is common in Killing vectors
+            # (anti-de Sitter's global chart); 1/cos is left out to keep the blocks small.
+            add(Atom(cos_f(arg), -1 if cos_f is sympy.cosh else 0, 1))
+        for f in _ordered(value.atoms(sympy.exp)):
             if f.args[0].free_symbols & coordinates:
                 add(Atom(f, -2, 2))
-        for f in value.atoms(sympy.Pow):
+        for f in _ordered(value.atoms(sympy.Pow)):
             if f.exp.is_Rational and not f.exp.is_Integer and f.base.free_symbols & coordinates:
-                add(Atom(f.base ** sympy.Rational(1, f.exp.q), -1, 1))
+                add(Atom(_root_atom(f.base, f.exp.q), -1, 1))
     for i in cyclic:
         radicand = spacetime.metric[i, i]
         if radicand == 0:
@@ -194,8 +248,30 @@ def _function_atoms(spacetime: Spacetime, cyclic: Sequence[int]) -> list[Atom]:
         root = sympy.powdenest(sympy.sqrt(sympy.factor(radicand)), force=True)
         if any(p.exp.is_Rational and not p.exp.is_Integer and p.base.free_symbols & coordinates
                for p in root.atoms(sympy.Pow)):
-            add(Atom(sympy.sqrt(radicand), -1, 1))
+            add(Atom(_root_atom(radicand, 2), -1, 1))
     return atoms
+
+
+def _root_atom(radicand: sympy.Expr, q: int) -> sympy.Expr:
+    """The q-th root as an atom, with a denominator that is a q-th power of the parameters
+    taken out: √(1 + r²/ℓ²) becomes √(ℓ² + r²) (1/ℓ is among the parameter powers). The
+    field adjoins the root of such a denominator with a sign of its own at each point, which
+    made the vectors built on √(1 + r²/ℓ²) inconsistent from point to point."""
+    numerator, denominator = sympy.fraction(sympy.together(radicand))
+    root_of_denominator = sympy.powdenest(denominator ** sympy.Rational(1, q), force=True)
+    if denominator != 1 and not any(
+            f.exp.is_Rational and not f.exp.is_Integer
+            for f in root_of_denominator.atoms(sympy.Pow)) and not \
+            root_of_denominator.free_symbols & radicand.free_symbols - set(
+                x for x in radicand.free_symbols if x.is_positive):
+        return sympy.expand(numerator) ** sympy.Rational(1, q)
+    return radicand ** sympy.Rational(1, q)
+
+
+def _ordered(found: set[sympy.Expr]) -> list[sympy.Expr]:
+    """A set of subexpressions in a fixed order (a set's order follows string hashes, which
+    change from one process to the next; the ansatz, and so what is found, must not)."""
+    return sorted(found, key=sympy.default_sort_key)
 
 
 def _bare(value: sympy.Expr, x: sympy.Symbol) -> bool:
@@ -206,20 +282,27 @@ def _bare(value: sympy.Expr, x: sympy.Symbol) -> bool:
 
 
 def _parameter_atoms(spacetime: Spacetime, rates: Sequence[sympy.Expr]) -> list[Atom]:
+    """The parameters, and each rate k with a radical in it as an atom of its own (powers −2…2):
+    a Killing vector's components then carry k itself, e.g. k = √(Λ/3) in de Sitter, with a
+    rational coefficient — written in √Λ they would need the irrational 1/√3. A parameter whose
+    square root is such a rate (up to a rational factor) is covered by the rate's powers."""
     atoms = [Atom(p, -1, 1, True) for p in spacetime.parameters]
-    known = {a.expr for a in atoms}
+    rate_atoms: list[sympy.Expr] = []
     for k in rates[1:]:
-        for f in k.atoms(sympy.Pow):
-            if f.exp.is_Rational and not f.exp.is_Integer and f.base.free_symbols \
-                    and f not in known:
-                base = f.base ** sympy.Rational(1, f.exp.q)
-                if base not in known:
-                    known.add(base)
-                    atoms.append(Atom(base, -1, 1, True))
-    # A parameter with a root among the atoms is covered by the root's powers.
-    roots = {a.expr.base for a in atoms if isinstance(a.expr, sympy.Pow)}
-    return [Atom(a.expr, -2, 2, True) if isinstance(a.expr, sympy.Pow) else a
-            for a in atoms if a.expr not in roots]
+        radical = any(f.exp.is_Rational and not f.exp.is_Integer and f.base.free_symbols
+                      for f in k.atoms(sympy.Pow))
+        if radical and not any(_rational_ratio(k * other) or _rational_ratio(k / other)
+                               for other in rate_atoms):
+            rate_atoms.append(k)
+    covered = {p for p in spacetime.parameters
+               if any(_rational_ratio(k**2 / p) or _rational_ratio(k**2 * p)
+                      for k in rate_atoms)}
+    return ([a for a in atoms if a.expr not in covered]
+            + [Atom(k, -2, 2, True) for k in rate_atoms])
+
+
+def _rational_ratio(ratio: sympy.Expr) -> bool:
+    return sympy.simplify(ratio).is_Rational is True
 
 
 def monomials(atoms: Sequence[Atom], degree: int, parameter_degree: int
@@ -273,12 +356,11 @@ class PointValues:
                  for i in range(self.n)]
         return [int(jet[0]), *(int(jet[u]) for u in units)]
 
-    def grow(self, count: int, deadline: float) -> None:
+    def grow(self, count: int, work: Work) -> None:
         attempts = 0
         while len(self.atoms) < count and attempts < 4 * count + 40:
             attempts += 1
-            if time.process_time() > deadline:
-                raise TimeoutError("time budget")
+            work.spend("points")
             try:
                 jets = FieldJets(self.field, 1, self.rng, self.p)
                 atoms = np.array([self._one_jet(jets, v)
@@ -332,8 +414,10 @@ def killing_rows(values: PointValues, point: int, exponents: np.ndarray) -> np.n
         for b in range(a, n):
             blocks = []
             for c in range(n):
-                entry = (m * int(g[a, b, 1 + c]) + dm[:, a] * int(g[c, b, 0])
-                         + dm[:, b] * int(g[a, c, 0])) % p
+                # Each product is below 2⁶², a sum of three is not: reduce them one by one
+                # (an int64 overflow made a rare point inconsistent and lost whole blocks).
+                entry = (m * int(g[a, b, 1 + c]) % p + dm[:, a] * int(g[c, b, 0]) % p
+                         + dm[:, b] * int(g[a, c, 0]) % p) % p
                 blocks.append(entry)
             rows.append(np.concatenate(blocks))
     return np.array(rows, dtype=np.int64)
@@ -345,8 +429,8 @@ def kernel(rows: np.ndarray, p: int) -> list[list[int]]:
     count, size = rows.shape
     matrix = flint.nmod_mat(count, size, rows.ravel().tolist(), p)
     basis, nullity = matrix.nullspace()
-    table = basis.tolist()
-    return [[int(table[i][j]) for i in range(size)] for j in range(nullity)]
+    # Only the first ``nullity`` columns hold the basis: read those, not the whole square.
+    return [[int(basis[i, j]) for i in range(size)] for j in range(nullity)]
 
 
 def rational_reconstruction(a: int, p: int) -> sympy.Rational | None:
@@ -388,13 +472,17 @@ class _State:
     signatures: list[list[int]]
     found: list[tuple[sympy.Expr, ...]]
     rejected: int = 0
+    work_at_last_find: tuple[tuple[str, int], ...] = ()
+    listed: list[tuple[sympy.Expr, ...]] = field(default_factory=list)
+    from_brackets: int = 0  # found vectors that are brackets (no 1-jet in ``signatures``)
+    tried: set = field(default_factory=set)  # pairs of basis positions already bracketed
 
 
 def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy.Expr]],
-                           dimension: int, seconds: float = SECONDS) -> SearchResult:
+                           dimension: int, bound: WorkBound = WORK_BOUND) -> SearchResult:
     """Killing vectors independent of ``listed`` (already verified), until together they
     span ``dimension`` or the ansatz is exhausted (see module docstring)."""
-    deadline = time.process_time() + seconds
+    work = Work(bound)
     listed = [[sympy.sympify(c) for c in xi] for xi in listed]
     n = spacetime.dimension
     cyclic = cyclic_coordinates(spacetime)
@@ -409,27 +497,30 @@ def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy
     described = describe(spacetime, function_atoms, parameter_atoms, cyclic, rates)
     try:
         values = PointValues(spacetime, atom_exprs, listed)
-        values.grow(2, deadline)
-    except (BadPoint, NotInField, ZeroDivisionError, TimeoutError) as exc:
+        values.grow(2, work)
+    except WorkBoundReached:
+        return SearchResult((), False, "not searched: the work bound was reached while "
+                            "sampling points", work=work.snapshot())
+    except (BadPoint, NotInField, ZeroDivisionError) as exc:
         return SearchResult((), False, f"not searched: {exc}")
     state = _State([listed_signature(values, SIGNATURE_POINTS, k) for k in range(len(listed))],
-                   [])
+                   [], listed=[tuple(xi) for xi in listed])
     target = dimension
     why = ""
     bases = {degree: monomials(base_atoms, degree, 1) for degree in DEGREES}
     blocks = sorted(itertools.product(*classes), key=_complexity)
     try:
-        for choice in blocks:
+        for choice, degree in _undominated(blocks, bases, n):
             if _rank(state, values.p) >= target:
                 break
-            combinations = sum(1 for c in itertools.product(*(fs for _, fs in choice))
-                               if sum(map(_polynomial_degree, c)) <= MAX_CYCLIC_DEGREE)
-            fitting = [d for d in DEGREES if n * combinations * len(bases[d]) <= MAX_UNKNOWNS]
-            base = bases[fitting[-1] if fitting else DEGREES[0]]
+            base = bases[degree]
+            before = len(state.found)
             _solve_block(spacetime, values, base, base_atoms, factor_exprs, choice, state,
-                         deadline)
-    except TimeoutError:
-        why = "; stopped at the time budget"
+                         work)
+            if len(state.found) > before:
+                _close_under_brackets(spacetime, state, target, values.p, work)
+    except WorkBoundReached:
+        why = "; stopped at the work bound"
     except (BadPoint, NotInField, ZeroDivisionError) as exc:
         why = f"; stopped: {exc}"
     found = tuple(state.found)
@@ -443,16 +534,146 @@ def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy
     else:
         summary = (f"{len(found)} of the {missing} missing Killing vectors found by the tool; "
                    f"the rest are not in the searched ansatz ({described}){why}")
-    return SearchResult(found, complete, summary, state.rejected)
+    return SearchResult(found, complete, summary, state.rejected, work.snapshot(),
+                        state.work_at_last_find)
 
 
-def _complexity(choice) -> tuple[int, int]:
-    """Blocks with fewer exponential or circular classes first."""
-    return (sum(kind != "poly" for kind, _ in choice), sum(len(fs) for _, fs in choice))
+def _combinations(choice) -> frozenset:
+    return frozenset(c for c in itertools.product(*(fs for _, fs in choice))
+                     if sum(map(_polynomial_degree, c)) <= MAX_CYCLIC_DEGREE)
+
+
+def _undominated(blocks, bases, n: int) -> list[tuple[tuple, int]]:
+    """Each block with the highest degree of the non-cyclic part that fits the size bound,
+    without the blocks another one contains (its functions of the cyclic coordinates and at
+    least its degree): with polynomial classes in levels, {1, x} is inside {1, x, x²}, and
+    solving both at the same degree would repeat the work."""
+    sized = []
+    for choice in blocks:
+        combinations = _combinations(choice)
+        fitting = [d for d in DEGREES if n * len(combinations) * len(bases[d]) <= MAX_UNKNOWNS]
+        sized.append((choice, combinations, fitting[-1] if fitting else DEGREES[0]))
+    # Only blocks with the same exponential and circular classes can contain one another.
+    groups: dict[tuple, list[int]] = {}
+    for k, (choice, _, _) in enumerate(sized):
+        pattern = tuple("poly" if kind.startswith("poly") else fs for kind, fs in choice)
+        groups.setdefault(pattern, []).append(k)
+    kept = []
+    for k, (choice, combinations, degree) in enumerate(sized):
+        pattern = tuple("poly" if kind.startswith("poly") else fs for kind, fs in choice)
+        dominated = any(other != k and combinations <= sized[other][1]
+                        and degree <= sized[other][2]
+                        and (combinations != sized[other][1] or degree != sized[other][2]
+                             or other < k)
+                        for other in groups[pattern])
+        if not dominated:
+            kept.append((choice, degree))
+    return kept
+
+
+def _complexity(choice) -> tuple[int, int, int, int]:
+    """Simplest blocks first: fewer exponential or circular classes; then lower polynomial
+    levels; then the rates in their order (1 first); then fewer functions."""
+    transcendental = sum(not kind.startswith("poly") for kind, _ in choice)
+    degree = sum(int(kind[4:]) - 1 for kind, _ in choice if kind.startswith("poly"))
+    rates = sum(int(kind[-1]) for kind, _ in choice if not kind.startswith("poly"))
+    return (transcendental, degree, rates, sum(len(fs) for _, fs in choice))
 
 
 def _rank(state: _State, p: int) -> int:
-    return matrix_rank(state.signatures, p) if state.signatures else 0
+    """Independent vectors known: the rank of the 1-jets, plus the brackets (each proved
+    outside the span of everything before it)."""
+    return (matrix_rank(state.signatures, p) if state.signatures else 0) + state.from_brackets
+
+
+# ====================================================================== closing the algebra
+
+
+def _close_under_brackets(spacetime: Spacetime, state: _State, target: int, p: int,
+                          work: Work) -> None:
+    """The bracket of two Killing vectors is one: bracket each vector found with the listed
+    and found ones, keep the brackets whose 1-jets at a random point of a field holding them
+    all raise the rank (exact arithmetic modulo a prime: a rank that goes up proves
+    independence) and that pass Killing's equation symbolically. In a maximally symmetric
+    space one boost and the rotations give the other boosts."""
+    while _rank(state, p) < target:
+        basis = [*state.listed, *state.found]
+        pairs = [(j, i) for i in range(len(state.listed), len(basis)) for j in range(len(basis))
+                 if i != j and (min(i, j), max(i, j)) not in state.tried]
+        if not pairs:
+            return
+        candidates = []
+        for j, i in pairs:
+            state.tried.add((min(i, j), max(i, j)))
+            bracket = tuple(tidy(_one_for_sin_squared(c, spacetime.coordinates))
+                            for c in commutator(basis[j], basis[i], spacetime.coordinates))
+            if any(c != 0 for c in bracket):
+                candidates.append(bracket)
+        if not candidates:
+            return
+        work.spend("points")
+        flags = raises_rank(spacetime, basis, candidates)
+        added = 0
+        for candidate, new in zip(candidates, flags, strict=True):
+            if not new or _rank(state, p) >= target:
+                continue
+            work.spend("checks")
+            if not is_killing(candidate, spacetime):
+                state.rejected += 1
+                continue
+            state.found.append(candidate)
+            state.from_brackets += 1
+            state.work_at_last_find = work.snapshot()
+            added += 1
+        if not added:
+            return
+
+
+def _one_for_sin_squared(expr: sympy.Expr, coordinates: Sequence[sympy.Symbol]) -> sympy.Expr:
+    """sin²x → 1 − cos²x for each coordinate x, so that sin²x + cos²x cancels in a bracket
+    (an exact identity; the result is verified afterwards in exactly this form)."""
+    for x in coordinates:
+        if expr.has(sympy.sin(x)):
+            expr = sympy.expand(expr.subs(sympy.sin(x) ** 2, 1 - sympy.cos(x) ** 2))
+    return expr
+
+
+def raises_rank(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]],
+                candidates: Sequence[Sequence[sympy.Expr]]) -> list[bool]:
+    """For each candidate in turn, whether its 1-jet raises the rank of the 1-jets of the
+    basis and the candidates kept before it, at one random point of the field of the metric
+    and all these components (modulo a prime near 2³¹; a rank mod p never exceeds the true
+    one, so True is certain). All False when no usable point is found."""
+    n = spacetime.dimension
+    vectors = [*basis, *candidates]
+    field, _, extra = metric_field(spacetime, [sympy.sympify(c) for xi in vectors for c in xi])
+    rng = random.Random(SEED + 1)
+    for q in primes()[:PRIME_TRIES]:
+        for _ in range(20):
+            try:
+                jets = FieldJets(field, 1, rng, q)
+                rows = [[v for a in range(n) for v in _jet_of(jets, extra[k * n + a], n)]
+                        for k in range(len(vectors))]
+            except (BadPoint, ZeroDivisionError, NotInField):
+                continue
+            kept = rows[: len(basis)]
+            rank = matrix_rank(kept, q) if kept else 0
+            flags = []
+            for row in rows[len(basis):]:
+                trial = matrix_rank([*kept, row], q)
+                flags.append(trial > rank)
+                if trial > rank:
+                    kept.append(row)
+                    rank = trial
+            return flags
+    return [False] * len(candidates)
+
+
+def _jet_of(jets: FieldJets, value, n: int) -> list[int]:
+    """Value and first derivatives of a field element at the jets' point."""
+    jet = jets.rational(value)
+    units = [jets.space.index[tuple(1 if v == i else 0 for v in range(n))] for i in range(n)]
+    return [int(jet[0]) % jets.p, *(int(jet[u]) % jets.p for u in units)]
 
 
 def describe(spacetime: Spacetime, function_atoms: Sequence[Atom],
@@ -460,19 +681,34 @@ def describe(spacetime: Spacetime, function_atoms: Sequence[Atom],
              rates: Sequence[sympy.Expr]) -> str:
     parts = ["polynomials in the coordinates (powers −2…2)"]
     if function_atoms:
-        parts.append("the functions " + ", ".join(str(a.expr) for a in function_atoms))
+        parts.append("the functions " + ", ".join(readable(a.expr) for a in function_atoms))
     if cyclic:
-        names = ", ".join(str(spacetime.coordinates[i]) for i in cyclic)
+        names = ", ".join(readable(spacetime.coordinates[i]) for i in cyclic)
         parts.append(f"exp(±kx), cos kx, sin kx for the cyclic coordinates x = {names} with "
-                     f"k in {{{', '.join(str(k) for k in rates)}}}")
+                     f"k in {{{', '.join(readable(k) for k in rates)}}}")
     if parameter_atoms:
-        parts.append("powers −1…1 of " + ", ".join(str(a.expr) for a in parameter_atoms))
+        parts.append("powers −1…1 of " + ", ".join(readable(a.expr) for a in parameter_atoms))
     return "; ".join(parts) + f"; total degree ≤ {DEGREES[-1]}"
+
+
+SUPERSCRIPT = str.maketrans("0123456789-", "⁰¹²³⁴⁵⁶⁷⁸⁹⁻")
+
+
+def readable(expr: sympy.Expr) -> str:
+    """One line of mathematics as a reader writes it — √(1 − Λr²/3), θ, r⁻¹ — never program
+    syntax (the sentence is shown on the entry's page as it is)."""
+    names = {x: sympy.Symbol(sympy.pretty(x, use_unicode=True)) for x in expr.free_symbols}
+    text = sympy.sstr(expr.xreplace(names))
+    text = re.sub(r"\*\*\((-?\d+)\)|\*\*(\d+)",
+                  lambda m: (m.group(1) or m.group(2)).translate(SUPERSCRIPT), text)
+    text = re.sub(r"\*\*\(([^()]*)\)", r"^(\1)", text)
+    return (text.replace("sqrt(", "√(").replace("*", "·").replace(" - ", " − ")
+            .replace("-", "−"))
 
 
 def _solve_block(spacetime: Spacetime, values: PointValues, base: list[tuple[int, ...]],
                  base_atoms: Sequence[Atom], factor_exprs: Sequence[sympy.Expr],
-                 choice, state: _State, deadline: float) -> None:
+                 choice, state: _State, work: Work) -> None:
     n = values.n
     factor_sets = [fs for _, fs in choice]
     width = len(base_atoms) + len(factor_exprs)
@@ -490,7 +726,7 @@ def _solve_block(spacetime: Spacetime, values: PointValues, base: list[tuple[int
     if not exponent_rows:
         return
     exponents = np.array(exponent_rows, dtype=np.int64).reshape(len(exponent_rows), width)
-    exponents = _independent_monomials(values, exponents, deadline)
+    exponents = _independent_monomials(values, exponents, work)
     if n * len(exponents) > MAX_UNKNOWNS:
         exponents = exponents[: MAX_UNKNOWNS // n]
     # Simplest monomials last: the free variables of the echelon form are then the simple
@@ -499,24 +735,28 @@ def _solve_block(spacetime: Spacetime, values: PointValues, base: list[tuple[int
     size = n * len(exponents)
     per_point = n * (n + 1) // 2
     needed = size // per_point + EXTRA_POINTS
-    values.grow(needed + 2, deadline)
+    values.grow(needed + 2, work)
+    work.spend("unknowns", size)
     rows = np.concatenate([killing_rows(values, k, exponents) for k in range(2, needed + 2)])
-    if time.process_time() > deadline:
-        raise TimeoutError("time budget")
     for vector in kernel(rows, values.p):
         signature = vector_signature(values, SIGNATURE_POINTS, exponents, vector)
         trial = [*state.signatures, signature]
-        if matrix_rank(trial, values.p) <= _rank(state, values.p):
+        if matrix_rank(trial, values.p) <= (matrix_rank(state.signatures, values.p)
+                                            if state.signatures else 0):
             continue
         candidate = _exact_vector(vector, exponents, base_atoms, factor_exprs, n, values.p,
                                   spacetime.coordinates)
+        if candidate is not None and state.from_brackets and not raises_rank(
+                spacetime, [*state.listed, *state.found], [candidate])[0]:
+            continue  # a combination of brackets already found (they have no 1-jets here)
+        if candidate is not None:
+            work.spend("checks")
         if candidate is None or not is_killing(candidate, spacetime):
             state.rejected += 1
             continue
         state.signatures.append(signature)
         state.found.append(candidate)
-        if time.process_time() > deadline:
-            raise TimeoutError("time budget")
+        state.work_at_last_find = work.snapshot()
 
 
 def _polynomial_degree(factor: sympy.Expr) -> int:
@@ -527,15 +767,18 @@ def _polynomial_degree(factor: sympy.Expr) -> int:
     return 0
 
 
-def _independent_monomials(values: PointValues, exponents: np.ndarray, deadline: float
+def _independent_monomials(values: PointValues, exponents: np.ndarray, work: Work
                            ) -> np.ndarray:
     """Drop monomials that are linear combinations of earlier ones (sin² = 1 − cos², a
     radical times its radicand, ...): their values at more points than monomials have the
-    earlier columns as pivots."""
+    earlier columns as pivots. A relation among the monomials holds with its first derivatives,
+    so each point gives n + 1 rows (values and derivatives) and few points are needed."""
     count = len(exponents)
-    values.grow(count + 4, deadline)
-    rows = np.array([values.monomial_jets(k, exponents)[0] for k in range(count + 4)],
-                    dtype=np.int64)
+    points = -(-(count + 4) // (values.n + 1)) + 2
+    values.grow(points, work)
+    work.spend("unknowns", count)
+    rows = np.concatenate([np.vstack([m[None, :], dm.T]) for m, dm in
+                           (values.monomial_jets(k, exponents) for k in range(points))])
     matrix = flint.nmod_mat(rows.shape[0], count, rows.ravel().tolist(), values.p)
     reduced, rank = matrix.rref()
     table = np.array(reduced.tolist()[:rank], dtype=object).astype(np.int64)

@@ -3,13 +3,13 @@
 [X_i, X_j]^a = X_i^b ∂_b X_j^a − X_j^b ∂_b X_i^a is written as Σ_k c_ij^k X_k: the c's are
 solved for at sample values of the coordinates (parameters stay symbols, so constants such as
 Gödel's scale survive), and the identity is then verified symbolically with the project's zero
-test. Only a recognition that follows from invariant data is named: abelian, so(3), sl(2,ℝ)
-(via the Killing form's signature, Cartan's criterion), and their sums with a centre ℝ.
+test. The algebra is named by ``lie_identify`` from invariant data only (derived algebra,
+centre, radical, the Killing form's signature, the form an abelian ideal's representation
+preserves); where no name is certain, what is known is said in words.
 """
 
 from __future__ import annotations
 
-import time
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -18,10 +18,16 @@ import sympy
 from generator.geometry.exactvalues import vanishes
 from generator.geometry.sampling import CIRCULAR, entry_points, through_sin_cos
 from generator.model import Spacetime
+from generator.physics.lie_identify import (
+    Identification,
+    identify,
+    power,
+    table_from_brackets,
+)
 
 MAX_BASIS = 10
-SECONDS = 20.0  # CPU budget of the bracket table
-MAX_NAMED = 7  # the names below need the Killing form's eigenvalues: small algebras only
+MAX_OPS = 6000  # operations in the basis's components: beyond, no table (a work bound, not a
+# time budget, so that the page is the same on every machine)
 Structure = tuple[tuple[int, int, tuple[sympy.Expr, ...]], ...]
 
 
@@ -139,20 +145,20 @@ def expand_in_basis(target: Sequence[sympy.Expr], basis: Sequence[Sequence[sympy
     return coefficients
 
 
-def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], complete: bool,
-              seconds: float = SECONDS) -> tuple[Structure, str | None]:
+def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], complete: bool
+              ) -> tuple[Structure, str | None]:
     """The nonzero brackets [X_i, X_j] = c^k X_k (i < j) of a basis that closes, and a name
-    for the algebra when the basis is complete and the algebra is one of the plain cases.
-    Nothing (no brackets, no name) when the CPU budget ``seconds`` runs out: vectors found by
-    the search can make the symbolic expansions slow, and a partial table is not shown."""
+    for the algebra when the basis is complete and the name is certain (``lie_identify``).
+    Nothing (no brackets, no name) for a basis larger than MAX_BASIS vectors or MAX_OPS
+    operations: vectors found by the search can make the symbolic expansions slow."""
     if not basis or len(basis) > MAX_BASIS:
         return (), None
-    deadline = time.process_time() + seconds
+    if sum(sympy.count_ops(c) for xi in basis for c in xi) > MAX_OPS or any(
+            _has_radical(c, spacetime) for xi in basis for c in xi):
+        return (), None
     out = []
     for i in range(len(basis)):
         for j in range(i + 1, len(basis)):
-            if time.process_time() > deadline:
-                return (), None
             bracket = commutator(basis[i], basis[j], spacetime.coordinates)
             coefficients = expand_in_basis(bracket, basis, spacetime)
             if coefficients is None:
@@ -162,31 +168,28 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
     return tuple(out), (recognise(tuple(out), len(basis)) if complete else None)
 
 
+def _has_radical(expr: sympy.Expr, spacetime: Spacetime) -> bool:
+    """A root of an expression in the coordinates: linear solving over such expressions is
+    where SymPy becomes slow (and once crashed on a complete de Sitter basis), so a basis
+    with radicals gets no table — a bound on the kind of work, not on its time."""
+    coordinates = set(spacetime.coordinates)
+    return any(p.exp.is_Rational and not p.exp.is_Integer and p.base.free_symbols & coordinates
+               for p in sympy.sympify(expr).atoms(sympy.Pow))
+
+
 def recognise(brackets: Structure, d: int) -> str | None:
+    """The algebra's name when the structure constants make it certain (``lie_identify``)."""
+    return identification(brackets, d).name
+
+
+def identification(brackets: Structure, d: int) -> Identification:
+    """Name (or None) and what is known of the algebra; a table whose constants keep free
+    parameters is not identified."""
     if not brackets:
-        return f"abelian ℝ^{d}" if d > 1 else "ℝ"
-    c = [[[sympy.Integer(0)] * d for _ in range(d)] for _ in range(d)]
-    for i, j, coefficients in brackets:
-        for k, value in enumerate(coefficients):
-            c[i][j][k], c[j][i][k] = value, -value
-    ad = [sympy.Matrix(d, d, lambda k, j, i=i: c[i][j][k]) for i in range(d)]
-    killing = sympy.Matrix(d, d, lambda i, j: (ad[i] * ad[j]).trace())
-    centre = sympy.Matrix(d * d, d, lambda r, i: c[i][r // d][r % d]).nullspace()
-    derived = sympy.Matrix([[v for v in coefficients] for _, _, coefficients in brackets]).rank()
-    if killing.free_symbols or d > MAX_NAMED:
-        return None
-    eigen = [e for e, m in killing.eigenvals().items() for _ in range(m)]
-    negative = sum(1 for e in eigen if e < 0)
-    positive = sum(1 for e in eigen if e > 0)
-    centre_dimension = len(centre)
-    if derived + centre_dimension != d or negative + positive != derived:
-        return None  # not a semisimple part plus a centre: left unnamed
-    if derived == 3:
-        name = "so(3)" if negative == 3 else "sl(2,ℝ)" if positive == 2 else None
-    elif derived == 6 and negative == 6:
-        name = "so(4)"
-    else:
-        name = None
-    if name is None or centre_dimension == 0:
-        return name
-    return f"{name} ⊕ ℝ" + (f"^{centre_dimension}" if centre_dimension > 1 else "")
+        return Identification("ℝ" if d == 1 else f"abelian {power('ℝ', d)}",
+                              f"abelian, {d}-dimensional")
+    table = table_from_brackets(brackets, d)
+    if table is None:
+        return Identification(None, f"{d}-dimensional; the structure constants depend on the "
+                              "parameters, so the algebra is not identified")
+    return identify(table)

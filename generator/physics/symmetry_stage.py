@@ -74,6 +74,12 @@ def symmetry(entry: Entry, spacetime: Spacetime, geometry: Geometry,
         structure, algebra_name = lie_algebra.structure(spacetime, vectors_all, bool(complete))
     except COMPUTATION_FAILURES:
         structure, algebra_name = (), None
+    known = None
+    if complete and (structure or algebra_name):
+        try:
+            known = lie_algebra.identification(structure, len(vectors_all)).structure
+        except COMPUTATION_FAILURES:
+            known = None
     algebra = IsometryAlgebra(
         dimension=computed.dimension,
         orbit_dimension=computed.orbit_dimension,
@@ -86,6 +92,7 @@ def symmetry(entry: Entry, spacetime: Spacetime, geometry: Geometry,
         why_null=computed.why_null,
         structure=structure,
         algebra_name=algebra_name,
+        algebra_structure=known,
         found=len(found),
         search=search.summary if search else None,
     )

@@ -140,6 +140,7 @@ def symmetry_json(c: Classification, names: list[str]) -> dict[str, Any]:
                 {"bracket": [i, j], "coefficients": [str(v) for v in coefficients]}
                 for i, j, coefficients in iso.structure],
             "algebra": iso.algebra_name,
+            "algebra_structure": iso.algebra_structure,
             "basis_found_by_tool": [k >= len(iso.basis) - iso.found
                                     for k in range(len(iso.basis))],
             "search": iso.search,

@@ -61,6 +61,7 @@ def algebra_data(iso: IsometryAlgebra, coordinates: tuple[sympy.Symbol, ...]
             "isotropy": isotropy, "listed": iso.listed, "basis": basis,
             "complete": iso.complete, "method": iso.method, "why_null": iso.why_null,
             "brackets": brackets, "name": iso.algebra_name, "found": iso.found,
+            "known": iso.algebra_structure,
             "search": iso.search,
             "missing": None if iso.dimension is None else iso.dimension - len(iso.basis)}
 
