@@ -8,14 +8,13 @@ formulas of the trade (f'(r_h)/2 for static horizons, the Schwarzschild-like orb
 from __future__ import annotations
 
 from functools import cache
-from pathlib import Path
 
 import mpmath
 import pytest
 import sympy as sp
 
 from generator.entry.catalog import vocabulary
-from generator.entry.loader import LoadResult, load_entry, load_text
+from generator.entry.loader import LoadResult, load_text
 from generator.geometry.curvature import compute_geometry
 from generator.geometry.equality import decide_equal
 from generator.geometry.sampling import entry_points
@@ -25,20 +24,7 @@ from generator.physics.physical import check_physical_claims, physical_data
 from generator.physics.rootfield import pseudo_remainder
 from generator.physics.verify import check_loaded
 from generator.site.export import report_json
-
-CATALOG = Path(__file__).resolve().parent.parent / "catalog"
-
-
-def path_of(entry_id: str) -> Path:
-    return next(CATALOG.glob(f"*/{entry_id}.yaml"))
-
-
-@cache
-def loaded(entry_id: str) -> LoadResult:
-    path = path_of(entry_id)
-    result = load_entry(path, path.name, vocabulary(CATALOG))
-    assert result.ok, result.diagnostics
-    return result
+from tests._shipped_entries import CATALOG, loaded, path_of
 
 
 @cache

@@ -5,45 +5,18 @@ integral is not elementary. Sources beside each check; "from memory" where recal
 
 from __future__ import annotations
 
-from functools import cache
-from pathlib import Path
-
 import mpmath
 import pytest
 import sympy as sp
 
 from generator.entry.catalog import vocabulary
-from generator.entry.loader import LoadResult, load_entry, load_text
-from generator.geometry.curvature import compute_geometry
+from generator.entry.loader import LoadResult, load_text
 from generator.geometry.sampling import entry_points
-from generator.model import Horizon, PhysicalData
+from generator.model import Horizon
 from generator.physics.horizons import H
-from generator.physics.physical import physical_data
 from generator.site.physical_json import horizon_json
 from tests._hostile import SEED_ENTRY, SEED_LINE_ELEMENT
-
-CATALOG = Path(__file__).resolve().parent.parent / "catalog"
-
-
-def path_of(entry_id: str) -> Path:
-    return next(CATALOG.glob(f"*/{entry_id}.yaml"))
-
-
-@cache
-def loaded(entry_id: str) -> LoadResult:
-    path = path_of(entry_id)
-    result = load_entry(path, path.name, vocabulary(CATALOG))
-    assert result.ok, result.diagnostics
-    return result
-
-
-def data_for(load: LoadResult) -> PhysicalData:
-    return physical_data(load.spacetime, compute_geometry(load.spacetime), None)
-
-
-@cache
-def data_of(entry_id: str) -> PhysicalData:
-    return data_for(loaded(entry_id))
+from tests._shipped_entries import CATALOG, data_for, data_of, loaded, path_of
 
 
 def at_sample(expr: sp.Expr, entry_id: str, h: Horizon) -> mpmath.mpf:
