@@ -6,10 +6,13 @@ from __future__ import annotations
 from functools import cache
 from pathlib import Path
 
+import sympy
+
 from generator.entry.catalog import vocabulary
 from generator.entry.loader import LoadResult, load_entry
 from generator.geometry.curvature import compute_geometry
-from generator.model import PhysicalData
+from generator.geometry.equality import decide_equal
+from generator.model import Horizon, PhysicalData, Spacetime
 from generator.physics.physical import physical_data
 
 CATALOG = Path(__file__).resolve().parent.parent / "catalog"
@@ -34,3 +37,13 @@ def data_for(load: LoadResult) -> PhysicalData:
 @cache
 def data_of(entry_id: str) -> PhysicalData:
     return data_for(loaded(entry_id))
+
+
+def equal(a: sympy.Expr, b: sympy.Expr, spacetime: Spacetime) -> bool:
+    return decide_equal(a, b, spacetime).equal is True
+
+
+def the(entry_id: str, kind: str) -> Horizon:
+    found = [h for h in data_of(entry_id).horizons if h.kind == kind]
+    assert len(found) == 1, [h.kind for h in data_of(entry_id).horizons]
+    return found[0]

@@ -17,22 +17,12 @@ from generator.entry.catalog import vocabulary
 from generator.entry.loader import LoadResult, load_text
 from generator.geometry.equality import decide_equal
 from generator.geometry.sampling import entry_points
-from generator.model import Horizon, Spacetime
+from generator.model import Spacetime
 from generator.physics.horizons import H, inward_coordinate
 from generator.physics.physical import check_physical_claims, computed_claim
 from generator.site.physical_json import horizon_json
 from tests._hostile import SEED_ENTRY, SEED_LINE_ELEMENT
-from tests._shipped_entries import CATALOG, data_for, data_of, loaded, path_of
-
-
-def equal(a: sp.Expr, b: sp.Expr, spacetime: Spacetime) -> bool:
-    return decide_equal(a, b, spacetime).equal is True
-
-
-def the(entry_id: str, kind: str) -> Horizon:
-    found = [h for h in data_of(entry_id).horizons if h.kind == kind]
-    assert len(found) == 1, [h.kind for h in data_of(entry_id).horizons]
-    return found[0]
+from tests._shipped_entries import CATALOG, data_for, data_of, equal, loaded, path_of, the
 
 
 def sample_parameters(spacetime: Spacetime) -> dict[sp.Symbol, mpmath.mpf]:
