@@ -30,6 +30,7 @@
   if (!form || !query) { return; }
   var idx = (search && search.index && window.lunr) ? window.lunr.Index.load(search.index) : null;
   var greek = (search && search.greek) || {};
+  var synonyms = (search && search.synonyms) || {};
   var originalOrder = cards.map(function (item) { return item.id; });
   var byId = {};
   cards.forEach(function (item) { byId[item.id] = item; });
@@ -92,11 +93,11 @@
   }
 
   // Scores of the entries matching one word: the whole (stemmed) word, or its start.
-  function wordScores(word) {
+  function wordScores(word, exact) {
     var scores = {};
     var results = idx.query(function (q) {
       q.term(word, { boost: 10 });
-      if (word.length >= 3) {
+      if (word.length >= 3 && !exact) {
         q.term(word, { wildcard: window.lunr.Query.wildcard.TRAILING, usePipeline: false, boost: 1 });
       }
     });
@@ -104,10 +105,40 @@
     return scores;
   }
 
-  function ranked(words) {
+  // A long form of the trade typed in full ("anti de sitter") is one term: the index holds
+  // its short form ("ads") beside every field that contains the long form, so querying the
+  // short form exactly ranks the phrase, not its words one by one ("anti" of anti-Nariai).
+  function phraseWords(words) {
+    var padded = " " + words.join(" ") + " ";
+    var exact = {};
+    Object.keys(synonyms).forEach(function (short) {
+      var long = " " + synonyms[short] + " ";
+      if (padded.indexOf(long) >= 0) {
+        padded = padded.split(long).join(" " + short + " ");
+        exact[short] = true;
+      }
+    });
+    var out = padded.trim();
+    return { words: out ? out.split(" ") : [], exact: exact };
+  }
+
+  // Entries matching the phrases first (as one term each), then those matching only the
+  // words of the query (an author's surname that is also part of a long form).
+  function rankedWithPhrases(words) {
+    var phrased = phraseWords(words);
+    var loose = ranked(words, {});
+    if (phrased.words.join(" ") === words.join(" ")) { return loose; }
+    var first = ranked(phrased.words, phrased.exact) || {};
+    var scores = {};
+    Object.keys(loose || {}).forEach(function (ref) { scores[ref] = loose[ref] / 1000; });
+    Object.keys(first).forEach(function (ref) { scores[ref] = 1000 + first[ref]; });
+    return scores;
+  }
+
+  function ranked(words, exact) {
     var total = null;
     words.filter(function (w) { return !isStopWord(w); }).forEach(function (word) {
-      var scores = wordScores(word);
+      var scores = wordScores(word, Object.prototype.hasOwnProperty.call(exact, word));
       if (total === null) { total = scores; return; }
       var next = {};
       Object.keys(total).forEach(function (ref) {
@@ -150,7 +181,7 @@
   function apply(updateHash) {
     var chosen = currentChoice();
     var reading = readPhrases(fold(query.value));
-    var scores = (idx && reading.words.length) ? ranked(reading.words) : null;
+    var scores = (idx && reading.words.length) ? rankedWithPhrases(reading.words) : null;
     var order = originalOrder.slice();
     if (scores) {
       order.sort(function (a, b) {
