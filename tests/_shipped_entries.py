@@ -9,7 +9,7 @@ from pathlib import Path
 import sympy
 
 from generator.entry.catalog import vocabulary
-from generator.entry.loader import LoadResult, load_entry
+from generator.entry.loader import LoadResult, load_entry, load_text
 from generator.geometry.curvature import compute_geometry
 from generator.geometry.equality import decide_equal
 from generator.model import Horizon, PhysicalData, Spacetime
@@ -47,3 +47,16 @@ def the(entry_id: str, kind: str) -> Horizon:
     found = [h for h in data_of(entry_id).horizons if h.kind == kind]
     assert len(found) == 1, [h.kind for h in data_of(entry_id).horizons]
     return found[0]
+
+
+def with_claims(entry_id: str, claims: str) -> LoadResult:
+    """The shipped entry with ``claims`` (one-line YAML claims at claim indentation) added,
+    replacing a shipped claim of the same name."""
+    path = path_of(entry_id)
+    names = {line.split(":")[0] for line in claims.splitlines()}
+    text = "\n".join(line for line in path.read_text(encoding="utf-8").splitlines()
+                     if line.split(":")[0] not in names) + "\n"
+    text = text.replace("claims:\n", "claims:\n" + claims, 1)
+    result = load_text(text, path.name, path, vocabulary(CATALOG), True)
+    assert result.entry is not None, result.diagnostics
+    return result

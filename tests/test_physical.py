@@ -14,7 +14,7 @@ import pytest
 import sympy as sp
 
 from generator.entry.catalog import vocabulary
-from generator.entry.loader import LoadResult, load_text
+from generator.entry.loader import load_text
 from generator.geometry.curvature import compute_geometry
 from generator.geometry.equality import decide_equal
 from generator.geometry.sampling import entry_points
@@ -24,7 +24,7 @@ from generator.physics.physical import check_physical_claims, physical_data
 from generator.physics.rootfield import pseudo_remainder
 from generator.physics.verify import check_loaded
 from generator.site.export import report_json
-from tests._shipped_entries import CATALOG, loaded, path_of
+from tests._shipped_entries import CATALOG, loaded, path_of, with_claims
 
 
 @cache
@@ -284,17 +284,6 @@ def test_static_observers_accelerate() -> None:
 # ---------------------------------------------------------------------------- claims
 
 
-def with_claims(entry_id: str, claims: str) -> LoadResult:
-    """The shipped entry with ``claims`` (one-line YAML claims at claim indentation) added,
-    replacing a shipped claim of the same name."""
-    path = path_of(entry_id)
-    names = {line.split(":")[0] for line in claims.splitlines()}
-    text = "\n".join(line for line in path.read_text(encoding="utf-8").splitlines()
-                     if line.split(":")[0] not in names) + "\n"
-    text = text.replace("claims:\n", "claims:\n" + claims, 1)
-    result = load_text(text, path.name, path, vocabulary(CATALOG), True)
-    assert result.entry is not None, result.diagnostics
-    return result
 
 
 SCHWARZSCHILD_MUTANTS = [

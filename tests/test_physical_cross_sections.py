@@ -22,7 +22,16 @@ from generator.physics.horizons import H, inward_coordinate
 from generator.physics.physical import check_physical_claims, computed_claim
 from generator.site.physical_json import horizon_json
 from tests._hostile import SEED_ENTRY, SEED_LINE_ELEMENT
-from tests._shipped_entries import CATALOG, data_for, data_of, equal, loaded, path_of, the
+from tests._shipped_entries import (
+    CATALOG,
+    data_for,
+    data_of,
+    equal,
+    loaded,
+    path_of,
+    the,
+    with_claims,
+)
 
 
 def sample_parameters(spacetime: Spacetime) -> dict[sp.Symbol, mpmath.mpf]:
@@ -37,15 +46,6 @@ def polynomial_roots(coefficients: list[mpmath.mpf]) -> list[mpmath.mpf]:
     return sorted(mpmath.re(r) for r in found if abs(mpmath.im(r)) < mpmath.mpf(10) ** -30)
 
 
-def with_claims(entry_id: str, claims: str) -> LoadResult:
-    path = path_of(entry_id)
-    names = {line.split(":")[0] for line in claims.splitlines()}
-    text = "\n".join(line for line in path.read_text(encoding="utf-8").splitlines()
-                     if line.split(":")[0] not in names) + "\n"
-    text = text.replace("claims:\n", "claims:\n" + claims, 1)
-    result = load_text(text, path.name, path, vocabulary(CATALOG), True)
-    assert result.entry is not None, result.diagnostics
-    return result
 
 
 def claim_verdict(entry_id: str, name: str, value: str):
