@@ -19,6 +19,7 @@ from generator.entry.catalog import entry_files
 from generator.entry.loader import load_entry
 from generator.geometry.curvature import compute_geometry_and_weyl
 from generator.physics.petrov import petrov_type
+from generator.physics.principal_frame import FrameWork
 from generator.physics.weyl_frame import weyl_frame
 
 CATALOG = Path(__file__).resolve().parent.parent / "catalog"
@@ -42,17 +43,19 @@ def main(pattern: str = "") -> None:
             continue
         geometry, operator = compute_geometry_and_weyl(st, None)
         petrov = petrov_type(geometry, st, [], operator)
+        FrameWork.start(FrameWork.bound)
         started = time.process_time()
         try:
             frame, _ = weyl_frame(geometry, st, petrov, operator)
         except Exception as exc:  # a measurement script reports failures instead of stopping
             print(f"  {path.stem}: {type(exc).__name__}: {exc}", file=sys.stderr)
             frame = None
-        rows.append((path.stem, petrov.type, outcome(frame), time.process_time() - started))
+        rows.append((path.stem, petrov.type, outcome(frame), time.process_time() - started,
+                     FrameWork.used))
     rows.sort(key=lambda row: -row[3])
-    print(f"{'entry':44} {'type':>9} {'seconds':>8}  outcome")
-    for name, kind, result, seconds in rows:
-        print(f"{name:44} {kind!s:>9} {seconds:8.2f}  {result}")
+    print(f"{'entry':44} {'type':>9} {'seconds':>8} {'terms':>9}  outcome")
+    for name, kind, result, seconds, terms in rows:
+        print(f"{name:44} {kind!s:>9} {seconds:8.2f} {terms:9d}  {result}")
     print(f"{'total':44} {'':>9} {sum(r[3] for r in rows):8.2f}")
     for (kind, result), count in sorted(collections.Counter((r[1], r[2]) for r in rows).items(),
                                         key=str):

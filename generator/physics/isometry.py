@@ -23,12 +23,17 @@ Every step can only *over*-estimate the dimension: the kernel of the conditions 
 order contains the Killing algebra, and an unlucky point or prime lowers a rank. The
 dimension reported is the smaller of the two points' values; it is certified from below when
 as many independent Killing vectors have been verified symbolically (``complete``).
+
+The computation is bounded by counted work, never by time (``WORK_BOUND`` units of jet
+arithmetic, ``jets.JetWork``: term products of the jets, coefficients of the polynomials
+evaluated and entries of the condition tables), together with the fixed bounds on the order
+of the conditions and the number of points tried, so that a slow and a fast machine report
+the same dimension. The entry's own time budget in the run stage stays the backstop.
 """
 
 from __future__ import annotations
 
 import random
-import time
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -38,13 +43,21 @@ import sympy
 
 from generator.geometry.algebra import FieldRequest, NotInField, build_field
 from generator.model import Spacetime
-from generator.physics.jets import BadPoint, FieldJets, jet_space, primes
+from generator.physics.jets import (
+    BadPoint,
+    FieldJets,
+    JetWork,
+    JetWorkReached,
+    jet_space,
+    primes,
+)
 
 MAX_ORDER = {1: 3, 2: 8, 3: 7, 4: 6, 5: 5, 6: 4}  # highest order of conditions per dimension
 STABLE_ORDERS = 2  # the rank must stay put this many orders in a row
 POINT_ATTEMPTS = 40
 SEED = 20261203
-SECONDS = 20.0  # a bound on the whole computation for one entry
+WORK_BOUND = 1_000_000_000  # units of counted jet arithmetic for one entry (see the docstring;
+# bench/isometry_work.py prints what each shipped entry uses)
 
 
 @dataclass(frozen=True)
@@ -55,6 +68,7 @@ class IsometryAtPoint:
     stable: bool
     kernel: tuple[tuple[int, ...], ...]  # a basis of the allowed 1-jets (mod p)
     p: int
+    bounded: bool = False  # the work bound stopped the orders before they settled
 
 
 @dataclass(frozen=True)
@@ -65,6 +79,7 @@ class IsometryDimension:
     method: str
     why_null: str | None
     points_agree: bool = True
+    work: int = 0  # units of jet arithmetic spent (for the benchmark that sets the bound)
 
 
 # ====================================================================== linear algebra mod p
@@ -113,8 +128,10 @@ def _matmul(a: np.ndarray, b: np.ndarray, p: int) -> np.ndarray:
 class KillingConditions:
     """The staged solution of Killing's equation at one point (see the module docstring)."""
 
-    def __init__(self, metric_jets: list[list[np.ndarray]], n: int, p: int, order: int) -> None:
+    def __init__(self, metric_jets: list[list[np.ndarray]], n: int, p: int, order: int,
+                 work: JetWork | None = None) -> None:
         self.n, self.p, self.order = n, p, order
+        self.work = work
         self.space = jet_space(n, order + 2)  # q in ``next_order`` reaches degree order + 2
         self.params = n * (n + 1) // 2
         self.g = metric_jets  # jets over jet_space(n, order + 2)
@@ -169,11 +186,16 @@ class KillingConditions:
                         used = coefficients != 0
                         if not used.any():
                             continue
+                        self._spend(int(used.sum()) * self.params)
                         contribution = (forms[left[used]] * coefficients[used][:, None]) % p
                         np.add.at(out, target[used], contribution)
                         out %= p
                 blocks.append(out)
         return np.concatenate(blocks)
+
+    def _spend(self, amount: int) -> None:
+        if self.work is not None:
+            self.work.spend(amount)
 
     def _diff_forms(self, forms: np.ndarray, var: int) -> np.ndarray:
         src, dst, fac = self.space.derivative_table(var)
@@ -235,6 +257,7 @@ class KillingConditions:
         new = np.concatenate(residual)
         new = new[new.any(axis=1)]
         if len(new):
+            self._spend((len(new) + len(self.conditions)) * self.params * self.params)
             self.conditions = row_reduce(self.conditions + new.tolist(), p)
         targets = self.space.of_degree(d)
         for a in range(n):
@@ -249,16 +272,25 @@ class KillingConditions:
 
 
 def conditions_at_point(metric_jets: list[list[np.ndarray]], n: int, p: int, order: int,
-                        deadline: float, known: int = 0) -> IsometryAtPoint:
+                        work: JetWork | None = None, known: int = 0) -> IsometryAtPoint:
     """``known``: how many independent Killing vectors are already verified (a lower bound).
     The conditions can only shrink the kernel, never below the Killing algebra, so once the
-    kernel is down to ``known`` the dimension is certain and no further order is needed."""
-    solver = KillingConditions(metric_jets, n, p, order)
-    solver.first_order()
+    kernel is down to ``known`` the dimension is certain and no further order is needed.
+    ``work``: the counted work bound; when it is reached the orders stop (``bounded``) and the
+    kernel so far is an upper bound only."""
+    solver = KillingConditions(metric_jets, n, p, order, work)
     ranks: list[int] = []
-    stable = False
+    stable = bounded = False
+    try:
+        solver.first_order()
+    except JetWorkReached:
+        return IsometryAtPoint(solver.params, n, (), False, (), p, True)
     for degree in range(1, order + 1):
-        solver.next_order(degree)
+        try:
+            solver.next_order(degree)
+        except JetWorkReached:
+            bounded = True
+            break
         ranks.append(len(solver.conditions))
         if ranks[-1] == solver.params or solver.params - ranks[-1] <= known:
             stable = True
@@ -266,14 +298,12 @@ def conditions_at_point(metric_jets: list[list[np.ndarray]], n: int, p: int, ord
         if len(ranks) > STABLE_ORDERS and len(set(ranks[-STABLE_ORDERS - 1:])) == 1:
             stable = True
             break
-        if time.monotonic() > deadline:
-            break
     kernel = null_space(solver.conditions, solver.params, p)
     g0_inv = solver.g0_inv
     values = [[int(sum(int(g0_inv[c][b]) * v[b] for b in range(n)) % p) for c in range(n)]
               for v in kernel]
     return IsometryAtPoint(len(kernel), matrix_rank(values, p), tuple(ranks), stable,
-                           tuple(tuple(v) for v in kernel), p)
+                           tuple(tuple(v) for v in kernel), p, bounded)
 
 
 # ====================================================================== an entry
@@ -290,16 +320,15 @@ def metric_field(spacetime: Spacetime, extra: Sequence[sympy.Expr] = ()):
 
 
 def metric_jets_at(field, metric_values, n: int, order: int, rng: random.Random,
-                   avoid: Sequence[int] = (), deadline: float = float("inf")
+                   avoid: Sequence[int] = (), work: JetWork | None = None
                    ) -> tuple[FieldJets, list[list[np.ndarray]]]:
-    """Jets of the metric at a random usable point, modulo a prime not in ``avoid``."""
+    """Jets of the metric at a random usable point, modulo a prime not in ``avoid``: at most
+    ``POINT_ATTEMPTS`` points, each counted against ``work`` (raises JetWorkReached past it)."""
     choices = [q for q in primes() if q not in avoid]
     for attempt in range(POINT_ATTEMPTS):
-        if time.monotonic() > deadline:
-            break
         p = choices[attempt % len(choices)] if attempt < 8 else rng.choice(choices)
         try:
-            jets = FieldJets(field, order, rng, p)
+            jets = FieldJets(field, order, rng, p, work)
             metric = [[jets.rational(metric_values[a * n + b]) for b in range(n)]
                       for a in range(n)]
             return jets, metric
@@ -319,7 +348,7 @@ class PointData:
 
 
 def isometry_dimension(spacetime: Spacetime, extra: Sequence[sympy.Expr] = (),
-                       verified: Sequence[Sequence[int]] = ()
+                       verified: Sequence[Sequence[int]] = (), bound: int = WORK_BOUND
                        ) -> tuple[IsometryDimension, list[PointData]]:
     """The local isometry dimension at two independent random points (see module docstring),
     and the 1-jets of ``extra`` expressions at the same points.
@@ -327,13 +356,14 @@ def isometry_dimension(spacetime: Spacetime, extra: Sequence[sympy.Expr] = (),
     ``verified``: for each symbolically verified Killing vector, the positions of its n
     components in ``extra``. Their rank at a point bounds the dimension from below; when the
     conditions come down to it the dimension is certain (certified) and the second point,
-    which could only confirm it, is skipped."""
+    which could only confirm it, is skipped. ``bound``: the counted work bound (module
+    docstring)."""
     n = spacetime.dimension
     order = MAX_ORDER.get(n)
     if order is None:
         return IsometryDimension(None, None, 0, "", f"not attempted in {n} dimensions "
                                  "(the condition tables grow too large)"), []
-    deadline = time.monotonic() + SECONDS
+    work = JetWork(bound)
     try:
         field, metric_values, extra_values = metric_field(spacetime, extra)
     except (NotInField, ZeroDivisionError) as exc:
@@ -346,17 +376,25 @@ def isometry_dimension(spacetime: Spacetime, extra: Sequence[sympy.Expr] = (),
     try:
         for _ in range(2):
             jets, metric = metric_jets_at(field, metric_values, n, order + 2, rng,
-                                          [r.p for r in results], deadline)
+                                          [r.p for r in results], work)
             point = PointData(jets.p, tuple(_one_jet(jets, v, n) for v in extra_values))
             known = matrix_rank([[v for k in slots for v in point.one_jets[k]]
                                  for slots in verified], jets.p) if verified else 0
-            results.append(conditions_at_point(metric, n, jets.p, order, deadline, known))
+            results.append(conditions_at_point(metric, n, jets.p, order, work, known))
             data.append(point)
             if results[-1].dimension == known:
                 certified = known
                 break
+            if results[-1].bounded:
+                break
     except BadPoint as exc:
-        return IsometryDimension(None, None, 0, "", f"no usable sample point ({exc})"), []
+        return IsometryDimension(None, None, 0, "", f"no usable sample point ({exc})",
+                                 work=work.used), []
+    except JetWorkReached as exc:
+        if not results:
+            return IsometryDimension(None, None, 0, "", f"the work bound ({exc}) was reached "
+                                     "while evaluating the metric at a sample point",
+                                     work=work.used), []
     except NotInField as exc:
         return IsometryDimension(None, None, 0, "", f"a derivative leaves the exact engine's "
                                  f"field ({exc})"), []
@@ -369,15 +407,20 @@ def isometry_dimension(spacetime: Spacetime, extra: Sequence[sympy.Expr] = (),
                   f"2^31), down to the {certified} verified independent Killing vectors: "
                   f"certain")
         return IsometryDimension(best.dimension, best.orbit_dimension, orders, method, None,
-                                 agree), data
+                                 agree, work.used), data
     method = (f"integrability conditions of Killing's equation up to order {orders}, at two "
               f"random points of the metric's field, exact arithmetic modulo primes near 2^31")
-    if len(results) < 2 or not all(r.stable for r in results):
+    if any(r.bounded for r in results) or len(results) < 2:
+        return IsometryDimension(None, None, orders, method, f"the work bound ({work.bound} "
+                                 f"units of counted jet arithmetic) was reached after {orders} "
+                                 f"orders of conditions (at most {best.dimension})",
+                                 agree, work.used), data
+    if not all(r.stable for r in results):
         return IsometryDimension(None, None, orders, method, f"the conditions did not settle "
                                  f"within {order} orders (at most {best.dimension})",
-                                 agree), data
+                                 agree, work.used), data
     return IsometryDimension(best.dimension, best.orbit_dimension, orders, method, None,
-                             agree), data
+                             agree, work.used), data
 
 
 def _one_jet(jets: FieldJets, value, n: int) -> tuple[int, ...]:

@@ -52,6 +52,28 @@ class BadPoint(Exception):
     """The random point is unusable (a denominator or radicand vanishes there): pick another."""
 
 
+class JetWorkReached(Exception):
+    """The jet arithmetic has done as much counted work as its bound allows."""
+
+
+class JetWork:
+    """Work of jet arithmetic counted in deterministic units, never in time, so that what is
+    computed is the same on a slow and a fast machine: one unit per term product of a jet
+    multiplication (an entry of the product table), per coefficient added when a polynomial
+    is evaluated, and whatever the caller spends on its own arrays. ``spend`` is called
+    before the work is done; past the bound it raises ``JetWorkReached``."""
+
+    def __init__(self, bound: int) -> None:
+        self.bound = bound
+        self.used = 0
+
+    def spend(self, amount: int) -> None:
+        if self.used + amount > self.bound:
+            self.used = self.bound
+            raise JetWorkReached(f"{self.bound} units of counted jet arithmetic")
+        self.used += amount
+
+
 # ====================================================================== monomials
 
 
@@ -142,8 +164,8 @@ def jet_space(n: int, order: int) -> JetSpace:
 class JetAlgebra:
     """Arithmetic on jets (int64 arrays over a ``JetSpace``) modulo the prime ``p``."""
 
-    def __init__(self, space: JetSpace, p: int) -> None:
-        self.space, self.p = space, p
+    def __init__(self, space: JetSpace, p: int, work: JetWork | None = None) -> None:
+        self.space, self.p, self.work = space, p, work
 
     def constant(self, value: int) -> np.ndarray:
         out = np.zeros(self.space.size, dtype=np.int64)
@@ -156,6 +178,8 @@ class JetAlgebra:
         if not b[1:].any():
             return (a * int(b[0])) % self.p
         i, j, k = self.space.product_table
+        if self.work is not None:
+            self.work.spend(len(i))
         # Each term is below 2**31 and at most a few thousand meet in one slot, so the float
         # sums of bincount stay exact integers (below 2**53).
         terms = ((a[i] * b[j]) % self.p).astype(np.float64)
@@ -291,11 +315,13 @@ def poly_at(poly: flint.fmpq_mpoly, values: Sequence[int], p: int) -> int:
 class FieldJets:
     """Jets of every generator of ``field`` at a ``FieldPoint`` (in chart displacements h)."""
 
-    def __init__(self, field: RationalField, order: int, rng: random.Random, p: int) -> None:
-        self.field, self.p = field, p
+    def __init__(self, field: RationalField, order: int, rng: random.Random, p: int,
+                 work: JetWork | None = None) -> None:
+        """``work``: a counter the arithmetic spends on (None: not counted)."""
+        self.field, self.p, self.work = field, p, work
         self.n = len(field.coordinates)
         self.space = jet_space(self.n, order)
-        self.algebra = JetAlgebra(self.space, self.p)
+        self.algebra = JetAlgebra(self.space, self.p, work)
         self._powers: dict[tuple[int, int], np.ndarray] = {}
         coordinate_of = {x: i for i, x in enumerate(field.coordinates)}
         functions = self._function_jets(rng, coordinate_of)
@@ -375,6 +401,8 @@ class FieldJets:
     def poly(self, poly: flint.fmpq_mpoly) -> np.ndarray:
         p = self.p
         total = np.zeros(self.space.size, dtype=np.int64)
+        if self.work is not None:
+            self.work.spend(len(poly) * self.space.size)
         for exps, coeff in poly.terms():
             scalar = modular(coeff, p)
             jet = None

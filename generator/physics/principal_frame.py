@@ -23,13 +23,18 @@ et al. 2003, ch. 3): Ψ0 = C(l,m,l,m), Ψ1 = C(l,n,l,m), Ψ2 = C(l,m,m̄,n), Ψ3
    reconstruction in normal form, the zero Ψ's in normal form, and I = Ψ0Ψ4 − 4Ψ1Ψ3 + 3Ψ2²,
    J = det[[Ψ4,Ψ3,Ψ2],[Ψ3,Ψ2,Ψ1],[Ψ2,Ψ1,Ψ0]] against the frame-free I, J of the Weyl operator.
    Type I with no repeated root is reported as not found in closed form.
+
+The construction is bounded by counted work, never by time, so that a slow and a fast machine
+publish the same frame: every fraction the vector and Weyl arithmetic and the gcds produce is
+counted by its terms (``WORK_TERMS`` in all), and no single fraction may exceed
+``SIZE_LIMIT`` terms. Past either bound the construction stops with a stated reason; the
+entry's own time budget in the run stage stays the backstop for hostile input.
 """
 
 # ruff: noqa: E741  (l, n, m are the null tetrad's own names)
 from __future__ import annotations
 
 import itertools
-import time
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -54,8 +59,8 @@ from generator.physics.tower import (
 )
 
 SIZE_LIMIT = 6000  # terms of one fraction; beyond it the construction stops with a reason
-SECONDS = 30.0  # CPU seconds: the frame's share of the entry's budget (load does not count)
-_deadline = [float("inf")]  # of the construction under way (one per worker process)
+WORK_TERMS = 1_000_000  # terms of all fractions produced, summed: the frame's work bound
+# (bench/principal_frame.py prints what each shipped entry uses)
 ORIENTATION = 1  # ε(l, n, m, m̄) = +i: the sign the Kerr check pins (tests/test_principal_frame)
 NAMES = ("Psi0", "Psi1", "Psi2", "Psi3", "Psi4")
 PATTERN = {"O": (), "D": ("Psi2",), "N": ("Psi4",), "III": ("Psi3", "Psi4"),
@@ -66,6 +71,30 @@ Vector = list[Frac]
 
 class NotFound(Exception):
     """The principal frame was not reached; the message says why, for the page."""
+
+
+class FrameWork:
+    """Terms produced so far by the construction under way, against its bound (one
+    construction at a time per process; ``principal_frame`` starts a new count)."""
+
+    bound = WORK_TERMS
+    used = 0
+
+    @classmethod
+    def start(cls, bound: int) -> None:
+        cls.bound, cls.used = bound, 0
+
+    @classmethod
+    def count(cls, *xs: Frac) -> None:
+        """Counts each fraction's terms; raises TooLarge past either bound."""
+        for x in xs:
+            size = x.size()
+            if size > SIZE_LIMIT:
+                raise TooLarge(f"an expression of the frame has more than {SIZE_LIMIT} terms")
+            cls.used += size
+        if cls.used > cls.bound:
+            raise TooLarge(f"the frame construction produced more than {cls.bound} terms in "
+                           "all, its work bound")
 
 
 @dataclass(frozen=True)
@@ -107,18 +136,15 @@ class Frame:
         self.c = [list(row) for row in weyl]
 
     def guard(self, *xs: Frac) -> None:
-        if time.process_time() > _deadline[0]:
-            raise TooLarge(f"the frame construction ran past {SECONDS:.0f} CPU seconds, "
-                           "its share of the entry's time budget")
-        for x in xs:
-            if x.size() > SIZE_LIMIT:
-                raise TooLarge(f"an expression of the frame has more than {SIZE_LIMIT} terms")
+        FrameWork.count(*xs)
 
     def dot(self, x: Vector, y: Vector) -> Frac:
         f = self.f
-        return f.sum([f.mul(self.g[a][b], f.mul(x[a], y[b])) for a in range(4)
-                      for b in range(4) if not self.g[a][b].is_zero()
-                      and not x[a].is_zero() and not y[b].is_zero()])
+        value = f.sum([f.mul(self.g[a][b], f.mul(x[a], y[b])) for a in range(4)
+                       for b in range(4) if not self.g[a][b].is_zero()
+                       and not x[a].is_zero() and not y[b].is_zero()])
+        self.guard(value)
+        return value
 
     def combine(self, terms: Sequence[tuple[Frac, Vector]]) -> Vector:
         f = self.f
@@ -226,6 +252,7 @@ def _remainder(f: RationalField, p: list[Frac], q: list[Frac]) -> list[Frac]:
         shift = len(p) - len(q)
         for k, c in enumerate(q):
             p[k + shift] = f.sub(p[k + shift], f.mul(factor, c))
+        FrameWork.count(factor, *p)
         p = _trim(f, p[:-1])
     return p
 
@@ -612,11 +639,13 @@ def _complex_root(frame: Frame, spacetime: Spacetime, points: Sequence[dict], x:
     return new, root, carried[:k]
 
 
-def principal_frame(ops: WeylOperator, spacetime: Spacetime, kind: str) -> PrincipalFrame:
+def principal_frame(ops: WeylOperator, spacetime: Spacetime, kind: str,
+                    bound: int = WORK_TERMS) -> PrincipalFrame:
     """The tool's tetrad rotated into a principal frame for Petrov type ``kind``; when that
     fails, the tool's own tetrad with ``principal`` false and the reason. Raises NotFound or
-    TooLarge when no tetrad could be built at all."""
-    _deadline[0] = time.process_time() + SECONDS
+    TooLarge when no tetrad could be built at all. ``bound``: the work bound (terms produced,
+    see the module docstring)."""
+    FrameWork.start(bound)
     frame, l, n, m, how, k = build_tetrad(ops, spacetime)
     checks = tetrad_checks(frame, l, n, m)
     psi = frame.scalars(l, n, m)
