@@ -137,7 +137,7 @@ def test_conical_deficit_rate_is_read_off_the_metric() -> None:
     listed = [[sympy.sympify(c) for c in v] for v in listed]
     result = search_killing_vectors(st, listed, 10)
     assert result.complete and len(result.found) == 6
-    assert any(xi[1].has(sympy.cos(phi * (4 * st.parameters[0] - 1))) for xi in result.found)
+    assert any(xi[1].has(sympy.cos(phi * (1 - 4 * st.parameters[0]))) for xi in result.found)
 
 
 # ------------------------------------------------------------------ mutations

@@ -27,6 +27,9 @@ a vector that fails is dropped, so the search never returns an unverified vector
 from the listed and already found vectors is judged by their 1-jets (a Killing vector is fixed
 by its value and first derivatives at one point) at two random points.
 
+Each vector found is shown divided by its content, with a positive leading coefficient
+(``vector_normal``), and verified in exactly that form.
+
 After a block finds a vector, the basis is closed under brackets (the bracket of two Killing
 vectors is one): a bracket is kept when its 1-jet raises the rank at a random point of a field
 holding every component, and it passes the symbolic check like any other candidate.
@@ -59,6 +62,7 @@ from generator.physics.isometry import matrix_rank, metric_field
 from generator.physics.jets import BadPoint, FieldJets, primes
 from generator.physics.lie_algebra import commutator
 from generator.physics.symmetry import lie_derivative_metric
+from generator.physics.vector_normal import normalised
 
 SEED = 20261204
 MAX_UNKNOWNS = 1400  # columns of one block's linear system
@@ -605,8 +609,10 @@ def _close_under_brackets(spacetime: Spacetime, state: _State, target: int, p: i
         candidates = []
         for j, i in pairs:
             state.tried.add((min(i, j), max(i, j)))
-            bracket = tuple(tidy(_one_for_sin_squared(c, spacetime.coordinates))
-                            for c in commutator(basis[j], basis[i], spacetime.coordinates))
+            bracket = tuple(normalised(
+                [tidy(_one_for_sin_squared(c, spacetime.coordinates))
+                 for c in commutator(basis[j], basis[i], spacetime.coordinates)],
+                spacetime.coordinates))
             if any(c != 0 for c in bracket):
                 candidates.append(bracket)
         if not candidates:
@@ -807,21 +813,7 @@ def _exact_vector(vector: Sequence[int], exponents: np.ndarray, base_atoms: Sequ
         components.append(sympy.Add(*terms))
     if all(c == 0 for c in components):
         return None
-    return tuple(tidy(c) for c in without_parameter_factor(components, coordinates))
-
-
-def without_parameter_factor(components: Sequence[sympy.Expr],
-                             coordinates: Sequence[sympy.Symbol]) -> list[sympy.Expr]:
-    """The vector divided by the parameter-only factor of its first non-zero term (a Killing
-    vector times a constant is one; the search's normalisation is arbitrary)."""
-    first = next(c for c in components if c != 0)
-    term = sympy.Add.make_args(sympy.expand(first))[0]
-    factor = sympy.Mul(*(f for f in sympy.Mul.make_args(term)
-                         if not f.free_symbols & set(coordinates)))
-    if factor == 0:
-        return list(components)
-    return [sympy.expand(c / factor) for c in components]
-
+    return tuple(normalised(components, coordinates))
 
 
 def tidy(expr: sympy.Expr) -> sympy.Expr:
