@@ -3,9 +3,14 @@
 [X_i, X_j]^a = X_i^b ∂_b X_j^a − X_j^b ∂_b X_i^a is written as Σ_k c_ij^k X_k: the c's are
 solved for at sample values of the coordinates (parameters stay symbols, so constants such as
 Gödel's scale survive), and the identity is then verified symbolically with the project's zero
-test. The algebra is named by ``lie_identify`` from invariant data only (derived algebra,
-centre, radical, the Killing form's signature, the form an abelian ideal's representation
-preserves); where no name is certain, what is known is said in words.
+test. Square roots of expressions in the coordinates (√(1 − Λr²/3) in de Sitter's static
+chart) are handled exactly: each root √P becomes a symbol w with w² = P, every equation is
+reduced to degree ≤ 1 in each w and split into the coefficients of the products of the w's
+(``RadicalSplit``); a solution of the split equations solves the original ones, and the
+result is verified symbolically like any other. The algebra is named by ``lie_identify``
+from invariant data only (derived algebra, centre, radical, the Killing form's signature,
+the form an abelian ideal's representation preserves); where no name is certain, what is
+known is said in words.
 """
 
 from __future__ import annotations
@@ -109,6 +114,51 @@ def _unit_circle_values(generic: GenericCircular, point: int) -> dict[sympy.Symb
     return values
 
 
+@dataclass(frozen=True)
+class RadicalSplit:
+    """Each square root √P of an expression in the coordinates (any odd power P^(k/2)) as a
+    symbol w with the relation w² = P. An equation E = 0 is made polynomial in the w's (its
+    numerator), reduced with w² = P to degree ≤ 1 in each, and split into the coefficients of
+    the products of distinct w's: each coefficient = 0 implies E = 0, so any solution of the
+    split system is one of the original (the converse needs the roots to be independent, which
+    only matters for finding a solution — the verification that follows decides)."""
+
+    replacements: dict[sympy.Expr, sympy.Expr]
+    roots: tuple[tuple[sympy.Symbol, sympy.Expr], ...]  # (w, P)
+
+    def split(self, expr: sympy.Expr) -> list[sympy.Expr]:
+        if not self.roots:
+            return [expr]
+        numerator = sympy.fraction(sympy.together(expr.xreplace(self.replacements)))[0]
+        symbols = [w for w, _ in self.roots]
+        poly = sympy.Poly(sympy.expand(numerator), *symbols)
+        parts: dict[tuple[int, ...], sympy.Expr] = {}
+        for exponents, coefficient in poly.terms():
+            reduced = tuple(e % 2 for e in exponents)
+            factor = sympy.Mul(*(radicand ** (e // 2) for (_, radicand), e
+                                 in zip(self.roots, exponents, strict=True)))
+            parts[reduced] = parts.get(reduced, sympy.Integer(0)) + coefficient * factor
+        return list(parts.values())
+
+
+def _radical_split(exprs: Sequence[sympy.Expr], spacetime: Spacetime) -> RadicalSplit:
+    coordinates = set(spacetime.coordinates)
+    bases = set()
+    for e in exprs:
+        for p in sympy.sympify(e).atoms(sympy.Pow):
+            if (p.exp.is_Rational and p.exp.q == 2 and p.base.free_symbols & coordinates):
+                bases.add(p.base)
+    roots = tuple((sympy.Dummy(f"w{k}"), base)
+                  for k, base in enumerate(sorted(bases, key=sympy.default_sort_key)))
+    replacements: dict[sympy.Expr, sympy.Expr] = {}
+    for e in exprs:
+        for p in sympy.sympify(e).atoms(sympy.Pow):
+            if p.exp.is_Rational and p.exp.q == 2 and p.base in bases:
+                w = next(w for w, base in roots if base == p.base)
+                replacements[p] = w ** int(p.exp.p)
+    return RadicalSplit(replacements, roots)
+
+
 def expand_in_basis(target: Sequence[sympy.Expr], basis: Sequence[Sequence[sympy.Expr]],
                     spacetime: Spacetime) -> tuple[sympy.Expr, ...] | None:
     """Constants c_k with target = Σ c_k basis_k, verified; None when there are none."""
@@ -119,14 +169,18 @@ def expand_in_basis(target: Sequence[sympy.Expr], basis: Sequence[Sequence[sympy
     everything = [*target, *(v for b in basis for v in b)]
     angles = _angles(everything, spacetime)
     generic = _generic_circular(everything, spacetime)
+    radicals = _radical_split(everything, spacetime)
+    differences = []
+    for a in range(len(target)):
+        combination = sum(c * b[a] for c, b in zip(unknowns, basis, strict=True))
+        difference = through_sin_cos(combination - target[a], tuple(angles))
+        differences += radicals.split(difference.xreplace(generic.replacements))
     for k, values in enumerate(_coordinate_values(spacetime, 4, angles)):
         values = {**values, **_unit_circle_values(generic, k)}
-        for a in range(len(target)):
-            combination = sum(c * b[a] for c, b in zip(unknowns, basis, strict=True))
-            difference = through_sin_cos(combination - target[a], tuple(angles))
+        for difference in differences:
             # In lowest terms: a coefficient that is zero only after cancelling (such as
             # −16μ² + (4μ − 1)(4μ + 1) + 1) made SymPy's linear solver divide by zero.
-            equation = sympy.cancel(difference.xreplace(generic.replacements).xreplace(values))
+            equation = sympy.cancel(difference.xreplace(values))
             if equation != 0:
                 equations.append(equation)
     solutions = sympy.linsolve(equations, unknowns)
@@ -153,8 +207,9 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
     operations: vectors found by the search can make the symbolic expansions slow."""
     if not basis or len(basis) > MAX_BASIS:
         return (), None
-    if sum(sympy.count_ops(c) for xi in basis for c in xi) > MAX_OPS or any(
-            _has_radical(c, spacetime) for xi in basis for c in xi):
+    if sum(sympy.count_ops(c) for xi in basis for c in xi) > MAX_OPS:
+        return (), None
+    if _roots_of_both_kinds(basis, spacetime):
         return (), None
     out = []
     for i in range(len(basis)):
@@ -168,13 +223,23 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
     return tuple(out), (recognise(tuple(out), len(basis)) if complete else None)
 
 
-def _has_radical(expr: sympy.Expr, spacetime: Spacetime) -> bool:
-    """A root of an expression in the coordinates: linear solving over such expressions is
-    where SymPy becomes slow (and once crashed on a complete de Sitter basis), so a basis
-    with radicals gets no table — a bound on the kind of work, not on its time."""
+def _roots_of_both_kinds(basis: Sequence[Sequence[sympy.Expr]], spacetime: Spacetime) -> bool:
+    """A root of the coordinates together with a root of a parameter or a number (de Sitter's
+    static chart: √(1 − Λr²/3) and √3·√Λ): the split equations then keep algebraic constants,
+    and SymPy's linear solver over such an expression domain has crashed the process (a
+    floating-point exception in its heuristic gcd), so no table is attempted — a bound on the
+    kind of work, the same on every machine, and said so on the page."""
     coordinates = set(spacetime.coordinates)
-    return any(p.exp.is_Rational and not p.exp.is_Integer and p.base.free_symbols & coordinates
-               for p in sympy.sympify(expr).atoms(sympy.Pow))
+    of_coordinates = of_constants = False
+    for xi in basis:
+        for c in xi:
+            for p in sympy.sympify(c).atoms(sympy.Pow):
+                if p.exp.is_Rational and not p.exp.is_Integer:
+                    if p.base.free_symbols & coordinates:
+                        of_coordinates = True
+                    else:
+                        of_constants = True
+    return of_coordinates and of_constants
 
 
 def recognise(brackets: Structure, d: int) -> str | None:

@@ -1,0 +1,63 @@
+"""Entries whose Killing bases were completed with published vectors (issue 17, item 4): each
+listed vector passes Killing's equation, a mutated one fails, and the listed plus found
+vectors span the computed dimension (never called complete otherwise).
+
+de Sitter, flat slicing −dt² + e^{2Ht}(dr² + r² dΩ²), H = √(Λ/3): 10 Killing vectors —
+three translations, three rotations, the dilation ∂_t − H x·∂ and three special conformal
+generators K_i = 2x_i(η∂_η + x·∂) − (x·x − η²)∂_i in conformal time η = −e^{−Ht}/H (the
+conformal Killing vectors of Minkowski space that keep η, since the metric is conformally flat
+with factor 1/(Hη)²; from memory, common practice for the Poincaré patch of de Sitter space).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+import sympy as sp
+
+from generator.entry.loader import load_entry
+from generator.physics.killing_search import is_killing
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def de_sitter_flat():
+    return load_entry(ROOT / "catalog" / "backgrounds" / "de-sitter-flat.yaml").spacetime
+
+
+def special_conformal(st):
+    """H² K_x, H² K_y, H² K_z in the entry's spherical chart (module docstring)."""
+    t, r, th, ph = st.coordinates
+    h = sp.sqrt(st.parameters[0] / 3)
+    e, q = sp.exp(-2 * h * t), h**2 * r**2
+    s, c = sp.sin, sp.cos
+    return [
+        [-2 * h * r * s(th) * c(ph), (q + e) * s(th) * c(ph), -(q - e) * c(th) * c(ph) / r,
+         (q - e) * s(ph) / (r * s(th))],
+        [-2 * h * r * s(th) * s(ph), (q + e) * s(th) * s(ph), -(q - e) * c(th) * s(ph) / r,
+         -(q - e) * c(ph) / (r * s(th))],
+        [-2 * h * r * c(th), (q + e) * c(th), (q - e) * s(th) / r, sp.Integer(0)],
+    ]
+
+
+@pytest.mark.parametrize("k", [0, 1, 2])
+def test_de_sitter_flat_special_conformal_vectors_are_killing(k: int) -> None:
+    st = de_sitter_flat()
+    vector = special_conformal(st)[k]
+    assert is_killing(vector, st)
+    # Mutations: the time component doubled, or e^{−2Ht} with the wrong sign in r.
+    assert not is_killing([2 * vector[0], *vector[1:]], st)
+    t = st.coordinates[0]
+    flipped = [sp.sympify(c).subs(sp.exp(-2 * sp.sqrt(st.parameters[0] / 3) * t),
+                                  -sp.exp(-2 * sp.sqrt(st.parameters[0] / 3) * t))
+               for c in vector]
+    assert not is_killing(flipped, st)
+
+
+@pytest.mark.slow
+def test_de_sitter_flat_basis_is_complete() -> None:
+    from test_killing_search_known import searched
+
+    _st, listed, result = searched("backgrounds/de-sitter-flat.yaml")
+    assert len(listed) == 7 and result.complete and len(listed) + len(result.found) == 10
