@@ -61,3 +61,46 @@ def test_de_sitter_flat_basis_is_complete() -> None:
 
     _st, listed, result = searched("backgrounds/de-sitter-flat.yaml")
     assert len(listed) == 7 and result.complete and len(listed) + len(result.found) == 10
+
+
+# ---------------------------------------------------------------------------- spinning string
+#
+# −(dt + 4J dφ)² + dr² + (1 − 4μ)² r² dφ² + dz² is Minkowski space in T = t + 4Jφ,
+# φ′ = (1 − 4μ)φ (the local flat chart of Deser, Jackiw & 't Hooft, "Three-dimensional
+# Einstein gravity: dynamics of flat space", Ann. Phys. 152 (1984) 220, and Mazur, Phys. Rev.
+# Lett. 57 (1986) 929; from memory): its ten local Killing vectors are Poincaré generators
+# written back in (t, r, φ, z), e.g. (1 − 4μ)∂_x′ = 4J sin(kφ)/r ∂_t + k cos(kφ) ∂_r −
+# sin(kφ)/r ∂_φ with k = 1 − 4μ (derived here by the chain rule; common practice).
+
+
+def spinning_string():
+    from generator.geometry.exactvalues import coordinate_names
+    from generator.physics.symmetry_stage import listed_vectors
+
+    load = load_entry(ROOT / "catalog" / "strings-tubes-and-bubbles"
+                      / "spinning-cosmic-string.yaml")
+    st = load.spacetime
+    return st, [xi for _, xi in listed_vectors(load.entry, st, coordinate_names(st))]
+
+
+@pytest.mark.slow
+def test_spinning_string_lists_ten_independent_killing_vectors() -> None:
+    from generator.physics.killing_search import raises_rank
+
+    st, vectors = spinning_string()
+    assert len(vectors) == 10
+    assert all(is_killing(xi, st) for xi in vectors)
+    assert raises_rank(st, [], vectors) == [True] * 10  # independent, exact modulo a prime
+
+
+def test_spinning_string_translation_and_its_mutations() -> None:
+    st, vectors = spinning_string()
+    _t, r, phi, _z = st.coordinates
+    mu, j = (next(p for p in st.parameters if str(p) == name) for name in ("mu", "J"))
+    k = 1 - 4 * mu
+    translation = [4 * j * sp.sin(k * phi) / r, k * sp.cos(k * phi), -sp.sin(k * phi) / r, 0]
+    assert any(all(sp.simplify(a - b) == 0 for a, b in zip(xi, translation, strict=True))
+               for xi in vectors)
+    assert is_killing(translation, st)
+    assert not is_killing([0, *translation[1:]], st)  # the frame-dragging term dropped
+    assert not is_killing([-translation[0], *translation[1:]], st)  # its sign flipped
