@@ -83,14 +83,47 @@ def spinning_string():
     return st, [xi for _, xi in listed_vectors(load.entry, st, coordinate_names(st))]
 
 
+def listed(relative: str):
+    from generator.geometry.exactvalues import coordinate_names
+    from generator.physics.symmetry_stage import listed_vectors
+
+    load = load_entry(ROOT / "catalog" / relative)
+    st = load.spacetime
+    return st, [xi for _, xi in listed_vectors(load.entry, st, coordinate_names(st))]
+
+
+# de Sitter (global and open slicings) and anti-de Sitter (open slicing) are maximally
+# symmetric: 10 Killing vectors (Hawking & Ellis, The Large Scale Structure of Space-Time,
+# 1973, §5.2; from memory). Written as −dt² + a(t)² dΣ² with dΣ² the unit 3-sphere (k = 1) or
+# hyperbolic 3-space (k = −1) and n_A its embedding coordinates, the six isometries of Σ and
+# the four vectors n_A ∂_t + k (a'/a) ∇̂n_A, which are Killing exactly when
+# k(a a'' − a'²) = 1 (a = √(3/Λ) cosh(√(Λ/3) t); α sinh(t/α); ℓ cos(t/ℓ)): derived here from
+# Killing's equation for a warped product (common practice), each checked below.
+TEN = ["backgrounds/de-sitter-global.yaml", "backgrounds/de-sitter-open.yaml",
+       "backgrounds/anti-de-sitter-open.yaml",
+       "strings-tubes-and-bubbles/spinning-cosmic-string.yaml"]
+
+
 @pytest.mark.slow
-def test_spinning_string_lists_ten_independent_killing_vectors() -> None:
+@pytest.mark.parametrize("relative", TEN)
+def test_entry_lists_ten_independent_killing_vectors(relative: str) -> None:
     from generator.physics.killing_search import raises_rank
 
-    st, vectors = spinning_string()
+    st, vectors = listed(relative)
     assert len(vectors) == 10
     assert all(is_killing(xi, st) for xi in vectors)
     assert raises_rank(st, [], vectors) == [True] * 10  # independent, exact modulo a prime
+
+
+def test_de_sitter_global_boost_and_a_mutation() -> None:
+    st, vectors = listed("backgrounds/de-sitter-global.yaml")
+    t, chi, _theta, _phi = st.coordinates
+    h = sp.sqrt(st.parameters[0] / 3)
+    boost = [sp.cos(chi) / h, -sp.sin(chi) * sp.tanh(h * t), 0, 0]  # n_0 ∂_t/H + tanh ∇̂n_0
+    assert is_killing(boost, st)
+    assert not is_killing([boost[0], -boost[1], 0, 0], st)  # the sign of k flipped
+    assert any(all(sp.simplify(a - b) == 0 for a, b in zip(xi, boost, strict=True))
+               for xi in vectors)
 
 
 def test_spinning_string_translation_and_its_mutations() -> None:
