@@ -371,6 +371,12 @@ class Horizon:
     # coordinate, defining polynomial in the symbol, numeric value at the first sample
     # parameters, "lower" | "upper").
     area_roots: tuple[tuple[str, str, sympy.Expr, str, str], ...] = ()
+    # At an h_root horizon whose κ is long: the parameter eliminated with the root's
+    # polynomial (linear in it, e.g. M), its value in h_root, and κ rewritten with it (equal
+    # at the root, exactly); "" / None otherwise.
+    in_root_parameter: str = ""
+    in_root_value: sympy.Expr | None = None
+    surface_gravity_in_root: sympy.Expr | None = None
 
     @property
     def entropy(self) -> sympy.Expr | None:

@@ -41,6 +41,9 @@ def horizon_json(h: Horizon) -> dict[str, Any]:
                         "defining_polynomial": str(polynomial),
                         "numeric_at_first_sample": numeric, "end": end}
                        for symbol, coordinate, polynomial, numeric, end in h.area_roots],
+        "in_terms_of_root": None if h.surface_gravity_in_root is None else {
+            "eliminated": h.in_root_parameter, "value": _text(h.in_root_value),
+            "surface_gravity": _text(h.surface_gravity_in_root)},
         "how": h.how,
         "not_applicable": dict(sorted(h.reasons.items())),
     }
