@@ -187,6 +187,7 @@ class Entry:
     curation: Curation
     related: tuple[RelatedChart, ...]
     abbreviations: tuple[tuple[str, MathText], ...] = ()  # named shorthands (prose, typesetting)
+    periods: tuple[tuple[str, MathText], ...] = ()  # declared identifications y ~ y + period
     positions: dict[str, SourcePos] = field(default_factory=dict, compare=False, hash=False)
     source_text: str = field(default="", compare=False, hash=False, repr=False)
 
@@ -231,6 +232,9 @@ class Spacetime:
     sign: int
     domain: tuple[sympy.Basic, ...]  # relationals over coordinates and parameters
     symbols: dict[str, sympy.Basic] = field(compare=False, hash=False, default_factory=dict)
+    # Declared identifications (coordinate, period in the parameters): a horizon
+    # cross-section is integrated over them instead of being given per unit range.
+    periods: tuple[tuple[sympy.Symbol, sympy.Expr], ...] = ()
 
     @property
     def dimension(self) -> int:

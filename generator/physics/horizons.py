@@ -860,8 +860,17 @@ def cross_section_ranges(spacetime: Spacetime, data: HorizonAlgebra) -> CrossSec
     cyclic = set(cyclic_coordinates(spacetime))
     azimuths = [a for a in data.block if a in cyclic and str(spacetime.coordinates[a])
                 in AZIMUTHS]
+    periods = dict(spacetime.periods)
     for a in data.block:
         y = spacetime.coordinates[a]
+        if a in cyclic and y in periods:
+            declared, why = declared_range(spacetime, y, periods[y], data.points)
+            if declared is None:
+                return why
+            ranges.append((y, sympy.Integer(0), periods[y]))
+            numeric_ends[periods[y]] = declared
+            words.append(f"{y} identified with the declared period {periods[y]}")
+            continue
         bounds = angle_range(spacetime, y)
         if bounds is not None:
             ranges.append((y, *bounds))
@@ -884,6 +893,19 @@ def cross_section_ranges(spacetime: Spacetime, data: HorizonAlgebra) -> CrossSec
                              "coordinate range would not be constant")
     return CrossSection(tuple(ranges), tuple(per_unit), tuple(roots), numeric_ends,
                         tuple(words))
+
+
+def declared_range(spacetime: Spacetime, y: sympy.Symbol, period: sympy.Expr,
+                   points: Sequence[Point]) -> tuple[str | None, str]:
+    """The declared period at the first sample parameters (a decimal string, the numeric
+    end of the range), or None and why it cannot be used: not a positive number there."""
+    values = {p: points[0][p] for p in spacetime.parameters if p in points[0]} if points \
+        else {}
+    number = numeric_value(period.xreplace(values), DIGITS)
+    if number is None or abs(mpmath.im(number)) > 0 or not mpmath.re(number) > 0:
+        return None, (f"the declared period of {y} is not a positive number at the first "
+                      "sample parameters")
+    return mpmath.nstr(mpmath.re(number), DIGITS), ""
 
 
 @dataclass(frozen=True)
