@@ -426,6 +426,9 @@ class PhysicalData:
     # An orbit radius with no closed form ("photon_sphere", "isco" → the value is h_root):
     # (coordinate, defining polynomial in h_root, numeric value at the first sample point).
     orbit_roots: dict[str, tuple[str, sympy.Expr, str]] = field(default_factory=dict)
+    # With several rotation planes (Myers–Perry): (coordinate, Komar J of ∂_coordinate) for
+    # each; ``komar_angular_momentum`` is then None. Empty otherwise.
+    komar_angular_momenta: tuple[tuple[str, sympy.Expr], ...] = ()
 
 
 @dataclass(frozen=True)

@@ -120,3 +120,40 @@ def test_the_page_and_json_show_the_short_form() -> None:
     assert data["in_terms_of_root"]["eliminated"] == "M"
     assert data["surface_gravity"] == str(event.surface_gravity)
     assert horizon_json(event)["in_terms_of_root"] is None
+
+
+# ---------------------------------------------------------------------------- Komar in 5D
+
+
+def test_myers_perry_komar_mass_and_one_angular_momentum_per_plane() -> None:
+    """Myers–Perry in five dimensions: M = 3πμ/8, J_φ = πμa/4 = 2Ma/3, J_ψ = πμb/4, with
+    M = −(n−2)/(16π(n−3)) K(∂_t) and J = K(∂_φ)/16π (R. C. Myers and M. J. Perry, Black holes
+    in higher dimensional space-times, Ann. Phys. 172, 304 (1986) — from memory). The single
+    angular momentum is refused (two planes), never one of them passed off as the whole."""
+    st = loaded("myers-perry-5d").spacetime
+    mu, a, b = (st.symbols[n] for n in ("mu", "a", "b"))
+    data = data_of("myers-perry-5d")
+    assert sp.simplify(data.komar_mass - 3 * sp.pi * mu / 8) == 0
+    assert data.komar_angular_momentum is None
+    assert "2 rotation planes" in data.reasons["komar_angular_momentum"]
+    spins = dict(data.komar_angular_momenta)
+    assert set(spins) == {"phi", "psi"}
+    assert sp.simplify(spins["phi"] - sp.pi * mu * a / 4) == 0
+    assert sp.simplify(spins["psi"] - sp.pi * mu * b / 4) == 0
+    assert sp.simplify(spins["phi"] - 2 * data.komar_mass * a / 3) == 0
+
+
+def test_a_wrong_myers_perry_komar_mass_is_rejected() -> None:
+    """Other normalisations are rejected: the four-dimensional −K(∂_t)/8π would give πμ/2
+    (K(∂_t) = −4π²μ here; arithmetic from the normalisation above), and doubled or
+    a third of the value are plain errors."""
+    from generator.physics.physical import check_physical_claims
+    from tests._shipped_entries import with_claims
+
+    for wrong in ("pi*mu/2", "3*pi*mu/4", "pi*mu/8"):
+        result = with_claims("myers-perry-5d",
+                             f"  komar_mass: {{value: {wrong}, source: computed-here}}\n")
+        verdicts, problems = check_physical_claims(result.entry, result.spacetime,
+                                                   data_of("myers-perry-5d"))
+        assert [v.ok for v in verdicts] == [False], wrong
+        assert any(p.code == "claim.komar_mass" for p in problems)

@@ -31,7 +31,7 @@ from generator.model import (
 )
 from generator.physics.horizons import H, find_horizons
 from generator.physics.kinematics import observer_kinematics
-from generator.physics.komar import komar_charges
+from generator.physics.komar import komar_angular_momenta, komar_charges
 from generator.physics.orbits import ergosurface, photon_sphere_and_isco
 from generator.physics.root_isolation import closed_form_at_root
 from generator.physics.rootclaims import decide_at_root, relation_at_root
@@ -84,8 +84,14 @@ def physical_data(spacetime: Spacetime, geometry: Geometry,
         reasons["komar_mass"] = mass_why
     if spin is None:
         reasons["komar_angular_momentum"] = spin_why
+    spins: tuple[tuple[str, sympy.Expr], ...] = ()
+    if spin is None and "rotation planes" in spin_why:
+        try:
+            spins = komar_angular_momenta(spacetime, points)
+        except FAILURES:
+            spins = ()
     return PhysicalData(horizons, note, extremal, ergo, photon, isco, mass, spin, kinematics,
-                        reasons, orbit_roots)
+                        reasons, orbit_roots, spins)
 
 
 # ---------------------------------------------------------------------------- claims

@@ -158,6 +158,14 @@ def physical_section(report: EntryReport) -> dict[str, Any] | None:
             _, polynomial, numeric = data.orbit_roots[key]
             note = (f"h_root is the root of {polynomial} = 0 that lies in the static region; "
                     f"≈ {numeric} at the first sample parameters")
+        if key == "komar_angular_momentum" and data.komar_angular_momenta:
+            orbits += [{"label": f"Komar angular momentum of ∂_{name}",
+                        "math": _math(f"J_{{{sympy.latex(sympy.Symbol(name))}}}", spin,
+                                      coordinates),
+                        "text": reader_text(str(spin)), "reason": "", "verdict": None,
+                        "note": "one rotation plane each; J = (1/16π) ∮ ∇^a ψ^b dS_ab"}
+                       for name, spin in data.komar_angular_momenta]
+            continue
         orbits.append({"label": label, "math": _math(symbol, value, coordinates),
                        "text": "" if value is None else reader_text(str(value)),
                        "reason": reader_text(data.reasons.get(key, "")) if value is None else "",
