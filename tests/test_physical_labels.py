@@ -157,3 +157,22 @@ def test_a_wrong_myers_perry_komar_mass_is_rejected() -> None:
                                                    data_of("myers-perry-5d"))
         assert [v.ok for v in verdicts] == [False], wrong
         assert any(p.code == "claim.komar_mass" for p in problems)
+
+
+def test_kerr_ads_five_dimensions_angular_momenta_converge_and_mass_is_refused() -> None:
+    """Kerr–AdS₅ in this entry's normalisation (φ, ψ scaled by Ξ_a = 1 − a²/ℓ², Ξ_b):
+    J_φ = πMa/(2Ξ_a²Ξ_b), J_ψ = πMb/(2Ξ_b²Ξ_a) (G. W. Gibbons, M. J. Perry and C. N. Pope, The
+    first law of thermodynamics for Kerr–anti-de Sitter black holes, Class. Quantum Grav. 22,
+    1503 (2005) — from memory); the Komar mass diverges with Λ ≠ 0 and is refused, not
+    given (common practice: it needs a background subtraction)."""
+    from generator.physics.komar import komar_angular_momenta, komar_charges
+
+    st = loaded("kerr-anti-de-sitter-5d").spacetime
+    m, a, b, ell = (st.symbols[n] for n in ("M", "a", "b", "ell"))
+    points = entry_points(st, 3)
+    mass, mass_why, spin, _ = komar_charges(st, points)
+    assert mass is None and "grows" in mass_why and spin is None
+    spins = dict(komar_angular_momenta(st, points))
+    xi_a, xi_b = 1 - a**2 / ell**2, 1 - b**2 / ell**2
+    assert sp.simplify(spins["phi"] - sp.pi * m * a / (2 * xi_a**2 * xi_b)) == 0
+    assert sp.simplify(spins["psi"] - sp.pi * m * b / (2 * xi_b**2 * xi_a)) == 0
