@@ -1285,7 +1285,12 @@ def reaches_conformal_infinity(spacetime: Spacetime, horizon: Horizon, point: Po
         if a in (x_index, time) or a in cyclic:
             continue
         y = spacetime.coordinates[a]
-        found = axis_range(spacetime, a, azimuths, [point])
+        if angle_range(spacetime, y) is not None:
+            continue  # a polar angle: its range is not fixed by zeros of a polynomial
+        try:
+            found = axis_range(spacetime, a, azimuths, [point])
+        except (sympy.PolynomialError, ValueError, TypeError, ZeroDivisionError):
+            continue
         if not isinstance(found, AxisRange):
             continue
         low, high = (mpmath.mpf(end) for end in found.numeric)
@@ -1295,7 +1300,10 @@ def reaches_conformal_infinity(spacetime: Spacetime, horizon: Horizon, point: Po
             if not (factor.has(x) and factor.has(y)) or factor.free_symbols - {
                     x, y, *spacetime.parameters}:
                 continue
-            if any(low - tolerance <= v <= high + tolerance
-                   for v in roots_in(factor, y, values)):
+            try:
+                roots = roots_in(factor, y, values)
+            except (sympy.PolynomialError, ValueError, TypeError, ZeroDivisionError):
+                continue
+            if any(low - tolerance <= v <= high + tolerance for v in roots):
                 return True
     return False
