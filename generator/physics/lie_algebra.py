@@ -31,6 +31,9 @@ from generator.physics.lie_identify import (
 )
 
 MAX_BASIS = 10
+MAX_BASIS_WITH_CONSTANT_ROOTS = 7  # roots of parameters or numbers (√Λ) make SymPy's linear
+# solver work over an expression domain: a complete de Sitter basis in the flat slicing took
+# minutes, so such bases get a table only up to this size (a bound on the kind of work)
 MAX_OPS = 6000  # operations in the basis's components: beyond, no table (a work bound, not a
 # time budget, so that the page is the same on every machine)
 Structure = tuple[tuple[int, int, tuple[sympy.Expr, ...]], ...]
@@ -209,7 +212,8 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
         return (), None
     if sum(sympy.count_ops(c) for xi in basis for c in xi) > MAX_OPS:
         return (), None
-    if _roots_of_both_kinds(basis, spacetime):
+    if _roots_of_both_kinds(basis, spacetime) or (
+            len(basis) > MAX_BASIS_WITH_CONSTANT_ROOTS and _constant_roots(basis, spacetime)):
         return (), None
     out = []
     for i in range(len(basis)):
@@ -221,6 +225,13 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
             if any(c != 0 for c in coefficients):
                 out.append((i, j, coefficients))
     return tuple(out), (recognise(tuple(out), len(basis)) if complete else None)
+
+
+def _constant_roots(basis: Sequence[Sequence[sympy.Expr]], spacetime: Spacetime) -> bool:
+    """A root of a parameter or a number in a component (√Λ, √3)."""
+    coordinates = set(spacetime.coordinates)
+    return any(p.exp.is_Rational and not p.exp.is_Integer and not p.base.free_symbols & coordinates
+               for xi in basis for c in xi for p in sympy.sympify(c).atoms(sympy.Pow))
 
 
 def _roots_of_both_kinds(basis: Sequence[Sequence[sympy.Expr]], spacetime: Spacetime) -> bool:
