@@ -76,3 +76,18 @@ def test_a_broken_split_never_yields_wrong_constants(monkeypatch) -> None:
     monkeypatch.setattr(lie_algebra.RadicalSplit, "split", as_one)
     broken, _ = structure(st, basis, True)
     assert broken == () or broken == correct
+
+
+def test_a_large_basis_with_roots_of_parameters_gets_no_table() -> None:
+    # de Sitter's flat slicing lists ∂_t − √(Λ/3) r ∂_r and vectors with e^{−2√(Λ/3) t}: with a
+    # translation (cos θ ∂_r − sin θ/r ∂_θ, common practice) the basis has 8 vectors, more
+    # than the table is computed for when roots of parameters occur (a bound on the kind of
+    # work: SymPy's solver over such constants took minutes on the complete basis).
+    load = load_entry(ROOT / "catalog" / "backgrounds" / "de-sitter-flat.yaml")
+    st = load.spacetime
+    basis = [xi for _, xi in listed_vectors(load.entry, st, coordinate_names(st))]
+    _t, r, theta, _phi = st.coordinates
+    translation = [sp.Integer(0), sp.cos(theta), -sp.sin(theta) / r, sp.Integer(0)]
+    assert len(basis) == 7 and lie_algebra._constant_roots(basis, st)
+    assert structure(st, [*basis, translation], True) == ((), None)
+    assert not lie_algebra._constant_roots([translation], st)
