@@ -31,9 +31,10 @@ from generator.physics.lie_identify import (
 )
 
 MAX_BASIS = 10
-MAX_BASIS_WITH_CONSTANT_ROOTS = 7  # roots of parameters or numbers (√Λ) make SymPy's linear
-# solver work over an expression domain: a complete de Sitter basis in the flat slicing took
-# minutes, so such bases get a table only up to this size (a bound on the kind of work)
+MAX_BASIS_WITH_ROOTS = 7  # roots (√Λ, √(ℓ² − r²)) make SymPy's linear solver work over an
+# expression domain: a complete de Sitter basis in the flat slicing took minutes and one in the
+# static chart crashed the process (a floating-point exception in its heuristic gcd), so such
+# bases get a table only up to this size (a bound on the kind of work)
 MAX_OPS = 6000  # operations in the basis's components: beyond, no table (a work bound, not a
 # time budget, so that the page is the same on every machine)
 Structure = tuple[tuple[int, int, tuple[sympy.Expr, ...]], ...]
@@ -213,7 +214,8 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
     if sum(sympy.count_ops(c) for xi in basis for c in xi) > MAX_OPS:
         return (), None
     if _roots_of_both_kinds(basis, spacetime) or (
-            len(basis) > MAX_BASIS_WITH_CONSTANT_ROOTS and _constant_roots(basis, spacetime)):
+            len(basis) > MAX_BASIS_WITH_ROOTS and (_constant_roots(basis, spacetime)
+                                                   or _coordinate_roots(basis, spacetime))):
         return (), None
     out = []
     for i in range(len(basis)):
@@ -231,6 +233,13 @@ def _constant_roots(basis: Sequence[Sequence[sympy.Expr]], spacetime: Spacetime)
     """A root of a parameter or a number in a component (√Λ, √3)."""
     coordinates = set(spacetime.coordinates)
     return any(p.exp.is_Rational and not p.exp.is_Integer and not p.base.free_symbols & coordinates
+               for xi in basis for c in xi for p in sympy.sympify(c).atoms(sympy.Pow))
+
+
+def _coordinate_roots(basis: Sequence[Sequence[sympy.Expr]], spacetime: Spacetime) -> bool:
+    """A root of an expression in the coordinates in a component (√(1 − kr²))."""
+    coordinates = set(spacetime.coordinates)
+    return any(p.exp.is_Rational and not p.exp.is_Integer and p.base.free_symbols & coordinates
                for xi in basis for c in xi for p in sympy.sympify(c).atoms(sympy.Pow))
 
 
