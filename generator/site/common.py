@@ -284,8 +284,8 @@ EVIDENCE_LABELS = {
 _SUPERSCRIPT_DIGITS = str.maketrans("0123456789-", "⁰¹²³⁴⁵⁶⁷⁸⁹⁻")
 _GREEK_WORDS = {"alpha": "α", "beta": "β", "gamma": "γ", "theta": "θ", "phi": "φ", "psi": "ψ",
                 "chi": "χ", "rho": "ρ", "sigma": "σ", "tau": "τ", "omega": "ω", "mu": "μ",
-                "nu": "ν", "pi": "π", "lambda": "λ", "kappa": "κ", "xi": "ξ", "ell": "ℓ", "Lambda": "Λ",
-                "Delta": "Δ", "Sigma": "Σ", "Omega": "Ω", "Xi": "Ξ", "Phi": "Φ", "Psi": "Ψ"}
+                "nu": "ν", "pi": "π", "lambda": "λ", "kappa": "κ", "xi": "ξ", "ell": "ℓ",
+                "Lambda": "Λ", "Delta": "Δ", "Sigma": "Σ", "Omega": "Ω", "Xi": "Ξ", "Phi": "Φ", "Psi": "Ψ"}
 _GREEK_WORD = re.compile(r"(?<![A-Za-z])(" + "|".join(_GREEK_WORDS) + r")(?![A-Za-z])")
 _INTEGER_POWER = re.compile(r"\^\((-?\d+)\)|\^(\d+)(?![\d.])")
 _MINUS = re.compile(r"(?<=[\s(=,\[])-(?=[\w(√])| - ")
