@@ -187,6 +187,7 @@ class Entry:
     curation: Curation
     related: tuple[RelatedChart, ...]
     abbreviations: tuple[tuple[str, MathText], ...] = ()  # named shorthands (prose, typesetting)
+    periods: tuple[tuple[str, MathText], ...] = ()  # declared identifications y ~ y + period
     positions: dict[str, SourcePos] = field(default_factory=dict, compare=False, hash=False)
     source_text: str = field(default="", compare=False, hash=False, repr=False)
 
@@ -231,6 +232,9 @@ class Spacetime:
     sign: int
     domain: tuple[sympy.Basic, ...]  # relationals over coordinates and parameters
     symbols: dict[str, sympy.Basic] = field(compare=False, hash=False, default_factory=dict)
+    # Declared identifications (coordinate, period in the parameters): a horizon
+    # cross-section is integrated over them instead of being given per unit range.
+    periods: tuple[tuple[sympy.Symbol, sympy.Expr], ...] = ()
 
     @property
     def dimension(self) -> int:
@@ -371,6 +375,12 @@ class Horizon:
     # coordinate, defining polynomial in the symbol, numeric value at the first sample
     # parameters, "lower" | "upper").
     area_roots: tuple[tuple[str, str, sympy.Expr, str, str], ...] = ()
+    # At an h_root horizon whose κ is long: the parameter eliminated with the root's
+    # polynomial (linear in it, e.g. M), its value in h_root, and κ rewritten with it (equal
+    # at the root, exactly); "" / None otherwise.
+    in_root_parameter: str = ""
+    in_root_value: sympy.Expr | None = None
+    surface_gravity_in_root: sympy.Expr | None = None
 
     @property
     def entropy(self) -> sympy.Expr | None:
@@ -416,6 +426,9 @@ class PhysicalData:
     # An orbit radius with no closed form ("photon_sphere", "isco" → the value is h_root):
     # (coordinate, defining polynomial in h_root, numeric value at the first sample point).
     orbit_roots: dict[str, tuple[str, sympy.Expr, str]] = field(default_factory=dict)
+    # With several rotation planes (Myers–Perry): (coordinate, Komar J of ∂_coordinate) for
+    # each; ``komar_angular_momentum`` is then None. Empty otherwise.
+    komar_angular_momenta: tuple[tuple[str, sympy.Expr], ...] = ()
 
 
 @dataclass(frozen=True)

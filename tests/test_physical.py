@@ -456,23 +456,67 @@ SHIPPED_WITH_PHYSICAL_CLAIMS = sorted(
 @pytest.mark.slow
 @pytest.mark.parametrize("entry_id", SHIPPED_WITH_PHYSICAL_CLAIMS)
 def test_every_shipped_physical_claim_verifies_and_its_mutants_fail(entry_id: str) -> None:
-    """Like tests/test_claim_mutations.py for the invariants: each claim as written is equal
-    to the computed value, and scaled, shifted or sign-flipped copies are rejected."""
+    """Like tests/test_claim_mutations.py for the invariants: the whole check accepts the
+    entry's claims, and each claim's scaled, shifted or sign-flipped copy is rejected by the
+    same decision the check makes (``decide_physical_claim``: root-aware where the value sits
+    at an algebraic root h_root). A claimed location is also compared with the horizon's own
+    polynomial (a root of it, and the right one), and every other real root of that
+    polynomial given by radicals is rejected (r₋ for r₊)."""
     from generator.entry.loader import parse_at, symbol_table
-    from generator.physics.physical import computed_claim
+    from generator.physics.physical import (
+        computed_claim,
+        decide_physical_claim,
+        root_of_claim,
+    )
 
     result = loaded(entry_id)
     entry, st = result.entry, result.spacetime
+    data = data_of(entry_id)
+    verdicts, problems = check_physical_claims(entry, st, data)
+    assert verdicts and all(v.ok for v in verdicts) and not problems, [
+        (v.subject, v.detail) for v in verdicts if not v.ok]
     table, _ = symbol_table(entry)
-    assert entry.claims.physical
     for claim in entry.claims.physical:
-        computed, why = computed_claim(claim.name, data_of(entry_id))
+        computed, why = computed_claim(claim.name, data)
         assert computed is not None, why
         claimed, problem = parse_at(claim.value, table)
         assert problem is None
-        assert decide_equal(claimed, computed, st).equal is True, claim.name
-        mutants = [claimed * sp.Rational(8, 7) if claimed != 0 else sp.Rational(1, 7),
-                   claimed + 1 / (st.parameters[0] ** 2 + 3)]
-        mutants += [-claimed] if claimed != 0 else []
-        for mutant in mutants:
-            assert decide_equal(mutant, computed, st).equal is False, (claim.name, mutant)
+        at_root = root_of_claim(claim.name, data, st)
+        relation = at_root is not None and claimed.has(st.coordinates[at_root[0]])
+        if claim.name == "horizon_location" and not relation:
+            assert_the_right_root(claimed, st, data)
+        for mutant in physical_mutants(claimed, st, relation, at_root):
+            decided = decide_physical_claim(claim.name, mutant, computed, st, at_root)
+            assert decided.equal is False, (claim.name, mutant, decided)
+
+
+def physical_mutants(claimed: sp.Expr, st, relation: bool, at_root) -> list[sp.Expr]:
+    """Wrong copies of a claim. A relation's multiples vanish at the same root (the same
+    relation, rightly accepted): only shifted copies of it are wrong."""
+    shift = 1 / (st.parameters[0] ** 2 + 3)
+    if relation:
+        return [claimed + shift, claimed + st.coordinates[at_root[0]]]
+    mutants = [claimed * sp.Rational(8, 7) if claimed != 0 else sp.Rational(1, 7),
+               claimed + shift]
+    return mutants + ([-claimed] if claimed != 0 else [])
+
+
+def assert_the_right_root(claimed: sp.Expr, st, data) -> None:
+    """The claimed closed form is the principal horizon's root of its polynomial (exactly:
+    a root, isolated from the others at the first sample parameters); the polynomial's other
+    real roots by radicals are not."""
+    from generator.physics.horizons import H, closed_form_roots
+    from generator.physics.physical import principal_horizon
+    from generator.physics.root_isolation import closed_form_at_root
+
+    horizon = principal_horizon(data)
+    x_index = [str(c) for c in st.coordinates].index(horizon.coordinate)
+    found = closed_form_at_root(claimed, st, x_index, horizon.polynomial, H,
+                                horizon.numeric_location)
+    assert found.equal is True, found
+    others = [root for root in closed_form_roots(horizon.polynomial, H) or []
+              if not equal(root, claimed, st)]
+    for other in others:
+        wrong = closed_form_at_root(other, st, x_index, horizon.polynomial, H,
+                                    horizon.numeric_location)
+        assert wrong.equal is not True, (other, wrong)

@@ -62,13 +62,14 @@ def claim_verdict(entry_id: str, name: str, value: str):
 def test_c_metric_kinds_follow_the_inward_running_y() -> None:
     """y grows inwards (r = 1/(A(x + y))): the black-hole horizon is the root of
     F(y) = −1 + y² − 2MAy³ near 1/(2MA), the acceleration horizon the one near y = 1, which
-    bounds the static region from outside like a cosmological horizon. Source: J. B.
+    bounds the static region from outside and is labelled "acceleration" (it reaches
+    conformal infinity; not a cosmological horizon). Source: J. B.
     Griffiths, P. Krtouš, J. Podolský, Interpreting the C-metric, Class. Quantum Grav. 23,
     6745 (2006) — from memory."""
     st = loaded("c-metric").spacetime
     p = sample_parameters(st)
     M, A = p[st.symbols["M"]], p[st.symbols["A"]]
-    event, acceleration = the("c-metric", "event"), the("c-metric", "cosmological")
+    event, acceleration = the("c-metric", "event"), the("c-metric", "acceleration")
     assert abs(mpmath.mpf(event.numeric_location) * 2 * M * A - 1) < mpmath.mpf("0.05")
     assert abs(mpmath.mpf(acceleration.numeric_location) - 1) < mpmath.mpf("0.05")
     assert inward_coordinate(st, 2, entry_points(st, 1)[0])
@@ -126,10 +127,11 @@ def test_c_metric_black_hole_area_is_exact_between_the_axes() -> None:
 def test_c_metric_acceleration_horizon_has_no_finite_area() -> None:
     """The acceleration horizon y = −x₁ (F(y) = −G(−y)) meets conformal infinity x + y = 0
     on the axis: its area diverges (common practice), so no area is given — the
-    antiderivative's finite value between the ends is refused by the quadrature check."""
-    h = the("c-metric", "cosmological")
+    antiderivative's finite value between the ends is refused by the quadrature check, and
+    the reason names conformal infinity."""
+    h = the("c-metric", "acceleration")
     assert h.area is None and h.area_method == ""
-    assert "no area" in h.reasons["area"]
+    assert "no finite area" in h.reasons["area"] and "conformal infinity" in h.reasons["area"]
 
 
 def test_an_area_claim_in_the_range_roots_is_refused_not_guessed() -> None:

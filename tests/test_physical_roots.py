@@ -193,7 +193,8 @@ def test_claims_in_the_root_verify_exactly(entry_id: str) -> None:
     sample root)."""
     verdicts, problems = verdicts_of(entry_id, ROOT_CLAIMS[entry_id])
     assert not problems, [p.message for p in problems]
-    assert all(v.ok for v in verdicts.values()) and len(verdicts) == len(ROOT_CLAIMS[entry_id])
+    # every claim passes, the shipped ones kept beside these (the entry may claim more)
+    assert all(v.ok for v in verdicts.values()) and set(ROOT_CLAIMS[entry_id]) <= set(verdicts)
     assert verdicts["horizon_location"].method == "exact"
     assert "h_root a root of" in verdicts["surface_gravity"].computed
 

@@ -15,6 +15,7 @@ from pathlib import Path
 from typing import Any
 
 import sympy
+from sympy.core.function import AppliedUndef
 
 from generator.entry import schema
 from generator.entry.mathparse import SymbolTable, parse_expression, parse_inequality, valid_name
@@ -199,6 +200,7 @@ def _build_entry(data: dict[str, Any], file: str, path: Path,
             if "entry" in item
         ),
         abbreviations=tuple(data.get("abbreviations", {}).items()),
+        periods=tuple(data.get("periods", {}).items()),
         positions=_condition_positions(positions),
         source_text=source,
     )
@@ -509,6 +511,7 @@ def build_spacetime(entry: Entry) -> tuple[Spacetime | None, list[Diagnostic]]:
             diagnostics.append(problem)
         elif relation is not None:
             domain.extend(relation.args if isinstance(relation, sympy.And) else [relation])
+    periods = _periods(entry, no_differentials, diagnostics)
     if metric is None or diagnostics:
         return None, diagnostics
     sign = -1 if _is_flipped(entry.signature) else 1
@@ -521,8 +524,42 @@ def build_spacetime(entry: Entry) -> tuple[Spacetime | None, list[Diagnostic]]:
         sign=sign,
         domain=tuple(domain),
         symbols=flat,
+        periods=periods,
     )
     return spacetime, diagnostics
+
+
+def _periods(entry: Entry, table: SymbolTable, diagnostics: list[Diagnostic]
+             ) -> tuple[tuple[sympy.Symbol, sympy.Expr], ...]:
+    """The declared periods, each of a coordinate and free of every coordinate (a period
+    that changed from point to point would be no identification)."""
+    found = []
+    coordinates = {table.symbols[c] for c in entry.coordinates}
+    for name, text in entry.periods:
+        pos = entry.pos(f"periods.{name}")
+        if name not in entry.coordinates:
+            diagnostics.append(Diagnostic.at(pos, "error", f"'{name}' is not a coordinate of "
+                                             "this entry", "periods.coordinate",
+                                             "name one of the coordinates: "
+                                             + ", ".join(entry.coordinates)))
+            continue
+        value, problem = parse_at(text, table)
+        if problem is not None or value is None:
+            diagnostics += [problem] if problem else []
+            continue
+        if value.free_symbols & coordinates or value.atoms(AppliedUndef):
+            diagnostics.append(Diagnostic.at(pos, "error", f"the period of {name} depends on "
+                                             "the coordinates or a free function",
+                                             "periods.value", "give a constant: an "
+                                             "expression in the parameters"))
+            continue
+        if value.is_number and not value.is_positive:
+            diagnostics.append(Diagnostic.at(pos, "error", f"the period of {name} is not "
+                                             "positive", "periods.value",
+                                             "give a positive period"))
+            continue
+        found.append((table.symbols[name], value))
+    return tuple(found)
 
 
 def _is_flipped(signature: str) -> bool:

@@ -374,6 +374,11 @@ ENTRY = Field(
               "dict", key_pattern=NAME_PATTERN, item=Field("definition", "", "math")),
         Field("domain", "Inequalities that pick the region where sample points are taken.",
               "list", item=Field("inequality", "", "math")),
+        Field("periods", "Declared identifications: coordinate → its period (y ~ y + period, "
+              "an expression in the parameters), e.g. `x: L` for a planar horizon made a "
+              "torus; horizon areas and entropies are then totals over it instead of per "
+              "unit coordinate range.", "dict", key_pattern=NAME_PATTERN,
+              item=Field("period", "", "math")),
         METRIC,
         MATTER,
         CLAIMS,

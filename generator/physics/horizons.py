@@ -10,10 +10,12 @@ only at the end, for display and for comparing claims.
 Kinds come from the sign of g^{xx} on either side of each root (x spacelike where g^{xx} > 0):
 going outwards, a root where g^{xx} turns positive is a black-hole horizon (the outermost one
 is the event horizon), one where it turns negative is a cosmological horizon, or an inner
-(Cauchy) horizon when a black-hole horizon lies further out. The horizon's generator is the
-Killing vector χ = ∂_t + Ω_H ∂_φ whose covector is normal to it (χ_a ∝ ∂_a x on the horizon);
-its surface gravity is κ² = −½ ∇_a χ_b ∇^a χ^b on the horizon (a limit along x, since the chart
-is usually singular there), with ∇_a χ_b = ∂_[a χ_b] because χ is Killing.
+(Cauchy) horizon when a black-hole horizon lies further out; a would-be cosmological horizon
+whose cross-section reaches conformal infinity is an acceleration horizon (the C-metric's).
+The horizon's generator is the Killing vector χ = ∂_t + Ω_H ∂_φ whose covector is normal to
+it (χ_a ∝ ∂_a x on the horizon); its surface gravity is κ² = −½ ∇_a χ_b ∇^a χ^b on the
+horizon (a limit along x, since the chart is usually singular there), with
+∇_a χ_b = ∂_[a χ_b] because χ is Killing.
 """
 
 from __future__ import annotations
@@ -606,12 +608,14 @@ def make_horizon(spacetime: Spacetime, geometry: Geometry, x_index: int,
     if kappa_squared is not None and kappa is None:
         reasons["surface_gravity"] = "κ² found but its sign could not be fixed"
     temperature = None if kappa is None else kappa / (2 * sympy.pi)
+    extra: dict = {}
+    if location is None and kappa is not None:
+        extra.update(kappa_in_root(spacetime, data, numeric_point))
     exact = horizon_area(spacetime, data, location, numeric_point)
     if exact.value is not None and exact.roots:
         exact = cross_checked(exact, spacetime, data, value, numeric_point)
     area, area_how = exact.value, exact.how
     numeric_area: NumericArea | None = None
-    extra: dict = {}
     if area is None:
         numeric_area, numeric_why = numeric_area_at(spacetime, data, value, numeric_point)
         if numeric_area is None:
@@ -621,10 +625,10 @@ def make_horizon(spacetime: Spacetime, geometry: Geometry, x_index: int,
             reasons["area"] = (f"{area_how}: the area is given numerically ({NUMERIC_AREA_DIGITS} "
                                "significant digits) at the first sample parameters")
             how += f"; area numeric ({numeric_area.how})"
-            extra = {"area_method": "numeric", "area_numeric": numeric_area.value,
-                     "area_digits": NUMERIC_AREA_DIGITS,
-                     "area_parameters": numeric_area.parameters,
-                     "area_per": numeric_area.per_unit}
+            extra.update({"area_method": "numeric", "area_numeric": numeric_area.value,
+                          "area_digits": NUMERIC_AREA_DIGITS,
+                          "area_parameters": numeric_area.parameters,
+                          "area_per": numeric_area.per_unit})
             if numeric_area.per_unit:
                 reasons["area"] = (f"the cross-section is not compact in "
                                    f"{', '.join(numeric_area.per_unit)}: the area is given "
@@ -645,6 +649,32 @@ def make_horizon(spacetime: Spacetime, geometry: Geometry, x_index: int,
         extra["angular_velocities"] = omegas
     return Horizon(str(x), shown_location, polynomial, "", vector, omega, kappa_squared, kappa,
                    temperature, area, how, reasons, mpmath.nstr(value, 20), **extra)
+
+
+def kappa_in_root(spacetime: Spacetime, data: HorizonAlgebra, numeric_point: dict) -> dict:
+    """κ at an h_root horizon with a parameter eliminated by the root's polynomial (M in
+    terms of r₊; ``root_elimination``), where κ² has more than LONG_TERMS terms: the
+    Horizon fields ``in_root_parameter``, ``in_root_value`` and ``surface_gravity_in_root``
+    (empty when nothing shorter is found)."""
+    from generator.physics.root_elimination import LONG_TERMS, eliminate_parameter
+
+    square = data.kappa_squared
+    if square is None or square.size() <= LONG_TERMS:
+        return {}
+    found = eliminate_parameter(data.rf, spacetime, square)
+    if found is None:
+        return {}
+    field = data.rf.field
+    root = field.square_root(found.result)
+    if root is not None:
+        kappa = signed_positive(sympy.factor(field.display(root)), numeric_point, spacetime)
+    else:
+        kappa = sympy.sqrt(sympy.factor(field.display(found.result)))
+    if kappa is None:
+        return {}
+    return {"in_root_parameter": str(found.parameter),
+            "in_root_value": sympy.factor(field.display(found.value)),
+            "surface_gravity_in_root": kappa}
 
 
 def cross_checked(exact: ExactArea, spacetime: Spacetime, data: HorizonAlgebra,
@@ -830,8 +860,17 @@ def cross_section_ranges(spacetime: Spacetime, data: HorizonAlgebra) -> CrossSec
     cyclic = set(cyclic_coordinates(spacetime))
     azimuths = [a for a in data.block if a in cyclic and str(spacetime.coordinates[a])
                 in AZIMUTHS]
+    periods = dict(spacetime.periods)
     for a in data.block:
         y = spacetime.coordinates[a]
+        if a in cyclic and y in periods:
+            declared, why = declared_range(spacetime, y, periods[y], data.points)
+            if declared is None:
+                return why
+            ranges.append((y, sympy.Integer(0), periods[y]))
+            numeric_ends[periods[y]] = declared
+            words.append(f"{y} identified with the declared period {periods[y]}")
+            continue
         bounds = angle_range(spacetime, y)
         if bounds is not None:
             ranges.append((y, *bounds))
@@ -854,6 +893,19 @@ def cross_section_ranges(spacetime: Spacetime, data: HorizonAlgebra) -> CrossSec
                              "coordinate range would not be constant")
     return CrossSection(tuple(ranges), tuple(per_unit), tuple(roots), numeric_ends,
                         tuple(words))
+
+
+def declared_range(spacetime: Spacetime, y: sympy.Symbol, period: sympy.Expr,
+                   points: Sequence[Point]) -> tuple[str | None, str]:
+    """The declared period at the first sample parameters (a decimal string, the numeric
+    end of the range), or None and why it cannot be used: not a positive number there."""
+    values = {p: points[0][p] for p in spacetime.parameters if p in points[0]} if points \
+        else {}
+    number = numeric_value(period.xreplace(values), DIGITS)
+    if number is None or abs(mpmath.im(number)) > 0 or not mpmath.re(number) > 0:
+        return None, (f"the declared period of {y} is not a positive number at the first "
+                      "sample parameters")
+    return mpmath.nstr(mpmath.re(number), DIGITS), ""
 
 
 @dataclass(frozen=True)
@@ -1198,7 +1250,60 @@ def classify_kinds(spacetime: Spacetime, geometry: Geometry, horizons: list[Hori
                 kind = "event" if k == max(black) else "horizon"
             elif turn == (1, -1):
                 kind = "inner" if any(b > k for b in black) else "cosmological"
+                if kind == "cosmological" and reaches_conformal_infinity(spacetime, h, point):
+                    kind = "acceleration"
             else:
                 kind = "horizon"
+            if kind == "acceleration" and h.area is None and h.area_method != "numeric":
+                h = replace(h, reasons={**h.reasons, "area": ACCELERATION_AREA})
             out.append(replace(h, kind=kind))
     return out
+
+
+ACCELERATION_AREA = ("no finite area: the cross-section reaches conformal infinity (the "
+                     "metric diverges on it), as an acceleration horizon does")
+
+
+def reaches_conformal_infinity(spacetime: Spacetime, horizon: Horizon, point: Point) -> bool:
+    """Does the horizon's cross-section reach conformal infinity: does a metric component
+    along a cross-section coordinate y with a range fixed by the metric (between two axes)
+    diverge somewhere on that closed range at the root? Its denominator then has a factor
+    in x and y (the C-metric's conformal factor 1/(x + y)², which vanishes on the
+    acceleration horizon at the axis x = x₁). A cosmological horizon of de Sitter type is a
+    compact sphere and never does. Read at the first sample parameters, like the kinds."""
+    from generator.physics.cross_section import real_roots as roots_in
+
+    names = [str(c) for c in spacetime.coordinates]
+    x_index = names.index(horizon.coordinate)
+    x = spacetime.coordinates[x_index]
+    time, _ = killing_coordinates(spacetime, [point])
+    cyclic = set(cyclic_coordinates(spacetime))
+    azimuths = [a for a in cyclic if names[a] in AZIMUTHS]
+    values = {p: point[p] for p in spacetime.parameters if p in point}
+    values[x] = sympy.Rational(mpmath.nstr(mpmath.mpf(horizon.numeric_location), 25))
+    for a in range(spacetime.dimension):
+        if a in (x_index, time) or a in cyclic:
+            continue
+        y = spacetime.coordinates[a]
+        if angle_range(spacetime, y) is not None:
+            continue  # a polar angle: its range is not fixed by zeros of a polynomial
+        try:
+            found = axis_range(spacetime, a, azimuths, [point])
+        except (sympy.PolynomialError, ValueError, TypeError, ZeroDivisionError):
+            continue
+        if not isinstance(found, AxisRange):
+            continue
+        low, high = (mpmath.mpf(end) for end in found.numeric)
+        tolerance = mpmath.mpf(10) ** -15 * (1 + abs(low) + abs(high))
+        _, bottom = sympy.fraction(sympy.together(spacetime.metric[a, a]))
+        for factor, _power in sympy.factor_list(bottom)[1]:
+            if not (factor.has(x) and factor.has(y)) or factor.free_symbols - {
+                    x, y, *spacetime.parameters}:
+                continue
+            try:
+                roots = roots_in(factor, y, values)
+            except (sympy.PolynomialError, ValueError, TypeError, ZeroDivisionError):
+                continue
+            if any(low - tolerance <= v <= high + tolerance for v in roots):
+                return True
+    return False

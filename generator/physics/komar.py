@@ -16,6 +16,7 @@ growing with r (e.g. with Λ ≠ 0) makes the charge null with that reason.
 from __future__ import annotations
 
 from collections.abc import Sequence
+from dataclasses import dataclass
 
 import flint
 import sympy
@@ -26,47 +27,57 @@ from generator.geometry.sampling import Point, inside_domain
 from generator.model import Spacetime
 from generator.physics.horizons import (
     AZIMUTHS,
+    angle_range,
     cyclic_coordinates,
     density_root,
     field_det,
     killing_coordinates,
-    polar_range,
+    positive_cosines,
 )
 from generator.physics.rootfield import coefficient
 
 
-def komar_charges(spacetime: Spacetime, points: Sequence[Point]
-                  ) -> tuple[sympy.Expr | None, str, sympy.Expr | None, str]:
-    """(mass, why not, angular momentum, why not)."""
+@dataclass(frozen=True)
+class Sphere:
+    """What every Komar integral of an entry shares: the field, g, g⁻¹, −det g, the time and
+    radial indices, the rotations and the ranges of the sphere's angles."""
+
+    field: RationalField
+    g: list
+    ginv: list
+    minus_det: Frac
+    time: int
+    r_index: int
+    rotations: list[int]
+    ranges: list
+
+
+def komar_sphere(spacetime: Spacetime, points: Sequence[Point]) -> Sphere | str:
+    """The sphere t, r = const at large r, or why there is none."""
     n = spacetime.dimension
     if not spacetime.lorentzian or n < 4:
-        why = "defined here for Lorentzian entries of four or more dimensions"
-        return None, why, None, why
+        return "defined here for Lorentzian entries of four or more dimensions"
     time, rotations = killing_coordinates(spacetime, points)
     if time is None:
-        why = "no stationary Killing coordinate"
-        return None, why, None, why
+        return "no stationary Killing coordinate"
     cyclic = set(cyclic_coordinates(spacetime))
     radial = [i for i in range(n) if i not in cyclic
-              and polar_range(spacetime, spacetime.coordinates[i]) is None]
+              and angle_range(spacetime, spacetime.coordinates[i]) is None]
     if len(radial) != 1:
-        why = "the chart has no single radial coordinate with spheres of angles around it"
-        return None, why, None, why
+        return "the chart has no single radial coordinate with spheres of angles around it"
     r_index = radial[0]
     r = spacetime.coordinates[r_index]
     far = dict(points[0])
     far[r] = sympy.Integer(10) ** 6
     if not inside_domain(spacetime, far):
-        why = f"the domain does not reach {r} → ∞"
-        return None, why, None, why
+        return f"the domain does not reach {r} → ∞"
     angles = [i for i in range(n) if i not in (time, r_index)]
     ranges = []
     for i in angles:
         y = spacetime.coordinates[i]
-        bounds = polar_range(spacetime, y)
+        bounds = angle_range(spacetime, y)
         if bounds is None and str(y) not in AZIMUTHS:
-            why = f"{y} is neither a polar angle nor an azimuth: no sphere around {r}"
-            return None, why, None, why
+            return f"{y} is neither a polar angle nor an azimuth: no sphere around {r}"
         ranges.append((y, *(bounds or (sympy.Integer(0), 2 * sympy.pi))))
     entries = tuple(spacetime.metric[a, b] for a in range(n) for b in range(n))
     field, values = build_field(FieldRequest(spacetime.coordinates, spacetime.parameters,
@@ -74,20 +85,62 @@ def komar_charges(spacetime: Spacetime, points: Sequence[Point]
     g = [values[a * n:(a + 1) * n] for a in range(n)]
     ginv = inverse_matrix(FieldArithmetic(field), g, Budget.start(Limits()))
     minus_det = field.neg(field_det(FieldArithmetic(field), g))
+    return Sphere(field, g, ginv, minus_det, time, r_index, rotations, ranges)
+
+
+def komar_charges(spacetime: Spacetime, points: Sequence[Point]
+                  ) -> tuple[sympy.Expr | None, str, sympy.Expr | None, str]:
+    """(mass, why not, angular momentum, why not)."""
+    sphere = komar_sphere(spacetime, points)
+    if isinstance(sphere, str):
+        return None, sphere, None, sphere
+    n = spacetime.dimension
     scale = sympy.Rational(n - 2, n - 3)
-    mass, mass_why = charge(field, g, ginv, minus_det, time, r_index, time, ranges, spacetime)
+    mass, mass_why = sphere_charge(sphere, sphere.time, spacetime)
     if mass is not None:
         mass = sympy.factor(-scale * mass / (16 * sympy.pi))
-    rotating = [j for j in rotations if not g[time][j].is_zero()]
-    if len(rotations) == 0:
+    rotating = rotating_planes(sphere)
+    if len(sphere.rotations) == 0:
         return mass, mass_why, None, "no axial Killing coordinate"
     if len(rotating) > 1:
-        return mass, mass_why, None, "more than one rotation plane"
-    axis = rotating[0] if rotating else rotations[0]
-    spin, spin_why = charge(field, g, ginv, minus_det, axis, r_index, time, ranges, spacetime)
+        names = ", ".join(f"J_{spacetime.coordinates[j]}" for j in rotating)
+        return mass, mass_why, None, (f"{len(rotating)} rotation planes: one Komar angular "
+                                      f"momentum each ({names}, under komar_angular_momenta)")
+    axis = rotating[0] if rotating else sphere.rotations[0]
+    spin, spin_why = sphere_charge(sphere, axis, spacetime)
     if spin is not None:
         spin = sympy.factor(spin / (16 * sympy.pi))
     return mass, mass_why, spin, spin_why
+
+
+def rotating_planes(sphere: Sphere) -> list[int]:
+    """The axial Killing coordinates coupled to t (g_tφ ≠ 0)."""
+    return [j for j in sphere.rotations if not sphere.g[sphere.time][j].is_zero()]
+
+
+def komar_angular_momenta(spacetime: Spacetime, points: Sequence[Point]
+                          ) -> tuple[tuple[str, sympy.Expr], ...]:
+    """J_i = K(∂_{φ_i})/16π for each rotation plane where there are several (Myers–Perry's
+    φ and ψ); empty with one plane or none, or where a charge is not found."""
+    sphere = komar_sphere(spacetime, points)
+    if isinstance(sphere, str):
+        return ()
+    rotating = rotating_planes(sphere)
+    if len(rotating) < 2:
+        return ()
+    found = []
+    for j in rotating:
+        spin, _ = sphere_charge(sphere, j, spacetime)
+        if spin is None:
+            return ()
+        found.append((str(spacetime.coordinates[j]), sympy.factor(spin / (16 * sympy.pi))))
+    return tuple(found)
+
+
+def sphere_charge(sphere: Sphere, killing: int, spacetime: Spacetime
+                  ) -> tuple[sympy.Expr | None, str]:
+    return charge(sphere.field, sphere.g, sphere.ginv, sphere.minus_det, killing,
+                  sphere.r_index, sphere.time, sphere.ranges, spacetime)
 
 
 def charge(field: RationalField, g: list[list[Frac]], ginv: list[list[Frac]], minus_det: Frac,
@@ -122,7 +175,7 @@ def charge(field: RationalField, g: list[list[Frac]], ginv: list[list[Frac]], mi
     root = density_root(field.display(d_lead), spacetime, angles)
     if root is None:
         return None, "√(−g) has no exact leading term"
-    value = root * field.display(e_lead)
+    value = positive_cosines(root, ranges) * field.display(e_lead)
     for y, low, high in reversed(ranges):
         value = sympy.integrate(value, (y, low, high))
     if value.has(sympy.Integral):

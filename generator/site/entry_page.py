@@ -215,6 +215,25 @@ SUBJECT_LABELS = {
     "claims.petrov_type": "Petrov type",
     "claims.hawking_ellis_type": "Hawking–Ellis type",
     "matter.kind": "Matter content",
+    "claims.horizon_location": "Horizon location",
+    "claims.surface_gravity": "Surface gravity",
+    "claims.horizon_area": "Horizon area",
+    "claims.horizon_angular_velocity": "Angular velocity of the horizon",
+    "claims.photon_sphere": "Photon sphere",
+    "claims.isco": "Innermost stable circular orbit",
+    "claims.komar_mass": "Komar mass",
+    "claims.komar_angular_momentum": "Komar angular momentum",
+    "claims.expansion": "Expansion of the observers",
+    "claims.shear_squared": "Shear of the observers",
+    "claims.vorticity_squared": "Vorticity of the observers",
+    "claims.acceleration_squared": "Acceleration of the observers",
+}
+# Numbered claims (a list under one key): the reader's name, numbered from 1.
+NUMBERED_LABELS = {
+    "claims.killing_vectors": "Killing vector",
+    "claims.killing_tensors": "Killing tensor",
+    "claims.conformal_killing_vectors": "Conformal Killing vector",
+    "claims.homotheties": "Homothety",
 }
 
 
@@ -223,13 +242,19 @@ def subject_label(subject: str, entry: Entry) -> str:
     if subject in SUBJECT_LABELS:
         return SUBJECT_LABELS[subject]
     head, _, index = subject.rpartition(".")
-    if head == "claims.killing_vectors" and index.isdigit():
-        return f"Killing vector {int(index) + 1}"
+    if head in NUMBERED_LABELS and index.isdigit():
+        return f"{NUMBERED_LABELS[head]} {int(index) + 1}"
     if head == "related" and index.isdigit() and int(index) < len(entry.related):
         return f"Map to {entry.related[int(index)].entry}"
     if subject.startswith("claims.energy_conditions."):
         return f"{subject.rpartition('.')[2]} energy condition"
-    return subject
+    return _spelled_out(subject)
+
+
+def _spelled_out(subject: str) -> str:
+    """A key no label names yet, in words rather than as a dotted key (never a key on a page)."""
+    words = subject.removeprefix("claims.").replace(".", " ").replace("_", " ").strip()
+    return words[:1].upper() + words[1:]
 
 
 def verification_summary(report: EntryReport) -> dict[str, Any]:

@@ -41,6 +41,9 @@ def horizon_json(h: Horizon) -> dict[str, Any]:
                         "defining_polynomial": str(polynomial),
                         "numeric_at_first_sample": numeric, "end": end}
                        for symbol, coordinate, polynomial, numeric, end in h.area_roots],
+        "in_terms_of_root": None if h.surface_gravity_in_root is None else {
+            "eliminated": h.in_root_parameter, "value": _text(h.in_root_value),
+            "surface_gravity": _text(h.surface_gravity_in_root)},
         "how": h.how,
         "not_applicable": dict(sorted(h.reasons.items())),
     }
@@ -66,7 +69,8 @@ def physical_json(data: PhysicalData | None) -> dict[str, Any]:
         why = "the physical data could not be computed"
         return {"horizons": [], "horizons_note": why, "extremality": [], "ergosurface": None,
                 "photon_sphere": None, "isco": None,
-                "komar": {"mass": None, "angular_momentum": None}, "kinematics": None,
+                "komar": {"mass": None, "angular_momentum": None},
+                "komar_angular_momenta": None, "kinematics": None,
                 "physical_reasons": {"all": why}, "orbit_roots": {}}
     return {
         "horizons": [horizon_json(h) for h in data.horizons],
@@ -77,6 +81,8 @@ def physical_json(data: PhysicalData | None) -> dict[str, Any]:
         "isco": _text(data.isco),
         "komar": {"mass": _text(data.komar_mass),
                   "angular_momentum": _text(data.komar_angular_momentum)},
+        "komar_angular_momenta": None if not data.komar_angular_momenta
+        else {name: str(value) for name, value in data.komar_angular_momenta},
         "kinematics": kinematics_json(data.kinematics),
         "physical_reasons": dict(sorted(data.reasons.items())),
         "orbit_roots": {key: {"coordinate": coordinate, "defining_polynomial": str(polynomial),

@@ -101,6 +101,9 @@ def horizon_row(h: Horizon, coordinates: tuple, verdicts: Mapping[str, dict[str,
             shown = _many([(f"\\Omega_{{{sympy.latex(sympy.Symbol(name))}}}", w)
                            for name, w in h.angular_velocities], coordinates)
             reason = ""
+        if h.surface_gravity_in_root is not None and label in ("surface gravity",
+                                                                "temperature"):
+            value, shown, note = in_root_form(h, label, coordinates)
         if h.area_per_unit is not None and label in ("area", "entropy"):
             per = per_unit_words(h.area_per)
             value = h.area_per_unit if label == "area" else h.entropy_per_unit
@@ -117,6 +120,20 @@ def horizon_row(h: Horizon, coordinates: tuple, verdicts: Mapping[str, dict[str,
     return {"kind": h.kind, "coordinate": h.coordinate, "generator": generator,
             "polynomial": reader_text(str(h.polynomial)) if h.location.has(H) else "",
             "how": reader_text(h.how), "rows": rows}
+
+
+def in_root_form(h: Horizon, label: str, coordinates: tuple
+                 ) -> tuple[sympy.Expr, Markup | None, str]:
+    """κ (or T = κ/2π) with a parameter eliminated by the root's polynomial (M in terms of
+    r₊): the form reduced modulo the polynomial runs to hundreds of terms, this one to a few
+    factors; both are equal at the root, exactly. The long form stays in the JSON report."""
+    kappa = h.surface_gravity_in_root
+    value = kappa if label == "surface gravity" else kappa / (2 * sympy.pi)
+    shown = _math(r"\kappa" if label == "surface gravity" else "T", value, coordinates)
+    note = (f"{h.in_root_parameter} eliminated with the root's polynomial: "
+            f"{h.in_root_parameter} = {h.in_root_value} at the root, so this form equals the "
+            "one reduced modulo the polynomial exactly; that longer form is in the JSON report")
+    return value, shown, note
 
 
 def physical_section(report: EntryReport) -> dict[str, Any] | None:
@@ -141,6 +158,14 @@ def physical_section(report: EntryReport) -> dict[str, Any] | None:
             _, polynomial, numeric = data.orbit_roots[key]
             note = (f"h_root is the root of {polynomial} = 0 that lies in the static region; "
                     f"≈ {numeric} at the first sample parameters")
+        if key == "komar_angular_momentum" and data.komar_angular_momenta:
+            orbits += [{"label": f"Komar angular momentum of ∂_{name}",
+                        "math": _math(f"J_{{{sympy.latex(sympy.Symbol(name))}}}", spin,
+                                      coordinates),
+                        "text": reader_text(str(spin)), "reason": "", "verdict": None,
+                        "note": "one rotation plane each; J = (1/16π) ∮ ∇^a ψ^b dS_ab"}
+                       for name, spin in data.komar_angular_momenta]
+            continue
         orbits.append({"label": label, "math": _math(symbol, value, coordinates),
                        "text": "" if value is None else reader_text(str(value)),
                        "reason": reader_text(data.reasons.get(key, "")) if value is None else "",

@@ -8,6 +8,7 @@ written in an entry can smuggle markup through a math span.
 
 from __future__ import annotations
 
+import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -21,6 +22,18 @@ from generator.site import mathtex
 from generator.site.common import markdown_html
 
 _MARK = "\u2063"  # invisible separator: never produced by Markdown, rare in text
+
+# Index notation written in plain words (g_tt, R_ab, T_ab k^a k^b, Delta_r, nabla_a): shown
+# with real subscripts and superscripts, never as program-like ASCII. The kernel is one letter
+# or a Greek letter's name; the indices are one to four letters or digits.
+_GREEK = {"alpha": "α", "beta": "β", "gamma": "γ", "delta": "δ", "epsilon": "ε", "zeta": "ζ",
+          "eta": "η", "theta": "θ", "kappa": "κ", "lambda": "λ", "mu": "μ", "nu": "ν",
+          "xi": "ξ", "rho": "ρ", "sigma": "σ", "tau": "τ", "phi": "φ", "chi": "χ", "psi": "ψ",
+          "omega": "ω", "Gamma": "Γ", "Delta": "Δ", "Theta": "Θ", "Lambda": "Λ", "Xi": "Ξ",
+          "Sigma": "Σ", "Phi": "Φ", "Psi": "Ψ", "Omega": "Ω", "nabla": "∇"}
+_INDEXED = re.compile(r"(?<![\w\\])(?P<kernel>[A-Za-z]|" + "|".join(_GREEK) + r")"
+                      r"(?P<indices>(?:[_^][A-Za-z0-9]{1,4})+)(?![\w^])")
+_INDEX = re.compile(r"([_^])([A-Za-z0-9]{1,4})")
 
 
 @dataclass(frozen=True)
@@ -48,6 +61,24 @@ def math_piece_html(text: str, symbols: ProseSymbols) -> str:
         return f'<code class="math-fallback">{escape(text)}</code>'
 
 
+def indexed_html(kernel: str, indices: str) -> str:
+    """``g`` and ``_tt`` as g with subscript tt (escaped; our own markup only)."""
+    parts = [f"<i>{escape(_GREEK.get(kernel, kernel))}</i>" if kernel not in ("nabla",)
+             else "∇"]
+    for mark, index in _INDEX.findall(indices):
+        tag = "sub" if mark == "_" else "sup"
+        parts.append(f"<{tag}>{escape(index)}</{tag}>")
+    return f'<span class="indexed">{"".join(parts)}</span>'
+
+
+def _with_indices_marked(text: str, inserts: list[str]) -> str:
+    """Plain prose with index notation replaced by placeholders for `indexed_html`."""
+    def mark(match: re.Match[str]) -> str:
+        inserts.append(indexed_html(match["kernel"], match["indices"]))
+        return f"{_MARK}{len(inserts) - 1}{_MARK}"
+    return _INDEXED.sub(mark, text)
+
+
 def prose_markdown(text: str, symbols: ProseSymbols) -> Markup:
     """Notes: Markdown (sanitised) with math typeset."""
     source: list[str] = []
@@ -56,6 +87,8 @@ def prose_markdown(text: str, symbols: ProseSymbols) -> Markup:
         if piece.kind == "math":
             inserts.append(math_piece_html(piece.text, symbols))
             source.append(f"{_MARK}{len(inserts) - 1}{_MARK}")
+        elif piece.kind == "text":
+            source.append(_with_indices_marked(piece.text, inserts))
         else:
             source.append(piece.text)
     html = str(markdown_html("".join(source), allow_links=False))
@@ -74,6 +107,12 @@ def _line_piece(piece: Piece, symbols: ProseSymbols) -> str:
         return math_piece_html(piece.text, symbols)
     if piece.kind in ("code", "fence"):
         return f"<code>{escape(piece.text.strip('`'))}</code>"
+    if piece.kind == "text":
+        inserts: list[str] = []
+        html = str(escape(_with_indices_marked(piece.text, inserts)))
+        for k, markup in enumerate(inserts):
+            html = html.replace(f"{_MARK}{k}{_MARK}", markup)
+        return html
     return str(escape(piece.text))
 
 
