@@ -115,7 +115,7 @@ def test_the_page_and_json_show_the_short_form() -> None:
                     surface_gravity_in_root=short)
     rows = {r["label"]: r for r in horizon_row(shown, st.coordinates, {}, True)["rows"]}
     assert "M eliminated" in rows["surface gravity"]["note"]
-    assert "Lambda" in rows["temperature"]["text"] and "pi" in rows["temperature"]["text"]
+    assert "Λ" in rows["temperature"]["text"] and "π" in rows["temperature"]["text"]
     data = horizon_json(shown)
     assert data["in_terms_of_root"]["eliminated"] == "M"
     assert data["surface_gravity"] == str(event.surface_gravity)

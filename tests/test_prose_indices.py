@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import pytest
 
+from generator.site.common import reader_text
 from generator.site.prose_html import ProseSymbols, prose_line, prose_markdown
 
 NO_MATH = ProseSymbols(None)
@@ -45,3 +46,23 @@ def test_code_spans_keep_what_was_written():
 def test_markup_around_an_index_is_still_escaped(render):
     html = str(render("<script>x</script>_a R_<b>", NO_MATH))
     assert "<script>" not in html and "<b>" not in html
+
+
+# The tool's own sentences (reasons, polynomials of algebraic roots, extremality conditions)
+# are plain text on the page; they must read as mathematics, not as program syntax.
+
+@pytest.mark.parametrize(("written", "shown"), [
+    ("root of -2*M*r + Q**2 + r**2 = 0", "root of −2·M·r + Q² + r² = 0"),
+    ("(-a**2*cos(theta)**2 + b**2 - ell**2)", "(−a²·cos(θ)² + b² − ℓ²)"),
+    ("u^t = sqrt(-2*M*r**3 + Q**2*r**2)", "u^t = √(−2·M·r³ + Q²·r²)"),
+    ("r**(-1) and x**(1/3)", "r⁻¹ and x^(1/3)"),
+    ("(1 - Lambda*h**2)/(4*pi*h)", "(1 − Λ·h²)/(4·π·h)"),
+])
+def test_the_tools_sentences_read_as_mathematics(written, shown):
+    assert reader_text(written) == shown
+
+
+@pytest.mark.parametrize("text", ["non-vacuum", "Hawking–Ellis type", "1e-19", "spin-2 field",
+                                  "the pipeline's phase", "photon sphere"])
+def test_words_and_numbers_keep_their_hyphens_and_letters(text):
+    assert reader_text(text) == text

@@ -398,8 +398,12 @@ class PointValues:
                 continue
             a = int(atoms[j, 0])
             inverse = pow(a, -1, p)
-            powers = {e: pow(a if e > 0 else inverse, abs(int(e)), p) for e in set(column)}
-            values = values * np.array([powers[e] for e in column], dtype=np.int64) % p
+            low = int(column.min())
+            # a^e mod p for every exponent in the column's range, then picked per row (the
+            # same numbers as one pow per row, without a Python loop over the rows)
+            powers = np.array([pow(a if e > 0 else inverse, abs(e), p)
+                               for e in range(low, int(column.max()) + 1)], dtype=np.int64)
+            values = values * powers[column - low] % p
             rate = (atoms[j, 1:] * inverse) % p  # ∂_b a / a
             log_derivative = (log_derivative + (column[:, None] % p) * rate[None, :]) % p
         return values, (log_derivative * values[:, None]) % p
@@ -409,32 +413,37 @@ class PointValues:
 
 
 def killing_rows(values: PointValues, point: int, exponents: np.ndarray) -> np.ndarray:
-    """Rows (a ≤ b) of L_ξ g at one point for ξ = m_k ∂_c, columns ordered (c, k)."""
+    """Rows (a ≤ b) of L_ξ g at one point for ξ = m_k ∂_c, columns ordered (c, k):
+    m_k ∂_c g_ab + ∂_a m_k g_cb + ∂_b m_k g_ac, modulo p, for all a, b, c, k at once."""
     n, p = values.n, values.p
     m, dm = values.monomial_jets(point, exponents)
     g = values.metric[point]
-    rows = []
-    for a in range(n):
-        for b in range(a, n):
-            blocks = []
-            for c in range(n):
-                # Each product is below 2⁶², a sum of three is not: reduce them one by one
-                # (an int64 overflow made a rare point inconsistent and lost whole blocks).
-                entry = (m * int(g[a, b, 1 + c]) % p + dm[:, a] * int(g[c, b, 0]) % p
-                         + dm[:, b] * int(g[a, c, 0]) % p) % p
-                blocks.append(entry)
-            rows.append(np.concatenate(blocks))
-    return np.array(rows, dtype=np.int64)
+    g0, dm_t = g[:, :, 0], dm.T  # g_ab, and ∂_a m_k indexed [a, k]
+    # Each product is below 2⁶², a sum of three is not: reduce them one by one (an int64
+    # overflow made a rare point inconsistent and lost whole blocks).
+    first = g[:, :, 1:, None] * m[None, None, None, :] % p  # [a, b, c, k]
+    second = dm_t[:, None, None, :] * g0.T[None, :, :, None] % p  # ∂_a m_k g_cb
+    third = dm_t[None, :, None, :] * g0[:, None, :, None] % p  # ∂_b m_k g_ac
+    entries = (first + second + third) % p
+    upper_a, upper_b = np.triu_indices(n)
+    return entries[upper_a, upper_b].reshape(len(upper_a), n * len(exponents))
 
 
 def kernel(rows: np.ndarray, p: int) -> list[list[int]]:
     """A basis of the null space as flint derives it from the reduced row echelon form
     (canonical: its entries are the reductions of the rational ones)."""
-    count, size = rows.shape
-    matrix = flint.nmod_mat(count, size, rows.ravel().tolist(), p)
-    basis, nullity = matrix.nullspace()
+    basis, nullity = nmod_matrix(rows, p).nullspace()
     # Only the first ``nullity`` columns hold the basis: read those, not the whole square.
+    size = rows.shape[1]
     return [[int(basis[i, j]) for i in range(size)] for j in range(nullity)]
+
+
+def nmod_matrix(rows: np.ndarray, p: int) -> flint.nmod_mat:
+    """The matrix of ``rows`` (entries in 0 … p − 1) over Z/p. Built through an integer
+    matrix: python-flint reads a list into ``fmpz_mat`` about a third faster than into
+    ``nmod_mat``, and the reduction modulo p is then one call."""
+    count, size = rows.shape
+    return flint.nmod_mat(flint.fmpz_mat(count, size, rows.ravel().tolist()), p)
 
 
 def rational_reconstruction(a: int, p: int) -> sympy.Rational | None:
@@ -732,7 +741,7 @@ def _solve_block(spacetime: Spacetime, values: PointValues, base: list[tuple[int
     if not exponent_rows:
         return
     exponents = np.array(exponent_rows, dtype=np.int64).reshape(len(exponent_rows), width)
-    exponents = _independent_monomials(values, exponents, work)
+    exponents = _independent_monomials(values, exponents, work, MAX_UNKNOWNS // n)
     if n * len(exponents) > MAX_UNKNOWNS:
         exponents = exponents[: MAX_UNKNOWNS // n]
     # Simplest monomials last: the free variables of the echelon form are then the simple
@@ -773,23 +782,45 @@ def _polynomial_degree(factor: sympy.Expr) -> int:
     return 0
 
 
-def _independent_monomials(values: PointValues, exponents: np.ndarray, work: Work
-                           ) -> np.ndarray:
+def _independent_monomials(values: PointValues, exponents: np.ndarray, work: Work,
+                           wanted: int | None = None) -> np.ndarray:
     """Drop monomials that are linear combinations of earlier ones (sin² = 1 − cos², a
     radical times its radicand, ...): their values at more points than monomials have the
     earlier columns as pivots. A relation among the monomials holds with its first derivatives,
-    so each point gives n + 1 rows (values and derivatives) and few points are needed."""
+    so each point gives n + 1 rows (values and derivatives) and few points are needed.
+
+    ``wanted``: only the first ``wanted`` independent monomials are used by the caller. A
+    column is a pivot exactly when it is independent of the columns before it, so the pivots
+    among the leading columns are those of the whole matrix: a prefix of twice ``wanted``
+    columns (the same points and rows) is reduced first, and the whole only if the prefix
+    holds fewer pivots. The result's first ``wanted`` monomials are the same either way."""
     count = len(exponents)
     points = -(-(count + 4) // (values.n + 1)) + 2
     values.grow(points, work)
     work.spend("unknowns", count)
-    rows = np.concatenate([np.vstack([m[None, :], dm.T]) for m, dm in
-                           (values.monomial_jets(k, exponents) for k in range(points))])
-    matrix = flint.nmod_mat(rows.shape[0], count, rows.ravel().tolist(), values.p)
-    reduced, rank = matrix.rref()
-    table = np.array(reduced.tolist()[:rank], dtype=object).astype(np.int64)
-    pivots = [int(np.flatnonzero(row)[0]) for row in table] if rank else []
-    return exponents[pivots]
+    width = count if wanted is None else min(count, 2 * wanted)
+    while True:
+        leading = exponents[:width]
+        rows = np.concatenate([np.vstack([m[None, :], dm.T]) for m, dm in
+                               (values.monomial_jets(k, leading) for k in range(points))])
+        reduced, rank = nmod_matrix(rows, values.p).rref()
+        if width == count or rank >= (wanted or 0):
+            return leading[pivot_columns(reduced, rank)]
+        width = count
+
+
+def pivot_columns(reduced: flint.nmod_mat, rank: int) -> list[int]:
+    """The pivot column of each of the first ``rank`` rows of a reduced row echelon form.
+    Pivots move strictly right from row to row, so one left-to-right scan reads each column
+    at most once (reading the whole matrix into Python cost more than the elimination)."""
+    pivots: list[int] = []
+    column, width = 0, reduced.ncols()
+    for i in range(rank):
+        while column < width and int(reduced[i, column]) == 0:
+            column += 1
+        pivots.append(column)
+        column += 1
+    return pivots
 
 
 def _exact_vector(vector: Sequence[int], exponents: np.ndarray, base_atoms: Sequence[Atom],

@@ -131,6 +131,10 @@ class ResultCache:
     def _path(self, key: str) -> Path:
         return self.folder / key[:2] / f"{key}{self.suffix}"
 
+    def holds(self, key: str) -> bool:
+        """Whether a file is stored under ``key`` (not whether it verifies: ``get`` says)."""
+        return self._path(key).is_file()
+
     def get(self, key: str, kind: type = EntryReport) -> Any:
         """The object stored under ``key`` if its signature verifies and it is a ``kind``."""
         try:

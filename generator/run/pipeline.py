@@ -11,6 +11,7 @@ from __future__ import annotations
 import multiprocessing
 import os
 import tempfile
+import threading
 from collections.abc import Callable, Sequence
 from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
 from concurrent.futures.process import BrokenProcessPool
@@ -313,14 +314,39 @@ def _run(tasks: list[Task], options: RunOptions, progress: Progress) -> list[Ent
     cards = card_shelf(options.cache_dir) if options.cache_dir else None
     keys = [cache_key(task) for task in tasks]
     results: dict[int, EntryReport] = {}
-    pending: list[int] = []
-    for i, key in enumerate(keys):
-        hit = cache.get(key) if cache else None
-        if hit is not None:
-            results[i] = replace(hit, inputs_key=key)
-            progress.finished(hit)
-        else:
-            pending.append(i)
+    if cache is not None and _overlaps_reading(options):
+        # Entries with no cache file start computing in the workers while this process reads
+        # the others (the unpickling of every cached report is the bulk of a warm check); an
+        # entry whose file turns out unreadable or forged is computed in a second round.
+        missing = [i for i, key in enumerate(keys) if not cache.holds(key)]
+        hits = _read_while(lambda: _store(tasks, missing, keys, options, progress, cache,
+                                          cards, results),
+                           cache, [(i, keys[i]) for i in range(len(tasks))
+                                   if i not in set(missing)])
+        pending = []
+        for i, hit in hits:
+            if hit is None:
+                pending.append(i)
+            else:
+                results[i] = replace(hit, inputs_key=keys[i])
+                progress.finished(hit)
+    else:
+        pending = []
+        for i, key in enumerate(keys):
+            hit = cache.get(key) if cache else None
+            if hit is not None:
+                results[i] = replace(hit, inputs_key=key)
+                progress.finished(hit)
+            else:
+                pending.append(i)
+    _store(tasks, pending, keys, options, progress, cache, cards, results)
+    return [results[i] for i in range(len(tasks))]
+
+
+def _store(tasks: list[Task], pending: list[int], keys: list[str], options: RunOptions,
+           progress: Progress, cache: ResultCache | None, cards: ResultCache | None,
+           results: dict[int, EntryReport]) -> None:
+    """Compute the pending tasks into ``results`` and keep what may be cached."""
     for i, report in _compute(tasks, pending, options, progress):
         results[i] = report = replace(report, inputs_key=keys[i])
         if cache and cards and _cacheable(report):
@@ -328,7 +354,38 @@ def _run(tasks: list[Task], options: RunOptions, progress: Progress) -> list[Ent
             card = twin_card(report)
             if card is not None:
                 cards.put(keys[i], card)
-    return [results[i] for i in range(len(tasks))]
+
+
+def _overlaps_reading(options: RunOptions) -> bool:
+    """Reading the cache overlaps computing only when workers compute (a local pool or a
+    cluster); in this process the two would only take turns."""
+    return not runs_in_this_process(options)
+
+
+def _read_while(work: Callable[[], None], cache: ResultCache, wanted: list[tuple[int, str]]
+                ) -> list[tuple[int, EntryReport | None]]:
+    """Read the cached reports ``wanted`` (index, key) in a helper thread while ``work``
+    runs here (it mostly waits on worker processes, so the reading gets the interpreter);
+    returns what was read, None where a file did not verify. The work stays in this thread:
+    signals (the in-process budget's alarm) reach only the main thread."""
+    hits: list[tuple[int, EntryReport | None]] = []
+    failure: list[BaseException] = []
+
+    def read() -> None:
+        try:
+            hits.extend((i, cache.get(key)) for i, key in wanted)
+        except BaseException as exc:  # handed to the caller's thread
+            failure.append(exc)
+
+    reader = threading.Thread(target=read, name="almanac-cache-reader", daemon=True)
+    reader.start()
+    try:
+        work()
+    finally:
+        reader.join()
+    if failure:
+        raise failure[0]
+    return hits
 
 
 def _cacheable(report: EntryReport) -> bool:

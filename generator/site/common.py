@@ -281,11 +281,27 @@ EVIDENCE_LABELS = {
 }
 
 
+_SUPERSCRIPT_DIGITS = str.maketrans("0123456789-", "⁰¹²³⁴⁵⁶⁷⁸⁹⁻")
+_GREEK_WORDS = {"alpha": "α", "beta": "β", "gamma": "γ", "theta": "θ", "phi": "φ", "psi": "ψ",
+                "chi": "χ", "rho": "ρ", "sigma": "σ", "tau": "τ", "omega": "ω", "mu": "μ",
+                "nu": "ν", "pi": "π", "lambda": "λ", "kappa": "κ", "xi": "ξ", "ell": "ℓ",
+                "Lambda": "Λ", "Delta": "Δ", "Sigma": "Σ", "Omega": "Ω", "Xi": "Ξ", "Phi": "Φ",
+                "Psi": "Ψ"}
+_GREEK_WORD = re.compile(r"(?<![A-Za-z])(" + "|".join(_GREEK_WORDS) + r")(?![A-Za-z])")
+_INTEGER_POWER = re.compile(r"\^\((-?\d+)\)|\^(\d+)(?![\d.])")
+_MINUS = re.compile(r"(?<=[\s(=,\[])-(?=[\w(√])| - ")
+
+
 def reader_text(text: str) -> str:
-    """Program syntax a reader should not see in prose the tool writes (reasons, alt text):
-    powers as ^, square roots as √, products as a centred dot."""
+    """Program syntax a reader should not see in prose the tool writes (reasons, alt text,
+    polynomials in notes): integer powers as superscripts (r², r⁻¹), other powers as ^,
+    square roots as √, products as a centred dot, minus signs as −, Greek names as letters."""
     text = text.replace("**", "^").replace("sqrt(", "√(")
-    return re.sub(r"(?<=\S)\*(?=\S)", "·", text)
+    text = re.sub(r"(?<=\S)\*(?=\S)", "·", text)
+    text = _INTEGER_POWER.sub(
+        lambda m: (m.group(1) or m.group(2)).translate(_SUPERSCRIPT_DIGITS), text)
+    text = _GREEK_WORD.sub(lambda m: _GREEK_WORDS[m.group(1)], text)
+    return _MINUS.sub(lambda m: " − " if m.group(0) == " - " else "−", text)
 
 
 def verdict_state(verdict: Verdict) -> str:

@@ -1,0 +1,90 @@
+"""Reading the cache while the workers compute gives the same run as reading it first.
+
+With workers (a local pool or a cluster), the entries that have no cache file are computed
+in a helper thread while the cached reports are read (`pipeline._read_while`); a file that
+does not verify is computed in a second round. These tests run that path with the fake
+engine of `_scale_helpers` (switched on with ``_overlaps_reading``) and ask what the ordinary
+path promises: unchanged entries are never recomputed, a changed entry (and only it) is, a
+damaged file is recomputed and replaced, and the reports come back in the entries' order
+equal to those of the sequential path. No timing is measured or asserted.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from _scale_helpers import (
+    ENTRY_COUNT,
+    catalog_files,
+    comparable,
+    copy_catalog,
+    install_counting_engine,
+)
+
+from generator.run import pipeline
+from generator.run.cache import SECRET_ENV, ResultCache
+from generator.run.pipeline import RunOptions, check_files
+
+
+@pytest.fixture(autouse=True)
+def cache_secret(monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setenv(SECRET_ENV, "secret-of-this-machine-32-characters-long")
+
+
+def run(root: Path, cache: Path, overlap: bool, monkeypatch: pytest.MonkeyPatch):
+    monkeypatch.setattr(pipeline, "_overlaps_reading", lambda options: overlap)
+    options = RunOptions(jobs=1, cache_dir=cache)
+    return check_files(catalog_files(root), root, root.parent, options)
+
+
+def test_a_warm_run_reads_everything_and_computes_nothing(tmp_path, monkeypatch) -> None:
+    root, cache = copy_catalog(tmp_path), tmp_path / "cache"
+    calls = install_counting_engine(monkeypatch)
+    first = run(root, cache, True, monkeypatch)
+    assert len(calls) == ENTRY_COUNT
+    second = run(root, cache, True, monkeypatch)
+    assert len(calls) == ENTRY_COUNT, "a second run over unchanged files computed again"
+    assert [comparable(r) for r in second] == [comparable(r) for r in first]
+
+
+def test_one_changed_entry_is_computed_beside_the_reading(tmp_path, monkeypatch) -> None:
+    root, cache = copy_catalog(tmp_path), tmp_path / "cache"
+    calls = install_counting_engine(monkeypatch)
+    run(root, cache, False, monkeypatch)
+    flat = root / "maximally-symmetric" / "flat-spherical.yaml"
+    flat.write_text(flat.read_text().replace("Flat spacetime", "Empty flat spacetime"))
+    calls.clear()
+    overlapped = run(root, cache, True, monkeypatch)
+    assert calls == ["catalog/maximally-symmetric/flat-spherical.yaml"]
+    sequential = run(root, cache, False, monkeypatch)
+    assert calls == ["catalog/maximally-symmetric/flat-spherical.yaml"]  # now cached
+    assert [comparable(r) for r in overlapped] == [comparable(r) for r in sequential]
+    assert [r.file for r in overlapped] == [r.file for r in sequential]
+
+
+def test_a_damaged_file_is_computed_in_the_second_round(tmp_path, monkeypatch) -> None:
+    root, cache = copy_catalog(tmp_path), tmp_path / "cache"
+    calls = install_counting_engine(monkeypatch)
+    first = run(root, cache, False, monkeypatch)
+    damaged = sorted(cache.rglob("*.bin"))[0]
+    damaged.write_bytes(damaged.read_bytes()[:-10])
+    assert ResultCache(cache).get(damaged.stem) is None
+    calls.clear()
+    reports = run(root, cache, True, monkeypatch)
+    assert len(calls) == 1, "the damaged entry must be computed again, and only it"
+    assert [comparable(r) for r in reports] == [comparable(r) for r in first]
+    assert ResultCache(cache).get(damaged.stem) is not None, "the damaged file was not replaced"
+
+
+def test_a_failure_of_the_computation_reaches_the_caller(tmp_path, monkeypatch) -> None:
+    root, cache = copy_catalog(tmp_path), tmp_path / "cache"
+    install_counting_engine(monkeypatch)
+
+    def broken(*args, **kwargs):
+        raise RuntimeError("the pool broke")
+        yield  # a generator, like _compute
+
+    monkeypatch.setattr(pipeline, "_compute", broken)
+    with pytest.raises(RuntimeError, match="the pool broke"):
+        run(root, cache, True, monkeypatch)
