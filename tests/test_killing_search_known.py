@@ -33,11 +33,13 @@ ROOT = Path(__file__).resolve().parent.parent
 S, C = sympy.sin, sympy.cos
 
 
-def searched(relative: str):
+def searched(relative: str, keep: int | None = None):
+    """The search run on a shipped entry, given only its first ``keep`` listed vectors (the
+    entries now list complete bases; the search must still find what the rest add)."""
     load = load_entry(ROOT / "catalog" / relative)
     entry, st = load.entry, load.spacetime
     listed = [xi for _, xi in listed_vectors(entry, st, coordinate_names(st))
-              if is_killing(xi, st)]
+              if is_killing(xi, st)][:keep]
     dimension = isometry_dimension(st)[0].dimension
     return st, listed, search_killing_vectors(st, listed, dimension)
 
@@ -69,7 +71,7 @@ def test_de_sitter_static_boosts() -> None:
 
 @pytest.mark.slow
 def test_anti_de_sitter_global() -> None:
-    st, listed, result = searched("backgrounds/anti-de-sitter-global.yaml")
+    st, listed, result = searched("backgrounds/anti-de-sitter-global.yaml", keep=4)
     assert result.complete and len(result.found) == 6
     tau, rho, theta, _phi = st.coordinates
     known = [-S(tau) * sympy.tanh(rho) * C(theta), C(tau) * C(theta),
@@ -79,7 +81,7 @@ def test_anti_de_sitter_global() -> None:
 
 @pytest.mark.slow
 def test_anti_de_sitter_static() -> None:
-    st, listed, result = searched("backgrounds/anti-de-sitter-static.yaml")
+    st, listed, result = searched("backgrounds/anti-de-sitter-static.yaml", keep=4)
     assert result.complete and len(result.found) == 6
     t, r, theta, _phi = st.coordinates
     ell = st.parameters[0]
