@@ -16,15 +16,14 @@ import sympy as sp
 from generator.entry.catalog import vocabulary
 from generator.entry.loader import load_text
 from generator.geometry.curvature import compute_geometry
-from generator.geometry.equality import decide_equal
 from generator.geometry.sampling import entry_points
-from generator.model import Horizon, PhysicalData, Spacetime
+from generator.model import Horizon, PhysicalData
 from generator.physics.horizons import H
 from generator.physics.physical import check_physical_claims, physical_data
 from generator.physics.rootfield import pseudo_remainder
 from generator.physics.verify import check_loaded
 from generator.site.export import report_json
-from tests._shipped_entries import CATALOG, loaded, path_of, with_claims
+from tests._shipped_entries import CATALOG, equal, loaded, path_of, with_claims
 
 
 @cache
@@ -43,10 +42,6 @@ def data_of(entry_id: str) -> PhysicalData:
 
 def symbols(entry_id: str) -> dict[str, sp.Basic]:
     return loaded(entry_id).spacetime.symbols
-
-
-def equal(a: sp.Expr, b: sp.Expr, spacetime: Spacetime) -> bool:
-    return decide_equal(a, b, spacetime).equal is True
 
 
 def the(entry_id: str, kind: str) -> Horizon:
