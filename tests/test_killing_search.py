@@ -11,7 +11,7 @@ from classify_cases import make_entry, prepared
 from sympy.diffgeom import CoordSystem, Manifold, Patch, TensorProduct
 
 from generator.model import Spacetime
-from generator.physics import killing_search
+from generator.physics import killing_search, lie_algebra
 from generator.physics.killing_search import is_killing, search_killing_vectors
 from generator.physics.lie_algebra import structure
 from generator.physics.symmetry_stage import count_diagnostics
@@ -200,3 +200,36 @@ def test_warning_says_what_the_tool_found() -> None:
     done = killing_search.SearchResult(((sympy.Integer(1), sympy.Integer(0)),) * 2, True, "")
     [warning] = count_diagnostics(entry, computed, 1, 1, True, done, ["theta", "phi"])
     assert "the tool found 2 of them, so its basis is complete" in warning.message
+
+
+def einstein_de_sitter() -> Spacetime:
+    """Flat dust FLRW, a ∝ t^{2/3} (Einstein & de Sitter 1932): its six isometries are the
+    translations and rotations of the flat slices (common practice)."""
+    return spacetime_of("t x y z", "-dt**2 + t**(4/3)*(dx**2 + dy**2 + dz**2)", {}, ("t > 0",))
+
+
+def test_a_power_of_a_coordinate_gives_plain_translations_and_rotations() -> None:
+    # √(g_xx) = t^{2/3} is a power of the atom t^{1/3}: no separate √(t^{4/3}) atom, so the
+    # vectors come out as ∂_x, y∂_x − x∂_y, … with constant components.
+    st = einstein_de_sitter()
+    result = search_killing_vectors(st, [], 6)
+    assert result.complete and len(result.found) == 6
+    t = st.coordinates[0]
+    assert all(not sympy.sympify(c).has(t) for xi in result.found for c in xi)
+    table, _ = structure(st, list(result.found), True)
+    assert len(table) > 0  # rotations do not commute: the table is not empty
+
+
+def test_a_table_with_cube_roots_of_numbers_is_refused_not_solved() -> None:
+    # The form the search used to give: √(t^{4/3})/t^{2/3} ∂_x. At rational sample points
+    # the bracket equations hold numbers such as 2^{2/3}; the table is refused (no brackets,
+    # no name) instead of handing SymPy's solver a number field.
+    st = einstein_de_sitter()
+    t, x, y, _z = st.coordinates
+    unit = sympy.sqrt(t ** sympy.Rational(4, 3)) / t ** sympy.Rational(2, 3)
+    zero = sympy.Integer(0)
+    basis = [[zero, unit, zero, zero], [zero, y * unit, -x * unit, zero],
+             [zero, zero, unit, zero]]
+    assert lie_algebra.structure(st, basis, False) == ((), None)
+    assert lie_algebra._higher_numeric_roots([sympy.Integer(2) ** sympy.Rational(2, 3) * x])
+    assert not lie_algebra._higher_numeric_roots([sympy.sqrt(3) * x])

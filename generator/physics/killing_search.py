@@ -250,10 +250,28 @@ def _function_atoms(spacetime: Spacetime, cyclic: Sequence[int]) -> list[Atom]:
         if i < len(spacetime.signature) and spacetime.signature[i] == "-":
             radicand = -radicand
         root = sympy.powdenest(sympy.sqrt(sympy.factor(radicand)), force=True)
+        if _is_power_of_atoms(root, atoms):
+            continue
         if any(p.exp.is_Rational and not p.exp.is_Integer and p.base.free_symbols & coordinates
                for p in root.atoms(sympy.Pow)):
             add(Atom(_root_atom(radicand, 2), -1, 1))
     return atoms
+
+
+def _is_power_of_atoms(root: sympy.Expr, atoms: Sequence[Atom]) -> bool:
+    """Whether every coordinate root in ``root`` is already a power of a root atom: √(t^{4/3})
+    is t^{2/3}, a power of the atom t^{1/3}. Adding √(t^{4/3}) as an atom of its own gave the
+    flat dust universe's translations as √(t^{4/3})/t^{2/3} ∂_x, and the bracket table then
+    solved over numbers such as 2^{2/3} for minutes."""
+    roots = [p for p in root.atoms(sympy.Pow) if p.exp.is_Rational and not p.exp.is_Integer]
+    if not roots:
+        return False
+    for p in roots:
+        if not any(isinstance(a.expr, sympy.Pow) and a.expr.base == p.base
+                   and a.expr.exp.is_Rational and (p.exp / a.expr.exp).is_Integer
+                   for a in atoms):
+            return False
+    return True
 
 
 def _root_atom(radicand: sympy.Expr, q: int) -> sympy.Expr:

@@ -187,6 +187,8 @@ def expand_in_basis(target: Sequence[sympy.Expr], basis: Sequence[Sequence[sympy
             equation = sympy.cancel(difference.xreplace(values))
             if equation != 0:
                 equations.append(equation)
+    if _higher_numeric_roots(equations):
+        raise TableRefused("numbers such as 2^(2/3) in the equations")
     solutions = sympy.linsolve(equations, unknowns)
     if not solutions:
         return None
@@ -201,6 +203,19 @@ def expand_in_basis(target: Sequence[sympy.Expr], basis: Sequence[Sequence[sympy
         if vanishes(residual, spacetime).equal is not True:
             return None
     return coefficients
+
+
+class TableRefused(ArithmeticError):
+    """The bracket equations left the kind of field SymPy's linear solver handles quickly."""
+
+
+def _higher_numeric_roots(equations: Sequence[sympy.Expr]) -> bool:
+    """A cube or higher root of a number in the equations (2^(2/3) from a coordinate root at a
+    sample point): SymPy's linear solver then builds a primitive element of the number field
+    and factors over it, which took minutes for a flat dust universe. Square roots stay (√3
+    from de Sitter's √(Λ/3) is common and quick)."""
+    return any(p.base.is_number and p.exp.is_Rational and p.exp.q > 2
+               for e in equations for p in e.atoms(sympy.Pow))
 
 
 def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], complete: bool
@@ -221,7 +236,10 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
     for i in range(len(basis)):
         for j in range(i + 1, len(basis)):
             bracket = commutator(basis[i], basis[j], spacetime.coordinates)
-            coefficients = expand_in_basis(bracket, basis, spacetime)
+            try:
+                coefficients = expand_in_basis(bracket, basis, spacetime)
+            except TableRefused:
+                return (), None  # a bound on the kind of work, as for MAX_BASIS_WITH_ROOTS
             if coefficients is None:
                 return (), None  # the listed vectors do not close into an algebra
             if any(c != 0 for c in coefficients):
