@@ -85,7 +85,8 @@ def test_a_large_basis_with_roots_of_parameters_gets_no_table() -> None:
     # work: SymPy's solver over such constants took minutes on the complete basis).
     load = load_entry(ROOT / "catalog" / "backgrounds" / "de-sitter-flat.yaml")
     st = load.spacetime
-    basis = [xi for _, xi in listed_vectors(load.entry, st, coordinate_names(st))]
+    # the first seven listed (the entry now lists all ten; the bound is about the count)
+    basis = [xi for _, xi in listed_vectors(load.entry, st, coordinate_names(st))][:7]
     _t, r, theta, _phi = st.coordinates
     translation = [sp.Integer(0), sp.cos(theta), -sp.sin(theta) / r, sp.Integer(0)]
     assert len(basis) == 7 and lie_algebra._constant_roots(basis, st)

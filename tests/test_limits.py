@@ -149,6 +149,7 @@ def test_custom_stage_reader_is_used() -> None:
     assert caught.value.stage == "mine"
 
 
+@pytest.mark.timeout(0)  # no outer alarm from pytest-timeout: the timer must end at zero
 def test_result_is_returned_and_the_alarm_is_put_back() -> None:
     before_handler = signal.getsignal(signal.SIGALRM)
     assert run_limited(lambda a, b: a + b, 2, 3, seconds=5, memory_bytes=64 * MiB) == 5
