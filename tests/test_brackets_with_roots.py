@@ -78,17 +78,71 @@ def test_a_broken_split_never_yields_wrong_constants(monkeypatch) -> None:
     assert broken == () or broken == correct
 
 
-def test_a_large_basis_with_roots_of_parameters_gets_no_table() -> None:
-    # de Sitter's flat slicing lists ∂_t − √(Λ/3) r ∂_r and vectors with e^{−2√(Λ/3) t}: with a
-    # translation (cos θ ∂_r − sin θ/r ∂_θ, common practice) the basis has 8 vectors, more
-    # than the table is computed for when roots of parameters occur (a bound on the kind of
-    # work: SymPy's solver over such constants took minutes on the complete basis).
-    load = load_entry(ROOT / "catalog" / "backgrounds" / "de-sitter-flat.yaml")
+
+def listed_basis(relative: str):
+    load = load_entry(ROOT / "catalog" / relative)
     st = load.spacetime
-    # the first seven listed (the entry now lists all ten; the bound is about the count)
-    basis = [xi for _, xi in listed_vectors(load.entry, st, coordinate_names(st))][:7]
-    _t, r, theta, _phi = st.coordinates
-    translation = [sp.Integer(0), sp.cos(theta), -sp.sin(theta) / r, sp.Integer(0)]
-    assert len(basis) == 7 and lie_algebra._constant_roots(basis, st)
-    assert structure(st, [*basis, translation], True) == ((), None)
-    assert not lie_algebra._constant_roots([translation], st)
+    return st, [xi for _, xi in listed_vectors(load.entry, st, coordinate_names(st))]
+
+
+def test_parameter_squares_are_exact_and_go_back() -> None:
+    # Λ > 0 written as 3s²: √3·√Λ/3 becomes s, and s goes back to √(Λ/3); a negative
+    # parameter is written as −c·s² (plain algebra, common practice).
+    st, basis = listed_basis("backgrounds/de-sitter-flat.yaml")
+    squares = lie_algebra.parameter_squares(basis, st)
+    assert squares is not None
+    (lam,) = st.parameters
+    ((p, square),) = squares.substitution
+    ((s, root),) = squares.inverse
+    assert p == lam and square == 3 * s**2 and root == sp.sqrt(lam / 3)
+    h = sp.sqrt(3) * sp.sqrt(lam) / 3
+    assert squares.forward(h) == s
+    assert squares.forward(sp.exp(-2 * h * st.coordinates[0])) == sp.exp(-2 * s * st.coordinates[0])
+    assert sp.simplify(squares.back(squares.forward(h)) - h) == 0
+    negative = sp.Symbol("k", negative=True)
+    (pair,) = lie_algebra._squares_with([negative], sp.Integer(1)).substitution
+    assert pair[1].could_extract_minus_sign()
+
+
+def test_de_sitter_complete_bases_get_tables_through_parameter_squares() -> None:
+    # de Sitter's isometry algebra is so(4,1) (Hawking & Ellis, The Large Scale Structure of
+    # Space-Time, 1973, §5.2; from memory). The global chart's ten listed vectors hold √Λ:
+    # with Λ = 3s² the bracket equations are rational in s, and the name is certain.
+    st, basis = listed_basis("backgrounds/de-sitter-global.yaml")
+    table, name = structure(st, basis, True)
+    assert name == "so(4,1)" and len(table) > 0
+    # the flat slicing's constants keep √Λ (its vectors are scaled by H), so every bracket is
+    # computed and verified, but the algebra is not named from a parameter-dependent table
+    st, basis = listed_basis("backgrounds/de-sitter-flat.yaml")
+    table, _ = structure(st, basis, True)
+    assert len(table) == 30 and any(c.free_symbols for _, _, cs in table for c in cs)
+
+
+def test_a_large_basis_with_roots_of_the_coordinates_gets_no_table() -> None:
+    # anti-de Sitter's static chart lists ten vectors with √(ℓ² + r²)-type roots of the
+    # coordinates: more than the split is attempted for (a bound on the kind of work).
+    st, basis = listed_basis("backgrounds/anti-de-sitter-static.yaml")
+    assert len(basis) == 10 and lie_algebra._coordinate_roots(basis, st)
+    assert structure(st, basis, True) == ((), None)
+
+
+def test_commensurable_exponentials_share_one_symbol() -> None:
+    # e^{2Ht} = (e^{Ht})², e^{−Ht} = (e^{Ht})^{−1}, sinh x = (e^x − e^{−x})/2 (common practice).
+    st, _ = listed_basis("backgrounds/de-sitter-flat.yaml")
+    t, r = st.coordinates[:2]
+    h = sp.Symbol("H", positive=True)
+    found = lie_algebra._generic_exponentials(
+        [sp.exp(2 * h * t), sp.exp(-h * t), sp.sinh(r), r], st)
+    assert len(found.symbols) == 2
+    e_t = found.replacements[sp.exp(-h * t)] ** -1
+    assert found.replacements[sp.exp(2 * h * t)] == e_t**2
+    e_r = found.replacements[sp.exp(r)]
+    assert sp.simplify(found.replacements[sp.sinh(r)] - (e_r - 1 / e_r) / 2) == 0
+
+
+def test_rindler_table_names_the_poincare_algebra() -> None:
+    # Rindler's chart covers part of Minkowski space: the Poincaré algebra iso(3,1)
+    # (Rindler 1966; common practice). Its vectors hold e^{±t}: solved with E = e^t.
+    st, basis = listed_basis("backgrounds/rindler.yaml")
+    table, name = structure(st, basis, True)
+    assert name == "iso(3,1) (Poincaré)" and len(table) == 24

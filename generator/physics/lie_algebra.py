@@ -119,6 +119,70 @@ def _unit_circle_values(generic: GenericCircular, point: int) -> dict[sympy.Symb
 
 
 @dataclass(frozen=True)
+class GenericExponentials:
+    """Exponentials of the coordinates as symbols: e^{2Ht} at a rational sample time is a
+    transcendental number, and SymPy's linear solver then works over an expression domain
+    (minutes for de Sitter's flat slicing). Arguments that are rational multiples of one
+    another share a symbol E (e^{−2Ht} = E^{−2} when e^{Ht} = E), and E takes a rational
+    value of its own at each point: as functions of the coordinates the exponentials are
+    algebraically independent of the polynomial and circular atoms, so an identity in the
+    coordinates holds for every E. The constants found are verified symbolically."""
+
+    replacements: dict[sympy.Expr, sympy.Expr]
+    symbols: tuple[sympy.Symbol, ...]
+
+
+HYPERBOLIC_FUNCTIONS = (sympy.sinh, sympy.cosh, sympy.tanh)
+
+
+def _generic_exponentials(exprs: Sequence[sympy.Expr], spacetime: Spacetime
+                          ) -> GenericExponentials:
+    coordinates = set(spacetime.coordinates)
+    kinds = (sympy.exp, *HYPERBOLIC_FUNCTIONS)
+    arguments = sorted({f.args[0] for e in exprs for f in sympy.sympify(e).atoms(*kinds)
+                        if f.args[0].free_symbols & coordinates}, key=sympy.default_sort_key)
+    units: list[sympy.Expr] = []  # one base argument per group of commensurable arguments
+    replacements: dict[sympy.Expr, sympy.Expr] = {}
+    symbols: list[sympy.Symbol] = []
+    for argument in arguments:
+        for unit, symbol in zip(units, symbols, strict=True):
+            ratio = sympy.cancel(argument / unit)
+            if ratio.is_Rational and ratio.q == 1:
+                replacements[sympy.exp(argument)] = symbol ** int(ratio)
+                break
+        else:
+            unit = _smallest_unit(argument, arguments)
+            symbol = sympy.Dummy(f"E{len(symbols)}", positive=True)
+            units.append(unit)
+            symbols.append(symbol)
+            ratio = sympy.cancel(argument / unit)
+            replacements[sympy.exp(argument)] = symbol ** int(ratio)
+    for argument in arguments:  # sinh, cosh, tanh through the same symbols
+        x = replacements[sympy.exp(argument)]
+        replacements[sympy.sinh(argument)] = (x - 1 / x) / 2
+        replacements[sympy.cosh(argument)] = (x + 1 / x) / 2
+        replacements[sympy.tanh(argument)] = (x - 1 / x) / (x + 1 / x)
+    return GenericExponentials(replacements, tuple(symbols))
+
+
+def _smallest_unit(argument: sympy.Expr, arguments: Sequence[sympy.Expr]) -> sympy.Expr:
+    """The argument divided by the lcm of the denominators of its rational ratios to the
+    others, so that every commensurable argument is a whole multiple of the unit."""
+    denominator = 1
+    for other in arguments:
+        ratio = sympy.cancel(other / argument)
+        if ratio.is_Rational:
+            denominator = sympy.ilcm(denominator, ratio.q)
+    return argument / denominator
+
+
+def _exponential_values(generic: GenericExponentials, point: int
+                        ) -> dict[sympy.Symbol, sympy.Expr]:
+    return {symbol: sympy.Rational(5 + 2 * point + 3 * j, 3 + point + j)
+            for j, symbol in enumerate(generic.symbols)}
+
+
+@dataclass(frozen=True)
 class RadicalSplit:
     """Each square root √P of an expression in the coordinates (any odd power P^(k/2)) as a
     symbol w with the relation w² = P. An equation E = 0 is made polynomial in the w's (its
@@ -163,24 +227,95 @@ def _radical_split(exprs: Sequence[sympy.Expr], spacetime: Spacetime) -> Radical
     return RadicalSplit(replacements, roots)
 
 
+@dataclass(frozen=True)
+class ParameterSquares:
+    """Parameters under square roots written as squares of new positive symbols: with
+    Λ = 3s², √Λ·√3/3 is s and e^{−2√3√Λ t/3} is e^{−2st}, so the bracket equations of de
+    Sitter's charts have rational coefficients in s instead of algebraic constants (on which
+    SymPy's linear solver crawled or crashed). Exact: a positive parameter p equals c·s² for
+    s = √(p/c) > 0 (a negative one −c·s²); the constants found are written back through
+    s = √(±p/c) and verified in the entry's own terms."""
+
+    substitution: tuple[tuple[sympy.Symbol, sympy.Expr], ...]  # (p, ±c·s²)
+    inverse: tuple[tuple[sympy.Symbol, sympy.Expr], ...]  # (s, √(±p/c))
+
+    def forward(self, expr: sympy.Expr) -> sympy.Expr:
+        return sympy.sympify(expr).xreplace(dict(self.substitution))
+
+    def back(self, expr: sympy.Expr) -> sympy.Expr:
+        return sympy.cancel(sympy.sympify(expr).xreplace(dict(self.inverse)))
+
+
+def parameter_squares(basis: Sequence[Sequence[sympy.Expr]], spacetime: Spacetime
+                      ) -> ParameterSquares | None:
+    """The substitution for every parameter of known sign under a square root in the basis;
+    the factor c is the number whose root the substitution removes (3 for √3·√Λ), chosen
+    from the numeric roots present so that fewest remain. None when no parameter qualifies."""
+    coordinates = set(spacetime.coordinates)
+    rooted: set[sympy.Symbol] = set()
+    numbers: set[sympy.Expr] = set()
+    components = [sympy.sympify(c) for xi in basis for c in xi]
+    for c in components:
+        for p in c.atoms(sympy.Pow):
+            if p.exp.is_Rational and p.exp.q == 2:
+                if p.base.is_Rational and p.base > 0:
+                    numbers.add(p.base)
+                elif not p.base.free_symbols & coordinates:
+                    rooted |= p.base.free_symbols
+    chosen = [p for p in spacetime.parameters if p in rooted
+              and (p.is_positive or p.is_negative)]
+    if not chosen:
+        return None
+    best: ParameterSquares | None = None
+    best_left = None
+    for factor in [sympy.Integer(1), *sorted(numbers, key=sympy.default_sort_key)]:
+        squares = _squares_with(chosen, factor)
+        left = sum(len([p for p in squares.forward(c).atoms(sympy.Pow)
+                        if p.exp.is_Rational and not p.exp.is_Integer
+                        and not p.base.free_symbols & coordinates]) for c in components)
+        if best_left is None or left < best_left:
+            best, best_left = squares, left
+    return best
+
+
+def _squares_with(parameters: Sequence[sympy.Symbol], factor: sympy.Expr) -> ParameterSquares:
+    substitution, inverse = [], []
+    for k, p in enumerate(parameters):
+        s = sympy.Dummy(f"s{k}", positive=True)
+        sign = 1 if p.is_positive else -1
+        substitution.append((p, sign * factor * s**2))
+        inverse.append((s, sympy.sqrt(sign * p / factor)))
+    return ParameterSquares(tuple(substitution), tuple(inverse))
+
+
 def expand_in_basis(target: Sequence[sympy.Expr], basis: Sequence[Sequence[sympy.Expr]],
-                    spacetime: Spacetime) -> tuple[sympy.Expr, ...] | None:
-    """Constants c_k with target = Σ c_k basis_k, verified; None when there are none."""
+                    spacetime: Spacetime, squares: ParameterSquares | None = None
+                    ) -> tuple[sympy.Expr, ...] | None:
+    """Constants c_k with target = Σ c_k basis_k, verified; None when there are none.
+    ``squares``: the equations are solved with the parameters under roots written as squares
+    (``ParameterSquares``); the constants are mapped back and verified in the entry's terms."""
     if all(t == 0 for t in target):
         return tuple(sympy.Integer(0) for _ in basis)
+    original_target, original_basis = target, basis
+    if squares is not None:
+        target = [squares.forward(t) for t in target]
+        basis = [[squares.forward(v) for v in b] for b in basis]
     unknowns = sympy.symbols(f"c0:{len(basis)}")
     equations = []
     everything = [*target, *(v for b in basis for v in b)]
     angles = _angles(everything, spacetime)
     generic = _generic_circular(everything, spacetime)
+    exponentials = _generic_exponentials(everything, spacetime)
     radicals = _radical_split(everything, spacetime)
     differences = []
     for a in range(len(target)):
         combination = sum(c * b[a] for c, b in zip(unknowns, basis, strict=True))
         difference = through_sin_cos(combination - target[a], tuple(angles))
-        differences += radicals.split(difference.xreplace(generic.replacements))
+        difference = difference.xreplace(generic.replacements)
+        differences += radicals.split(difference.xreplace(exponentials.replacements))
     for k, values in enumerate(_coordinate_values(spacetime, 4, angles)):
-        values = {**values, **_unit_circle_values(generic, k)}
+        values = {**values, **_unit_circle_values(generic, k),
+                  **_exponential_values(exponentials, k)}
         for difference in differences:
             # In lowest terms: a coefficient that is zero only after cancelling (such as
             # −16μ² + (4μ − 1)(4μ + 1) + 1) made SymPy's linear solver divide by zero.
@@ -196,8 +331,11 @@ def expand_in_basis(target: Sequence[sympy.Expr], basis: Sequence[Sequence[sympy
     if any(s.free_symbols & set(unknowns) for s in solution):
         return None
     coefficients = tuple(sympy.cancel(s) for s in solution)
+    if squares is not None:
+        coefficients = tuple(squares.back(c) for c in coefficients)
     if coefficients and any(c.free_symbols & set(spacetime.coordinates) for c in coefficients):
         return None
+    target, basis = original_target, original_basis
     for a in range(len(target)):
         residual = target[a] - sum(c * b[a] for c, b in zip(coefficients, basis, strict=True))
         if vanishes(residual, spacetime).equal is not True:
@@ -228,16 +366,18 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
         return (), None
     if sum(sympy.count_ops(c) for xi in basis for c in xi) > MAX_OPS:
         return (), None
-    if _roots_of_both_kinds(basis, spacetime) or (
-            len(basis) > MAX_BASIS_WITH_ROOTS and (_constant_roots(basis, spacetime)
-                                                   or _coordinate_roots(basis, spacetime))):
+    squares = parameter_squares(basis, spacetime)
+    seen = basis if squares is None else [[squares.forward(c) for c in xi] for xi in basis]
+    if _roots_of_both_kinds(seen, spacetime) or (
+            len(seen) > MAX_BASIS_WITH_ROOTS and (_constant_roots(seen, spacetime)
+                                                  or _coordinate_roots(seen, spacetime))):
         return (), None
     out = []
     for i in range(len(basis)):
         for j in range(i + 1, len(basis)):
             bracket = commutator(basis[i], basis[j], spacetime.coordinates)
             try:
-                coefficients = expand_in_basis(bracket, basis, spacetime)
+                coefficients = expand_in_basis(bracket, basis, spacetime, squares)
             except TableRefused:
                 return (), None  # a bound on the kind of work, as for MAX_BASIS_WITH_ROOTS
             if coefficients is None:

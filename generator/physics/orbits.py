@@ -23,7 +23,13 @@ import sympy
 
 from generator.geometry.sampling import Point, numeric_value
 from generator.model import Horizon, Spacetime
-from generator.physics.horizons import H, closed_form_roots, cyclic_coordinates, polar_range
+from generator.physics.horizons import (
+    H,
+    closed_form_roots,
+    cyclic_coordinates,
+    factors_in,
+    polar_range,
+)
 
 DIGITS = 30
 
@@ -174,12 +180,8 @@ def ergosurface(spacetime: Spacetime, horizons: Sequence[Horizon], points: Seque
     if all(spacetime.metric[t, b] == 0 for b in range(n) if b != t):
         return None, "static: the stationary limit g_tt = 0 coincides with the horizon"
     x = spacetime.coordinates[coords.index(event[0].coordinate)]
-    numerator = sympy.factor(sympy.numer(sympy.together(spacetime.metric[t, t])))
     best = None
-    for factor in sympy.Mul.make_args(numerator):
-        base = factor.base if factor.is_Pow else factor
-        if not base.has(x):
-            continue
+    for base in factors_in(spacetime.metric[t, t], x, spacetime):
         roots = closed_form_roots(base, x)
         if roots is None:
             return None, f"g_tt = 0 has no closed-form root in {x} here"
