@@ -111,6 +111,9 @@ def test_de_sitter_complete_bases_get_tables_through_parameter_squares() -> None
     st, basis = listed_basis("backgrounds/de-sitter-global.yaml")
     table, name = structure(st, basis, True)
     assert name == "so(4,1)" and len(table) > 0
+    # the open slicing α² sinh²(t/α) dH₃²: its vectors hold coth(t/α), through E = e^{t/α}
+    st, basis = listed_basis("backgrounds/de-sitter-open.yaml")
+    assert structure(st, basis, True)[1] == "so(4,1)"
     # the flat slicing's constants keep √Λ (its vectors are scaled by H), so every bracket is
     # computed and verified, but the algebra is not named from a parameter-dependent table
     st, basis = listed_basis("backgrounds/de-sitter-flat.yaml")

@@ -124,7 +124,7 @@ LISTED_COMPLETE = [
     ("backgrounds/anti-de-sitter-poincare.yaml", 10), ("backgrounds/de-sitter-flat.yaml", 10),
     ("backgrounds/milne.yaml", 10), ("backgrounds/minkowski-spherical.yaml", 10),
     ("backgrounds/rindler.yaml", 10), ("euclidean-and-initial-data/euclidean-de-sitter.yaml", 10),
-    ("strings-tubes-and-bubbles/cosmic-string.yaml", 10),
+    ("strings-tubes-and-bubbles/cosmic-string.yaml", 10), ("backgrounds/de-sitter-static.yaml", 10),
     ("other-dimensions/reissner-nordstrom-5d.yaml", 7),
     ("other-dimensions/schwarzschild-anti-de-sitter-5d.yaml", 7),
 ]

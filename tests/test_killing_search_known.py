@@ -57,7 +57,7 @@ def in_span(st, known, basis) -> bool:
 
 @pytest.mark.slow
 def test_de_sitter_static_boosts() -> None:
-    st, listed, result = searched("backgrounds/de-sitter-static.yaml")
+    st, listed, result = searched("backgrounds/de-sitter-static.yaml", keep=4)
     assert result.complete and len(result.found) == 6
     assert all(is_killing(xi, st) for xi in result.found)
     t, r, theta, _phi = st.coordinates

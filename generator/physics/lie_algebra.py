@@ -132,7 +132,7 @@ class GenericExponentials:
     symbols: tuple[sympy.Symbol, ...]
 
 
-HYPERBOLIC_FUNCTIONS = (sympy.sinh, sympy.cosh, sympy.tanh)
+HYPERBOLIC_FUNCTIONS = (sympy.sinh, sympy.cosh, sympy.tanh, sympy.coth, sympy.sech, sympy.csch)
 
 
 def _generic_exponentials(exprs: Sequence[sympy.Expr], spacetime: Spacetime
@@ -162,6 +162,9 @@ def _generic_exponentials(exprs: Sequence[sympy.Expr], spacetime: Spacetime
         replacements[sympy.sinh(argument)] = (x - 1 / x) / 2
         replacements[sympy.cosh(argument)] = (x + 1 / x) / 2
         replacements[sympy.tanh(argument)] = (x - 1 / x) / (x + 1 / x)
+        replacements[sympy.coth(argument)] = (x + 1 / x) / (x - 1 / x)
+        replacements[sympy.sech(argument)] = 2 / (x + 1 / x)
+        replacements[sympy.csch(argument)] = 2 / (x - 1 / x)
     return GenericExponentials(replacements, tuple(symbols))
 
 
