@@ -146,15 +146,12 @@ class BlobHashes:
         text = json.dumps(table, sort_keys=True, separators=(",", ":"))
         return hmac.new(self.secret, text.encode("utf-8"), hashlib.sha256).hexdigest()
 
-    def key(self, blob: str) -> str:
-        return f"{HASH_SCHEME}:{__version__}:{blob}"
-
     def hash_of(self, root: Path, commit: _Commit, blobs: dict[str, str] | None = None
                 ) -> str | None:
         """``blobs``: texts already read (``read_blobs``), so git is not asked once per blob."""
         if not commit.blob:
             return None
-        key = self.key(commit.blob)
+        key = f"{HASH_SCHEME}:{__version__}:{commit.blob}"
         if key not in self.known:
             source = _blob_text(root, commit.blob, blobs)
             self.known[key] = self.hasher(commit.path, source)
@@ -198,12 +195,16 @@ def revisions(
     root = repo_root(repo)
     if root is None:
         return ()
-    relative = _relative_to(entry_path, root)
-    try:
-        commits = _commits_touching(root, relative)
-    except GitError:
-        return ()
+    commits = _entry_commits(root, entry_path)
     return tuple(_mathematical_changes(root, commits, hashes or BlobHashes(hasher)))
+
+
+def _entry_commits(root: Path, entry_path: Path) -> list[_Commit]:
+    """The entry's commits, oldest first; none when git cannot tell."""
+    try:
+        return _commits_touching(root, _relative_to(entry_path, root))
+    except GitError:
+        return []
 
 
 def _mathematical_changes(
@@ -295,12 +296,7 @@ def catalog_revisions(
     root = repo_root(repo)
     if root is None:
         return {path.stem: () for path in entry_files(catalog)}
-    history: dict[str, list[_Commit]] = {}
-    for path in entry_files(catalog):
-        try:
-            history[path.stem] = _commits_touching(root, _relative_to(path, root))
-        except GitError:
-            history[path.stem] = []
+    history = {path.stem: _entry_commits(root, path) for path in entry_files(catalog)}
     # Every blob's text is needed at most once: unknown ones for their hash and those that
     # start a revision for its source. All of them in one batch (the set is a superset).
     blobs = read_blobs(root, (c.blob for commits in history.values() for c in commits
