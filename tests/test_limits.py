@@ -332,10 +332,15 @@ def test_a_pathological_entry_fails_alone_naming_its_stage(tmp_path: Path) -> No
     assert not bad["ok"]
     (budget,) = [d for d in bad["diagnostics"] if d["code"] == "budget.exceeded"]
     stage = budget["message"].split("'")[1]
-    assert stage in KNOWN_STAGES, budget["message"]
-    # the engine's own 3 s budget, or the hard alarm behind it (3 s * 1.25 + 5 s) when the
-    # engine is inside a library call that only the alarm can interrupt
-    assert re.search(r"time limit of (3|8\.75) s", budget["message"]), budget["message"]
+    # Either the engine's own 3 s budget, which always names the stage it stopped in, or the
+    # hard alarm behind it (3 s * 1.25 + 5 s) when the engine is inside a library call only
+    # the alarm can interrupt. The alarm names the innermost named stage of the stack; on a
+    # loaded machine it can land between stages (freeing the exploded intermediates after the
+    # engine's own stop), where the honest name is the whole entry's check.
+    limit = re.search(r"time limit of (3 s exceeded|8\.75 s)", budget["message"])
+    assert limit, budget["message"]
+    named = KNOWN_STAGES if limit.group(1).startswith("3") else KNOWN_STAGES | {DEFAULT_STAGE}
+    assert stage in named, budget["message"]
     assert (budget["file"], budget["line"]) == (
         "catalog/isolated-objects/pathological-expansion.yaml", 15)
 
