@@ -177,6 +177,19 @@ class FieldAlgebra:
         return (f.sub(f.mul(s[0], t[0]), f.mul(sigma2, f.mul(s[1], t[1]))),
                 f.add(f.mul(s[0], t[1]), f.mul(s[1], t[0])))
 
+    def quotient(self, s: tuple[Frac, Frac], t: tuple[Frac, Frac], sigma2: Frac
+                 ) -> tuple[Frac, Frac]:
+        """(s₀ + iσs₁)/(t₀ + iσt₁) = ((s₀t₀ + σ²s₁t₁) + iσ(s₁t₀ − s₀t₁))/(t₀² + σ²t₁²).
+
+        The norm t₀² + σ²t₁² vanishes only with t: σ² = −det g is positive on a Lorentzian
+        domain, so the two squares cannot cancel (a zero norm raises ZeroDivisionError)."""
+        f = self.f
+        norm = f.add(f.mul(t[0], t[0]), f.mul(sigma2, f.mul(t[1], t[1])))
+        real = f.add(f.mul(s[0], t[0]), f.mul(sigma2, f.mul(s[1], t[1])))
+        imaginary = f.sub(f.mul(s[1], t[0]), f.mul(s[0], t[1]))
+        inverse = f.inv(norm)
+        return f.mul(real, inverse), f.mul(imaginary, inverse)
+
     def combination(self, terms: Sequence[tuple[Frac, Sequence[Sequence[Frac]]]]) -> Grid:
         """Σ c_k X_k entrywise, for scalar coefficients c_k."""
         f, size = self.f, len(terms[0][1])
@@ -236,6 +249,46 @@ def determinant(field: RationalField, m: Sequence[Sequence[Frac]]) -> Frac:
     return field.sum(terms)
 
 
+@dataclass(frozen=True)
+class OperatorPowers:
+    """What the Petrov test and the Weyl frame both build from the Weyl operator W: the
+    duality S̃, σ² = −det g, W², S̃W, and tr Q², tr Q³ as x + iσy."""
+
+    dual: Grid
+    sigma2: Frac
+    square: Grid
+    dual_times: Grid
+    t2: tuple[Frac, Frac]
+    t3: tuple[Frac, Frac]
+
+
+# The last operator's powers: the Weyl-frame stage asks for the same traces right after the
+# Petrov test of the same entry (an entry's whole Weyl operator is kept alive until the next).
+_LAST_POWERS: list[tuple[WeylOperator, OperatorPowers]] = []
+
+
+def operator_powers(ops: WeylOperator, spacetime: Spacetime) -> OperatorPowers:
+    """The products and traces of ``ops``, computed once per operator object."""
+    for known, powers in list(_LAST_POWERS):
+        if known is ops:
+            return powers
+    algebra, f = FieldAlgebra(ops.field, spacetime), ops.field
+    W = ops.operator
+    levi = [[f.const(int(sympy.LeviCivita(*PAIRS[E], *PAIRS[B]))) for B in range(6)]
+            for E in range(6)]
+    dual = algebra.matmul(ops.bivector, levi)
+    sigma2 = f.neg(determinant(f, ops.metric))
+    W2, dual_W = algebra.matmul(W, W), algebra.matmul(dual, W)
+    half, minus_half = sympy.Rational(1, 2), sympy.Rational(-1, 2)
+    t2 = (f.scale(algebra.trace_of_product(W, W), half),
+          f.scale(algebra.trace_of_product(dual_W, W), minus_half))
+    t3 = (f.scale(algebra.trace_of_product(W2, W), half),
+          f.scale(algebra.trace_of_product(dual_W, W2), minus_half))
+    powers = OperatorPowers(dual, sigma2, W2, dual_W, t2, t3)
+    _LAST_POWERS[:] = [(ops, powers)]
+    return powers
+
+
 def decide_type_in_field(ops: WeylOperator, spacetime: Spacetime) -> tuple[str, list[str]]:
     """`decide_type` in exact field arithmetic, with real matrices only.
 
@@ -250,16 +303,9 @@ def decide_type_in_field(ops: WeylOperator, spacetime: Spacetime) -> tuple[str, 
         return "O", ["C_abcd = 0"]
     tests = ["C_abcd ≠ 0"]
     W = ops.operator
-    levi = [[f.const(int(sympy.LeviCivita(*PAIRS[E], *PAIRS[B]))) for B in range(6)]
-            for E in range(6)]
-    dual = algebra.matmul(ops.bivector, levi)
-    sigma2 = f.neg(determinant(f, ops.metric))
-    W2, dual_W = algebra.matmul(W, W), algebra.matmul(dual, W)
-    half, minus_half = sympy.Rational(1, 2), sympy.Rational(-1, 2)
-    t2 = (f.scale(algebra.trace_of_product(W, W), half),
-          f.scale(algebra.trace_of_product(dual_W, W), minus_half))
-    t3 = (f.scale(algebra.trace_of_product(W2, W), half),
-          f.scale(algebra.trace_of_product(dual_W, W2), minus_half))
+    powers = operator_powers(ops, spacetime)
+    dual, sigma2, W2, dual_W = powers.dual, powers.sigma2, powers.square, powers.dual_times
+    t2, t3 = powers.t2, powers.t3
     t2_cubed = algebra.number(algebra.number(t2, t2, sigma2), t2, sigma2)
     t3_squared = algebra.number(t3, t3, sigma2)
     special = [f.sub(t2_cubed[k], f.scale(t3_squared[k], 6)) for k in range(2)]
@@ -272,13 +318,16 @@ def decide_type_in_field(ops: WeylOperator, spacetime: Spacetime) -> tuple[str, 
             return "N", [*tests, "Q² = 0"]
         return "III", [*tests, "Q² ≠ 0, Q³ = 0"]
     tests.append("I ≠ 0")
-    s, u = algebra.number(t2, t2, sigma2), algebra.number(t2, t3, sigma2)
-    v = t3_squared
+    u = algebra.quotient(t3, t2, sigma2)  # μ = t3/t2 = −λ; t2 ≠ 0 was just decided
+    v = algebra.number(u, u, sigma2)
     identity = [[f.one() if i == j else f.zero() for j in range(6)] for i in range(6)]
-    # M_i − S̃ M_r with M = sW² − uW − 2vI
+    # M_i − S̃ M_r with M = W² − μW − 2μ²I = (Q − λ)(Q + 2λ) on self-dual bivectors (the
+    # form t2²W² − t2t3W − 2t3²I divided by t2²: μ is a small fraction — for type D it is
+    # proportional to Ψ2 — while t2² carries the fourth power, and every entry of the
+    # combination is multiplied by these coefficients)
     residue = algebra.combination([
-        (s[1], W2), (f.neg(u[1]), W), (f.scale(v[1], -2), identity),
-        (f.neg(s[0]), algebra.matmul(dual, W2)), (u[0], dual_W), (f.scale(v[0], 2), dual)])
+        (f.neg(u[1]), W), (f.scale(v[1], -2), identity),
+        (f.neg(f.one()), algebra.matmul(dual, W2)), (u[0], dual_W), (f.scale(v[0], 2), dual)])
     if algebra.is_zero([x for row in residue for x in row], "(Q − λ)(Q + 2λ)"):
         return "D", [*tests, "(Q − λ)(Q + 2λ) = 0"]
     return "II", [*tests, "(Q − λ)(Q + 2λ) ≠ 0"]

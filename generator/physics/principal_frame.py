@@ -318,12 +318,23 @@ def _orthogonal_frame(frame: Frame, spacetime: Spacetime, points: Sequence[dict]
     orders = sorted(itertools.permutations(range(4)),
                     key=lambda o: (o[-1] not in late, o))
     usable = []  # (order, vectors, norms, position of the timelike one)
+    # The k-th norm of a Gram–Schmidt pass is det Gram(first k + 1) / det Gram(first k): it
+    # depends on the set of the coordinate vectors before it and not on their order, so its
+    # sign over the sample points is read once per (set, vector), not once per ordering.
+    known_signs: dict[tuple[frozenset[int], int], bool | None] = {}
+
+    def sign(order: tuple[int, ...], k: int, norm: Frac) -> bool | None:
+        key = (frozenset(order[:k]), order[k])
+        if key not in known_signs:
+            known_signs[key] = _positive_everywhere(f, norm, points, spacetime)
+        return known_signs[key]
+
     for order in orders:
         found = _gram_schmidt(frame, order)
         if found is None:
             continue
         vectors, norms = found
-        signs = [_positive_everywhere(f, norm, points, spacetime) for norm in norms]
+        signs = [sign(order, k, norm) for k, norm in enumerate(norms)]
         if signs.count(False) == 1 and signs.count(True) == 3:
             usable.append((order, vectors, norms, signs.index(False)))
             if signs[3] is False:  # the timelike one last: the first choice
@@ -647,18 +658,23 @@ def principal_frame(ops: WeylOperator, spacetime: Spacetime, kind: str,
     see the module docstring)."""
     FrameWork.start(bound)
     frame, l, n, m, how, k = build_tetrad(ops, spacetime)
-    checks = tetrad_checks(frame, l, n, m)
+    # The scalars come before any check of this first tetrad: when they outgrow the size
+    # bound nothing is shown, and every tetrad that is shown is checked where it is returned
+    # (a rotated or boosted one after the rotation, this one only if no rotation succeeds).
     psi = frame.scalars(l, n, m)
     if pattern_holds(frame.f, psi, kind):
         l, n, m = presented(frame, spacetime, kind, l, n, m, k)
         return PrincipalFrame(frame.tower, l, n, m, frame.scalars(l, n, m), True,
                               how + "; already principal",
                               tuple(tetrad_checks(frame, l, n, m)))
+    before_rotation = FrameWork.used
     try:
         found = _rotated(frame, spacetime, kind, l, n, m, how, psi)
     except (NotFound, TooLarge, ZeroDivisionError) as exc:
         why = "a division by zero in the rotation" if isinstance(exc, ZeroDivisionError) \
             else str(exc)
+        FrameWork.used = before_rotation  # the abandoned rotation's work is not charged
+        checks = tetrad_checks(frame, l, n, m)
         return PrincipalFrame(frame.tower, l, n, m, psi, False, how, tuple(checks), why)
     frame, l, n, m, how = found
     l, n, m = presented(frame, spacetime, kind, l, n, m, k)

@@ -30,11 +30,10 @@ from generator.geometry.sampling import entry_points
 from generator.model import Geometry, Spacetime, WeylFrame
 from generator.physics import principal_frame as pf
 from generator.physics.petrov import (
-    PAIRS,
-    FieldAlgebra,
     PetrovResult,
     determinant,
     field_operators,
+    operator_powers,
 )
 from generator.physics.tower import TooLarge
 
@@ -49,19 +48,8 @@ Complex = tuple[Frac, Frac]  # x + iσy
 
 def traces(ops: WeylOperator, spacetime: Spacetime) -> tuple[Complex, Complex, Frac]:
     """tr Q², tr Q³ as x + iσy, and σ² = −det g (same formulas as the Petrov test)."""
-    algebra, f = FieldAlgebra(ops.field, spacetime), ops.field
-    W = ops.operator
-    levi = [[f.const(int(sympy.LeviCivita(*PAIRS[E], *PAIRS[B]))) for B in range(6)]
-            for E in range(6)]
-    dual = algebra.matmul(ops.bivector, levi)
-    sigma2 = f.neg(determinant(f, ops.metric))
-    W2, dual_W = algebra.matmul(W, W), algebra.matmul(dual, W)
-    half, minus_half = sympy.Rational(1, 2), sympy.Rational(-1, 2)
-    t2 = (f.scale(algebra.trace_of_product(W, W), half),
-          f.scale(algebra.trace_of_product(dual_W, W), minus_half))
-    t3 = (f.scale(algebra.trace_of_product(W2, W), half),
-          f.scale(algebra.trace_of_product(dual_W, W2), minus_half))
-    return t2, t3, sigma2
+    powers = operator_powers(ops, spacetime)  # the Petrov test's, when it had this operator
+    return powers.t2, powers.t3, powers.sigma2
 
 
 def divide(f: RationalField, x: Complex, y: Complex, sigma2: Frac) -> Complex:
