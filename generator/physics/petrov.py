@@ -289,6 +289,23 @@ def operator_powers(ops: WeylOperator, spacetime: Spacetime) -> OperatorPowers:
     return powers
 
 
+def type_d_residue(algebra: FieldAlgebra, ops: WeylOperator, powers: OperatorPowers,
+                   mu: tuple[Frac, Frac]) -> Grid:
+    """M_i − S̃ M_r for M = W² − μW − 2μ²I = M_r + iσM_i: zero exactly when
+    (Q − λ)(Q + 2λ) = 0 on self-dual bivectors, λ = −μ (see ``decide_type_in_field``).
+
+    This is t2²W² − t2t3W − 2t3²I divided by t2² (t2 ≠ 0 here): μ is a small fraction — for
+    type D it is proportional to Ψ2 — while t2² carries its fourth power, and every entry of
+    the combination is multiplied by these coefficients."""
+    f = algebra.f
+    mu_squared = algebra.number(mu, mu, powers.sigma2)
+    identity = [[f.one() if i == j else f.zero() for j in range(6)] for i in range(6)]
+    return algebra.combination([
+        (f.neg(mu[1]), ops.operator), (f.scale(mu_squared[1], -2), identity),
+        (f.neg(f.one()), algebra.matmul(powers.dual, powers.square)),
+        (mu[0], powers.dual_times), (f.scale(mu_squared[0], 2), powers.dual)])
+
+
 def decide_type_in_field(ops: WeylOperator, spacetime: Spacetime) -> tuple[str, list[str]]:
     """`decide_type` in exact field arithmetic, with real matrices only.
 
@@ -302,10 +319,8 @@ def decide_type_in_field(ops: WeylOperator, spacetime: Spacetime) -> tuple[str, 
     if algebra.is_zero(ops.weyl, "the Weyl tensor"):
         return "O", ["C_abcd = 0"]
     tests = ["C_abcd ≠ 0"]
-    W = ops.operator
     powers = operator_powers(ops, spacetime)
-    dual, sigma2, W2, dual_W = powers.dual, powers.sigma2, powers.square, powers.dual_times
-    t2, t3 = powers.t2, powers.t3
+    sigma2, W2, t2, t3 = powers.sigma2, powers.square, powers.t2, powers.t3
     t2_cubed = algebra.number(algebra.number(t2, t2, sigma2), t2, sigma2)
     t3_squared = algebra.number(t3, t3, sigma2)
     special = [f.sub(t2_cubed[k], f.scale(t3_squared[k], 6)) for k in range(2)]
@@ -318,16 +333,8 @@ def decide_type_in_field(ops: WeylOperator, spacetime: Spacetime) -> tuple[str, 
             return "N", [*tests, "Q² = 0"]
         return "III", [*tests, "Q² ≠ 0, Q³ = 0"]
     tests.append("I ≠ 0")
-    u = algebra.quotient(t3, t2, sigma2)  # μ = t3/t2 = −λ; t2 ≠ 0 was just decided
-    v = algebra.number(u, u, sigma2)
-    identity = [[f.one() if i == j else f.zero() for j in range(6)] for i in range(6)]
-    # M_i − S̃ M_r with M = W² − μW − 2μ²I = (Q − λ)(Q + 2λ) on self-dual bivectors (the
-    # form t2²W² − t2t3W − 2t3²I divided by t2²: μ is a small fraction — for type D it is
-    # proportional to Ψ2 — while t2² carries the fourth power, and every entry of the
-    # combination is multiplied by these coefficients)
-    residue = algebra.combination([
-        (f.neg(u[1]), W), (f.scale(v[1], -2), identity),
-        (f.neg(f.one()), algebra.matmul(dual, W2)), (u[0], dual_W), (f.scale(v[0], 2), dual)])
+    mu = algebra.quotient(t3, t2, sigma2)  # μ = t3/t2 = −λ; t2 ≠ 0 was just decided
+    residue = type_d_residue(algebra, ops, powers, mu)
     if algebra.is_zero([x for row in residue for x in row], "(Q − λ)(Q + 2λ)"):
         return "D", [*tests, "(Q − λ)(Q + 2λ) = 0"]
     return "II", [*tests, "(Q − λ)(Q + 2λ) ≠ 0"]
