@@ -160,15 +160,15 @@ class FieldAlgebra:
     def matmul(self, x: Sequence[Sequence[Frac]], y: Sequence[Sequence[Frac]]) -> Grid:
         f, size = self.f, len(x)
         rows = [[(k, v) for k, v in enumerate(row) if not v.is_zero()] for row in x]
-        return [[f.sum([f.mul(v, y[k][j]) for k, v in rows[i] if not y[k][j].is_zero()])
-                 for j in range(size)] for i in range(size)]
+        return [[f.sum_of_products([(v, y[k][j]) for k, v in rows[i]]) for j in range(size)]
+                for i in range(size)]
 
     def trace_of_product(self, x: Sequence[Sequence[Frac]], y: Sequence[Sequence[Frac]]
                          ) -> Frac:
         """tr(XY) = Σ X_ij Y_ji without forming XY."""
         size = len(x)
-        return self.f.sum([self.f.mul(x[i][j], y[j][i]) for i in range(size)
-                           for j in range(size) if not x[i][j].is_zero()])
+        return self.f.sum_of_products([(x[i][j], y[j][i]) for i in range(size)
+                                       for j in range(size)])
 
     def number(self, s: tuple[Frac, Frac], t: tuple[Frac, Frac], sigma2: Frac
                ) -> tuple[Frac, Frac]:
@@ -193,7 +193,7 @@ class FieldAlgebra:
     def combination(self, terms: Sequence[tuple[Frac, Sequence[Sequence[Frac]]]]) -> Grid:
         """Σ c_k X_k entrywise, for scalar coefficients c_k."""
         f, size = self.f, len(terms[0][1])
-        return [[f.sum([f.mul(c, x[i][j]) for c, x in terms]) for j in range(size)]
+        return [[f.sum_of_products([(c, x[i][j]) for c, x in terms]) for j in range(size)]
                 for i in range(size)]
 
     def is_zero(self, values: Sequence[Frac], what: str) -> bool:

@@ -140,15 +140,15 @@ class Frame:
 
     def dot(self, x: Vector, y: Vector) -> Frac:
         f = self.f
-        value = f.sum([f.mul(self.g[a][b], f.mul(x[a], y[b])) for a in range(4)
-                       for b in range(4) if not self.g[a][b].is_zero()
-                       and not x[a].is_zero() and not y[b].is_zero()])
+        value = f.sum_of_products([(self.g[a][b], f.mul(x[a], y[b])) for a in range(4)
+                                   for b in range(4) if not self.g[a][b].is_zero()
+                                   and not x[a].is_zero() and not y[b].is_zero()])
         self.guard(value)
         return value
 
     def combine(self, terms: Sequence[tuple[Frac, Vector]]) -> Vector:
         f = self.f
-        out = [f.sum([f.mul(c, v[a]) for c, v in terms]) for a in range(4)]
+        out = [f.sum_of_products([(c, v[a]) for c, v in terms]) for a in range(4)]
         self.guard(*out)
         return out
 
@@ -157,22 +157,18 @@ class Frame:
 
     def wedge(self, x: Vector, y: Vector) -> list[Frac]:
         f = self.f
-        return [f.sub(f.mul(x[a], y[b]), f.mul(x[b], y[a])) for a, b in PAIRS]
+        return [f.sum_of_products([(x[a], y[b]), (f.neg(x[b]), y[a])]) for a, b in PAIRS]
 
     def apply(self, v: Sequence[Frac]) -> list[Frac]:
         """C·V on index pairs (the Weyl tensor applied to a bivector)."""
         f = self.f
-        out = [f.sum([f.mul(self.c[p][q], v[q]) for q in range(6)
-                      if not v[q].is_zero() and not self.c[p][q].is_zero()])
-               for p in range(6)]
+        out = [f.sum_of_products([(self.c[p][q], v[q]) for q in range(6)]) for p in range(6)]
         self.guard(*out)
         return out
 
     def pair(self, u: Sequence[Frac], cv: Sequence[Frac]) -> Frac:
         """C(U, V) = U·(C·V)."""
-        f = self.f
-        value = f.sum([f.mul(u[p], cv[p]) for p in range(6)
-                       if not u[p].is_zero() and not cv[p].is_zero()])
+        value = self.f.sum_of_products(list(zip(u, cv, strict=True)))
         self.guard(value)
         return value
 
@@ -569,13 +565,13 @@ def tetrad_checks(frame: Frame, l: Vector, n: Vector, m: Vector) -> list[str]:
     for label, (x, y, expected) in products.items():
         if not f.equal(frame.dot(x, y), f.const(expected)):
             raise NotFound(f"the tetrad fails {label} = {expected}")
-    lower = [[f.sum([f.mul(frame.g[a][b], v[b]) for b in range(4)]) for a in range(4)]
+    lower = [[f.sum_of_products([(frame.g[a][b], v[b]) for b in range(4)]) for a in range(4)]
              for v in (l, n, m, mb)]
     ll, nl, ml, mbl = lower
     for a in range(4):
         for b in range(a, 4):
-            rebuilt = f.sum([f.neg(f.mul(ll[a], nl[b])), f.neg(f.mul(nl[a], ll[b])),
-                             f.mul(ml[a], mbl[b]), f.mul(mbl[a], ml[b])])
+            rebuilt = f.sum_of_products([(f.neg(ll[a]), nl[b]), (f.neg(nl[a]), ll[b]),
+                                         (ml[a], mbl[b]), (mbl[a], ml[b])])
             if not f.equal(rebuilt, frame.g[a][b]):
                 raise NotFound("the tetrad does not rebuild the metric "
                                f"(component {a}{b})")
