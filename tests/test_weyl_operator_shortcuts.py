@@ -162,3 +162,31 @@ def test_the_unrotated_tetrad_is_still_checked_when_no_rotation_succeeds() -> No
     assert not found.principal
     assert any("l·n = −1" in check for check in found.checks)
     assert any("g_ab" in check for check in found.checks)
+
+
+# ---------------------------------------------------------------------------- sum of products
+
+
+def test_sum_of_products_is_the_normal_form_of_the_sum_of_products() -> None:
+    # Field arithmetic (common practice): one common denominator normalised once must give
+    # the normal form that a product-by-product sum gives, in a tower with square roots
+    # (Kerr's tetrad: i, √2, the Gram–Schmidt roots) where normal forms are reduced and
+    # rationalised, and with zero and repeated-denominator terms.
+    st = kerr()
+    frame, ell, n, m, _how, _k = pf.build_tetrad(operator_of(st), st)
+    f = frame.f
+    mb = frame.conj(m)
+    cases = [list(zip(ell, n, strict=True)), list(zip(m, mb, strict=True)),
+             [(ell[0], m[2]), (f.zero(), n[1]), (n[0], m[2]), (m[3], mb[3]), (ell[1], ell[1])],
+             [(frame.g[a][b], f.mul(ell[a], n[b])) for a in range(4) for b in range(4)]]
+    for pairs in cases:
+        expected = f.sum([f.mul(x, y) for x, y in pairs])
+        assert f.equal(f.sum_of_products(pairs), expected)
+    assert f.equal(f.sum_of_products([]), f.zero())
+    # The metric contracted with the tetrad: l·n = −1 and m·m̄ = 1 (the normalisation).
+    products = [(frame.g[a][b], f.mul(ell[a], n[b])) for a in range(4) for b in range(4)]
+    assert f.equal(f.sum_of_products(products), f.const(-1))
+    # Mutation: dropping a non-zero term changes the value.
+    nonzero = [(x, y) for x, y in products if not x.is_zero() and not y.is_zero()]
+    assert len(nonzero) >= 2
+    assert not f.equal(f.sum_of_products(nonzero[1:]), f.const(-1))
