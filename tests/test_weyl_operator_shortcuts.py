@@ -186,6 +186,8 @@ def test_sum_of_products_is_the_normal_form_of_the_sum_of_products() -> None:
     # The metric contracted with the tetrad: l·n = −1 and m·m̄ = 1 (the normalisation).
     products = [(frame.g[a][b], f.mul(ell[a], n[b])) for a in range(4) for b in range(4)]
     assert f.equal(f.sum_of_products(products), f.const(-1))
+    triples = [(frame.g[a][b], m[a], mb[b]) for a in range(4) for b in range(4)]
+    assert f.equal(f.sum_of_products(triples), f.one())
     # Mutation: dropping a non-zero term changes the value.
     nonzero = [(x, y) for x, y in products if not x.is_zero() and not y.is_zero()]
     assert len(nonzero) >= 2

@@ -253,17 +253,19 @@ class RationalField:
             den = den * mult
         return self.normal(num, den)
 
-    def sum_of_products(self, pairs: Sequence[tuple[Frac, Frac]]) -> Frac:
-        """Σ x·y over a common denominator, normalised once at the end: the same normal form
-        as ``sum`` of ``mul``s, without a normal form of every product (in a field with
+    def sum_of_products(self, products: Sequence[tuple[Frac, ...]]) -> Frac:
+        """Σ x·y(·z…) over a common denominator, normalised once at the end: the same normal
+        form as ``sum`` of ``mul``s, without a normal form of every product (in a field with
         square roots each product otherwise pays for its own reduction, rationalisation and
         gcd; a sum of four to six products, as in a contraction, then costs several times
         more)."""
         num = den = None
-        for x, y in pairs:
-            if x.is_zero() or y.is_zero():
+        for factors in products:
+            if any(x.is_zero() for x in factors):
                 continue
-            term_num, term_den = x.num * y.num, x.den * y.den
+            term_num, term_den = factors[0].num, factors[0].den
+            for x in factors[1:]:
+                term_num, term_den = term_num * x.num, term_den * x.den
             if num is None:
                 num, den = term_num, term_den
             elif term_den == den:

@@ -140,7 +140,7 @@ class Frame:
 
     def dot(self, x: Vector, y: Vector) -> Frac:
         f = self.f
-        value = f.sum_of_products([(self.g[a][b], f.mul(x[a], y[b])) for a in range(4)
+        value = f.sum_of_products([(self.g[a][b], x[a], y[b]) for a in range(4)
                                    for b in range(4) if not self.g[a][b].is_zero()
                                    and not x[a].is_zero() and not y[b].is_zero()])
         self.guard(value)
