@@ -192,3 +192,43 @@ def test_sum_of_products_is_the_normal_form_of_the_sum_of_products() -> None:
     nonzero = [(x, y) for x, y in products if not x.is_zero() and not y.is_zero()]
     assert len(nonzero) >= 2
     assert not f.equal(f.sum_of_products(nonzero[1:]), f.const(-1))
+
+
+# ---------------------------------------------------------------------------- Ψ display
+
+
+def test_kasner_scalars_with_shared_factoring_match_an_independent_weyl_tensor() -> None:
+    # Kasner (E. Kasner, Am. J. Math. 43 (1921) 217) with p = (−2/7, 3/7, 6/7), which meets
+    # Σp = Σp² = 1: type I with Ψ0 = Ψ4 and Ψ2 non-zero and different (common practice for
+    # a diagonal Bianchi I metric). The five contractions share their factored sums; each Ψ
+    # must still be its own contraction, here against the Weyl tensor computed with plain
+    # SymPy by tests/test_principal_frame.py's textbook formulas, in the same frame
+    # l, n = (e0 ± e1)/√2, m = (e2 + i e3)/√2.
+    from _known_metrics import spacetime, t, x, y, z
+    from test_principal_frame import contract, sympy_weyl
+
+    from generator.geometry.curvature import compute_geometry_and_weyl as geometry_of
+    from generator.geometry.sampling import sample_points
+    from generator.physics.petrov import petrov_type
+
+    p = (sp.Rational(-2, 7), sp.Rational(3, 7), sp.Rational(6, 7))
+    st = spacetime((t, x, y, z), (), sp.diag(-1, *(t ** (2 * q) for q in p)), (sp.Gt(t, 0),))
+    geometry, operator = geometry_of(st, None)
+    result = petrov_type(geometry, st, sample_points(st, 4, 3), operator)
+    assert result.type == "I" and result.weyl_scalars is not None
+    point = {t: sp.Rational(3, 2)}
+    scale = [1.0, *(float(sp.N((t ** -q).subs(point), 30)) for q in p)]
+    e = [[scale[a] if b == a else 0.0 for b in range(4)] for a in range(4)]
+    r2 = 2 ** 0.5
+    ell = [(e[0][k] + e[1][k]) / r2 for k in range(4)]
+    n = [(e[0][k] - e[1][k]) / r2 for k in range(4)]
+    m = [(e[2][k] + 1j * e[3][k]) / r2 for k in range(4)]
+    mb = [(e[2][k] - 1j * e[3][k]) / r2 for k in range(4)]
+    weyl = sympy_weyl(st, point)
+    expected = {"Psi0": contract(weyl, (ell, m, ell, m)), "Psi1": contract(weyl, (ell, n, ell, m)),
+                "Psi2": contract(weyl, (ell, m, mb, n)), "Psi3": contract(weyl, (ell, n, mb, n)),
+                "Psi4": contract(weyl, (n, mb, n, mb))}
+    assert abs(expected["Psi2"]) > 1e-3 and abs(expected["Psi0"] - expected["Psi2"]) > 1e-3
+    for name, value in expected.items():
+        ours = complex(sp.N(result.weyl_scalars[name].subs(point), 30))
+        assert abs(ours - complex(value)) < 1e-9 * max(1.0, abs(complex(value))), name

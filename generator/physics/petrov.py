@@ -436,6 +436,15 @@ def weyl_scalars(geometry: Geometry, spacetime: Spacetime, points: Sequence[Poin
     C = weyl_component(geometry.weyl)
     nonzero = [(k, C(*k)) for k in itertools.product(range(4), repeat=4) if C(*k) != 0]
     roots = {scale[a]: 1 / sympy.sqrt(signs[a] * geometry.metric[a, a]) for a in range(4)}
+    # The five contractions meet the same sums again (Ψ0 and Ψ4, Ψ1 and Ψ3 share most of
+    # their groups): each distinct sum is cancelled and factored once (factor is a function
+    # of its input, so the display is the same).
+    factored: dict[tuple[sympy.Expr, bool], sympy.Expr] = {}
+
+    def factor_once(expr: sympy.Expr, cancel: bool) -> sympy.Expr:
+        if (expr, cancel) not in factored:
+            factored[expr, cancel] = sympy.factor(sympy.cancel(expr) if cancel else expr)
+        return factored[expr, cancel]
 
     def contract(a: sympy.Matrix, b: sympy.Matrix, c: sympy.Matrix, d: sympy.Matrix
                  ) -> sympy.Expr:
@@ -449,8 +458,8 @@ def weyl_scalars(geometry: Geometry, spacetime: Spacetime, points: Sequence[Poin
                 groups.setdefault(monomial, []).append(coefficient * v)
         total = sympy.Integer(0)
         for monomial, terms in groups.items():
-            total += sympy.factor(sympy.cancel(sympy.Add(*terms))) * monomial.xreplace(roots)
-        return sympy.factor(total) if sympy.count_ops(total) < PSI_SIZE_LIMIT else total
+            total += factor_once(sympy.Add(*terms), True) * monomial.xreplace(roots)
+        return factor_once(total, False) if sympy.count_ops(total) < PSI_SIZE_LIMIT else total
 
     return {
         "Psi0": contract(ell, m, ell, m),

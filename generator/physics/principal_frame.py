@@ -544,11 +544,10 @@ def _lower_weyl(f: RationalField, ops: WeylOperator) -> list[list[Frac]]:
     """C_PQ on index pairs from the operator W^P_Q = G^PR C_RQ and G_PR (the bivector metric
     of g_ab, the inverse of G^PR)."""
     g = ops.metric
-    lower_g = [[f.sub(f.mul(g[a][c], g[b][d]), f.mul(g[a][d], g[b][c])) for c, d in PAIRS]
-               for a, b in PAIRS]
+    lower_g = [[f.sum_of_products([(g[a][c], g[b][d]), (f.neg(g[a][d]), g[b][c])])
+                for c, d in PAIRS] for a, b in PAIRS]
     w = ops.operator
-    return [[f.sum([f.mul(lower_g[r][p], w[p][q]) for p in range(6)
-                    if not lower_g[r][p].is_zero() and not w[p][q].is_zero()])
+    return [[f.sum_of_products([(lower_g[r][p], w[p][q]) for p in range(6)])
              for q in range(6)] for r in range(6)]
 
 
