@@ -239,19 +239,7 @@ class RationalField:
 
     def sum(self, terms: list[Frac]) -> Frac:
         """Sum over a common denominator built by lcm, normalised once at the end."""
-        terms = [t for t in terms if not t.is_zero()]
-        if not terms:
-            return self.zero()
-        num, den = terms[0].num, terms[0].den
-        for t in terms[1:]:
-            if t.den == den:
-                num = num + t.num
-                continue
-            g = den.gcd(t.den)
-            mult = t.den / g
-            num = num * mult + t.num * (den / g)
-            den = den * mult
-        return self.normal(num, den)
+        return self.sum_of_products([(t,) for t in terms])
 
     def sum_of_products(self, products: Sequence[tuple[Frac, ...]]) -> Frac:
         """Σ x·y(·z…) over a common denominator, normalised once at the end: the same normal

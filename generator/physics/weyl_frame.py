@@ -30,6 +30,7 @@ from generator.geometry.sampling import entry_points
 from generator.model import Geometry, Spacetime, WeylFrame
 from generator.physics import principal_frame as pf
 from generator.physics.petrov import (
+    FieldAlgebra,
     PetrovResult,
     determinant,
     field_operators,
@@ -50,15 +51,6 @@ def traces(ops: WeylOperator, spacetime: Spacetime) -> tuple[Complex, Complex, F
     """tr Q², tr Q³ as x + iσy, and σ² = −det g (same formulas as the Petrov test)."""
     powers = operator_powers(ops, spacetime)  # the Petrov test's, when it had this operator
     return powers.t2, powers.t3, powers.sigma2
-
-
-def divide(f: RationalField, x: Complex, y: Complex, sigma2: Frac) -> Complex:
-    """(a + iσb)/(c + iσd) = ((ac + σ²bd) + iσ(bc − ad))/(c² + σ²d²)."""
-    (a, b), (c, d) = x, y
-    norm = f.add(f.mul(c, c), f.mul(sigma2, f.mul(d, d)))
-    real = f.add(f.mul(a, c), f.mul(sigma2, f.mul(b, d)))
-    imaginary = f.sub(f.mul(b, c), f.mul(a, d))
-    return f.div(real, norm), f.div(imaginary, norm)
 
 
 def to_expr(f: RationalField, x: Complex, sigma: sympy.Expr) -> sympy.Expr:
@@ -110,7 +102,7 @@ def weyl_frame(geometry: Geometry, spacetime: Spacetime, petrov: PetrovResult,
     if built is not None:
         return replace(built, invariant_i=i_expr, invariant_j=j_expr), ""
     if petrov.type == "D":
-        ratio = divide(f, t3, t2, sigma2)  # t3/t2 = −κ Ψ2
+        ratio = FieldAlgebra(f, spacetime).quotient(t3, t2, sigma2)  # t3/t2 = −κ Ψ2
         psi2 = (f.scale(ratio[0], -1 / KAPPA), f.scale(ratio[1], -1 / KAPPA))
         scalars = {"Psi0": zero, "Psi1": zero, "Psi2": to_expr(f, psi2, sigma),
                    "Psi3": zero, "Psi4": zero}
