@@ -172,7 +172,7 @@ class KillingConditions:
         rows (a ≤ b, γ), as linear forms in the parameters."""
         n, p = self.n, self.p
         xi = self.xi()
-        dxi = [[self._diff_forms(xi[c], a) for a in range(n)] for c in range(n)]
+        dxi = [[self.diff_forms(xi[c], a) for a in range(n)] for c in range(n)]
         left, right, target = self.space.pairs_of_degree(degree)
         width = len(self.space.of_degree(degree))
         blocks = []
@@ -197,7 +197,7 @@ class KillingConditions:
         if self.work is not None:
             self.work.spend(amount)
 
-    def _diff_forms(self, forms: np.ndarray, var: int) -> np.ndarray:
+    def diff_forms(self, forms: np.ndarray, var: int) -> np.ndarray:
         src, dst, fac = self.space.derivative_table(var)
         out = np.zeros_like(forms)
         out[dst] = (forms[src] * fac[:, None]) % self.p
@@ -248,11 +248,11 @@ class KillingConditions:
         w = [sum(self._times(e[a, b], b) for b in range(n)) % p for a in range(n)]
         q = sum(self._times(w[a], a) for a in range(n)) % p
         scale = pow(2 * d * (d - 1), -1, p)
-        z = [(2 * d * w[a] - self._diff_forms(q, a)) % p * scale % p for a in range(n)]
+        z = [(2 * d * w[a] - self.diff_forms(q, a)) % p * scale % p for a in range(n)]
         residual = []
         for a in range(n):
             for b in range(a, n):
-                image = (self._diff_forms(z[b], a) + self._diff_forms(z[a], b)) % p
+                image = (self.diff_forms(z[b], a) + self.diff_forms(z[a], b)) % p
                 residual.append(((image - e[a, b]) % p)[rows])
         new = np.concatenate(residual)
         new = new[new.any(axis=1)]
@@ -271,20 +271,30 @@ class KillingConditions:
         return out
 
 
-def conditions_at_point(metric_jets: list[list[np.ndarray]], n: int, p: int, order: int,
-                        work: JetWork | None = None, known: int = 0) -> IsometryAtPoint:
-    """``known``: how many independent Killing vectors are already verified (a lower bound).
-    The conditions can only shrink the kernel, never below the Killing algebra, so once the
-    kernel is down to ``known`` the dimension is certain and no further order is needed.
-    ``work``: the counted work bound; when it is reached the orders stop (``bounded``) and the
-    kernel so far is an upper bound only."""
+@dataclass
+class SolvedConditions:
+    """The solver after the last order it reached, with the ranks of the conditions per order;
+    ``stable``: the rank settled (or came down to the known vectors); ``bounded``: the work
+    bound stopped the orders first."""
+
+    solver: KillingConditions
+    ranks: list[int]
+    stable: bool
+    bounded: bool
+
+    def kernel(self) -> list[list[int]]:
+        """A basis of the allowed 1-jet data (the parameters of ``KillingConditions``)."""
+        return null_space(self.solver.conditions, self.solver.params, self.solver.p)
+
+
+def solve_conditions(metric_jets: list[list[np.ndarray]], n: int, p: int, order: int,
+                     work: JetWork | None = None, known: int = 0) -> SolvedConditions:
+    """The orders of conditions until they settle, reach ``known`` or ``order`` (see
+    ``conditions_at_point``); raises JetWorkReached when the bound stops the first order."""
     solver = KillingConditions(metric_jets, n, p, order, work)
     ranks: list[int] = []
     stable = bounded = False
-    try:
-        solver.first_order()
-    except JetWorkReached:
-        return IsometryAtPoint(solver.params, n, (), False, (), p, True)
+    solver.first_order()
     for degree in range(1, order + 1):
         try:
             solver.next_order(degree)
@@ -298,8 +308,23 @@ def conditions_at_point(metric_jets: list[list[np.ndarray]], n: int, p: int, ord
         if len(ranks) > STABLE_ORDERS and len(set(ranks[-STABLE_ORDERS - 1:])) == 1:
             stable = True
             break
-    kernel = null_space(solver.conditions, solver.params, p)
-    g0_inv = solver.g0_inv
+    return SolvedConditions(solver, ranks, stable, bounded)
+
+
+def conditions_at_point(metric_jets: list[list[np.ndarray]], n: int, p: int, order: int,
+                        work: JetWork | None = None, known: int = 0) -> IsometryAtPoint:
+    """``known``: how many independent Killing vectors are already verified (a lower bound).
+    The conditions can only shrink the kernel, never below the Killing algebra, so once the
+    kernel is down to ``known`` the dimension is certain and no further order is needed.
+    ``work``: the counted work bound; when it is reached the orders stop (``bounded``) and the
+    kernel so far is an upper bound only."""
+    try:
+        solved = solve_conditions(metric_jets, n, p, order, work, known)
+    except JetWorkReached:
+        return IsometryAtPoint(n * (n + 1) // 2, n, (), False, (), p, True)
+    kernel = solved.kernel()
+    ranks, stable, bounded = solved.ranks, solved.stable, solved.bounded
+    g0_inv = solved.solver.g0_inv
     values = [[int(sum(int(g0_inv[c][b]) * v[b] for b in range(n)) % p) for c in range(n)]
               for v in kernel]
     return IsometryAtPoint(len(kernel), matrix_rank(values, p), tuple(ranks), stable,

@@ -58,8 +58,15 @@ import sympy
 from generator.geometry.algebra import NotInField
 from generator.geometry.exactvalues import vanishes
 from generator.model import Spacetime
-from generator.physics.isometry import matrix_rank, metric_field
-from generator.physics.jets import BadPoint, FieldJets, primes
+from generator.physics.isometry import MAX_ORDER, matrix_rank, metric_field, solve_conditions
+from generator.physics.isometry import WORK_BOUND as ISOMETRY_WORK_BOUND
+from generator.physics.jets import BadPoint, FieldJets, FieldPoint, JetWork, JetWorkReached, primes
+from generator.physics.killing_eigen import (
+    AdjointAction,
+    adjoint_action,
+    may_hold_new,
+    rate_squares_at,
+)
 from generator.physics.lie_algebra import commutator
 from generator.physics.symmetry import lie_derivative_metric
 from generator.physics.vector_normal import normalised
@@ -361,6 +368,8 @@ class PointValues:
         self.metric: list[np.ndarray] = []  # per point: (n, n, 1 + n)
         self.listed: list[np.ndarray] = []  # per point: (vectors, n, 1 + n)
         self.listed_count = len(listed)
+        self.first_state: object = None  # the generator's state the first point was drawn in
+        self.first_point: FieldPoint | None = None
 
     def _prime(self) -> int:
         for p in primes()[:PRIME_TRIES]:
@@ -383,6 +392,7 @@ class PointValues:
         while len(self.atoms) < count and attempts < 4 * count + 40:
             attempts += 1
             work.spend("points")
+            state = self.rng.getstate()
             try:
                 jets = FieldJets(self.field, 1, self.rng, self.p)
                 atoms = np.array([self._one_jet(jets, v)
@@ -398,11 +408,45 @@ class PointValues:
                                                           self.n + 1)
             except (BadPoint, ZeroDivisionError):
                 continue
+            if not self.atoms:
+                self.first_state, self.first_point = state, jets.point
             self.atoms.append(atoms)
             self.metric.append(metric)
             self.listed.append(listed)
         if len(self.atoms) < count:
             raise BadPoint("too few usable points")
+
+    def adjoint_action(self, cyclic: Sequence[int], dimension: int,
+                       rates: Sequence[sympy.Expr]) -> AdjointAction | None:
+        """ad(∂_x) on the Killing algebra at the first point (``killing_eigen``), where the
+        signatures are taken; None where the algebra cannot be had there. The conditions are
+        solved to a low order first (most searched entries are highly symmetric and settle
+        there), then to the highest order the isometry stage uses."""
+        n, p = self.n, self.p
+        highest = MAX_ORDER.get(n)
+        if highest is None or self.first_point is None or not cyclic:
+            return None
+        work = JetWork(ISOMETRY_WORK_BOUND)
+        for order in dict.fromkeys((min(2, highest), highest)):
+            rng = random.Random()
+            rng.setstate(self.first_state)
+            try:
+                jets = FieldJets(self.field, order + 2, rng, p, work)
+                if jets.point != self.first_point:
+                    return None
+                metric = [[jets.rational(self.metric_values[a * n + b]) for b in range(n)]
+                          for a in range(n)]
+                solved = solve_conditions(metric, n, p, order, work, dimension)
+            except (BadPoint, JetWorkReached, NotInField, ArithmeticError):
+                return None
+            if len(solved.kernel()) == dimension:
+                # π and the like are transcendental: a random value, as the metric has here
+                parameters = {spec.key: jets.point.values[k]
+                              for k, spec in enumerate(self.field.specs)
+                              if spec.kind in ("parameter", "constant")}
+                return adjoint_action(solved, dimension, cyclic,
+                                      rate_squares_at(rates, parameters, p))
+        return None
 
     def monomial_jets(self, point: int, exponents: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Values m_k and derivatives ∂_b m_k of the monomials (rows of ``exponents``)."""
@@ -540,10 +584,18 @@ def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy
     why = ""
     bases = {degree: monomials(base_atoms, degree, 1) for degree in DEGREES}
     blocks = sorted(itertools.product(*classes), key=_complexity)
+    action = values.adjoint_action(cyclic, dimension, rates)
+    kept = _undominated(blocks, bases, n)
+    skipped = 0
     try:
-        for choice, degree in _undominated(blocks, bases, n):
+        for choice, degree in kept:
             if _rank(state, values.p) >= target:
                 break
+            if action is not None and not may_hold_new(
+                    action, [(cyclic[j], kind) for j, (kind, _) in enumerate(choice)],
+                    state.signatures):
+                skipped += 1
+                continue
             base = bases[degree]
             before = len(state.found)
             _solve_block(spacetime, values, base, base_atoms, factor_exprs, choice, state,
@@ -565,6 +617,10 @@ def search_killing_vectors(spacetime: Spacetime, listed: Sequence[Sequence[sympy
     else:
         summary = (f"{len(found)} of the {missing} missing Killing vectors found by the tool; "
                    f"the rest are not in the searched ansatz ({described}){why}")
+    if skipped:
+        summary += (f"; {skipped} of the ansatz's {len(kept)} blocks were not solved: the "
+                    f"eigenvalues of ad(∂_x) on the algebra leave no room in them for a vector "
+                    f"beyond those known")
     return SearchResult(found, complete, summary, state.rejected, work.snapshot(),
                         state.work_at_last_find)
 

@@ -19,6 +19,9 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import sympy
+from sympy.polys.constructor import construct_domain
+from sympy.polys.matrices import DomainMatrix
+from sympy.polys.polyerrors import CoercionFailed
 
 from generator.geometry.exactvalues import vanishes
 from generator.geometry.sampling import CIRCULAR, entry_points, through_sin_cos
@@ -375,19 +378,150 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
             len(seen) > MAX_BASIS_WITH_ROOTS and (_constant_roots(seen, spacetime)
                                                   or _coordinate_roots(seen, spacetime))):
         return (), None
+    pairs = [(i, j) for i in range(len(basis)) for j in range(i + 1, len(basis))]
+    # (bases with roots of the coordinates, or brackets this way leaves open, are solved and
+    # verified one by one)
+    by_jets = None if _coordinate_roots(seen, spacetime) else \
+        expand_by_one_jet(pairs, basis, spacetime, squares)
     out = []
-    for i in range(len(basis)):
-        for j in range(i + 1, len(basis)):
+    for i, j in pairs:
+        coefficients = by_jets[i, j] if by_jets is not None else None
+        if coefficients is None:
             bracket = commutator(basis[i], basis[j], spacetime.coordinates)
             try:
                 coefficients = expand_in_basis(bracket, basis, spacetime, squares)
             except TableRefused:
                 return (), None  # a bound on the kind of work, as for MAX_BASIS_WITH_ROOTS
-            if coefficients is None:
-                return (), None  # the listed vectors do not close into an algebra
-            if any(c != 0 for c in coefficients):
-                out.append((i, j, coefficients))
+        if coefficients is None:
+            return (), None  # the listed vectors do not close into an algebra
+        if any(c != 0 for c in coefficients):
+            out.append((i, j, coefficients))
     return tuple(out), (recognise(tuple(out), len(basis)) if complete else None)
+
+
+def expand_by_one_jet(pairs: Sequence[tuple[int, int]], basis: Sequence[Sequence[sympy.Expr]],
+                      spacetime: Spacetime, squares: ParameterSquares | None = None
+                      ) -> dict[tuple[int, int], tuple[sympy.Expr, ...] | None] | None:
+    """The constants of the brackets [X_i, X_j] (i, j in ``pairs``) of a basis of verified
+    Killing vectors, all at once, from jets at one point; None where this way does not apply
+    and None for a bracket it leaves open (the caller then solves and verifies that bracket
+    with ``expand_in_basis``).
+
+    Why it is exact: a Killing vector is fixed on a connected domain by its value and first
+    derivatives at one point (it solves a linear transport equation along every curve), the
+    bracket of two Killing vectors is one, and so is Σ c_k X_k for constants c_k. So
+    [X_i, X_j] = Σ c_k X_k everywhere as soon as both sides have the same 1-jet at one regular
+    point of the domain, and the constants are the unique solution of those n + n² linear
+    equations (the basis's 1-jets are independent). The bracket's 1-jet comes from the basis's
+    2-jets. At the point, circular functions of the angles take rational values (a rational
+    point of the unit circle: an actual point); exponentials and hyperbolic functions of the
+    coordinates stay symbols E (``GenericExponentials``), the sine and cosine of any other
+    argument become 2u/(1 + u²), (1 − u²)/(1 + u²) in a symbol u, and a bare angle is
+    2·atan(q), kept as a symbol of SymPy's: an equation that holds identically in these
+    symbols holds at the point's actual values, and constants that depend on them are
+    refused. One elimination over the field of the parameters and these symbols serves every
+    bracket. Bases with roots of the coordinates are left to the caller."""
+    if squares is not None:
+        basis = [[squares.forward(c) for c in xi] for xi in basis]
+    n, d = spacetime.dimension, len(basis)
+    everything = [c for xi in basis for c in xi]
+    angles = _angles(everything, spacetime)
+    generic = _generic_circular(everything, spacetime)
+    exponentials = _generic_exponentials(everything, spacetime)
+    point = _coordinate_values(spacetime, 1, angles)[0]
+    circle: dict[sympy.Symbol, sympy.Expr] = {}
+    halves = [sympy.Dummy(f"u{k}") for k in range(len(generic.pairs))]
+    for (s, c), u in zip(generic.pairs, halves, strict=True):
+        circle[s], circle[c] = 2 * u / (1 + u**2), (1 - u**2) / (1 + u**2)
+    constants = set(spacetime.parameters) | {s for s, _ in (squares.inverse if squares else ())}
+    allowed = constants | set(exponentials.symbols) | set(halves)
+    jets = _two_jets(basis, spacetime.coordinates, lambda e: _at_point(
+        e, tuple(angles), (generic.replacements, exponentials.replacements, point, circle),
+        allowed))
+    if jets is None:
+        return None
+    keys, flat = list(jets), list(jets.values())
+    try:
+        domain, elements = construct_domain(flat, field=True)
+    except (ValueError, TypeError, NotImplementedError, CoercionFailed, ZeroDivisionError):
+        return None
+    if domain.is_EX or getattr(domain, "is_EXRAW", False):
+        return None
+    value = dict(zip(keys, elements, strict=True))
+    zero = domain.zero
+
+    def bracket_jet(i: int, j: int) -> list:
+        entries = [sum((value[i, b, ()] * value[j, a, (b,)] - value[j, b, ()] * value[i, a, (b,)]
+                        for b in range(n)), zero) for a in range(n)]
+        for a in range(n):
+            for c in range(n):
+                entries.append(sum((value[i, b, (c,)] * value[j, a, (b,)]
+                                    + value[i, b, ()] * value[j, a, _pair(b, c)]
+                                    - value[j, b, (c,)] * value[i, a, (b,)]
+                                    - value[j, b, ()] * value[i, a, _pair(b, c)]
+                                    for b in range(n)), zero))
+        return entries
+
+    def basis_jet(i: int) -> list:
+        return [value[i, a, ()] for a in range(n)] + [value[i, a, (c,)] for a in range(n)
+                                                      for c in range(n)]
+
+    columns = [basis_jet(i) for i in range(d)] + [bracket_jet(i, j) for i, j in pairs]
+    rows = [[column[r] for column in columns] for r in range(n + n * n)]
+    reduced, pivots = DomainMatrix(rows, (len(rows), len(columns)), domain).rref()
+    if tuple(pivots[:d]) != tuple(range(d)):
+        return None  # the basis's 1-jets are not independent at the point
+    table = reduced.to_Matrix()
+    out: dict[tuple[int, int], tuple[sympy.Expr, ...] | None] = {}
+    for index, key in enumerate(pairs):
+        column = table[:, d + index]
+        if any(v != 0 for v in column[d:]):
+            out[key] = None  # the bracket's 1-jet is outside the basis's span
+            continue
+        found = tuple(sympy.cancel(v) for v in column[:d])
+        if any(c.free_symbols - constants for c in found):
+            out[key] = None  # constants depending on the point's symbols are no constants
+            continue
+        if squares is not None:
+            found = tuple(squares.back(c) for c in found)
+        out[key] = found
+    return out
+
+
+def _pair(b: int, c: int) -> tuple[int, int]:
+    return (min(b, c), max(b, c))
+
+
+def _two_jets(basis: Sequence[Sequence[sympy.Expr]], coordinates: Sequence[sympy.Symbol],
+              at_point) -> dict[tuple, sympy.Expr] | None:
+    """(vector, component, derivative indices) → the value at the point of that derivative
+    (indices () for the value, (b,) and (b, c) with b ≤ c); None if the point is singular."""
+    out: dict[tuple, sympy.Expr] = {}
+    n = len(coordinates)
+    for i, xi in enumerate(basis):
+        for a, component in enumerate(xi):
+            first = [sympy.diff(component, x) for x in coordinates]
+            wanted = {(): component, **{(b,): first[b] for b in range(n)},
+                      **{(b, c): sympy.diff(first[b], coordinates[c])
+                         for b in range(n) for c in range(b, n)}}
+            for key, expr in wanted.items():
+                evaluated = at_point(expr)
+                if evaluated is None:
+                    return None
+                out[i, a, key] = evaluated
+    return out
+
+
+def _at_point(expr: sympy.Expr, angles: tuple[sympy.Symbol, ...], replacements: Sequence[dict],
+              allowed: set) -> sympy.Expr | None:
+    """``expr`` at the point, with the replacements applied in order (see ``
+    expand_by_one_jet``); None where the point is singular or a coordinate is left."""
+    value = through_sin_cos(sympy.sympify(expr), angles)
+    for table in replacements:
+        value = value.xreplace(table)
+    if value.has(sympy.zoo, sympy.nan, sympy.oo) or value.free_symbols - allowed:
+        return None
+    return value
 
 
 def _constant_roots(basis: Sequence[Sequence[sympy.Expr]], spacetime: Spacetime) -> bool:
