@@ -102,3 +102,33 @@ def test_dropping_the_second_derivatives_is_noticed(monkeypatch) -> None:
               and any(v != 0 for v in c)]
     assert broken is None or any(c is None for c in broken.values()) \
         or not independently_checked(st, basis, stated)
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("relative", ["backgrounds/de-sitter-static.yaml",
+                                      "backgrounds/anti-de-sitter-static.yaml",
+                                      "euclidean-and-initial-data/euclidean-de-sitter.yaml"])
+def test_bases_with_roots_of_the_coordinates_get_their_tables(relative: str) -> None:
+    """√(1 − Λr²/3)-type roots are symbols w with w² = P at the point; before, these three
+    ten-vector bases got no table at all. Every bracket is checked independently."""
+    st, basis = listed_basis(relative)
+    table, _ = structure(st, basis, True)
+    assert len(table) == 30
+    assert independently_checked(st, basis, table)
+
+
+def test_de_sitter_static_time_translation_scales_a_boost_by_k() -> None:
+    """[∂_t, e^{kt}(…)] = k e^{kt}(…) with k = √(Λ/3) (the boost written out in Hawking &
+    Ellis 1973 §5.2, from memory; the eigenvalue of tests/test_killing_eigen.py)."""
+    st, basis = listed_basis("backgrounds/de-sitter-static.yaml")
+    (lam,) = st.parameters
+    t = st.coordinates[0]
+    time_index = next(i for i, xi in enumerate(basis) if list(xi) == [1, 0, 0, 0])
+    boost = next(i for i, xi in enumerate(basis)
+                 if any(c.has(sympy.exp(sympy.sqrt(3) * sympy.sqrt(lam) * t / 3)) for c in xi))
+    by_jets = expand_by_one_jet([(min(time_index, boost), max(time_index, boost))], basis, st,
+                                lie_algebra.parameter_squares(basis, st))
+    (constants,) = by_jets.values()
+    sign = 1 if time_index < boost else -1
+    expected = [sign * sympy.sqrt(lam / 3) if k == boost else 0 for k in range(len(basis))]
+    assert all(sympy.simplify(c - e) == 0 for c, e in zip(constants, expected, strict=True))

@@ -21,7 +21,7 @@ from dataclasses import dataclass
 import sympy
 from sympy.polys.constructor import construct_domain
 from sympy.polys.matrices import DomainMatrix
-from sympy.polys.polyerrors import CoercionFailed
+from sympy.polys.polyerrors import BasePolynomialError
 
 from generator.geometry.exactvalues import vanishes
 from generator.geometry.sampling import CIRCULAR, entry_points, through_sin_cos
@@ -374,15 +374,14 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
         return (), None
     squares = parameter_squares(basis, spacetime)
     seen = basis if squares is None else [[squares.forward(c) for c in xi] for xi in basis]
-    if _roots_of_both_kinds(seen, spacetime) or (
-            len(seen) > MAX_BASIS_WITH_ROOTS and (_constant_roots(seen, spacetime)
-                                                  or _coordinate_roots(seen, spacetime))):
-        return (), None
     pairs = [(i, j) for i in range(len(basis)) for j in range(i + 1, len(basis))]
-    # (bases with roots of the coordinates, or brackets this way leaves open, are solved and
-    # verified one by one)
-    by_jets = None if _coordinate_roots(seen, spacetime) else \
-        expand_by_one_jet(pairs, basis, spacetime, squares)
+    by_jets = expand_by_one_jet(pairs, basis, spacetime, squares)
+    # what the jets leave open is solved and verified bracket by bracket, within bounds
+    left_open = by_jets is None or any(v is None for v in by_jets.values())
+    if left_open and (_roots_of_both_kinds(seen, spacetime) or (
+            len(seen) > MAX_BASIS_WITH_ROOTS and (_constant_roots(seen, spacetime)
+                                                  or _coordinate_roots(seen, spacetime)))):
+        return (), None
     out = []
     for i, j in pairs:
         coefficients = by_jets[i, j] if by_jets is not None else None
@@ -419,12 +418,17 @@ def expand_by_one_jet(pairs: Sequence[tuple[int, int]], basis: Sequence[Sequence
     argument become 2u/(1 + u²), (1 − u²)/(1 + u²) in a symbol u, and a bare angle is
     2·atan(q), kept as a symbol of SymPy's: an equation that holds identically in these
     symbols holds at the point's actual values, and constants that depend on them are
-    refused. One elimination over the field of the parameters and these symbols serves every
-    bracket. Bases with roots of the coordinates are left to the caller."""
+    refused. A square root √P of the coordinates is a symbol w with w² = P at the point
+    (``_RootTower``: each equation split into the coefficients of the products of the w's).
+    One elimination over the field of the parameters and these symbols serves every
+    bracket."""
     if squares is not None:
         basis = [[squares.forward(c) for c in xi] for xi in basis]
     n, d = spacetime.dimension, len(basis)
     everything = [c for xi in basis for c in xi]
+    roots = _square_roots_of_coordinates(everything, spacetime)
+    if roots is None:
+        return None  # a cube or higher root of the coordinates
     angles = _angles(everything, spacetime)
     generic = _generic_circular(everything, spacetime)
     exponentials = _generic_exponentials(everything, spacetime)
@@ -434,20 +438,57 @@ def expand_by_one_jet(pairs: Sequence[tuple[int, int]], basis: Sequence[Sequence
     for (s, c), u in zip(generic.pairs, halves, strict=True):
         circle[s], circle[c] = 2 * u / (1 + u**2), (1 - u**2) / (1 + u**2)
     constants = set(spacetime.parameters) | {s for s, _ in (squares.inverse if squares else ())}
-    allowed = constants | set(exponentials.symbols) | set(halves)
-    jets = _two_jets(basis, spacetime.coordinates, lambda e: _at_point(
-        e, tuple(angles), (generic.replacements, exponentials.replacements, point, circle),
-        allowed))
-    if jets is None:
+    allowed = constants | set(exponentials.symbols) | set(halves) | {w for w, _ in roots}
+
+    def at_point(expr: sympy.Expr) -> sympy.Expr | None:
+        return _at_point(_with_root_symbols(expr, roots), tuple(angles),
+                         (generic.replacements, exponentials.replacements, point, circle),
+                         allowed)
+
+    jets = _two_jets(basis, spacetime.coordinates, at_point)
+    radicands = [at_point(radicand) for _, radicand in roots]
+    if jets is None or any(r is None or r.free_symbols & {w for w, _ in roots}
+                           for r in radicands):
         return None
+    table = None
+    for algebraic in (False, True):  # SymPy's own field first; √3 and the like as numbers next
+        table = _reduced_jets(jets, radicands, [w for w, _ in roots], pairs, n, d, algebraic)
+        if table is not None:
+            break
+    if table is None:
+        return None
+    out: dict[tuple[int, int], tuple[sympy.Expr, ...] | None] = {}
+    for index, key in enumerate(pairs):
+        column = table[:, d + index]
+        if any(v != 0 for v in column[d:]):
+            out[key] = None  # the bracket's 1-jet is outside the basis's span
+            continue
+        found = tuple(sympy.cancel(v) for v in column[:d])
+        if any(c.free_symbols - constants or c.has(sympy.atan) for c in found):
+            # constants depending on the point's symbols (or on its angles 2·atan(q)) are
+            # no constants
+            out[key] = None
+            continue
+        if squares is not None:
+            found = tuple(squares.back(c) for c in found)
+        out[key] = found
+    return out
+
+
+def _reduced_jets(jets: dict[tuple, sympy.Expr], radicands: Sequence[sympy.Expr],
+                  symbols: Sequence[sympy.Symbol], pairs: Sequence[tuple[int, int]], n: int,
+                  d: int, algebraic: bool) -> sympy.Matrix | None:
+    """The reduced echelon form of [basis 1-jets | bracket 1-jets] (rows split in the root
+    symbols), or None unless the basis's d columns are its first pivots. ``algebraic``: square
+    roots of numbers in the coefficient field (``_domain_of``) instead of SymPy's choice."""
     keys, flat = list(jets), list(jets.values())
     try:
-        domain, elements = construct_domain(flat, field=True)
-    except (ValueError, TypeError, NotImplementedError, CoercionFailed, ZeroDivisionError):
+        domain, elements = _domain_of([*flat, *radicands], algebraic)
+    except (ValueError, TypeError, NotImplementedError, BasePolynomialError, ZeroDivisionError):
         return None
     if domain.is_EX or getattr(domain, "is_EXRAW", False):
         return None
-    value = dict(zip(keys, elements, strict=True))
+    value = dict(zip(keys, elements[: len(flat)], strict=True))
     zero = domain.zero
 
     def bracket_jet(i: int, j: int) -> list:
@@ -468,24 +509,113 @@ def expand_by_one_jet(pairs: Sequence[tuple[int, int]], basis: Sequence[Sequence
 
     columns = [basis_jet(i) for i in range(d)] + [bracket_jet(i, j) for i, j in pairs]
     rows = [[column[r] for column in columns] for r in range(n + n * n)]
+    if symbols:
+        rows = _RootTower(domain, symbols, elements[len(flat):]).split_rows(rows)
+        if rows is None:
+            return None
     reduced, pivots = DomainMatrix(rows, (len(rows), len(columns)), domain).rref()
     if tuple(pivots[:d]) != tuple(range(d)):
         return None  # the basis's 1-jets are not independent at the point
-    table = reduced.to_Matrix()
-    out: dict[tuple[int, int], tuple[sympy.Expr, ...] | None] = {}
-    for index, key in enumerate(pairs):
-        column = table[:, d + index]
-        if any(v != 0 for v in column[d:]):
-            out[key] = None  # the bracket's 1-jet is outside the basis's span
-            continue
-        found = tuple(sympy.cancel(v) for v in column[:d])
-        if any(c.free_symbols - constants for c in found):
-            out[key] = None  # constants depending on the point's symbols are no constants
-            continue
-        if squares is not None:
-            found = tuple(squares.back(c) for c in found)
-        out[key] = found
-    return out
+    return reduced.to_Matrix()
+
+
+class _RootTower:
+    """Arithmetic modulo w_i² = P_i for the root symbols w_i (``expand_by_one_jet``): an
+    element of the domain whose denominator is free of the w's is reduced to degree ≤ 1 in
+    each w and split into the coefficients of the products of distinct w's. Equal
+    coefficients imply equal elements at the point's actual roots, whatever relations the
+    roots may have besides (the converse, needed only to find a solution, fails only when
+    they do, and then the pivots come out wrong and the caller's way is taken)."""
+
+    def __init__(self, domain, symbols: Sequence[sympy.Symbol], radicands: Sequence) -> None:
+        self.domain = domain
+        self.ring = domain.field.ring
+        names = list(domain.symbols)
+        self.positions = [names.index(w) for w in symbols]
+        self.radicands = list(radicands)
+
+    def split(self, element) -> dict[tuple[int, ...], object] | None:
+        numerator, denominator = element.numer, element.denom
+        if any(denominator.degree(i) > 0 for i in self.positions):
+            return None  # a root in a denominator: not reduced here
+        parts: dict[tuple[int, ...], object] = {}
+        for monomial, coefficient in numerator.terms():
+            exponents = list(monomial)
+            factor = self.domain.one
+            pattern = []
+            for position, radicand in zip(self.positions, self.radicands, strict=True):
+                e = exponents[position]
+                if e >= 2:
+                    factor = factor * radicand ** (e // 2)
+                exponents[position] = 0
+                pattern.append(e % 2)
+            term = self.domain.field.field_new(self.ring({tuple(exponents): coefficient}))
+            key = tuple(pattern)
+            parts[key] = parts.get(key, self.domain.zero) + factor * term
+        return {key: part / self.domain.field.field_new(denominator)
+                for key, part in parts.items()}
+
+    def split_rows(self, rows: list[list]) -> list[list] | None:
+        out = []
+        for row in rows:
+            split = [self.split(entry) for entry in row]
+            if any(s is None for s in split):
+                return None
+            patterns = sorted({key for s in split for key in s})
+            out += [[s.get(key, self.domain.zero) for s in split] for key in patterns]
+        return out
+
+
+def _square_roots_of_coordinates(exprs: Sequence[sympy.Expr], spacetime: Spacetime
+                                 ) -> list[tuple[sympy.Symbol, sympy.Expr]] | None:
+    """(w, P) for each square root √P of an expression in the coordinates (any odd power
+    P^(k/2)); None when a cube or higher root of the coordinates occurs."""
+    coordinates = set(spacetime.coordinates)
+    bases = []
+    for e in exprs:
+        for atom in sympy.sympify(e).atoms(sympy.Pow):
+            if not atom.exp.is_Rational or atom.exp.is_Integer or \
+                    not atom.base.free_symbols & coordinates:
+                continue
+            if atom.exp.q != 2:
+                return None
+            if atom.base not in bases:
+                bases.append(atom.base)
+    return [(sympy.Dummy(f"w{k}"), base) for k, base in
+            enumerate(sorted(bases, key=sympy.default_sort_key))]
+
+
+def _with_root_symbols(expr: sympy.Expr, roots: Sequence[tuple[sympy.Symbol, sympy.Expr]]
+                       ) -> sympy.Expr:
+    """P^(k/2) written as P^⌊k/2⌋ · w^(k mod 2) for each root (w, P): the roots stand in
+    numerators only, to the first power."""
+    if not roots:
+        return expr
+    symbol_of = {radicand: w for w, radicand in roots}
+
+    def rooted(e: sympy.Expr) -> bool:
+        return (e.is_Pow and e.base in symbol_of and e.exp.is_Rational and e.exp.q == 2)
+
+    return expr.replace(rooted, lambda e: e.base ** (e.exp.p // 2)
+                        * symbol_of[e.base] ** (e.exp.p % 2))
+
+
+def _domain_of(values: Sequence[sympy.Expr], algebraic: bool):
+    """A field holding ``values`` and its elements: SymPy's choice, or with ``algebraic`` the
+    square roots of numbers (√3 from √(Λ/3)) in an algebraic field of coefficients, so that
+    √3·√3 is 3 (as a generator of its own it is not; slower: gcds over the number field)."""
+    numbers = {a for v in values for a in v.atoms(sympy.Pow)
+               if a.base.is_Rational and a.exp.is_Rational and not a.exp.is_Integer}
+    if not numbers or not algebraic:
+        if algebraic:
+            raise NotImplementedError("no roots of numbers: nothing to try again with")
+        return construct_domain(list(values), field=True)
+    if any(a.exp.q != 2 for a in numbers):
+        raise NotImplementedError("a cube or higher root of a number")
+    symbols = sorted(set().union(*(v.free_symbols for v in values)), key=str)
+    roots = sorted({sympy.sqrt(a.base) for a in numbers}, key=sympy.default_sort_key)
+    domain = sympy.QQ.algebraic_field(*roots).frac_field(*symbols)
+    return domain, [domain.from_sympy(v) for v in values]
 
 
 def _pair(b: int, c: int) -> tuple[int, int]:
