@@ -32,7 +32,12 @@ import numpy as np
 import sympy
 from sympy.polys.polyerrors import BasePolynomialError
 
-from generator.physics.isometry import KillingConditions, SolvedConditions
+from generator.physics.isometry import (
+    KillingConditions,
+    SolvedConditions,
+    matrix_rank,
+    null_space,
+)
 
 
 @dataclass(frozen=True)
@@ -164,13 +169,13 @@ def may_hold_new(action: AdjointAction, kinds: Sequence[tuple[int, str]],
         conditions += [[int(power[i, j]) for j in range(d)] for i in range(d)]
     if not conditions:
         return True
-    space = _null_space(conditions, d, p)  # the joint generalised eigenspace, in the basis
+    space = null_space(conditions, d, p)  # the joint generalised eigenspace, in the basis
     if not space:
         return False
     full = [[sum(c * action.kernel[j][i] for j, c in enumerate(v)) % p
              for i in range(len(action.kernel[0]))] for v in space]
     spanned = [parameters_of_jet(action, s) for s in known]
-    inside = len(full) + _rank(spanned, p) - _rank(full + spanned, p)
+    inside = len(full) + matrix_rank(spanned, p) - matrix_rank(full + spanned, p)
     return inside < len(full)
 
 
@@ -184,19 +189,6 @@ def _polynomial_at(coefficients: Sequence[int], operator: flint.nmod_mat, d: int
             total = total + power * (c % p)
         power = power * operator
     return total
-
-
-def _rank(rows: Sequence[Sequence[int]], p: int) -> int:
-    rows = [list(r) for r in rows if any(v % p for v in r)]
-    if not rows:
-        return 0
-    return flint.nmod_mat([[v % p for v in r] for r in rows], p).rank()
-
-
-def _null_space(rows: Sequence[Sequence[int]], size: int, p: int) -> list[list[int]]:
-    matrix = flint.nmod_mat([[v % p for v in r] for r in rows], p)
-    basis, nullity = matrix.nullspace()
-    return [[int(basis[i, j]) for i in range(size)] for j in range(nullity)]
 
 
 def rate_squares_at(rates: Sequence[sympy.Expr], parameters: dict[sympy.Symbol, int], p: int
