@@ -521,6 +521,9 @@ class EntryReport:
     # Hash of everything the report was computed from (the pipeline's cache key): lets the
     # render stage keep what it made of the report. Empty when the report was made otherwise.
     inputs_key: str = ""
+    # The metric with its symbols renamed by position (physics.twins.literal_key), made where
+    # the report is made: a warm check compares every entry's key and should not redo them.
+    literal_key: str = ""
 
     @property
     def ok(self) -> bool:

@@ -367,3 +367,26 @@ def test_a_whole_catalog_run_still_reports_literal_twins() -> None:
     found = literal_twin_warnings([original, copy], {})
     assert set(found) == {original.file, copy.file}
     assert literal_twin_warnings([original, copy], {"schwarzschild": "g", "lamp-hole": "g"}) == {}
+
+
+def test_the_literal_key_made_in_the_worker_is_the_one_compared(tmp_path) -> None:
+    """A worker stores the key in the report (a warm check reads it back instead of redoing
+    it); the stored key is what the comparison uses, and it is the key of the report's own
+    metric. Fixture: the scale-small catalog's point mass (Schwarzschild, common practice)."""
+    from pathlib import Path
+
+    from generator.physics.twins import LITERAL_REASON, literal_key, literal_twins
+    from generator.run.tasks import Task, run_task
+
+    root = Path(__file__).parent / "roots" / "scale-small" / "catalog"
+    made = run_task(Task(root / "black-holes" / "point-mass.yaml", "point-mass.yaml", root,
+                         root.parent, (), 60.0))
+    assert made.literal_key and made.literal_key == literal_key(made.spacetime)
+    # A report whose stored key says "the same metric" is matched by that key alone.
+    f = 1 - 2 * M / r
+    other = report("schwarzschild", static_spherical(f + Q**2 / r**2, [M, Q],
+                                                     [r > 2 * M, *ANGLES]), "electrovacuum")
+    assert literal_twins([made], [made, other]) == {}
+    marked = replace(other, literal_key=made.literal_key)
+    assert literal_twins([made], [made, marked]) == {
+        made.entry.id: [("schwarzschild", LITERAL_REASON)]}

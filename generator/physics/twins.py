@@ -211,7 +211,7 @@ def literal_twins(new: Sequence[EntryReport], catalog: Sequence[EntryReport],
         if report.spacetime is None or report.entry is None:
             return None
         if id(report) not in keys:
-            keys[id(report)] = literal_key(report.spacetime)
+            keys[id(report)] = report.literal_key or literal_key(report.spacetime)
         return keys[id(report)]
 
     out: dict[str, list[tuple[str, str]]] = {}

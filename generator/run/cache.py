@@ -19,7 +19,6 @@ from __future__ import annotations
 import hashlib
 import hmac
 import os
-import pickle
 import secrets
 import tempfile
 from pathlib import Path
@@ -29,7 +28,7 @@ from generator.entry.safefile import read_capped_bytes
 from generator.entry.yamlcheck import MAX_FILE_BYTES
 from generator.errors import UsageError
 from generator.model import EntryReport
-from generator.run.safepickle import safe_loads
+from generator.run.safepickle import canonical_dumps, safe_loads
 from generator.versions import generator_fingerprint, library_versions
 
 FORMAT = b"almanac-cache-1\n"
@@ -155,7 +154,7 @@ class ResultCache:
 
     def put(self, key: str, value: object) -> None:
         """Write atomically, so an interrupted build never leaves a half-written file."""
-        payload = pickle.dumps(value, protocol=pickle.HIGHEST_PROTOCOL)
+        payload = canonical_dumps(value)
         signature = hmac.new(self.secret, key.encode() + payload, hashlib.sha256).digest()
         path = self._path(key)
         path.parent.mkdir(parents=True, exist_ok=True)

@@ -13,7 +13,7 @@ import re
 import signal
 from collections.abc import Iterator
 from contextlib import contextmanager
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 from generator.entry.catalog import load_all
@@ -22,6 +22,7 @@ from generator.errors import BudgetExceeded, Diagnostic
 from generator.geometry.curvature import Limits
 from generator.geometry.decisions import set_run_seed
 from generator.model import EntryReport
+from generator.physics.twins import literal_key
 from generator.physics.verify import check_loaded
 from generator.run.limits import (
     DEFAULT_STAGE,
@@ -30,6 +31,7 @@ from generator.run.limits import (
     run_limited,
     stage_of_name,
 )
+from generator.run.safepickle import register_canonical_reducers
 
 MEMORY_PER_ENTRY = 2 * 1024**3  # bytes an entry may add to its worker
 
@@ -61,12 +63,21 @@ def alarm_seconds(seconds: float) -> float:
 def run_task(task: Task) -> EntryReport:
     """Load and check one entry (runs inside a worker process) under a hard time and memory
     limit covering both."""
+    register_canonical_reducers()  # the report goes back to the parent as a pickle
     set_run_seed(task.seed)
     with record_backstop(task.backstop_file):
         try:
-            return load_and_check_within_limits(task)
+            return with_literal_key(load_and_check_within_limits(task))
         except Exception as exc:  # a bug must fail this entry loudly, not the whole build
             return internal_failure_report(task.display, exc)
+
+
+def with_literal_key(report: EntryReport) -> EntryReport:
+    """The report with its metric's literal key (see ``twins.literal_key``), computed here in
+    the worker, once, rather than by every later check that reads the report back."""
+    if report.spacetime is None or report.entry is None:
+        return report
+    return replace(report, literal_key=literal_key(report.spacetime))
 
 
 def load_and_check_within_limits(task: Task) -> EntryReport:
