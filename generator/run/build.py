@@ -19,7 +19,7 @@ from generator.entry.catalog import entry_files, read_families, read_tags
 from generator.entry.publication import HOW_TO_SET, catalog_version, read_publication
 from generator.errors import UsageError
 from generator.model import CatalogMeta, EntryReport
-from generator.run.pipeline import RunOptions, check_files
+from generator.run.pipeline import RunOptions, check_files, runs_in_this_process
 
 
 @dataclass(frozen=True)
@@ -58,7 +58,8 @@ def build_site(catalog: Path, out: Path, options: RunOptions,
               file=sys.stderr)
         return BuildResult(False, tuple(reports), refused)
     meta = catalog_meta(catalog, options.cache_dir)
-    views = render_atomically(reports, meta, out, options.cache_dir)
+    views = render_atomically(reports, meta, out, options.cache_dir,
+                              jobs=1 if runs_in_this_process(options) else options.jobs)
     if prune_cache and options.cache_dir is not None:
         prune_unused(options.cache_dir, reports, views)
     print(f"site written to {out}/ ({len(reports) - len(refused)} entries)", file=sys.stderr)
@@ -150,11 +151,13 @@ def _revisions(project: Path, catalog: Path, cache_dir: Path | None) -> dict:
 
 
 def render_atomically(reports: list[EntryReport], meta: CatalogMeta, out: Path,
-                      cache_dir: Path | None = None) -> set[str]:
+                      cache_dir: Path | None = None, jobs: int = 1) -> set[str]:
     """Render into a fresh sibling folder, then swap it in, so readers never see half a site.
-    With a cache folder, entry views are kept there between builds (``site.writer.kept_view``);
-    returns the keys of the views used."""
+    With a cache folder, entry views are kept there between builds
+    (``site.writer.kept_views_of``); views not kept are made by up to ``jobs`` worker
+    processes (0: all cores; see ``run.views``). Returns the keys of the views used."""
     from generator.run.cache import ResultCache
+    from generator.run.views import views_in_processes
     from generator.site.writer import VIEW_SUFFIX, render_site
 
     kept = ResultCache(cache_dir, suffix=VIEW_SUFFIX) if cache_dir is not None else None
@@ -165,7 +168,7 @@ def render_atomically(reports: list[EntryReport], meta: CatalogMeta, out: Path,
     recover_interrupted_swap(out, old)
     staging = Path(tempfile.mkdtemp(prefix=f".{out.name}.building-", dir=out.parent))
     try:
-        views = render_site(reports, meta, staging, kept)
+        views = render_site(reports, meta, staging, kept, views_in_processes(jobs))
         (staging / SITE_MARKER).write_text(_MARKER_TEXT, encoding="utf-8")
     except BaseException:
         shutil.rmtree(staging, ignore_errors=True)

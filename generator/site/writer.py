@@ -15,7 +15,7 @@ from __future__ import annotations
 import hashlib
 import re
 import shutil
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Callable, Iterable, Mapping, Sequence
 from pathlib import Path
 from typing import Any, Protocol
 
@@ -63,18 +63,30 @@ class ViewShelf(Protocol):
     def put(self, key: str, value: object) -> None: ...
 
 
+# Makes the views of (report, surroundings) pairs, in order: here, or in worker processes
+# (`run.views`), which is where a cold build spends most of its rendering time.
+ViewMaker = Callable[[Sequence[tuple[EntryReport, Surroundings]], CatalogMeta],
+                     list[EntryView]]
+
+
+def views_made_here(wanted: Sequence[tuple[EntryReport, Surroundings]],
+                    meta: CatalogMeta) -> list[EntryView]:
+    return [entry_view(report, meta, around) for report, around in wanted]
+
+
 def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path,
-                kept_views: ViewShelf | None = None) -> set[str]:
+                kept_views: ViewShelf | None = None,
+                make_views: ViewMaker = views_made_here) -> set[str]:
     """Write the complete site for the published (ok) reports into ``out_dir``.
 
-    ``kept_views``: where entry views made by earlier builds are kept (see ``kept_view``).
-    Returns the keys of the views this site is made of (what a pruned cache keeps)."""
+    ``kept_views``: where entry views made by earlier builds are kept (see ``kept_view``);
+    ``make_views`` makes the others. Returns the keys of the views this site is made of
+    (what a pruned cache keeps)."""
     published = published_reports(reports, meta)
     around = surroundings(published)
     keys = {entry_id: view_key(r, meta, around[entry_id])
             for entry_id, r in zip(around, published, strict=True)}
-    views = {entry_id: kept_view(r, meta, kept_views, keys[entry_id], around[entry_id])
-             for entry_id, r in zip(around, published, strict=True)}
+    views = kept_views_of(published, meta, around, keys, kept_views, make_views)
     cards = [views[r.entry.id].card for r in published if r.entry is not None]
     env = template_environment()
     pages = list(site_pages(published, views, cards, meta))
@@ -175,22 +187,34 @@ RENDER_LIBRARIES = ("matplotlib", "latex2mathml", "markdown", "nh3", "markupsafe
                     "lunr")
 
 
-def kept_view(report: EntryReport, meta: CatalogMeta, shelf: ViewShelf | None,
-              key: str | None, around: Surroundings = NOWHERE) -> EntryView:
-    """``entry_view``, kept under ``key`` (``view_key``: everything it is made from).
+def kept_views_of(published: Sequence[EntryReport], meta: CatalogMeta,
+                  around: Mapping[str, Surroundings], keys: Mapping[str, str | None],
+                  shelf: ViewShelf | None, make_views: ViewMaker = views_made_here
+                  ) -> dict[str, EntryView]:
+    """Entry id → ``entry_view``, each kept under its key (``view_key``: everything it is made
+    from).
 
     Once the checks come from the cache, plots and typesetting are nearly all of a build's
     time; a rebuild then makes views only for the entries that changed (or whose
-    surroundings in the catalog did: families, tags, revisions, the entries it is joined to).
+    surroundings in the catalog did: families, tags, revisions, the entries it is joined to),
+    all at once, so that ``make_views`` can spread them over processes.
     """
-    if shelf is not None and key is not None:
-        found = shelf.get(key, EntryView)
-        if found is not None:
-            return found
-    view = entry_view(report, meta, around)
-    if shelf is not None and key is not None:
-        shelf.put(key, view)
-    return view
+    views: dict[str, EntryView] = {}
+    missing: list[tuple[str, EntryReport]] = []
+    for report in published:
+        entry_id = report.entry.id  # type: ignore[union-attr]
+        key = keys[entry_id]
+        found = shelf.get(key, EntryView) if shelf is not None and key is not None else None
+        if found is None:
+            missing.append((entry_id, report))
+        else:
+            views[entry_id] = found
+    made = make_views([(report, around[entry_id]) for entry_id, report in missing], meta)
+    for (entry_id, _), view in zip(missing, made, strict=True):
+        views[entry_id] = view
+        if shelf is not None and keys[entry_id] is not None:
+            shelf.put(keys[entry_id], view)  # type: ignore[arg-type]
+    return views
 
 
 def view_key(report: EntryReport, meta: CatalogMeta, around: Surroundings = NOWHERE

@@ -1,0 +1,50 @@
+"""Entry views made in worker processes: the render stage's share of a cold build.
+
+Making an entry's view (plots, typeset tensors, downloads) is pure and takes about a second
+per entry, almost all of it in one process's interpreter; with the checks cached it is
+nearly all of a build. Spread over the cores it takes half the time on two. Few views (a
+rebuild after one change) are made here: starting workers that import matplotlib and SymPy
+costs more than it saves.
+"""
+
+from __future__ import annotations
+
+import multiprocessing
+import os
+from collections.abc import Sequence
+from concurrent.futures import ProcessPoolExecutor
+
+from generator.model import CatalogMeta, EntryReport
+from generator.run.safepickle import register_canonical_reducers
+from generator.site.common import Surroundings
+from generator.site.entry_page import EntryView, entry_view
+from generator.site.writer import ViewMaker, views_made_here
+
+# Below this many views, workers' start-up (imports: about 2 s each) outweighs the sharing.
+MIN_VIEWS_FOR_WORKERS = 8
+
+_meta: list[CatalogMeta] = []  # the catalog-wide data, sent once to each worker
+
+
+def views_in_processes(jobs: int) -> ViewMaker:
+    """A view maker that uses up to ``jobs`` worker processes (0: all cores)."""
+    def make(wanted: Sequence[tuple[EntryReport, Surroundings]],
+             meta: CatalogMeta) -> list[EntryView]:
+        workers = min(jobs or os.cpu_count() or 1, len(wanted))
+        if workers < 2 or len(wanted) < MIN_VIEWS_FOR_WORKERS:
+            return views_made_here(wanted, meta)
+        register_canonical_reducers()  # reports go to the workers as pickles: keep them fast
+        with ProcessPoolExecutor(max_workers=workers,
+                                 mp_context=multiprocessing.get_context("spawn"),
+                                 initializer=_receive_meta, initargs=(meta,)) as pool:
+            return list(pool.map(_view, wanted))
+    return make
+
+
+def _receive_meta(meta: CatalogMeta) -> None:
+    _meta[:] = [meta]
+
+
+def _view(job: tuple[EntryReport, Surroundings]) -> EntryView:
+    report, around = job
+    return entry_view(report, _meta[0], around)

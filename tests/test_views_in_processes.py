@@ -1,0 +1,64 @@
+"""Views made in worker processes give the very site made in one process.
+
+The reference is the one-process build itself (byte-identical files are the site's promise of
+determinism, tests/test_render.py); the fixture is the scale-small catalog
+(tests/roots/scale-small, invented entries plus textbook Schwarzschild and flat space).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from _scale_helpers import FAILING, FIXTURE, catalog_files
+
+from generator.run import views
+from generator.run.build import catalog_meta
+from generator.run.pipeline import RunOptions, check_files
+from generator.site.writer import render_site, views_made_here
+
+
+@pytest.fixture(scope="module")
+def fixture_reports():
+    reports = check_files(catalog_files(FIXTURE), FIXTURE, FIXTURE.parent,
+                          RunOptions(jobs=1, cache_dir=None), search_duplicates=False)
+    published = [r for r in reports if r.ok]
+    assert len(published) == len(reports) - len(FAILING) >= 3
+    return reports
+
+
+def _files(folder: Path) -> dict[str, bytes]:
+    return {str(p.relative_to(folder)): p.read_bytes()
+            for p in sorted(folder.rglob("*")) if p.is_file()}
+
+
+def test_worker_views_give_byte_identical_pages(fixture_reports, tmp_path, monkeypatch) -> None:
+    monkeypatch.setattr(views, "MIN_VIEWS_FOR_WORKERS", 1)
+    made: list[int] = []
+
+    def counted(wanted, meta):
+        made.append(len(wanted))
+        return views.views_in_processes(2)(wanted, meta)
+
+    meta = catalog_meta(FIXTURE, None)
+    render_site(fixture_reports, meta, tmp_path / "here", None, views_made_here)
+    render_site(fixture_reports, meta, tmp_path / "workers", None, counted)
+    assert made and made[0] >= 3
+    here, workers = _files(tmp_path / "here"), _files(tmp_path / "workers")
+    assert len(here) > 20
+    assert here == workers
+
+
+def test_few_views_are_made_without_workers(fixture_reports, monkeypatch) -> None:
+    """Below the threshold nothing is spawned (a rebuild after one change stays quick)."""
+    def no_pool(*args, **kwargs):
+        raise AssertionError("a worker pool was started for a few views")
+
+    monkeypatch.setattr(views, "ProcessPoolExecutor", no_pool)
+    published = [r for r in fixture_reports if r.ok][:2]
+    from generator.site.entry_page import NOWHERE
+
+    made = views.views_in_processes(2)([(r, NOWHERE) for r in published],
+                                       catalog_meta(FIXTURE, None))
+    assert [v.card for v in made] == [v.card for v in views_made_here(
+        [(r, NOWHERE) for r in published], catalog_meta(FIXTURE, None))]
