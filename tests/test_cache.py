@@ -13,6 +13,7 @@ import pickle
 from pathlib import Path
 
 import pytest
+from _pickle_helpers import Reduces
 from _scale_helpers import (
     ENTRY_COUNT,
     catalog_files,
@@ -280,16 +281,6 @@ def test_a_linked_key_file_is_not_read(monkeypatch, tmp_path) -> None:
 # ---------------------------------------------------------------------------- safe unpickling
 
 
-class _Reduces:
-    """Pickles as a call of ``target(*args)``: the shape of every code-running pickle."""
-
-    def __init__(self, target, *args) -> None:
-        self.target, self.args = target, args
-
-    def __reduce__(self) -> tuple:
-        return (self.target, self.args)
-
-
 def _payloads(marker: Path) -> dict[str, bytes]:
     import os
     import subprocess
@@ -298,17 +289,17 @@ def _payloads(marker: Path) -> dict[str, bytes]:
 
     code = f"__import__('pathlib').Path({str(marker)!r}).touch()"
     return {
-        "os.system": pickle.dumps(_Reduces(os.system, f"touch {marker}")),
-        "Path.touch": pickle.dumps(_Reduces(Path.touch, marker)),
-        "eval": pickle.dumps(_Reduces(eval, code)),
-        "sympify": pickle.dumps(_Reduces(sympy.sympify, code)),
-        "parse_expr": pickle.dumps(_Reduces(sympy.parsing.sympy_parser.parse_expr, code)),
-        "sin(text)": pickle.dumps(_Reduces(sympy.sin, code)),
-        "Tuple(text)": pickle.dumps(_Reduces(sympy.Tuple, code)),
-        "Matrix(text)": pickle.dumps(_Reduces(sympy.Matrix, [[code]])),
-        "Popen": pickle.dumps(_Reduces(subprocess.Popen, ["touch", str(marker)])),
-        "protocol 0": pickle.dumps(_Reduces(os.system, f"touch {marker}"), protocol=0),
-        "a project function": pickle.dumps(_Reduces(__import__(
+        "os.system": pickle.dumps(Reduces(os.system, f"touch {marker}")),
+        "Path.touch": pickle.dumps(Reduces(Path.touch, marker)),
+        "eval": pickle.dumps(Reduces(eval, code)),
+        "sympify": pickle.dumps(Reduces(sympy.sympify, code)),
+        "parse_expr": pickle.dumps(Reduces(sympy.parsing.sympy_parser.parse_expr, code)),
+        "sin(text)": pickle.dumps(Reduces(sympy.sin, code)),
+        "Tuple(text)": pickle.dumps(Reduces(sympy.Tuple, code)),
+        "Matrix(text)": pickle.dumps(Reduces(sympy.Matrix, [[code]])),
+        "Popen": pickle.dumps(Reduces(subprocess.Popen, ["touch", str(marker)])),
+        "protocol 0": pickle.dumps(Reduces(os.system, f"touch {marker}"), protocol=0),
+        "a project function": pickle.dumps(Reduces(__import__(
             "generator.entry.catalog", fromlist=["x"]).entry_files, [marker])),
     }
 

@@ -14,6 +14,7 @@ from pathlib import Path
 
 import pytest
 import sympy
+from _pickle_helpers import Reduces
 
 from generator.run import safepickle
 from generator.run.safepickle import (
@@ -102,29 +103,20 @@ def test_a_reducer_that_lost_canonical_order_would_be_noticed(monkeypatch) -> No
 # ---------------------------------------------------------------------------- planted arguments
 
 
-class _Calls:
-    """Pickles as ``target(*args)``: how a planted file would reach a rebuilder."""
-
-    def __init__(self, target, *args) -> None:
-        self.target, self.args = target, args
-
-    def __reduce__(self) -> tuple:
-        return (self.target, self.args)
-
-
 def _planted(marker: Path) -> dict[str, object]:
     code = f"__import__('pathlib').Path({str(marker)!r}).touch()"
     x = sympy.Symbol("x")
     return {
-        "text in a sum": _Calls(rebuild_operation, sympy.Add, (x, code), True),
-        "text as the power's exponent": _Calls(rebuild_power, x, code, True),
-        "text to a function": _Calls(rebuild_unevaluated, sympy.sin, (code,)),
-        "text to a comparison": _Calls(rebuild_unevaluated, sympy.StrictGreaterThan, (x, code)),
-        "a kind not allowed": _Calls(rebuild_unevaluated, sympy.Function, (x,)),
-        "a parser as the kind": _Calls(rebuild_operation, sympy.sympify, (x, x), True),
-        "a symbol as the kind": _Calls(rebuild_unevaluated, x, (x,)),
-        "a flag that is not fuzzy": _Calls(rebuild_operation, sympy.Mul, (x, x), code),
-        "arguments in a list": _Calls(rebuild_operation, sympy.Add, [x, x], True),
+        "text in a sum": Reduces(rebuild_operation, sympy.Add, (x, code), True),
+        "text as the power's exponent": Reduces(rebuild_power, x, code, True),
+        "text to a function": Reduces(rebuild_unevaluated, sympy.sin, (code,)),
+        "text to a comparison": Reduces(rebuild_unevaluated, sympy.StrictGreaterThan, (x, code)),
+        "a kind not allowed": Reduces(rebuild_unevaluated, sympy.Function, (x,)),
+        "a parser as the kind": Reduces(rebuild_operation, sympy.sympify, (x, x), True),
+        "a symbol as the kind": Reduces(rebuild_unevaluated, x, (x,)),
+        "a flag that is not fuzzy": Reduces(rebuild_operation, sympy.Mul, (x, x), code),
+        "arguments in a list": Reduces(rebuild_operation, sympy.Add, [x, x], True),
+        "an unhashable kind": Reduces(rebuild_unevaluated, [sympy.sin], (x,)),
     }
 
 

@@ -72,8 +72,9 @@ def safe_loads(payload: bytes) -> Any:
 
 
 def canonical_dumps(value: object) -> bytes:
-    """Pickle ``value`` with SymPy's sums, products and powers kept in canonical form (see the
-    module's docstring), so that loading does not redo SymPy's simplification."""
+    """Pickle ``value`` with SymPy's sums, products, powers, elementary functions and
+    comparisons kept as built (see the module's docstring), so that loading does not redo
+    SymPy's canonicalisation."""
     buffer = io.BytesIO()
     pickler = pickle.Pickler(buffer, protocol=pickle.HIGHEST_PROTOCOL)
     pickler.dispatch_table = {**copyreg.dispatch_table, **CANONICAL_REDUCERS}
@@ -82,8 +83,8 @@ def canonical_dumps(value: object) -> bytes:
 
 
 def register_canonical_reducers() -> None:
-    """Make every pickler of this process store sums, products and powers canonically: a
-    worker process calls it so that the reports it hands back load fast in the parent."""
+    """Make every pickler of this process use the reducers of `canonical_dumps`: a worker
+    process calls it so that the reports it hands back load fast in the parent."""
     for kind, reducer in CANONICAL_REDUCERS.items():
         copyreg.pickle(kind, reducer)
 
@@ -109,7 +110,8 @@ def rebuild_power(base: Basic, exponent: Basic, commutative: bool | None) -> Bas
 def rebuild_unevaluated(kind: type, args: tuple) -> Basic:
     """An elementary function or a comparison as pickled, built with ``evaluate=False`` (its
     evaluation, the bulk of rebuilding it, already happened before it was pickled)."""
-    if kind not in UNEVALUATED_KINDS or not _expressions(args, at_least=1):
+    if not isinstance(kind, type) or kind not in UNEVALUATED_KINDS or \
+            not _expressions(args, at_least=1):
         raise RefusedPickle("refused a function or comparison with unexpected arguments")
     return kind(*args, evaluate=False)
 

@@ -79,7 +79,7 @@ def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path
                 make_views: ViewMaker = views_made_here) -> set[str]:
     """Write the complete site for the published (ok) reports into ``out_dir``.
 
-    ``kept_views``: where entry views made by earlier builds are kept (see ``kept_view``);
+    ``kept_views``: where entry views made by earlier builds are kept (see ``kept_views_of``);
     ``make_views`` makes the others. Returns the keys of the views this site is made of
     (what a pruned cache keeps)."""
     published = published_reports(reports, meta)
