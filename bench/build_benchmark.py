@@ -26,7 +26,7 @@ sys.path.insert(0, str(HERE))
 
 from scale_benchmark import TreeSampler  # noqa: E402
 
-SECRET = "build-benchmark-secret"
+SECRET = "build-benchmark-secret-0123456789abcdef"  # at least 32 characters
 
 
 def timed_build(catalog: Path, out: Path, cache: Path, jobs: int) -> tuple[float, float, float]:
