@@ -62,3 +62,32 @@ def test_few_views_are_made_without_workers(fixture_reports, monkeypatch) -> Non
                                        catalog_meta(FIXTURE, None))
     assert [v.card for v in made] == [v.card for v in views_made_here(
         [(r, NOWHERE) for r in published], catalog_meta(FIXTURE, None))]
+
+
+def test_a_broken_pool_leaves_the_views_to_this_process(fixture_reports, monkeypatch) -> None:
+    """A worker killed from outside breaks the pool; the views are then made here (the build
+    goes on as it did before views had workers), not lost with the pool's error."""
+    from concurrent.futures.process import BrokenProcessPool
+
+    from generator.site.entry_page import NOWHERE
+
+    class BrokenPool:
+        def __init__(self, *args, **kwargs) -> None:
+            pass
+
+        def __enter__(self):
+            return self
+
+        def __exit__(self, *exc) -> None:
+            return None
+
+        def map(self, *args, **kwargs):
+            raise BrokenProcessPool("a worker ended abruptly")
+
+    monkeypatch.setattr(views, "ProcessPoolExecutor", BrokenPool)
+    monkeypatch.setattr(views, "MIN_VIEWS_FOR_WORKERS", 1)
+    published = [r for r in fixture_reports if r.ok]
+    meta = catalog_meta(FIXTURE, None)
+    made = views.views_in_processes(2)([(r, NOWHERE) for r in published], meta)
+    assert [v.card for v in made] == [v.card for v in views_made_here(
+        [(r, NOWHERE) for r in published], meta)]

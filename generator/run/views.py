@@ -13,6 +13,7 @@ import multiprocessing
 import os
 from collections.abc import Sequence
 from concurrent.futures import ProcessPoolExecutor
+from concurrent.futures.process import BrokenProcessPool
 
 from generator.model import CatalogMeta, EntryReport
 from generator.run.safepickle import register_canonical_reducers
@@ -34,10 +35,15 @@ def views_in_processes(jobs: int) -> ViewMaker:
         if workers < 2 or len(wanted) < MIN_VIEWS_FOR_WORKERS:
             return views_made_here(wanted, meta)
         register_canonical_reducers()  # reports go to the workers as pickles: keep them fast
-        with ProcessPoolExecutor(max_workers=workers,
-                                 mp_context=multiprocessing.get_context("spawn"),
-                                 initializer=_receive_meta, initargs=(meta,)) as pool:
-            return list(pool.map(_view, wanted))
+        try:
+            with ProcessPoolExecutor(max_workers=workers,
+                                     mp_context=multiprocessing.get_context("spawn"),
+                                     initializer=_receive_meta, initargs=(meta,)) as pool:
+                return list(pool.map(_view, wanted))
+        except BrokenProcessPool:
+            # A worker ended from outside (out of memory, killed): make them here, as a build
+            # did before views had workers, rather than end the build with the pool's error.
+            return views_made_here(wanted, meta)
     return make
 
 
