@@ -569,20 +569,13 @@ class _RootTower:
 def _square_roots_of_coordinates(exprs: Sequence[sympy.Expr], spacetime: Spacetime
                                  ) -> list[tuple[sympy.Symbol, sympy.Expr]] | None:
     """(w, P) for each square root √P of an expression in the coordinates (any odd power
-    P^(k/2)); None when a cube or higher root of the coordinates occurs."""
+    P^(k/2)), as the bracket-by-bracket way names them (``_radical_split``); None when a cube
+    or higher root of the coordinates occurs."""
     coordinates = set(spacetime.coordinates)
-    bases = []
-    for e in exprs:
-        for atom in sympy.sympify(e).atoms(sympy.Pow):
-            if not atom.exp.is_Rational or atom.exp.is_Integer or \
-                    not atom.base.free_symbols & coordinates:
-                continue
-            if atom.exp.q != 2:
-                return None
-            if atom.base not in bases:
-                bases.append(atom.base)
-    return [(sympy.Dummy(f"w{k}"), base) for k, base in
-            enumerate(sorted(bases, key=sympy.default_sort_key))]
+    if any(atom.exp.is_Rational and atom.exp.q > 2 and atom.base.free_symbols & coordinates
+           for e in exprs for atom in sympy.sympify(e).atoms(sympy.Pow)):
+        return None
+    return list(_radical_split(exprs, spacetime).roots)
 
 
 def _with_root_symbols(expr: sympy.Expr, roots: Sequence[tuple[sympy.Symbol, sympy.Expr]]
@@ -604,12 +597,12 @@ def _domain_of(values: Sequence[sympy.Expr], algebraic: bool):
     """A field holding ``values`` and its elements: SymPy's choice, or with ``algebraic`` the
     square roots of numbers (√3 from √(Λ/3)) in an algebraic field of coefficients, so that
     √3·√3 is 3 (as a generator of its own it is not; slower: gcds over the number field)."""
+    if not algebraic:
+        return construct_domain(list(values), field=True)
     numbers = {a for v in values for a in v.atoms(sympy.Pow)
                if a.base.is_Rational and a.exp.is_Rational and not a.exp.is_Integer}
-    if not numbers or not algebraic:
-        if algebraic:
-            raise NotImplementedError("no roots of numbers: nothing to try again with")
-        return construct_domain(list(values), field=True)
+    if not numbers:
+        raise NotImplementedError("no roots of numbers: nothing to try again with")
     if any(a.exp.q != 2 for a in numbers):
         raise NotImplementedError("a cube or higher root of a number")
     symbols = sorted(set().union(*(v.free_symbols for v in values)), key=str)
