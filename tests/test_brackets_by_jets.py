@@ -132,3 +132,33 @@ def test_de_sitter_static_time_translation_scales_a_boost_by_k() -> None:
     sign = 1 if time_index < boost else -1
     expected = [sign * sympy.sqrt(lam / 3) if k == boost else 0 for k in range(len(basis))]
     assert all(sympy.simplify(c - e) == 0 for c, e in zip(constants, expected, strict=True))
+
+
+@pytest.mark.slow
+def test_roots_of_numbers_as_tower_symbols_give_the_algebraic_fields_table(monkeypatch) -> None:
+    """De Sitter's static chart brings √3 into the jets (√(Λ/3) = s·√3/3). Taken as a tower
+    symbol v with v² = 3 (every constant written c₀ + c₁·v), the table must be the one SymPy's
+    algebraic number field gives, bracket for bracket; and the tower, not the slower field,
+    must be what decides it. Each bracket is also checked independently."""
+    st, basis = listed_basis("backgrounds/de-sitter-static.yaml")
+    squares = lie_algebra.parameter_squares(basis, st)
+    pairs = [(i, j) for i in range(len(basis)) for j in range(i + 1, len(basis))]
+    modes_used = []
+    reduce = lie_algebra._reduced_jets
+
+    def spying(*args):
+        table = reduce(*args)
+        modes_used.append((args[-1], table is not None))
+        return table
+
+    monkeypatch.setattr(lie_algebra, "_reduced_jets", spying)
+    by_tower = expand_by_one_jet(pairs, basis, st, squares)
+    assert ("tower", True) in modes_used and "algebraic" not in [m for m, _ in modes_used]
+    monkeypatch.setattr(lie_algebra, "NUMBER_ROOTS", ("algebraic",))
+    by_field = expand_by_one_jet(pairs, basis, st, squares)
+    assert all(v is not None for v in by_tower.values())
+    for key in pairs:
+        assert all(sympy.simplify(a - b) == 0
+                   for a, b in zip(by_tower[key], by_field[key], strict=True)), key
+    table = [(i, j, c) for (i, j), c in by_tower.items() if any(x != 0 for x in c)]
+    assert independently_checked(st, basis, table)

@@ -173,3 +173,54 @@ def test_a_thin_interval_set_by_linear_bounds_is_sampled_directly() -> None:
     assert len(points) == 6
     for p in points:
         assert p[R] * sp.Rational(99, 100) < p[r] < p[R] * sp.Rational(101, 100)
+
+
+def test_domain_relations_are_judged_as_sympy_judges_them() -> None:
+    # Reference: SymPy's own exact relational evaluation and error-controlled evalf (a
+    # general-purpose library). The sampler judges rational relations in Python fractions and
+    # the others in mpmath at two precisions; both must say what SymPy says.
+    import random
+
+    from generator.geometry.sampling import _holds_everywhere
+
+    x, y = sp.symbols("x y", real=True)
+    relations = [
+        x**2 - 3 * x * y + y**3 / 7 > sp.Rational(1, 5),
+        (x - y) ** 3 / (1 + x**2) <= y,
+        sp.sqrt(x**2 + y**2) - sp.exp(x / 3) > 0,
+        sp.cos(x) ** 2 * y >= sp.Rational(1, 4),
+        sp.Ne(x, y),
+    ]
+    rng = random.Random(11)
+    for _ in range(40):
+        point = {x: sp.Rational(rng.randint(-40, 40), rng.randint(1, 9)),
+                 y: sp.Rational(rng.randint(-40, 40), rng.randint(1, 9))}
+        for relation in relations:
+            expected = bool(relation.xreplace(point))
+            assert _holds_everywhere((relation,), point, ()) is expected, (relation, point)
+
+
+def test_a_value_thirty_digits_cannot_resolve_is_left_to_evalf() -> None:
+    # x = 10³⁵ + 1/3 needs about 37 digits: at 30 digits plain mpmath rounds away the 1/3 and
+    # takes sin(10³⁵) ≈ 0.958 instead of sin(x) ≈ 0.999 (SymPy's evalf, a general-purpose
+    # library with error control, gives the latter). The values at 30 and 45 digits disagree,
+    # so evalf decides; trusting the 30-digit value alone would call sin(x) > 0.97 false.
+    from generator.geometry.sampling import _agreeing_value, _holds_everywhere
+
+    x = sp.Symbol("x", real=True)
+    point = {x: sp.Integer(10) ** 35 + sp.Rational(1, 3)}
+    assert _agreeing_value(sp.sin(x), point) is None
+    assert _holds_everywhere((sp.sin(x) > sp.Rational(97, 100),), point, ()) is True
+    assert _holds_everywhere((sp.sin(x) > sp.Rational(9995, 10000),), point, ()) is False
+
+
+def test_the_sampler_judges_a_value_at_zero_exactly_or_by_evalf() -> None:
+    # A difference that is exactly zero never "agrees" in relative terms: evalf decides, and
+    # with the margin the strict relation fails and the weak one holds (common practice).
+    from generator.geometry.sampling import _agreeing_value, _holds_everywhere
+
+    x = sp.Symbol("x", positive=True)
+    zero = sp.sqrt(x) - sp.sqrt(4)
+    assert _agreeing_value(zero, {x: sp.Integer(4)}) is None
+    assert _holds_everywhere((zero > 0,), {x: sp.Integer(4)}, ()) is False
+    assert _holds_everywhere((zero >= 0,), {x: sp.Integer(4)}, ()) is True

@@ -19,6 +19,7 @@ import itertools
 import random
 from collections.abc import Iterator
 from dataclasses import dataclass
+from fractions import Fraction
 
 import mpmath
 import sympy
@@ -158,13 +159,20 @@ def random_rational(rng: random.Random, scale: int, sign: str = "any") -> sympy.
 
     The magnitude is drawn at a random decade around ``scale`` so that domains which need one
     parameter much smaller than another (e.g. Lambda*M**2 < 1/9) are still reached."""
-    decade = sympy.Rational(10) ** rng.choice((0, 0, 0, -1, -1, -2, 1))
-    value = sympy.Rational(rng.randint(1, 99), rng.randint(1, 12)) * scale * decade / 10
+    decade = Fraction(10) ** rng.choice((0, 0, 0, -1, -1, -2, 1))
+    value = Fraction(rng.randint(1, 99), rng.randint(1, 12)) * _fraction(scale) * decade / 10
     if sign in ("nonnegative", "nonpositive") and rng.random() < 0.05:
         return sympy.Integer(0)
     if sign in ("negative", "nonpositive") or (sign == "any" and rng.random() < 0.25):
-        return -value
-    return value
+        value = -value
+    return sympy.Rational(value.numerator, value.denominator)
+
+
+def _fraction(value: int | sympy.Rational) -> Fraction:
+    """A Python fraction of an integer or a SymPy rational (quick exact arithmetic)."""
+    if isinstance(value, int):
+        return Fraction(value)
+    return Fraction(int(value.p), int(value.q))
 
 
 def parameter_value(symbol: sympy.Symbol, rng: random.Random, scale: int) -> sympy.Rational:
@@ -347,30 +355,109 @@ def _holds_everywhere(relations: tuple[sympy.Basic, ...], point: Point,
     a sample)."""
     for relation in relations:
         if not isinstance(relation, sympy.core.relational.Relational):
-            value = substitute(relation, point, angles)
-            if value is not sympy.true:
+            if substitute(relation, point, angles) is not sympy.true:
                 return False
-        elif relation.lhs.is_rational_function() and relation.rhs.is_rational_function():
-            if relation.xreplace(point) is not sympy.true:
+            continue
+        difference, rational = _difference_of(relation)
+        exact = _exact_value(difference, point) if rational else None
+        if exact is not None and relation.rel_op in _EXACT:
+            if not _EXACT[relation.rel_op](exact):
                 return False
-        elif not _numeric_truth(relation, point):
+        elif relation.rel_op in _MARGINS:
+            if not _numeric_truth(relation, difference, point, angles):
+                return False
+        elif relation.xreplace(point) is not sympy.true:
             return False
     return True
 
 
-def _numeric_truth(relation: sympy.core.relational.Relational, point: Point) -> bool:
-    value = (relation.lhs - relation.rhs).evalf(30, subs=_symbol_values(point))
+@functools.lru_cache(maxsize=1024)
+def _difference_of(relation: sympy.core.relational.Relational) -> tuple[sympy.Expr, bool]:
+    """lhs − rhs of a relation and whether it is a rational function (asked for every
+    sample drawn: remembered)."""
+    difference = relation.lhs - relation.rhs
+    return difference, bool(difference.is_rational_function())
+
+
+def _exact_value(expr: sympy.Expr, point: Point) -> Fraction | None:
+    """A rational function's value at the point in Python fractions (SymPy's substitution
+    built a new expression tree for every sample); None where it is undefined or holds
+    anything but sums, products, integer powers, rationals and the point's symbols."""
+    try:
+        return _fraction_of(expr, point)
+    except (KeyError, ZeroDivisionError, _NotRational):
+        return None
+
+
+class _NotRational(Exception):
+    """A node ``_fraction_of`` does not evaluate."""
+
+
+def _fraction_of(e: sympy.Basic, point: Point) -> Fraction:
+    if e.is_Rational:
+        return Fraction(int(e.p), int(e.q))
+    if e.is_Symbol:
+        value = point[e]
+        if not value.is_Rational:
+            raise _NotRational(e)
+        return Fraction(int(value.p), int(value.q))
+    if e.is_Add:
+        return sum((_fraction_of(a, point) for a in e.args), Fraction(0))
+    if e.is_Mul:
+        product = Fraction(1)
+        for a in e.args:
+            product *= _fraction_of(a, point)
+        return product
+    if e.is_Pow and e.exp.is_Integer and abs(int(e.exp)) <= 64:
+        return _fraction_of(e.base, point) ** int(e.exp)
+    raise _NotRational(e)
+
+
+def _numeric_truth(relation: sympy.core.relational.Relational, difference: sympy.Expr,
+                   point: Point, angles: tuple[sympy.Symbol, ...]) -> bool:
+    """The relation at the point judged with the 1e-25 margin: in plain mpmath when its
+    values at 30 and at 45 digits agree far beyond the margin (most points: SymPy's evalf was
+    most of the cost of a sample), else on SymPy's error-controlled 30-digit value."""
+    check = _MARGINS[relation.rel_op]
+    margin = mpmath.mpf(10) ** -25
+    quick = _agreeing_value(through_sin_cos(difference, angles), point)
+    if quick is not None:
+        return bool(check(quick, margin))
+    value = difference.evalf(30, subs=_symbol_values(point))
     if not (value.is_Float or value.is_Rational):  # complex, or not a number at all
         return False
-    margin = sympy.Float("1e-25", 30)
-    checks = {
-        ">": lambda d: d > margin,
-        "<": lambda d: d < -margin,
-        ">=": lambda d: d > -margin,
-        "<=": lambda d: d < margin,
-    }
-    check = checks.get(relation.rel_op)
-    return bool(check(value)) if check else False
+    return bool(check(value, sympy.Float("1e-25", 30)))
+
+
+def _agreeing_value(expr: sympy.Expr, point: Point) -> mpmath.mpf | None:
+    """``expr``'s real value at the point when mpmath's values at 30 and at 45 digits agree
+    to 20 digits, are finite and real; None otherwise (the caller then asks SymPy's evalf,
+    which controls its error). Plain mpmath has no error control, so agreement at two
+    precisions stands in for it; a value near zero never agrees in relative terms and so is
+    always left to evalf."""
+    values = []
+    for digits in (30, 45):
+        with mpmath.workdps(digits):
+            try:
+                value = mpmath.mpc(_numeric(expr, numeric_memo(point)))
+            except (KeyError, TypeError, ValueError, ZeroDivisionError, OverflowError):
+                return None
+            if not (mpmath.isfinite(value.real) and mpmath.isfinite(value.imag)):
+                return None
+            values.append(value)
+    low, high = values
+    with mpmath.workdps(45):
+        scale = abs(high)
+        if scale == 0 or abs(high.imag) > scale * mpmath.mpf(10) ** -20 \
+                or abs(low - high) > scale * mpmath.mpf(10) ** -20:
+            return None
+        return high.real
+
+
+_MARGINS = {">": lambda d, m: d > m, "<": lambda d, m: d < -m,
+            ">=": lambda d, m: d > -m, "<=": lambda d, m: d < m}
+_EXACT = {">": lambda d: d > 0, "<": lambda d: d < 0, ">=": lambda d: d >= 0,
+          "<=": lambda d: d <= 0}
 
 
 def regular_at(
@@ -514,49 +601,12 @@ def iter_wide_points(spacetime: Spacetime, count: int, rng: random.Random
         if found >= count:
             return
         point = _wide_point(spacetime, plan, rng)
-        if point is None or not _holds_quickly(plan.relations, point, plan.angles):
+        if point is None or not _holds_everywhere(plan.relations, point, plan.angles):
             continue
         for f in spacetime.functions:
             point.update(_wide_function_values(f, rng))
         found += 1
         yield point
-
-
-def _holds_quickly(relations: tuple[sympy.Basic, ...], point: Point,
-                   angles: tuple[sympy.Symbol, ...]) -> bool:
-    """``_holds_everywhere`` with relations that hold roots or functions judged in mpmath
-    (30 digits, the same 1e-25 margin) instead of SymPy's evalf, which is most of the cost of
-    a wide point."""
-    rest = []
-    for relation in relations:
-        if not (isinstance(relation, sympy.core.relational.Relational)
-                and relation.rel_op in _MARGINS):
-            rest.append(relation)
-            continue
-        difference = relation.lhs - relation.rhs
-        if difference.is_rational_function():
-            exact = difference.xreplace(point)
-            if exact.is_Rational:
-                if not _EXACT[relation.rel_op](exact):
-                    return False  # compared as a number: SymPy's relational calls evalf
-                continue
-        with mpmath.workdps(30):
-            try:
-                value = mpmath.mpc(_numeric(through_sin_cos(difference, angles),
-                                            numeric_memo(point)))
-            except (KeyError, TypeError, ValueError, ZeroDivisionError):
-                rest.append(relation)
-                continue
-            if abs(value.imag) > mpmath.mpf(10) ** -25 or \
-                    not _MARGINS[relation.rel_op](value.real, mpmath.mpf(10) ** -25):
-                return False
-    return _holds_everywhere(tuple(rest), point, angles)
-
-
-_MARGINS = {">": lambda d, m: d > m, "<": lambda d, m: d < -m,
-            ">=": lambda d, m: d > -m, "<=": lambda d, m: d < m}
-_EXACT = {">": lambda d: d.p > 0, "<": lambda d: d.p < 0, ">=": lambda d: d.p >= 0,
-          "<=": lambda d: d.p <= 0}
 
 
 def wide_rational(rng: random.Random, sign: str = "any") -> sympy.Rational:
@@ -592,7 +642,7 @@ def _symbol_sign(symbol: sympy.Basic) -> str:
 
 def _wide_point(spacetime: Spacetime, plan: DomainPlan, rng: random.Random) -> Point | None:
     point: Point = {p: _wide_parameter(p, rng) for p in spacetime.parameters}
-    if not _holds_quickly(plan.parameter_relations, point, ()):
+    if not _holds_everywhere(plan.parameter_relations, point, ()):
         return None
     for x in spacetime.coordinates:
         if x in plan.angles:

@@ -451,8 +451,8 @@ def expand_by_one_jet(pairs: Sequence[tuple[int, int]], basis: Sequence[Sequence
                            for r in radicands):
         return None
     table = None
-    for algebraic in (False, True):  # SymPy's own field first; √3 and the like as numbers next
-        table = _reduced_jets(jets, radicands, [w for w, _ in roots], pairs, n, d, algebraic)
+    for numbers in NUMBER_ROOTS:
+        table = _reduced_jets(jets, radicands, [w for w, _ in roots], pairs, n, d, numbers)
         if table is not None:
             break
     if table is None:
@@ -477,19 +477,31 @@ def expand_by_one_jet(pairs: Sequence[tuple[int, int]], basis: Sequence[Sequence
 
 def _reduced_jets(jets: dict[tuple, sympy.Expr], radicands: Sequence[sympy.Expr],
                   symbols: Sequence[sympy.Symbol], pairs: Sequence[tuple[int, int]], n: int,
-                  d: int, algebraic: bool) -> sympy.Matrix | None:
+                  d: int, numbers: str) -> sympy.Matrix | None:
     """The reduced echelon form of [basis 1-jets | bracket 1-jets] (rows split in the root
-    symbols), or None unless the basis's d columns are its first pivots. ``algebraic``: square
-    roots of numbers in the coefficient field (``_domain_of``) instead of SymPy's choice."""
+    symbols), or None unless the basis's d columns are its first pivots. ``numbers`` says
+    where square roots of numbers go (``NUMBER_ROOTS``)."""
     keys, flat = list(jets), list(jets.values())
+    number_roots: list[tuple[sympy.Symbol, sympy.Expr]] = []
     try:
-        domain, elements = _domain_of([*flat, *radicands], algebraic)
+        if numbers == "tower":
+            number_roots = _square_roots_of_numbers(flat)
+            if len(number_roots) > MAX_NUMBER_ROOTS:
+                return None  # 2^m unknowns per constant: the algebraic field's way instead
+            flat = [v.xreplace({root: w for w, root in number_roots}) for v in flat]
+        domain, elements = _domain_of(
+            [*flat, *radicands, *(root**2 for _, root in number_roots)],
+            numbers == "algebraic")
     except (ValueError, TypeError, NotImplementedError, BasePolynomialError, ZeroDivisionError):
         return None
     if domain.is_EX or getattr(domain, "is_EXRAW", False):
         return None
-    value = dict(zip(keys, elements[: len(flat)], strict=True))
-    zero = domain.zero
+    if not domain.is_FractionField:  # plain numbers: a field of one unused symbol
+        ground, domain = domain, domain.frac_field(sympy.Dummy("unused"))
+        elements = [domain.convert_from(e, ground) for e in elements]
+    value, common = _over_common_denominator(
+        dict(zip(keys, elements[: len(flat)], strict=True)), domain)
+    zero = domain.field.ring.zero
 
     def bracket_jet(i: int, j: int) -> list:
         entries = [sum((value[i, b, ()] * value[j, a, (b,)] - value[j, b, ()] * value[i, a, (b,)]
@@ -504,66 +516,149 @@ def _reduced_jets(jets: dict[tuple, sympy.Expr], radicands: Sequence[sympy.Expr]
         return entries
 
     def basis_jet(i: int) -> list:
-        return [value[i, a, ()] for a in range(n)] + [value[i, a, (c,)] for a in range(n)
-                                                      for c in range(n)]
+        # times the common denominator once more: the bracket's jets carry it squared
+        return [value[i, a, ()] * common for a in range(n)] + [
+            value[i, a, (c,)] * common for a in range(n) for c in range(n)]
 
-    columns = [basis_jet(i) for i in range(d)] + [bracket_jet(i, j) for i, j in pairs]
+    # constants c = Σ_S c_S·Π_{v∈S} v over the subsets S of the number roots: unknowns of their
+    # own, as the tower's split equations hold no v (√(Λ/3) = s·v/3 with v² = 3)
+    multipliers = _products_of_roots(domain, number_roots)
+    basis_columns = [[entry * factor for entry in basis_jet(i)]
+                     for factor, _ in multipliers for i in range(d)]
+    columns = basis_columns + [bracket_jet(i, j) for i, j in pairs]
     rows = [[column[r] for column in columns] for r in range(n + n * n)]
-    if symbols:
-        rows = _RootTower(domain, symbols, elements[len(flat):]).split_rows(rows)
+    roots = [*symbols, *(v for v, _ in number_roots)]
+    if roots:
+        rows = _RootTower(domain, roots, elements[len(flat):]).split_rows(rows)
         if rows is None:
             return None
+    one = domain.field.ring.one
+    rows = [[domain.field.raw_new(entry, one) for entry in row] for row in rows]
     reduced, pivots = DomainMatrix(rows, (len(rows), len(columns)), domain).rref()
-    if tuple(pivots[:d]) != tuple(range(d)):
+    unknowns = len(basis_columns)
+    if tuple(pivots[:unknowns]) != tuple(range(unknowns)):
         return None  # the basis's 1-jets are not independent at the point
-    return reduced.to_Matrix()
+    return _constants_and_residuals(reduced.to_Matrix(), multipliers, d, unknowns)
+
+
+MAX_NUMBER_ROOTS = 3  # distinct square roots of numbers the tower takes in one table
+
+
+def _products_of_roots(domain, number_roots: Sequence[tuple[sympy.Symbol, sympy.Expr]]
+                       ) -> list[tuple[object, sympy.Expr]]:
+    """(Π v as a polynomial, Π √k as a number) for every subset of the number roots, the
+    empty product first."""
+    out = [(domain.field.ring.one, sympy.Integer(1))]
+    for v, root in number_roots:
+        symbol = domain.from_sympy(v).numer
+        out += [(factor * symbol, value * root) for factor, value in out]
+    return out
+
+
+def _constants_and_residuals(reduced: sympy.Matrix, multipliers: Sequence[tuple], d: int,
+                             unknowns: int) -> sympy.Matrix:
+    """The reduced matrix in the shape ``expand_by_one_jet`` reads, column d + k for the k-th
+    bracket: its d constants (Σ_S c_S·Π√k), then the rows that must vanish."""
+    brackets = reduced.cols - unknowns
+    out = sympy.zeros(d + reduced.rows - unknowns, d + brackets)
+    for k in range(brackets):
+        column = reduced[:, unknowns + k]
+        for i in range(d):
+            out[i, d + k] = sum((column[m * d + i] * value
+                                 for m, (_, value) in enumerate(multipliers)), sympy.Integer(0))
+        for r in range(unknowns, reduced.rows):
+            out[d + r - unknowns, d + k] = column[r]
+    return out
+
+
+NUMBER_ROOTS = ("field", "tower", "algebraic")
+"""Where the jets' square roots of numbers (√3 from √(Λ/3)) go, tried in this order: SymPy's
+own choice of field (quick; it gives up on most roots), symbols v of the root tower with
+v² = 3 (plain rational arithmetic), SymPy's algebraic number field (a hundred times slower,
+but it also finds constants that hold a root, which the tower's split equations cannot)."""
+
+
+def _square_roots_of_numbers(values: Sequence[sympy.Expr]
+                             ) -> list[tuple[sympy.Symbol, sympy.Expr]]:
+    """(v, √k) for each square root of a rational number in ``values``; NotImplementedError
+    for a higher root (the algebraic field's way refuses those too)."""
+    found = sorted({a for v in values for a in v.atoms(sympy.Pow)
+                    if a.base.is_Rational and a.exp.is_Rational and not a.exp.is_Integer},
+                   key=sympy.default_sort_key)
+    if not found:
+        raise NotImplementedError("no roots of numbers: nothing to try again with")
+    if any(a.exp != sympy.S.Half for a in found):
+        raise NotImplementedError("a higher root of a number, or a power SymPy left unsplit")
+    return [(sympy.Dummy(f"v{k}"), a) for k, a in enumerate(found)]
+
+
+def _over_common_denominator(values: dict, domain) -> tuple[dict, object]:
+    """The numerators of ``values`` over one common denominator D, and D: the brackets' jets
+    are then sums of products of polynomials (SymPy's fraction field cancels a gcd after every
+    product, most of the time of a ten-vector table). Both sides of [X_i, X_j] = c^k X_k
+    scaled by D² leave the constants as they are."""
+    ring = domain.field.ring
+    common = ring.one
+    for denominator in {v.denom for v in values.values()}:
+        common = common.lcm(denominator)
+    return {key: v.numer * common.exquo(v.denom) for key, v in values.items()}, common
 
 
 class _RootTower:
-    """Arithmetic modulo w_i² = P_i for the root symbols w_i (``expand_by_one_jet``): an
-    element of the domain whose denominator is free of the w's is reduced to degree ≤ 1 in
-    each w and split into the coefficients of the products of distinct w's. Equal
-    coefficients imply equal elements at the point's actual roots, whatever relations the
-    roots may have besides (the converse, needed only to find a solution, fails only when
-    they do, and then the pivots come out wrong and the caller's way is taken)."""
+    """Arithmetic modulo w_i² = P_i for the root symbols w_i (``expand_by_one_jet``): a row of
+    polynomials is reduced to degree ≤ 1 in each w (P_i = a_i/b_i brings b_i into a factor
+    by which the whole row is multiplied, which leaves its equation as it is) and split into
+    the coefficients of the products of distinct w's. Equal coefficients imply equal
+    elements at the point's actual roots, whatever relations the roots may have besides (the
+    converse, needed only to find a solution, fails only when they do, and then the pivots
+    come out wrong and the caller's way is taken)."""
 
     def __init__(self, domain, symbols: Sequence[sympy.Symbol], radicands: Sequence) -> None:
-        self.domain = domain
         self.ring = domain.field.ring
         names = list(domain.symbols)
         self.positions = [names.index(w) for w in symbols]
-        self.radicands = list(radicands)
+        self.numerators = [r.numer for r in radicands]
+        self.denominators = [r.denom for r in radicands]
 
-    def split(self, element) -> dict[tuple[int, ...], object] | None:
-        numerator, denominator = element.numer, element.denom
-        if any(denominator.degree(i) > 0 for i in self.positions):
-            return None  # a root in a denominator: not reduced here
-        parts: dict[tuple[int, ...], object] = {}
-        for monomial, coefficient in numerator.terms():
-            exponents = list(monomial)
-            factor = self.domain.one
-            pattern = []
-            for position, radicand in zip(self.positions, self.radicands, strict=True):
-                e = exponents[position]
-                if e >= 2:
-                    factor = factor * radicand ** (e // 2)
-                exponents[position] = 0
-                pattern.append(e % 2)
-            term = self.domain.field.field_new(self.ring({tuple(exponents): coefficient}))
-            key = tuple(pattern)
-            parts[key] = parts.get(key, self.domain.zero) + factor * term
-        return {key: part / self.domain.field.field_new(denominator)
-                for key, part in parts.items()}
+    def _free_of_roots(self, polynomial) -> bool:
+        return all(polynomial.degree(i) <= 0 for i in self.positions)
+
+    def split_row(self, row: list) -> list[list]:
+        halves = [max((m[p] // 2 for entry in row for m in entry.monoms()), default=0)
+                  for p in self.positions]
+        powers: dict[tuple[int, int], object] = {}
+
+        def factor_for(exponents: list[int]):
+            factor = self.ring.one
+            for k, (position, top) in enumerate(zip(self.positions, halves, strict=True)):
+                half = exponents[position] // 2
+                key = (k, half)
+                if key not in powers:
+                    powers[key] = (self.numerators[k] ** half
+                                   * self.denominators[k] ** (top - half))
+                factor = factor * powers[key]
+            return factor
+
+        split = []
+        for entry in row:
+            parts: dict[tuple[int, ...], object] = {}
+            for monomial, coefficient in entry.terms():
+                exponents = list(monomial)
+                factor = factor_for(exponents)
+                pattern = tuple(exponents[p] % 2 for p in self.positions)
+                for p in self.positions:
+                    exponents[p] = 0
+                term = self.ring({tuple(exponents): coefficient}) * factor
+                parts[pattern] = parts.get(pattern, self.ring.zero) + term
+            split.append(parts)
+        patterns = sorted({key for parts in split for key in parts})
+        return [[parts.get(key, self.ring.zero) for parts in split] for key in patterns]
 
     def split_rows(self, rows: list[list]) -> list[list] | None:
-        out = []
-        for row in rows:
-            split = [self.split(entry) for entry in row]
-            if any(s is None for s in split):
-                return None
-            patterns = sorted({key for s in split for key in s})
-            out += [[s.get(key, self.domain.zero) for s in split] for key in patterns]
-        return out
+        """None when a root stands in a radicand (not reduced here)."""
+        if not all(self._free_of_roots(p) for p in (*self.numerators, *self.denominators)):
+            return None
+        return [split for row in rows for split in self.split_row(row)]
 
 
 def _square_roots_of_coordinates(exprs: Sequence[sympy.Expr], spacetime: Spacetime
