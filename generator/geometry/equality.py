@@ -27,7 +27,7 @@ from __future__ import annotations
 import dataclasses
 import math
 import random
-from collections.abc import Callable, Iterator
+from collections.abc import Callable, Iterator, Sequence
 
 import mpmath
 import sympy
@@ -78,6 +78,24 @@ DIGITS = 30
 def decide_zero(expr: sympy.Expr, spacetime: Spacetime) -> Decision:
     """Is ``expr`` identically zero on the spacetime's domain?"""
     return _recorded(_decide(sympy.sympify(expr), sympy.Integer(0), spacetime))
+
+
+def zeros_at_once(exprs: Sequence[sympy.Expr], spacetime: Spacetime) -> list[bool] | None:
+    """Which of ``exprs`` have a zero normal form in one field built for all of them (a
+    tensor's components share their generators, and building the field is most of the cost
+    of one decision); None when they do not fit one field. True is a proof, as in
+    ``decide_zero``; False only means "not shown here" — the caller decides those one by one,
+    with ``decide_zero``'s sign cases and sampling."""
+    aligned = tuple(_without_subs(_aligned(sympy.sympify(e), spacetime)) for e in exprs)
+    try:
+        _, values = _field_of(aligned, spacetime)
+    except (NotInField, ZeroDivisionError):
+        return None
+    found = [value.is_zero() for value in values]
+    for zero in found:
+        if zero:
+            decisions.record("exact")
+    return found
 
 
 def decide_equal(claimed: sympy.Expr, computed: sympy.Expr, spacetime: Spacetime) -> Decision:

@@ -143,8 +143,10 @@ def linear_bound(relation: sympy.Basic, x: sympy.Symbol) -> tuple[str, sympy.Exp
     return ("lower" if lower else "upper"), bound, op in ("<", ">")
 
 
+@functools.lru_cache(maxsize=64)
 def angle_coordinates(spacetime: Spacetime) -> tuple[sympy.Symbol, ...]:
-    """Coordinates that occur as the argument of a circular function in the metric."""
+    """Coordinates that occur as the argument of a circular function in the metric
+    (remembered: asked at every sample point and every zero test of an entry)."""
     found = set()
     for f in spacetime.metric.atoms(*CIRCULAR):
         for x in spacetime.coordinates:

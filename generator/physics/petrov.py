@@ -36,7 +36,7 @@ from generator.geometry.algebra import (
     pairs,
 )
 from generator.geometry.curvature import WeylOperator, independent_index
-from generator.geometry.equality import nonzero_in_field
+from generator.geometry.equality import canonical_all, nonzero_in_field
 from generator.geometry.exactvalues import Point, sign_at, vanishes
 from generator.model import Geometry, Index, Spacetime
 
@@ -436,18 +436,9 @@ def weyl_scalars(geometry: Geometry, spacetime: Spacetime, points: Sequence[Poin
     C = weyl_component(geometry.weyl)
     nonzero = [(k, C(*k)) for k in itertools.product(range(4), repeat=4) if C(*k) != 0]
     roots = {scale[a]: 1 / sympy.sqrt(signs[a] * geometry.metric[a, a]) for a in range(4)}
-    # The five contractions meet the same sums again (Ψ0 and Ψ4, Ψ1 and Ψ3 share most of
-    # their groups): each distinct sum is cancelled and factored once (factor is a function
-    # of its input, so the display is the same).
-    factored: dict[tuple[sympy.Expr, bool], sympy.Expr] = {}
 
-    def factor_once(expr: sympy.Expr, cancel: bool) -> sympy.Expr:
-        if (expr, cancel) not in factored:
-            factored[expr, cancel] = sympy.factor(sympy.cancel(expr) if cancel else expr)
-        return factored[expr, cancel]
-
-    def contract(a: sympy.Matrix, b: sympy.Matrix, c: sympy.Matrix, d: sympy.Matrix
-                 ) -> sympy.Expr:
+    def grouped(a: sympy.Matrix, b: sympy.Matrix, c: sympy.Matrix, d: sympy.Matrix
+                ) -> dict[sympy.Expr, sympy.Expr]:
         groups: dict[sympy.Expr, list[sympy.Expr]] = {}
         for (i, j, k, q), v in nonzero:
             weight = sympy.expand(a[i] * b[j] * c[k] * d[q])
@@ -456,18 +447,23 @@ def weyl_scalars(geometry: Geometry, spacetime: Spacetime, points: Sequence[Poin
             for coefficient, monomial in (t.as_independent(*scale) for t in
                                           sympy.Add.make_args(weight)):
                 groups.setdefault(monomial, []).append(coefficient * v)
-        total = sympy.Integer(0)
-        for monomial, terms in groups.items():
-            total += factor_once(sympy.Add(*terms), True) * monomial.xreplace(roots)
-        return factor_once(total, False) if sympy.count_ops(total) < PSI_SIZE_LIMIT else total
+        return {monomial: sympy.Add(*terms) for monomial, terms in groups.items()}
 
-    return {
-        "Psi0": contract(ell, m, ell, m),
-        "Psi1": contract(ell, nn, ell, m),
-        "Psi2": contract(ell, m, mb, nn),
-        "Psi3": contract(ell, nn, mb, nn),
-        "Psi4": contract(nn, mb, nn, mb),
-    }
+    frames = {"Psi0": (ell, m, ell, m), "Psi1": (ell, nn, ell, m), "Psi2": (ell, m, mb, nn),
+              "Psi3": (ell, nn, mb, nn), "Psi4": (nn, mb, nn, mb)}
+    groups = {name: grouped(*vectors) for name, vectors in frames.items()}
+    # The five contractions meet the same sums again (Ψ0 and Ψ4, Ψ1 and Ψ3 share most of
+    # their groups): the distinct sums are reduced and factored together, in one field
+    sums = sorted({v for g in groups.values() for v in g.values()}, key=sympy.default_sort_key)
+    reduced = dict(zip(sums, canonical_all(sums, spacetime), strict=True))
+    totals = {name: sympy.Add(*(reduced[v] * monomial.xreplace(roots)
+                                for monomial, v in g.items()))
+              for name, g in groups.items()}
+    small = [name for name, total in totals.items()
+             if sympy.count_ops(total) < PSI_SIZE_LIMIT]
+    factored = canonical_all([totals[name] for name in small], spacetime)
+    totals.update(zip(small, factored, strict=True))
+    return totals
 
 
 def invariants(psi: dict[str, sympy.Expr]) -> tuple[sympy.Expr, sympy.Expr]:
