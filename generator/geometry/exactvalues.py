@@ -14,7 +14,7 @@ import sympy
 from sympy.core.function import AppliedUndef
 from sympy.polys.polyerrors import NotAlgebraic
 
-from generator.geometry.equality import decide_zero
+from generator.geometry.equality import decide_zero, zeros_at_once
 from generator.geometry.sampling import angle_coordinates, substitute
 from generator.model import Decision, Spacetime
 
@@ -123,6 +123,28 @@ def vanishes(expr: sympy.Expr, spacetime: Spacetime) -> Decision:
         except (sympy.PolynomialError, TypeError, ValueError):
             pass
     return decide_zero(expr, spacetime)
+
+
+def vanish_each(exprs: Sequence[sympy.Expr], spacetime: Spacetime) -> list[Decision]:
+    """``vanishes`` for each of several expressions that share their generators (a tensor's
+    components): the zeros are first sought in one field built for all of them, which is
+    most of the cost of one decision; the rest are decided one by one (``decide_zero``, or
+    ``vanishes`` with SymPy's cancel where no field holds them all)."""
+    exprs = [sympy.sympify(e) for e in exprs]
+    asked = [e for e in exprs if e != 0]
+    shown = zeros_at_once(asked, spacetime) if asked else []
+    proved = iter(shown if shown is not None else [False] * len(asked))
+    out = []
+    for expr in exprs:
+        if expr == 0:
+            out.append(Decision(True, "exact", "identically zero"))
+        elif next(proved):
+            out.append(Decision(True, "exact", "normal form is zero"))
+        elif shown is None:
+            out.append(vanishes(expr, spacetime))
+        else:
+            out.append(decide_zero(expr, spacetime))
+    return out
 
 
 def _has_radicals(expr: sympy.Expr) -> bool:

@@ -16,8 +16,8 @@ import sympy
 
 from generator.entry.mathparse import parse_math
 from generator.errors import Diagnostic, MathSyntaxError
-from generator.geometry.equality import canonical_all, decide_equal, decide_zero, zeros_at_once
-from generator.geometry.exactvalues import coordinate_names, index_label, vanishes
+from generator.geometry.equality import canonical_all, decide_equal
+from generator.geometry.exactvalues import coordinate_names, index_label, vanish_each, vanishes
 from generator.model import Entry, Geometry, MathText, Spacetime
 from generator.physics.exact_sources import exact_electrovacuum
 
@@ -82,17 +82,8 @@ def failing_components(matrix: sympy.Matrix, spacetime: Spacetime, name: str,
     n = spacetime.dimension
     indices = pairs(n) if symmetric else [(a, b) for a in range(n) for b in range(n)]
     failing, undecided = [], []
-    components = [matrix[a, b] for a, b in indices]
-    nonzero = [c for c in components if c != 0]
-    shown = zeros_at_once(nonzero, spacetime) if nonzero else []
-    proved = iter(shown if shown is not None else [False] * len(nonzero))
-    for (a, b), component in zip(indices, components, strict=True):
-        if component == 0 or next(proved):
-            continue
-        # SymPy's cancel (inside ``vanishes``) only where the field could not be built: where
-        # it was, the normal form already knows all cancel could find
-        decision = (vanishes(component, spacetime) if shown is None
-                    else decide_zero(component, spacetime))
+    decisions = vanish_each([matrix[a, b] for a, b in indices], spacetime)
+    for (a, b), decision in zip(indices, decisions, strict=True):
         label = name.format(index_label(names, (a,)), index_label(names, (b,)),
                             index_label(names, (a, b)))
         if decision.equal is False:

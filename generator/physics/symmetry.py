@@ -17,7 +17,7 @@ from generator.errors import Diagnostic, MathSyntaxError
 from generator.geometry import decisions
 from generator.geometry.decisions import weakest
 from generator.geometry.equality import decide_equal
-from generator.geometry.exactvalues import coordinate_names, index_label, vanishes
+from generator.geometry.exactvalues import coordinate_names, index_label, vanish_each
 from generator.model import (
     Decision,
     Entry,
@@ -115,8 +115,12 @@ def check_killing_vector(entry: Entry, spacetime: Spacetime, index: int, claim: 
     except Unreadable as exc:
         return Verdict(subject, False, "failed", exc.diagnostic.message, shown), exc.diagnostic
     lie = lie_derivative_metric(xi, spacetime.metric, spacetime.coordinates)
+    n = len(names)
+    upper = [(a, b) for a in range(n) for b in range(a, n)]
+    decided = dict(zip(upper, vanish_each([lie[a, b] for a, b in upper], spacetime),
+                       strict=True))
     failing, undecided, method = tally_symmetric(
-        len(names), lambda a, b: vanishes(lie[a, b], spacetime),
+        n, lambda a, b: decided[a, b],
         lambda a, b: f"(L_ξ g)_{index_label(names, (a, b))}")
     if not failing and not undecided:
         return Verdict(subject, True, method, how_shown(method, "L_ξ g_ab = 0"), shown,
