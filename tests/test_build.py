@@ -164,9 +164,11 @@ def test_a_pruned_cache_keeps_exactly_what_the_last_build_used(project: Path,
     def kept(suffix: str) -> set[str]:
         return {p.name for p in cache.glob(f"??/*{suffix}")}
 
+    # one entry: its report, its card, its view, and (also a .view) the search script
+    files_per_build = {".bin": 1, ".card": 1, ".view": 2}
     assert build_site(project / "catalog", project / "site", cached).ok
     before = {suffix: kept(suffix) for suffix in (".bin", ".card", ".view")}
-    assert all(len(names) == 1 for names in before.values())
+    assert {s: len(names) for s, names in before.items()} == files_per_build
     (cache / "notes.txt").write_text("not a cache file of ours")
     entry = project / "catalog" / "riemannian" / "lighthouse-dome.yaml"
     entry.write_text(entry.read_text().replace("title: Lighthouse dome", "title: Lighthouse"))
@@ -174,7 +176,8 @@ def test_a_pruned_cache_keeps_exactly_what_the_last_build_used(project: Path,
     assert build_site(project / "catalog", project / "site", cached, prune_cache=True).ok
     for suffix, old in before.items():
         now = kept(suffix)
-        assert len(now) == 1 and not now & old, suffix  # the edited entry's new files only
+        # the edited entry's new files only (its title is in the search script too)
+        assert len(now) == files_per_build[suffix] and not now & old, suffix
     assert (cache / "notes.txt").is_file()
 
     made: list[str] = []
@@ -183,7 +186,37 @@ def test_a_pruned_cache_keeps_exactly_what_the_last_build_used(project: Path,
                         lambda report, meta, ids=frozenset(): made.append(report.entry.id)
                         or real(report, meta, ids))
     assert build_site(project / "catalog", project / "site", cached, prune_cache=True).ok
-    assert made == [] and {s: len(kept(s)) for s in before} == {s: 1 for s in before}
+    assert made == [] and {s: len(kept(s)) for s in before} == files_per_build
+
+
+def test_a_rebuild_keeps_the_search_script_until_a_card_changes(
+        project: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    """The lunr index is rebuilt only when what it indexes changes; the script written from
+    the cache is the very script a fresh build writes (common practice: a cache must not
+    change the output)."""
+    from generator.run.cache import SECRET_ENV
+    from generator.site import writer as render
+
+    monkeypatch.setenv(SECRET_ENV, "build-test-secret-of-at-least-32-characters")
+    cached = RunOptions(jobs=1, cache_dir=project / "cache")
+    script = project / "site" / "assets" / "search-lunr.js"
+    made: list[int] = []
+    real = render.search_script
+    monkeypatch.setattr(render, "search_script", lambda cards: made.append(len(cards))
+                        or real(cards))
+    assert build_site(project / "catalog", project / "site", cached).ok
+    first = script.read_bytes()
+    assert build_site(project / "catalog", project / "site", cached).ok
+    assert len(made) == 1 and script.read_bytes() == first
+    entry = project / "catalog" / "riemannian" / "lighthouse-dome.yaml"
+    entry.write_text(entry.read_text().replace("title: Lighthouse dome", "title: Lantern"))
+    assert build_site(project / "catalog", project / "site", cached).ok
+    second = script.read_bytes()
+    assert len(made) == 2 and second != first
+    assert build_site(project / "catalog", project / "site", cached).ok
+    assert len(made) == 2 and script.read_bytes() == second
+    assert build_site(project / "catalog", project / "site", RunOptions(jobs=1)).ok
+    assert len(made) == 3 and script.read_bytes() == second
 
 
 def test_the_command_line_prunes_on_request(project: Path, monkeypatch: pytest.MonkeyPatch,

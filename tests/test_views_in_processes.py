@@ -49,19 +49,46 @@ def test_worker_views_give_byte_identical_pages(fixture_reports, tmp_path, monke
     assert here == workers
 
 
-def test_few_views_are_made_without_workers(fixture_reports, monkeypatch) -> None:
-    """Below the threshold nothing is spawned (a rebuild after one change stays quick)."""
-    def no_pool(*args, **kwargs):
-        raise AssertionError("a worker pool was started for a few views")
+def test_few_views_are_made_in_forked_copies_not_fresh_workers(fixture_reports, monkeypatch
+                                                               ) -> None:
+    """Below the threshold no fresh interpreter is spawned (a rebuild after one change stays
+    quick): the views are made in forked copies of this process, and equal those made here."""
+    import multiprocessing
 
-    monkeypatch.setattr(views, "ProcessPoolExecutor", no_pool)
+    contexts: list[str] = []
+    real_pool = views.ProcessPoolExecutor
+
+    def watched_pool(*args, **kwargs):
+        contexts.append(kwargs["mp_context"].get_start_method())
+        return real_pool(*args, **kwargs)
+
+    monkeypatch.setattr(views, "ProcessPoolExecutor", watched_pool)
     published = [r for r in fixture_reports if r.ok][:2]
     from generator.site.entry_page import NOWHERE
 
-    made = views.views_in_processes(2)([(r, NOWHERE) for r in published],
-                                       catalog_meta(FIXTURE, None))
-    assert [v.card for v in made] == [v.card for v in views_made_here(
-        [(r, NOWHERE) for r in published], catalog_meta(FIXTURE, None))]
+    meta = catalog_meta(FIXTURE, None)
+    made = views.views_in_processes(2)([(r, NOWHERE) for r in published], meta)
+    assert made == views_made_here([(r, NOWHERE) for r in published], meta)
+    if "fork" in multiprocessing.get_all_start_methods():
+        assert contexts == ["fork"]
+    assert "spawn" not in contexts
+
+
+def test_forked_views_give_byte_identical_pages(fixture_reports, tmp_path, monkeypatch) -> None:
+    monkeypatch.setattr(views, "MIN_VIEWS_FOR_WORKERS", 10**6)  # every view in a forked copy
+    forked: list[int] = []
+    real = views._views_in_forks
+
+    def counted(wanted, meta, workers):
+        forked.append(len(wanted))
+        return real(wanted, meta, workers)
+
+    monkeypatch.setattr(views, "_views_in_forks", counted)
+    meta = catalog_meta(FIXTURE, None)
+    render_site(fixture_reports, meta, tmp_path / "here", None, views_made_here)
+    render_site(fixture_reports, meta, tmp_path / "forks", None, views.views_in_processes(2))
+    assert forked and forked[0] >= 3
+    assert _files(tmp_path / "here") == _files(tmp_path / "forks")
 
 
 def test_a_broken_pool_leaves_the_views_to_this_process(fixture_reports, monkeypatch) -> None:

@@ -18,6 +18,7 @@ titled anti-de Sitter as a title match. Phrases that name a property ("Petrov ty
 
 from __future__ import annotations
 
+import hashlib
 import json
 import re
 import unicodedata
@@ -99,6 +100,17 @@ def build_index(cards: Sequence[Mapping[str, Any]]) -> dict[str, Any] | None:
     index = lunr(ref="id", fields=[{"field_name": name, "boost": boost}
                                    for name, boost in FIELDS], documents=documents)
     return index.serialize()
+
+
+def search_script_key(cards: Sequence[Mapping[str, Any]], libraries: str) -> str:
+    """Hash of everything ``search_script`` reads (the cards' search documents, the fields
+    and their boosts, the fold table, the synonyms) and of the library versions: a rebuild
+    whose cards did not change reuses the kept script (building the lunr index was a second
+    of every rebuild)."""
+    documents = [search_document(c) for c in sorted(cards, key=lambda c: c["id"])]
+    text = json.dumps([documents, FIELDS, GREEK, SYNONYMS, libraries], sort_keys=True,
+                      ensure_ascii=True)
+    return "search-" + hashlib.sha256(text.encode()).hexdigest()
 
 
 def search_script(cards: Sequence[Mapping[str, Any]]) -> str:

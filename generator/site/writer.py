@@ -49,7 +49,7 @@ from generator.site.common import (
     revision_file,
 )
 from generator.site.entry_page import EntryView, entry_view, surroundings
-from generator.site.search import search_script
+from generator.site.search import search_script, search_script_key
 from generator.versions import library_versions
 
 # ---------------------------------------------------------------------------- the stage
@@ -95,14 +95,16 @@ def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path
     for report in published:
         write_entry_files(report, views[report.entry.id], meta, out_dir)  # type: ignore[union-attr]
     write_text(out_dir / "assets" / "search-index.js", search_index_script(cards))
-    write_text(out_dir / "assets" / "search-lunr.js", search_script(cards))
+    script_key = search_script_key(cards, library_versions(RENDER_LIBRARIES))
+    write_text(out_dir / "assets" / "search-lunr.js", kept_search_script(cards, script_key,
+                                                                         kept_views))
     entries = [views[r.entry.id].data for r in published if r.entry is not None]
     write_text(out_dir / "catalog.json", catalog_json(entries, meta))
     copy_static(out_dir)
     if SCHEMA_FILE.is_file():
         (out_dir / "schema").mkdir(parents=True, exist_ok=True)
         shutil.copyfile(SCHEMA_FILE, out_dir / "schema" / "entry.schema.json")
-    return {key for key in keys.values() if key is not None}
+    return {key for key in keys.values() if key is not None} | {script_key}
 
 
 SLUG = re.compile(r"^[a-z0-9][a-z0-9-]*$")
@@ -215,6 +217,18 @@ def kept_views_of(published: Sequence[EntryReport], meta: CatalogMeta,
         if shelf is not None and keys[entry_id] is not None:
             shelf.put(keys[entry_id], view)  # type: ignore[arg-type]
     return views
+
+
+def kept_search_script(cards: Sequence[Mapping[str, Any]], key: str,
+                       shelf: ViewShelf | None) -> str:
+    """The search script kept under ``key`` (``search_script_key``), else made and kept."""
+    found = shelf.get(key, str) if shelf is not None else None
+    if found is not None:
+        return found
+    script = search_script(cards)
+    if shelf is not None:
+        shelf.put(key, script)
+    return script
 
 
 def view_key(report: EntryReport, meta: CatalogMeta, around: Surroundings = NOWHERE
