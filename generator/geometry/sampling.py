@@ -381,6 +381,13 @@ def _difference_of(relation: sympy.core.relational.Relational) -> tuple[sympy.Ex
     return difference, bool(difference.is_rational_function())
 
 
+@functools.lru_cache(maxsize=1024)
+def _through_angles(difference: sympy.Expr, angles: tuple[sympy.Symbol, ...]) -> sympy.Expr:
+    """``through_sin_cos`` of a relation's difference, remembered like ``_difference_of``
+    (the same few relations are judged at every point drawn)."""
+    return through_sin_cos(difference, angles)
+
+
 def _exact_value(expr: sympy.Expr, point: Point) -> Fraction | None:
     """A rational function's value at the point in Python fractions (SymPy's substitution
     built a new expression tree for every sample); None where it is undefined or holds
@@ -422,7 +429,7 @@ def _numeric_truth(relation: sympy.core.relational.Relational, difference: sympy
     most of the cost of a sample), else on SymPy's error-controlled 30-digit value."""
     check = _MARGINS[relation.rel_op]
     margin = mpmath.mpf(10) ** -25
-    quick = _agreeing_value(through_sin_cos(difference, angles), point)
+    quick = _agreeing_value(_through_angles(difference, angles), point)
     if quick is not None:
         return bool(check(quick, margin))
     value = difference.evalf(30, subs=_symbol_values(point))

@@ -578,17 +578,27 @@ v² = 3 (plain rational arithmetic), SymPy's algebraic number field (a hundred t
 but it also finds constants that hold a root, which the tower's split equations cannot)."""
 
 
-def _square_roots_of_numbers(values: Sequence[sympy.Expr]
-                             ) -> list[tuple[sympy.Symbol, sympy.Expr]]:
-    """(v, √k) for each square root of a rational number in ``values``; NotImplementedError
-    for a higher root (the algebraic field's way refuses those too)."""
+def _number_roots(values: Sequence[sympy.Expr]) -> list[sympy.Pow]:
+    """The powers of rational numbers to a half-integer exponent in ``values`` (√3, 3^(3/2)),
+    sorted; NotImplementedError when there are none (nothing to try again with) or a cube or
+    higher root occurs (neither the tower nor the algebraic field takes those)."""
     found = sorted({a for v in values for a in v.atoms(sympy.Pow)
                     if a.base.is_Rational and a.exp.is_Rational and not a.exp.is_Integer},
                    key=sympy.default_sort_key)
     if not found:
         raise NotImplementedError("no roots of numbers: nothing to try again with")
+    if any(a.exp.q != 2 for a in found):
+        raise NotImplementedError("a cube or higher root of a number")
+    return found
+
+
+def _square_roots_of_numbers(values: Sequence[sympy.Expr]
+                             ) -> list[tuple[sympy.Symbol, sympy.Expr]]:
+    """(v, √k) for each square root of a rational number in ``values``, for the tower (which
+    needs the plain √k: a power SymPy left as 3^(3/2) is refused)."""
+    found = _number_roots(values)
     if any(a.exp != sympy.S.Half for a in found):
-        raise NotImplementedError("a higher root of a number, or a power SymPy left unsplit")
+        raise NotImplementedError("a power of a root that SymPy left unsplit")
     return [(sympy.Dummy(f"v{k}"), a) for k, a in enumerate(found)]
 
 
@@ -694,12 +704,7 @@ def _domain_of(values: Sequence[sympy.Expr], algebraic: bool):
     √3·√3 is 3 (as a generator of its own it is not; slower: gcds over the number field)."""
     if not algebraic:
         return construct_domain(list(values), field=True)
-    numbers = {a for v in values for a in v.atoms(sympy.Pow)
-               if a.base.is_Rational and a.exp.is_Rational and not a.exp.is_Integer}
-    if not numbers:
-        raise NotImplementedError("no roots of numbers: nothing to try again with")
-    if any(a.exp.q != 2 for a in numbers):
-        raise NotImplementedError("a cube or higher root of a number")
+    numbers = _number_roots(values)
     symbols = sorted(set().union(*(v.free_symbols for v in values)), key=str)
     roots = sorted({sympy.sqrt(a.base) for a in numbers}, key=sympy.default_sort_key)
     domain = sympy.QQ.algebraic_field(*roots).frac_field(*symbols)

@@ -37,16 +37,22 @@ def views_in_processes(jobs: int) -> ViewMaker:
         if len(wanted) < MIN_VIEWS_FOR_WORKERS:
             return _views_in_forks(wanted, meta, workers)
         register_canonical_reducers()  # reports go to the workers as pickles: keep them fast
-        try:
-            with ProcessPoolExecutor(max_workers=workers,
-                                     mp_context=multiprocessing.get_context("spawn"),
-                                     initializer=_receive_meta, initargs=(meta,)) as pool:
-                return list(pool.map(_view, wanted))
-        except BrokenProcessPool:
-            # A worker ended from outside (out of memory, killed): make them here, as a build
-            # did before views had workers, rather than end the build with the pool's error.
-            return views_made_here(wanted, meta)
+        return _pooled(wanted, meta, _view, wanted, max_workers=workers,
+                       mp_context=multiprocessing.get_context("spawn"),
+                       initializer=_receive_meta, initargs=(meta,))
     return make
+
+
+def _pooled(wanted: Sequence[tuple[EntryReport, Surroundings]], meta: CatalogMeta,
+            work, items, **pool_options) -> list[EntryView]:
+    """``work`` mapped over ``items`` by a process pool. A worker ended from outside (out of
+    memory, killed) breaks the pool: the views are then made here, as a build did before
+    views had workers, rather than end the build with the pool's error."""
+    try:
+        with ProcessPoolExecutor(**pool_options) as pool:
+            return list(pool.map(work, items))
+    except BrokenProcessPool:
+        return views_made_here(wanted, meta)
 
 
 def _views_in_forks(wanted: Sequence[tuple[EntryReport, Surroundings]], meta: CatalogMeta,
@@ -60,11 +66,8 @@ def _views_in_forks(wanted: Sequence[tuple[EntryReport, Surroundings]], meta: Ca
         return views_made_here(wanted, meta)
     _meta[:], _forked_jobs[:] = [meta], list(wanted)
     try:
-        with ProcessPoolExecutor(max_workers=workers,
-                                 mp_context=multiprocessing.get_context("fork")) as pool:
-            return list(pool.map(_forked_view, range(len(wanted))))
-    except BrokenProcessPool:
-        return views_made_here(wanted, meta)
+        return _pooled(wanted, meta, _forked_view, range(len(wanted)), max_workers=workers,
+                       mp_context=multiprocessing.get_context("fork"))
     finally:
         _meta.clear()
         _forked_jobs.clear()
