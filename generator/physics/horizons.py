@@ -977,7 +977,7 @@ def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Exp
     try:
         integral = root
         for y, low, high in reversed(ranges):
-            integral = sympy.integrate(integral, (y, low, high))
+            integral = integrate_separated(integral, y, low, high)
     except (ValueError, TypeError, NotImplementedError):
         return ExactArea(None, "the area integral is not elementary here")
     if integral.has(sympy.Integral):
@@ -1002,6 +1002,17 @@ def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Exp
         parts.append(f"{per_unit_words(names)} (not compact: no range known, no total area)")
     return ExactArea(area, "exact" + (": " + "; ".join(parts) if parts else ""), names,
                      section.roots)
+
+
+def integrate_separated(integrand: sympy.Expr, y: sympy.Symbol, low: sympy.Expr,
+                        high: sympy.Expr) -> sympy.Expr:
+    """∫ integrand dy over (low, high), with the factor free of y taken out first: SymPy's
+    integrator then sees sin θ instead of (r₊² + a²)·sin θ, and gives the same value in a
+    fraction of the time (the free factor is a constant of this integration)."""
+    constant, varying = integrand.as_independent(y, as_Add=False)
+    if varying == 1:
+        return constant * (high - low)
+    return constant * sympy.integrate(varying, (y, low, high))
 
 
 NUMERIC_AREA_DIGITS = 15  # significant digits reported for a numeric area

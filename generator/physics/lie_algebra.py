@@ -372,6 +372,9 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
         return (), None
     if sum(sympy.count_ops(c) for xi in basis for c in xi) > MAX_OPS:
         return (), None
+    if _constant_components(basis, spacetime):
+        # [X, Y]^a = X^b ∂_b Y^a − Y^b ∂_b X^a: every derivative is zero, so is every bracket
+        return (), (recognise((), len(basis)) if complete else None)
     squares = parameter_squares(basis, spacetime)
     seen = basis if squares is None else [[squares.forward(c) for c in xi] for xi in basis]
     pairs = [(i, j) for i in range(len(basis)) for j in range(i + 1, len(basis))]
@@ -396,6 +399,13 @@ def structure(spacetime: Spacetime, basis: Sequence[Sequence[sympy.Expr]], compl
         if any(c != 0 for c in coefficients):
             out.append((i, j, coefficients))
     return tuple(out), (recognise(tuple(out), len(basis)) if complete else None)
+
+
+def _constant_components(basis: Sequence[Sequence[sympy.Expr]], spacetime: Spacetime) -> bool:
+    """Every component free of the coordinates (∂_t, ∂_φ, a·∂_t + ∂_φ, …): such fields
+    commute, which no jet needs to show."""
+    coordinates = set(spacetime.coordinates)
+    return all(not sympy.sympify(c).free_symbols & coordinates for xi in basis for c in xi)
 
 
 def expand_by_one_jet(pairs: Sequence[tuple[int, int]], basis: Sequence[Sequence[sympy.Expr]],

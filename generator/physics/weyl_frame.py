@@ -203,12 +203,44 @@ def readable(expr: sympy.Expr, spacetime: Spacetime, factor: bool = True) -> sym
     if factor and expr.has(sympy.I) and sympy.count_ops(expr) <= DISPLAY_FACTOR_LIMIT and \
             len(expr.free_symbols) <= DISPLAY_FACTOR_SYMBOLS:
         try:
-            # The Gaussian rationals QQ_I: SymPy factors them through Q(i) itself (the same
-            # algorithm and normalisation as extension=I), but reads the coefficients into
-            # the domain directly instead of through minimal polynomials, about twice as fast.
-            factored = sympy.factor(expr, domain=sympy.QQ_I)
+            factored = gaussian_factored(expr)
         except (sympy.PolynomialError, NotImplementedError, ValueError, TypeError):
             return expr
         if sympy.count_ops(factored) < sympy.count_ops(expr):
             return factored
     return expr
+
+
+def gaussian_factored(expr: sympy.Expr) -> sympy.Expr:
+    """``sympy.factor(expr, domain=QQ_I)``, the same factors, found with less work: the
+    numerator is first divided by the denominator's factors as often as they go in, so
+    SymPy factors what is left (Kerr–Newman's Ψ2: a cubic of five symbols becomes a linear
+    one). Factoring in Q(i) goes through norms of twice the degree, so the saving is large.
+
+    Why the result is SymPy's: over a field, a polynomial is a unit times a product of
+    normalised irreducible factors in one way only; the factors divided out are SymPy's own
+    normalised factors of the denominator, so the numerator's factor list is theirs plus
+    those of the quotient, with the same unit. (The Gaussian rationals QQ_I: SymPy factors
+    them through Q(i) itself, as with extension=I, reading coefficients directly.)"""
+    numerator, denominator = sympy.fraction(sympy.together(expr))
+    domain = sympy.QQ_I
+    if not numerator.free_symbols or not denominator.free_symbols:
+        return sympy.factor(expr, domain=domain)  # nothing to divide out
+    unit_d, below = sympy.factor_list(denominator, domain=domain)
+    polys, _ = sympy.parallel_poly_from_expr([numerator, *(f for f, _ in below)],
+                                             domain=domain)
+    rest, divisors = polys[0], polys[1:]
+    exponents = {}
+    for (factor, power), divisor in zip(below, divisors, strict=True):
+        taken = 0
+        while taken < power and not rest.is_zero:
+            quotient, remainder = rest.div(divisor)
+            if not remainder.is_zero:
+                break
+            rest, taken = quotient, taken + 1
+        exponents[factor] = taken - power
+    unit_n, above = sympy.factor_list(rest.as_expr(), domain=domain)
+    for factor, power in above:
+        exponents[factor] = exponents.get(factor, 0) + power
+    product = sympy.Mul(*(f**e for f, e in exponents.items() if e))
+    return sympy.Mul(unit_n / unit_d, product)
