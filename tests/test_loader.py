@@ -19,6 +19,7 @@ from generator.entry.catalog import (
     vocabulary,
 )
 from generator.entry.loader import LoadResult, isbn_checksum_ok, load_entry
+from generator.errors import SourcePos
 
 DEMO = Path(__file__).parent / "roots" / "demo-catalog" / "catalog"
 DEMO_ENTRY = DEMO / "riemannian" / "lighthouse-dome.yaml"
@@ -258,6 +259,12 @@ def test_the_quick_outline_of_every_shipped_entry_equals_the_loaders() -> None:
     "id: x\nrelated:\n  - y\n",                       # a link that is not a mapping
     "id: x\nrelated:\n  - map: {}\n",                 # a link without its entry
     "id: x\n  bad: indentation\n",                    # not YAML
+    "id: &a x\nrelated:\n  - entry: *a\n",           # an anchor and an alias
+    "id: !custom x\n",                                # a tag of no standard
+    "id: x\n" + "n: " + "[" * 30 + "]" * 30 + "\n",    # nested beyond the limit
+    "id: x\n---\nid: y\n",                           # two documents
+    "? [a, b]\n: 1\nid: x\n",                         # a key that is not a scalar
+    "id: x\nrelated:\n  - entry: 3\n",               # a link's entry not text
 ])
 def test_anything_unusual_is_left_to_the_full_loader(tmp_path: Path, text: str) -> None:
     path = tmp_path / "x.yaml"
@@ -265,3 +272,32 @@ def test_anything_unusual_is_left_to_the_full_loader(tmp_path: Path, text: str) 
     assert peek_outline(path, "x.yaml") is None
     [outline] = outline_all([path], None, tmp_path)  # the loader's reading, with its errors
     assert outline == outline_of(load_entry(path, "x.yaml", with_math=False))
+
+
+@pytest.mark.parametrize("text", [
+    "id: '12'\n",                                     # quoted: text, as the loader reads it
+    "id: first\nid: second\n",                        # the last of repeated keys
+    "id: x\nrelated:\n  - {entry: y, kind: limit, limit: {a: 0}}\n  - entry: z\n",
+    "id: x\nnotes: |\n  related: not a key\nrelated: []\n",
+])
+def test_quick_outline_reads_what_composing_reads(tmp_path: Path, text: str) -> None:
+    """The quick outline walks libyaml's events instead of its node tree: ids, links, limit
+    kinds and positions as the node tree gives them (``read_nodes`` then reading the nodes)."""
+    from generator.entry.yamlcheck import read_nodes
+
+    path = tmp_path / "x.yaml"
+    path.write_text(text)
+    quick = peek_outline(path, "x.yaml")
+    node, problems = read_nodes("x.yaml", text)
+    assert quick is not None and not problems
+    top = {k.value: v for k, v in node.value}
+    assert quick.id == top["id"].value
+    assert quick.id_pos == SourcePos("x.yaml", top["id"].start_mark.line + 1,
+                                  top["id"].start_mark.column + 1)
+    items = top["related"].value if "related" in top else []
+    assert [e for e, _ in quick.links] == [dict((k.value, v) for k, v in i.value)["entry"].value
+                                           for i in items]
+    assert [p.line for _, p in quick.links] == [i.start_mark.line + 1 for i in items]
+    assert quick.limit_targets == frozenset(
+        dict((k.value, v) for k, v in i.value)["entry"].value for i in items
+        if dict((k.value, v.value) for k, v in i.value).get("kind") == "limit")

@@ -17,7 +17,13 @@ import yaml
 
 from generator.entry.loader import LoadResult, Vocabulary, load_entry
 from generator.entry.safefile import is_link, read_catalog_file
-from generator.entry.yamlcheck import MAX_FILE_BYTES, node_position, read_nodes
+from generator.entry.yamlcheck import (
+    MAX_FILE_BYTES,
+    node_position,
+    plain_events,
+    read_nodes,
+    scalar_tag,
+)
 from generator.errors import Diagnostic, SourcePos, UsageError
 from generator.model import Family, Tag
 
@@ -279,44 +285,94 @@ def outline_all(files: Iterable[Path], root: Path | None, base: Path) -> list[Ou
 
 
 def peek_outline(path: Path, display: str) -> Outline | None:
-    """The id and links of a well-formed entry from its YAML node tree (``read_nodes``: the
-    same safe reading as the loader's), without validating the rest — a few times quicker
-    than the structure load; None when anything is unusual, so that the full loader,
-    with its diagnostics, decides instead. Only the top-level ``id`` and ``related`` nodes
-    are visited.
+    """The id and links of a well-formed entry from its YAML events (``plain_events``: the
+    same refusals as the loader's reading), without composing or validating the rest — a
+    one-entry check reads every other entry this way, so it is kept to one parse; None when
+    anything is unusual, so that the full loader, with its diagnostics, decides instead.
+    Only the top-level ``id`` and ``related`` values are looked at.
     """
     source, unreadable = read_catalog_file(path, display, MAX_FILE_BYTES)
     if unreadable is not None:
         return None
-    node, problems = read_nodes(display, source)
-    if problems or not isinstance(node, yaml.MappingNode):
+    events = plain_events(source)
+    if events is None or len(events) < 3 or not isinstance(events[2], yaml.MappingStartEvent):
         return None
-    top = {key.value: value for key, value in node.value if isinstance(key, yaml.ScalarNode)}
+    top = _mapping_values(events, 2)
+    if top is None:
+        return None
     identity = top.get("id")
-    if not _is_plain_text(identity):
+    if identity is None or not _is_plain_text_event(events[identity]):
         return None
     links = []
     limits: set[str] = set()
-    related = top.get("related")
-    if related is not None:
-        if not isinstance(related, yaml.SequenceNode):
+    if "related" in top:
+        start = top["related"]
+        if not isinstance(events[start], yaml.SequenceStartEvent):
             return None
-        for item in related.value:
-            if not isinstance(item, yaml.MappingNode):
+        for item in _sequence_items(events, start):
+            if not isinstance(events[item], yaml.MappingStartEvent):
                 return None
-            named = {k.value: v for k, v in item.value if isinstance(k, yaml.ScalarNode)}
-            if not _is_plain_text(named.get("entry")):
+            named = _mapping_values(events, item)
+            if named is None or "entry" not in named or not _is_plain_text_event(
+                    events[named["entry"]]):
                 return None
-            links.append((named["entry"].value, node_position(display, item)))
-            kind = named.get("kind")
-            if _is_plain_text(kind) and kind.value == "limit":
-                limits.add(named["entry"].value)
-    return Outline(display, identity.value, node_position(display, identity), tuple(links),
-                   frozenset(limits))
+            links.append((events[named["entry"]].value,
+                          SourcePos(display, events[item].start_mark.line + 1,
+                                    events[item].start_mark.column + 1)))
+            kind = events[named["kind"]] if "kind" in named else None
+            if kind is not None and _is_plain_text_event(kind) and kind.value == "limit":
+                limits.add(events[named["entry"]].value)
+    mark = events[identity].start_mark
+    return Outline(display, events[identity].value, SourcePos(display, mark.line + 1,
+                                                               mark.column + 1),
+                   tuple(links), frozenset(limits))
+
+
+def _subtree_end(events: list[yaml.Event], start: int) -> int:
+    """The index just past the node that starts at ``start`` (a scalar or a collection)."""
+    if not isinstance(events[start], yaml.CollectionStartEvent):
+        return start + 1
+    depth, i = 0, start
+    while True:
+        if isinstance(events[i], yaml.CollectionStartEvent):
+            depth += 1
+        elif isinstance(events[i], yaml.CollectionEndEvent):
+            depth -= 1
+            if depth == 0:
+                return i + 1
+        i += 1
+
+
+def _sequence_items(events: list[yaml.Event], start: int) -> list[int]:
+    """Where each item of the sequence starting at ``start`` begins."""
+    items, i = [], start + 1
+    while not isinstance(events[i], yaml.SequenceEndEvent):
+        items.append(i)
+        i = _subtree_end(events, i)
+    return items
+
+
+def _mapping_values(events: list[yaml.Event], start: int) -> dict[str, int] | None:
+    """Key text → where its value begins, for the mapping starting at ``start`` (the last of
+    repeated keys, as composing then reading would keep); None for a key that is not a scalar
+    (unusual: the full loader explains it)."""
+    values: dict[str, int] = {}
+    i = start + 1
+    while not isinstance(events[i], yaml.MappingEndEvent):
+        if not isinstance(events[i], yaml.ScalarEvent):
+            return None
+        values[events[i].value] = i + 1
+        i = _subtree_end(events, i + 1)
+    return values
 
 
 def _is_plain_text(node: yaml.Node | None) -> bool:
     return isinstance(node, yaml.ScalarNode) and node.tag == "tag:yaml.org,2002:str"
+
+
+def _is_plain_text_event(event: yaml.Event) -> bool:
+    """The event form of ``_is_plain_text``: a scalar whose node would be a plain string."""
+    return isinstance(event, yaml.ScalarEvent) and scalar_tag(event) == "tag:yaml.org,2002:str"
 
 
 def cross_entry_diagnostics(outlines: Sequence[Outline], known_ids: set[str]

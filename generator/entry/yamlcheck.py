@@ -389,6 +389,46 @@ def _read_nodes_with(file: str, source: str, loader: type
     return documents[0], []
 
 
+def plain_events(source: str) -> list[yaml.Event] | None:
+    """The YAML events of a well-formed file with nothing ``read_nodes`` refuses (anchors,
+    aliases, custom tags, nesting deeper than MAX_NESTING, other than one document), else
+    None. For readers that want a few top-level values: composing the whole node tree costs
+    more than parsing, and such a reader looks at a handful of events. None also where
+    libyaml is missing or rejects the file: the full reader then decides and explains."""
+    fast = getattr(yaml, "CSafeLoader", None)
+    if fast is None:
+        return None
+    events: list[yaml.Event] = []
+    depth = documents = 0
+    try:
+        for event in yaml.parse(source, Loader=fast):
+            if _refuse_event(event):
+                return None
+            if isinstance(event, yaml.CollectionStartEvent):
+                depth += 1
+                if depth > MAX_NESTING:
+                    return None
+            elif isinstance(event, yaml.CollectionEndEvent):
+                depth -= 1
+            elif isinstance(event, yaml.DocumentStartEvent):
+                documents += 1
+            events.append(event)
+    except yaml.YAMLError:
+        return None
+    return events if documents == 1 else None
+
+
+_RESOLVER = yaml.resolver.Resolver()
+
+
+def scalar_tag(event: yaml.ScalarEvent) -> str:
+    """The tag the composer would give this scalar's node (explicit, else resolved from its
+    plain or quoted text, as ``yaml.compose`` does)."""
+    if event.tag is None or event.tag == "!":
+        return _RESOLVER.resolve(yaml.ScalarNode, event.value, event.implicit)
+    return event.tag
+
+
 def _refuse_event(event: yaml.Event) -> tuple[str, str, str] | None:
     if isinstance(event, yaml.AliasEvent):
         return ("YAML aliases (*name) are not allowed", "yaml.alias",

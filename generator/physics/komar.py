@@ -31,6 +31,7 @@ from generator.physics.horizons import (
     cyclic_coordinates,
     density_root,
     field_det,
+    integrate_separated,
     killing_coordinates,
     positive_cosines,
 )
@@ -177,7 +178,7 @@ def charge(field: RationalField, g: list[list[Frac]], ginv: list[list[Frac]], mi
         return None, "√(−g) has no exact leading term"
     value = positive_cosines(root, ranges) * field.display(e_lead)
     for y, low, high in reversed(ranges):
-        value = sympy.integrate(value, (y, low, high))
+        value = integrate_separated(value, y, low, high)
     if value.has(sympy.Integral):
         return None, "the sphere integral is not elementary"
     return value, ""

@@ -49,6 +49,15 @@ def limit_values(entry: Entry, spacetime: Spacetime, link: RelatedChart
 def metric_in_limit(metric: sympy.Matrix, values: Mapping[sympy.Symbol, sympy.Expr]
                     ) -> sympy.Matrix:
     def component(expr: sympy.Expr) -> sympy.Expr:
+        # Substituted before cancelling: a smaller expression to cancel (Kerr–Newman at Q = 0).
+        # Where the uncancelled form is singular at the limit (0/0), the cancelled one is
+        # substituted instead, and a limit taken where that is singular too.
+        direct = expr
+        for symbol, target in values.items():  # in turn, as below
+            direct = direct.xreplace({symbol: target})
+        direct = sympy.cancel(direct)
+        if not direct.has(sympy.zoo, sympy.nan, sympy.oo, -sympy.oo):
+            return direct
         value = sympy.cancel(expr)
         for symbol, target in values.items():
             substituted = sympy.cancel(value.xreplace({symbol: target}))
