@@ -88,3 +88,69 @@ def test_a_failure_of_the_computation_reaches_the_caller(tmp_path, monkeypatch) 
     monkeypatch.setattr(pipeline, "_compute", broken)
     with pytest.raises(RuntimeError, match="the pool broke"):
         run(root, cache, True, monkeypatch)
+
+
+def install_forked_fake(monkeypatch: pytest.MonkeyPatch) -> None:
+    """A fake check that says which process ran it. Only a forked copy of this process runs
+    the fake (it inherits the monkeypatch); a fresh interpreter would run the real engine."""
+    import os
+
+    from generator.model import EntryReport, Verdict
+    from generator.run import tasks
+
+    def fake_check(load, related, limits=None):
+        verdict = Verdict("claims.kretschmann", True, "exact", f"fake check in {os.getpid()}")
+        return EntryReport(load.entry, load.file, load.spacetime, None, None, (verdict,),
+                           load.diagnostics, "fake-hash", 0.0)
+
+    monkeypatch.setattr(tasks, "check_loaded", fake_check)
+    monkeypatch.setattr(pipeline, "_overlaps_reading", lambda options: True)
+
+
+@pytest.mark.skipif("fork" not in __import__("multiprocessing").get_all_start_methods(),
+                    reason="no fork on this platform")
+def test_a_few_changed_entries_go_to_forked_copies(tmp_path, monkeypatch) -> None:
+    """A warm run with one changed entry computes it in a forked copy of this process (no
+    fresh interpreter's imports), reading the cached reports meanwhile: the same reports as
+    the sequential path, in the entries' order."""
+    import os
+
+    root, cache = copy_catalog(tmp_path), tmp_path / "cache"
+    calls = install_counting_engine(monkeypatch)
+    run(root, cache, False, monkeypatch)  # every entry cached, by the in-process fake
+    flat = root / "maximally-symmetric" / "flat-spherical.yaml"
+    flat.write_text(flat.read_text().replace("Flat spacetime", "Empty flat spacetime"))
+    calls.clear()
+    monkeypatch.undo()
+    monkeypatch.setenv(SECRET_ENV, "secret-of-this-machine-32-characters-long")
+    install_forked_fake(monkeypatch)
+    reports = check_files(catalog_files(root), root, root.parent,
+                          RunOptions(jobs=2, cache_dir=cache))
+    [changed] = [r for r in reports if r.file.endswith("flat-spherical.yaml")]
+    why = changed.verdicts[0].detail
+    assert why.startswith("fake check in ") and why != f"fake check in {os.getpid()}"
+    assert calls == [], "nothing else was computed here"
+    sequential = run(root, cache, False, monkeypatch)
+    assert [r.file for r in reports] == [r.file for r in sequential]
+    assert [comparable(r) for r in reports if r is not changed] == \
+        [comparable(r) for r in sequential if not r.file.endswith("flat-spherical.yaml")]
+
+
+def test_no_fork_while_another_thread_runs(monkeypatch) -> None:
+    """A copy made while another thread holds a lock would inherit the lock held forever."""
+    import threading
+
+    options = RunOptions(jobs=2)
+    monkeypatch.setattr(pipeline, "runs_in_this_process", lambda options: False)
+    assert pipeline._forks_for([0], options) == (
+        "fork" in __import__("multiprocessing").get_all_start_methods())
+    assert not pipeline._forks_for([], options)
+    assert not pipeline._forks_for(list(range(pipeline.FEW_TO_COMPUTE)), options)
+    release = threading.Event()
+    other = threading.Thread(target=release.wait)
+    other.start()
+    try:
+        assert not pipeline._forks_for([0], options)
+    finally:
+        release.set()
+        other.join()

@@ -319,10 +319,14 @@ def _run(tasks: list[Task], options: RunOptions, progress: Progress) -> list[Ent
         # the others (the unpickling of every cached report is the bulk of a warm check); an
         # entry whose file turns out unreadable or forged is computed in a second round.
         missing = [i for i, key in enumerate(keys) if not cache.holds(key)]
-        hits = _read_while(lambda: _store(tasks, missing, keys, options, progress, cache,
-                                          cards, results),
-                           cache, [(i, keys[i]) for i in range(len(tasks))
-                                   if i not in set(missing)])
+        wanted = [(i, keys[i]) for i in range(len(tasks)) if i not in set(missing)]
+        if _forks_for(missing, options):
+            hits: list[tuple[int, EntryReport | None]] = []
+            _store(tasks, missing, keys, options, progress, cache, cards, results,
+                   meanwhile=lambda: hits.extend((i, cache.get(key)) for i, key in wanted))
+        else:
+            hits = _read_while(lambda: _store(tasks, missing, keys, options, progress, cache,
+                                              cards, results), cache, wanted)
         pending = []
         for i, hit in hits:
             if hit is None:
@@ -345,15 +349,35 @@ def _run(tasks: list[Task], options: RunOptions, progress: Progress) -> list[Ent
 
 def _store(tasks: list[Task], pending: list[int], keys: list[str], options: RunOptions,
            progress: Progress, cache: ResultCache | None, cards: ResultCache | None,
-           results: dict[int, EntryReport]) -> None:
-    """Compute the pending tasks into ``results`` and keep what may be cached."""
-    for i, report in _compute(tasks, pending, options, progress):
+           results: dict[int, EntryReport],
+           meanwhile: Callable[[], None] | None = None) -> None:
+    """Compute the pending tasks into ``results`` and keep what may be cached (``meanwhile``:
+    see ``_compute_in_processes``)."""
+    for i, report in _compute(tasks, pending, options, progress, meanwhile):
         results[i] = report = replace(report, inputs_key=keys[i])
         if cache and cards and _cacheable(report):
             cache.put(keys[i], report)
             card = twin_card(report)
             if card is not None:
                 cards.put(keys[i], card)
+
+
+# Below this many entries to compute, the workers are forked copies of this process.
+FEW_TO_COMPUTE = 8
+
+
+def _forks_for(pending: list[int], options: RunOptions) -> bool:
+    """Whether the few entries a warm run computes (an edited one and those linked to it) go
+    to forked copies of this process: a fresh interpreter spends a second and a half on its
+    imports, longer than a small check, while a copy starts with everything imported. The
+    copies are made before this process reads the cached reports (which it then does in
+    its own thread while they work), so no thread of this process is running when it forks:
+    a copy never inherits a lock held by another thread. A long run keeps fresh
+    interpreters (see ``_spawn``)."""
+    return (0 < len(pending) < FEW_TO_COMPUTE and options.scheduler is None
+            and not runs_in_this_process(options)
+            and "fork" in multiprocessing.get_all_start_methods()
+            and threading.active_count() == 1)
 
 
 def _overlaps_reading(options: RunOptions) -> bool:
@@ -403,7 +427,11 @@ def runs_in_this_process(options: RunOptions) -> bool:
     return options.in_process
 
 
-def _compute(tasks: list[Task], pending: list[int], options: RunOptions, progress: Progress):
+def _compute(tasks: list[Task], pending: list[int], options: RunOptions, progress: Progress,
+             meanwhile: Callable[[], None] | None = None):
+    forked = meanwhile is not None and _forks_for(pending, options)
+    if meanwhile is not None and not forked:
+        meanwhile()  # (only the forked pool below calls it, while its copies work)
     if options.scheduler:
         from generator.run.distributed import run_on_scheduler
 
@@ -422,22 +450,33 @@ def _compute(tasks: list[Task], pending: list[int], options: RunOptions, progres
     with tempfile.TemporaryDirectory(prefix="almanac-backstop-") as folder:
         recorded = [replace(task, backstop_file=Path(folder) / f"{i}.stack")
                     for i, task in enumerate(tasks)]
-        yield from _compute_in_processes(recorded, pending, jobs, progress)
+        if forked:
+            yield from _compute_in_processes(recorded, pending, jobs, progress,
+                                             context=multiprocessing.get_context("fork"),
+                                             meanwhile=meanwhile)
+        else:
+            yield from _compute_in_processes(recorded, pending, jobs, progress)
 
 
 def _compute_in_processes(tasks: list[Task], pending: list[int], jobs: int,
                           progress: Progress,
-                          worker: Callable[[Task], EntryReport] = run_task):
+                          worker: Callable[[Task], EntryReport] = run_task,
+                          context: multiprocessing.context.BaseContext | None = None,
+                          meanwhile: Callable[[], None] | None = None):
     """Run tasks on a process pool; if a worker is killed (e.g. at the CPU-time backstop) the
     pool breaks. The entry whose worker the backstop ended (its ``backstop_file`` holds a
     call stack) is reported with its stage and not run again; the other unfinished tasks are
     re-run one per fresh process so that only the entry that kills its worker fails. The pool
     takes tasks in submission order, so the first ``jobs`` unfinished ones are those being
-    checked. ``worker`` is `run_task` (another module-level function in tests)."""
+    checked. ``worker`` is `run_task` (another module-level function in tests).
+    ``context``: how workers start (fresh interpreters unless told); ``meanwhile`` runs here
+    once every task is handed out (with a fork context, after the copies are made)."""
     unfinished = list(pending)
     # No max_tasks_per_child: on Python 3.11 it can deadlock the pool when a worker retires.
-    with ProcessPoolExecutor(max_workers=jobs, mp_context=_spawn()) as pool:
+    with ProcessPoolExecutor(max_workers=jobs, mp_context=context or _spawn()) as pool:
         futures: dict[Future, int] = {pool.submit(worker, tasks[i]): i for i in pending}
+        if meanwhile is not None:
+            meanwhile()
         remaining = set(futures)
         while remaining:
             progress.now_running([tasks[i] for i in unfinished[:jobs]])
