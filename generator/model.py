@@ -524,6 +524,10 @@ class EntryReport:
     # The metric with its symbols renamed by position (physics.twins.literal_key), made where
     # the report is made: a warm check compares every entry's key and should not redo them.
     literal_key: str = ""
+    # Hash of what the entry's figures are drawn from (``run.cache.figures_key``): the inputs
+    # without the title, which figures name only in their alt text. Lets a rebuild after a
+    # retitling keep the plots. Empty when the report was made otherwise.
+    figures_key: str = ""
 
     @property
     def ok(self) -> bool:

@@ -164,8 +164,9 @@ def test_a_pruned_cache_keeps_exactly_what_the_last_build_used(project: Path,
     def kept(suffix: str) -> set[str]:
         return {p.name for p in cache.glob(f"??/*{suffix}")}
 
-    # one entry: its report, its card, its view, and (also a .view) the search script
-    files_per_build = {".bin": 1, ".card": 1, ".view": 2}
+    # one entry: its report, its card, its view, and (also .view files) the search script and
+    # the entry's figures
+    files_per_build = {".bin": 1, ".card": 1, ".view": 3}
     assert build_site(project / "catalog", project / "site", cached).ok
     before = {suffix: kept(suffix) for suffix in (".bin", ".card", ".view")}
     assert {s: len(names) for s, names in before.items()} == files_per_build
@@ -176,8 +177,10 @@ def test_a_pruned_cache_keeps_exactly_what_the_last_build_used(project: Path,
     assert build_site(project / "catalog", project / "site", cached, prune_cache=True).ok
     for suffix, old in before.items():
         now = kept(suffix)
-        # the edited entry's new files only (its title is in the search script too)
-        assert len(now) == files_per_build[suffix] and not now & old, suffix
+        # the edited entry's new files only (its title is in the search script too); its
+        # figures, drawn from the same mathematics, are the ones kept before
+        assert len(now) == files_per_build[suffix], suffix
+        assert len(now & old) == (1 if suffix == ".view" else 0), suffix
     assert (cache / "notes.txt").is_file()
 
     made: list[str] = []

@@ -168,7 +168,7 @@ def render_atomically(reports: list[EntryReport], meta: CatalogMeta, out: Path,
     recover_interrupted_swap(out, old)
     staging = Path(tempfile.mkdtemp(prefix=f".{out.name}.building-", dir=out.parent))
     try:
-        views = render_site(reports, meta, staging, kept, views_in_processes(jobs))
+        views = render_site(reports, meta, staging, kept, views_in_processes(jobs, kept))
         (staging / SITE_MARKER).write_text(_MARKER_TEXT, encoding="utf-8")
     except BaseException:
         shutil.rmtree(staging, ignore_errors=True)

@@ -19,6 +19,7 @@ from __future__ import annotations
 import hashlib
 import hmac
 import os
+import re
 import secrets
 import tempfile
 from pathlib import Path
@@ -46,6 +47,22 @@ def cache_key(task: Any) -> str:
         # Capped and never through a link: a link to /dev/zero must not be read forever.
         content = read_capped_bytes(Path(path), MAX_FILE_BYTES)
         digest.update(b"<unreadable>" if content is None else content)
+    return digest.hexdigest()
+
+
+def figures_key(task: Any) -> str:
+    """Hash of what an entry's figures are drawn from: as ``cache_key``, but of the entry's
+    own file only, with its top-level ``title:`` line left out. The figures read the report's
+    metric, parameters, invariants, horizons and ergosurface, all computed from the entry's
+    own file (a linked entry changes only the link's verdict), and name the title only in
+    their alt text, which the site writes in afresh. A title spread over several lines keeps
+    its other lines in the hash: a retitling then redraws, which is only slower."""
+    digest = hashlib.sha256()
+    digest.update(f"figures|{generator_fingerprint()}|{library_versions()}|{task.seconds}|"
+                  f"{task.display}".encode())
+    content = read_capped_bytes(Path(task.file), MAX_FILE_BYTES)
+    digest.update(b"<unreadable>" if content is None else
+                  re.sub(rb"^title:[^\n]*\n", b"", content, count=1, flags=re.MULTILINE))
     return digest.hexdigest()
 
 

@@ -31,7 +31,7 @@ from generator.entry.catalog import (
 from generator.errors import BudgetExceeded, Diagnostic
 from generator.model import EntryReport
 from generator.physics.twins import TwinCard, twin_card, worth_comparing
-from generator.run.cache import ResultCache, cache_key
+from generator.run.cache import ResultCache, cache_key, figures_key
 from generator.run.limits import (
     DEFAULT_STAGE,
     budget_failure_report,
@@ -313,6 +313,7 @@ def _run(tasks: list[Task], options: RunOptions, progress: Progress) -> list[Ent
     cache = ResultCache(options.cache_dir) if options.cache_dir else None
     cards = card_shelf(options.cache_dir) if options.cache_dir else None
     keys = [cache_key(task) for task in tasks]
+    drawn = [figures_key(task) for task in tasks]
     results: dict[int, EntryReport] = {}
     if cache is not None and _overlaps_reading(options):
         # Entries with no cache file start computing in the workers while this process reads
@@ -322,39 +323,39 @@ def _run(tasks: list[Task], options: RunOptions, progress: Progress) -> list[Ent
         wanted = [(i, keys[i]) for i in range(len(tasks)) if i not in set(missing)]
         if _forks_for(missing, options):
             hits: list[tuple[int, EntryReport | None]] = []
-            _store(tasks, missing, keys, options, progress, cache, cards, results,
+            _store(tasks, missing, keys, drawn, options, progress, cache, cards, results,
                    meanwhile=lambda: hits.extend((i, cache.get(key)) for i, key in wanted))
         else:
-            hits = _read_while(lambda: _store(tasks, missing, keys, options, progress, cache,
-                                              cards, results), cache, wanted)
+            hits = _read_while(lambda: _store(tasks, missing, keys, drawn, options, progress,
+                                              cache, cards, results), cache, wanted)
         pending = []
         for i, hit in hits:
             if hit is None:
                 pending.append(i)
             else:
-                results[i] = replace(hit, inputs_key=keys[i])
+                results[i] = replace(hit, inputs_key=keys[i], figures_key=drawn[i])
                 progress.finished(hit)
     else:
         pending = []
         for i, key in enumerate(keys):
             hit = cache.get(key) if cache else None
             if hit is not None:
-                results[i] = replace(hit, inputs_key=key)
+                results[i] = replace(hit, inputs_key=key, figures_key=drawn[i])
                 progress.finished(hit)
             else:
                 pending.append(i)
-    _store(tasks, pending, keys, options, progress, cache, cards, results)
+    _store(tasks, pending, keys, drawn, options, progress, cache, cards, results)
     return [results[i] for i in range(len(tasks))]
 
 
-def _store(tasks: list[Task], pending: list[int], keys: list[str], options: RunOptions,
-           progress: Progress, cache: ResultCache | None, cards: ResultCache | None,
-           results: dict[int, EntryReport],
+def _store(tasks: list[Task], pending: list[int], keys: list[str], drawn: list[str],
+           options: RunOptions, progress: Progress, cache: ResultCache | None,
+           cards: ResultCache | None, results: dict[int, EntryReport],
            meanwhile: Callable[[], None] | None = None) -> None:
     """Compute the pending tasks into ``results`` and keep what may be cached (``meanwhile``:
     see ``_compute_in_processes``)."""
     for i, report in _compute(tasks, pending, options, progress, meanwhile):
-        results[i] = report = replace(report, inputs_key=keys[i])
+        results[i] = report = replace(report, inputs_key=keys[i], figures_key=drawn[i])
         if cache and cards and _cacheable(report):
             cache.put(keys[i], report)
             card = twin_card(report)

@@ -14,11 +14,13 @@ import os
 from collections.abc import Sequence
 from concurrent.futures import ProcessPoolExecutor
 from concurrent.futures.process import BrokenProcessPool
+from typing import Any
 
 from generator.model import CatalogMeta, EntryReport
 from generator.run.safepickle import register_canonical_reducers
 from generator.site.common import Surroundings
 from generator.site.entry_page import EntryView, entry_view
+from generator.site.plots import keep_figures_on
 from generator.site.writer import ViewMaker, views_made_here
 
 # Below this many views, workers' start-up (imports: about 2 s each) outweighs the sharing.
@@ -27,8 +29,10 @@ MIN_VIEWS_FOR_WORKERS = 8
 _meta: list[CatalogMeta] = []  # the catalog-wide data, sent once to each worker
 
 
-def views_in_processes(jobs: int) -> ViewMaker:
-    """A view maker that uses up to ``jobs`` worker processes (0: all cores)."""
+def views_in_processes(jobs: int, figures: Any = None) -> ViewMaker:
+    """A view maker that uses up to ``jobs`` worker processes (0: all cores); ``figures``:
+    the shelf fresh workers keep figures on (``plots.keep_figures_on``; forked copies have
+    the build's own)."""
     def make(wanted: Sequence[tuple[EntryReport, Surroundings]],
              meta: CatalogMeta) -> list[EntryView]:
         workers = min(jobs or os.cpu_count() or 1, len(wanted))
@@ -39,7 +43,7 @@ def views_in_processes(jobs: int) -> ViewMaker:
         register_canonical_reducers()  # reports go to the workers as pickles: keep them fast
         return _pooled(wanted, meta, _view, wanted, max_workers=workers,
                        mp_context=multiprocessing.get_context("spawn"),
-                       initializer=_receive_meta, initargs=(meta,))
+                       initializer=_receive_meta, initargs=(meta, figures))
     return make
 
 
@@ -81,8 +85,9 @@ def _forked_view(index: int) -> EntryView:
     return entry_view(report, _meta[0], around)
 
 
-def _receive_meta(meta: CatalogMeta) -> None:
+def _receive_meta(meta: CatalogMeta, figures: Any = None) -> None:
     _meta[:] = [meta]
+    keep_figures_on(figures)
 
 
 def _view(job: tuple[EntryReport, Surroundings]) -> EntryView:

@@ -12,10 +12,13 @@ as text (``svg.fonttype = none``), and matplotlib's global state is only touched
 
 from __future__ import annotations
 
+import hashlib
 import io
 import re
-from collections.abc import Sequence
-from dataclasses import dataclass
+from collections.abc import Iterator, Sequence
+from contextlib import contextmanager
+from dataclasses import dataclass, replace
+from typing import Any
 
 import matplotlib
 import numpy
@@ -25,6 +28,7 @@ from matplotlib.ticker import LogFormatterSciNotation, NullFormatter
 
 from generator.model import EntryReport, Spacetime
 from generator.site.mathtex import ANGLE_NAMES, TIME_NAMES, radial_coordinate
+from generator.versions import library_versions
 
 SAMPLE_COUNT = 241
 SVG_SETTINGS = {
@@ -78,7 +82,59 @@ class Plot:
     caption: str
 
 
+# ---------------------------------------------------------------------------- kept figures
+
+FIGURE_LIBRARIES = ("matplotlib", "numpy")  # what draws them (SymPy is in figures_key)
+_UNTITLED = "\x00entry title\x00"  # stands for the title in kept figures' alt text
+_kept: list[Any] = []  # the shelf figures are kept on while a build renders, if any
+
+
+def keep_figures_on(shelf: Any) -> None:
+    """Keep figures on ``shelf`` (``get(key, kind)``/``put(key, value)``, the build's view
+    shelf) from now on in this process; None: draw every time."""
+    _kept[:] = [] if shelf is None else [shelf]
+
+
+@contextmanager
+def figures_kept_on(shelf: Any) -> Iterator[None]:
+    keep_figures_on(shelf)
+    try:
+        yield
+    finally:
+        keep_figures_on(None)
+
+
+def kept_figures_key(report: EntryReport) -> str | None:
+    """The shelf key of an entry's figures: what they are drawn from (``report.figures_key``:
+    the entry's file without its title, the generator, the computing libraries) and the
+    drawing libraries' versions. None for a report made outside the pipeline."""
+    if not report.figures_key:
+        return None
+    parts = ("figures-1", report.figures_key, library_versions(FIGURE_LIBRARIES))
+    return hashlib.sha256("\0".join(parts).encode()).hexdigest()
+
+
 def entry_plots(report: EntryReport) -> tuple[Plot, ...]:
+    """``drawn_plots``, or the same figures kept from an earlier build of the same
+    mathematics: drawing is most of the time of an entry's view, and a retitled entry (or
+    one whose neighbour was retitled) gets its view made again. Kept figures are drawn with
+    a stand-in for the title, which is put into their alt text and captions here."""
+    shelf = _kept[0] if _kept else None
+    key = kept_figures_key(report) if shelf is not None else None
+    if key is None or report.entry is None:
+        return drawn_plots(report)
+    found = shelf.get(key, tuple)
+    if found is None or not all(isinstance(p, Plot) for p in found):
+        found = drawn_plots(replace(report, entry=replace(report.entry, title=_UNTITLED)))
+        if any(_UNTITLED in p.svg or _UNTITLED in p.file_name for p in found):
+            return drawn_plots(report)  # the title is drawn: nothing to keep
+        shelf.put(key, found)
+    title = report.entry.title
+    return tuple(replace(p, alt=p.alt.replace(_UNTITLED, title),
+                         caption=p.caption.replace(_UNTITLED, title)) for p in found)
+
+
+def drawn_plots(report: EntryReport) -> tuple[Plot, ...]:
     """The figures for one entry: invariants and metric functions along a radial coordinate,
     else the scale factors along time; none when no parameter values satisfy the domain."""
     st, entry = report.spacetime, report.entry

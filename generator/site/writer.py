@@ -49,6 +49,7 @@ from generator.site.common import (
     revision_file,
 )
 from generator.site.entry_page import EntryView, entry_view, surroundings
+from generator.site.plots import figures_kept_on, kept_figures_key
 from generator.site.search import search_script, search_script_key
 from generator.versions import library_versions
 
@@ -86,7 +87,8 @@ def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path
     around = surroundings(published)
     keys = {entry_id: view_key(r, meta, around[entry_id])
             for entry_id, r in zip(around, published, strict=True)}
-    views = kept_views_of(published, meta, around, keys, kept_views, make_views)
+    with figures_kept_on(kept_views):
+        views = kept_views_of(published, meta, around, keys, kept_views, make_views)
     cards = [views[r.entry.id].card for r in published if r.entry is not None]
     env = template_environment()
     pages = list(site_pages(published, views, cards, meta))
@@ -104,7 +106,8 @@ def render_site(reports: Sequence[EntryReport], meta: CatalogMeta, out_dir: Path
     if SCHEMA_FILE.is_file():
         (out_dir / "schema").mkdir(parents=True, exist_ok=True)
         shutil.copyfile(SCHEMA_FILE, out_dir / "schema" / "entry.schema.json")
-    return {key for key in keys.values() if key is not None} | {script_key}
+    figures = {kept_figures_key(r) for r in published}
+    return {key for key in (*keys.values(), *figures) if key is not None} | {script_key}
 
 
 SLUG = re.compile(r"^[a-z0-9][a-z0-9-]*$")
