@@ -90,67 +90,66 @@ def test_a_failure_of_the_computation_reaches_the_caller(tmp_path, monkeypatch) 
         run(root, cache, True, monkeypatch)
 
 
-def install_forked_fake(monkeypatch: pytest.MonkeyPatch) -> None:
-    """A fake check that says which process ran it. Only a forked copy of this process runs
-    the fake (it inherits the monkeypatch); a fresh interpreter would run the real engine."""
-    import os
+FORKED_RUN = """
+import os, sys, threading
+sys.path.insert(0, {tests!r})
+from pathlib import Path
+from _scale_helpers import catalog_files
+from generator.model import EntryReport, Verdict
+from generator.run import pipeline, tasks
+from generator.run.pipeline import RunOptions, check_files
 
-    from generator.model import EntryReport, Verdict
-    from generator.run import tasks
+def fake_check(load, related, limits=None):
+    verdict = Verdict("claims.kretschmann", True, "exact", f"fake check in {{os.getpid()}}")
+    return EntryReport(load.entry, load.file, load.spacetime, None, None, (verdict,),
+                       load.diagnostics, "fake-hash", 0.0)
 
-    def fake_check(load, related, limits=None):
-        verdict = Verdict("claims.kretschmann", True, "exact", f"fake check in {os.getpid()}")
-        return EntryReport(load.entry, load.file, load.spacetime, None, None, (verdict,),
-                           load.diagnostics, "fake-hash", 0.0)
-
-    monkeypatch.setattr(tasks, "check_loaded", fake_check)
-    monkeypatch.setattr(pipeline, "_overlaps_reading", lambda options: True)
+tasks.check_loaded = fake_check  # only a forked copy of this process inherits the fake
+pipeline._overlaps_reading = lambda options: True
+root = Path({root!r})
+options = RunOptions(jobs=2, cache_dir=Path({cache!r}))
+print("forks", pipeline._forks_for([0], options))
+release = threading.Event()
+other = threading.Thread(target=release.wait)
+other.start()
+print("forks beside a thread", pipeline._forks_for([0], options))
+release.set()
+other.join()
+for report in check_files(catalog_files(root), root, root.parent, options):
+    print("report", report.file, report.verdicts[0].detail if report.verdicts else "")
+print("parent", os.getpid())
+"""
 
 
 @pytest.mark.skipif("fork" not in __import__("multiprocessing").get_all_start_methods(),
                     reason="no fork on this platform")
 def test_a_few_changed_entries_go_to_forked_copies(tmp_path, monkeypatch) -> None:
-    """A warm run with one changed entry computes it in a forked copy of this process (no
-    fresh interpreter's imports), reading the cached reports meanwhile: the same reports as
-    the sequential path, in the entries' order."""
-    import os
+    """A warm run with one changed entry computes it in a forked copy of the process (no
+    fresh interpreter's imports), reading the cached reports meanwhile, and never forks
+    while another thread runs (a copy would inherit a lock held forever). Run in a fresh
+    interpreter: a test process may hold other tests' threads, and then rightly never
+    forks."""
+    import subprocess
+    import sys
 
     root, cache = copy_catalog(tmp_path), tmp_path / "cache"
     calls = install_counting_engine(monkeypatch)
-    run(root, cache, False, monkeypatch)  # every entry cached, by the in-process fake
+    first = run(root, cache, False, monkeypatch)  # every entry cached, by the in-process fake
     flat = root / "maximally-symmetric" / "flat-spherical.yaml"
     flat.write_text(flat.read_text().replace("Flat spacetime", "Empty flat spacetime"))
     calls.clear()
-    monkeypatch.undo()
-    monkeypatch.setenv(SECRET_ENV, "secret-of-this-machine-32-characters-long")
-    install_forked_fake(monkeypatch)
-    reports = check_files(catalog_files(root), root, root.parent,
-                          RunOptions(jobs=2, cache_dir=cache))
-    [changed] = [r for r in reports if r.file.endswith("flat-spherical.yaml")]
-    why = changed.verdicts[0].detail
-    assert why.startswith("fake check in ") and why != f"fake check in {os.getpid()}"
-    assert calls == [], "nothing else was computed here"
-    sequential = run(root, cache, False, monkeypatch)
-    assert [r.file for r in reports] == [r.file for r in sequential]
-    assert [comparable(r) for r in reports if r is not changed] == \
-        [comparable(r) for r in sequential if not r.file.endswith("flat-spherical.yaml")]
-
-
-def test_no_fork_while_another_thread_runs(monkeypatch) -> None:
-    """A copy made while another thread holds a lock would inherit the lock held forever."""
-    import threading
-
-    options = RunOptions(jobs=2)
-    monkeypatch.setattr(pipeline, "runs_in_this_process", lambda options: False)
-    assert pipeline._forks_for([0], options) == (
-        "fork" in __import__("multiprocessing").get_all_start_methods())
-    assert not pipeline._forks_for([], options)
-    assert not pipeline._forks_for(list(range(pipeline.FEW_TO_COMPUTE)), options)
-    release = threading.Event()
-    other = threading.Thread(target=release.wait)
-    other.start()
-    try:
-        assert not pipeline._forks_for([0], options)
-    finally:
-        release.set()
-        other.join()
+    script = FORKED_RUN.format(tests=str(Path(__file__).parent), root=str(root),
+                               cache=str(cache))
+    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True,
+                          timeout=600, check=False)
+    assert done.returncode == 0, done.stderr[-2000:]
+    lines = done.stdout.splitlines()
+    assert "forks True" in lines and "forks beside a thread False" in lines
+    parent = next(line.split()[1] for line in lines if line.startswith("parent "))
+    details = dict(line.split(" ", 2)[1:] for line in lines if line.startswith("report "))
+    changed = next(d for f, d in details.items() if f.endswith("flat-spherical.yaml"))
+    assert changed.startswith("fake check in ") and changed != f"fake check in {parent}"
+    others = {f: d for f, d in details.items() if not f.endswith("flat-spherical.yaml")}
+    assert others == {r.file: r.verdicts[0].detail for r in first if r.verdicts
+                      and not r.file.endswith("flat-spherical.yaml")}, "read from the cache"
+    assert calls == []
