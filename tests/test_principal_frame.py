@@ -405,3 +405,28 @@ def test_square_roots_in_the_tower_are_exact() -> None:
     assert root is not None and f.equal(f.mul(root, root), square)
     # mutation: a non-square is never "found"
     assert square_root_in(f, f.add(square, f.one())) is None
+
+
+@pytest.mark.parametrize("builder", [kerr_newman, kerr, painleve_gullstrand])
+def test_quartic_and_rotated_scalars_read_off_the_scalars(builder) -> None:
+    """The rotation step reads its quartics off the Weyl scalars instead of contracting the
+    Weyl operator again: Ψ0 after a null rotation about n by b is Ψ0 + 4bΨ1 + 6b²Ψ2 + 4b³Ψ3 +
+    b⁴Ψ4 and Ψk' = Σ C(4 − k, j − k) b^(j−k) Ψj (the Newman–Penrose transformation laws:
+    Chandrasekhar, The Mathematical Theory of Black Holes, 1983, ch. 1, from memory). Both
+    must equal the contraction, exactly, for tetrads that are not principal and for
+    parameters real, imaginary and general."""
+    st = builder()
+    operator = compute_geometry_and_weyl(st, None)[1]
+    frame, k, n, m, _, _ = pf.build_tetrad(operator, st)  # k: the tetrad's l
+    f = frame.f
+    psi = frame.scalars(k, n, m)
+    for about_n in (True, False):
+        contracted = frame.quartic(k, n, m, about_n=about_n)
+        read_off = pf.quartic_of(f, psi, about_n=about_n)
+        assert all(f.equal(x, y) for x, y in zip(contracted, read_off, strict=True))
+    for b in (f.const(2), frame.tower.i, f.add(f.const(sp.Rational(1, 3)), frame.tower.i)):
+        nl, nn, nm = frame.rotate_about_n(k, n, m, b)
+        after = frame.scalars(nl, nn, nm)
+        predicted = pf.scalars_rotated_about_n(f, psi, b)
+        assert all(f.equal(after[k], predicted[k]) for k in NAMES)
+        assert any(not after[k].is_zero() for k in ("Psi0", "Psi1")), "a non-trivial rotation"

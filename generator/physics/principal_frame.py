@@ -35,6 +35,7 @@ entry's own time budget in the run stage stays the backstop for hostile input.
 from __future__ import annotations
 
 import itertools
+import math
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -699,6 +700,31 @@ def presented(frame: Frame, spacetime: Spacetime, kind: str, l: Vector, n: Vecto
     return frame.scale(boost, l), frame.scale(f.inv(boost), n), m
 
 
+def quartic_of(f: RationalField, psi: dict[str, Frac], about_n: bool) -> list[Frac]:
+    """``Frame.quartic`` read off the frame's Weyl scalars instead of contracted again: Ψ0
+    after the null rotation about n by b is Ψ0 + 4bΨ1 + 6b²Ψ2 + 4b³Ψ3 + b⁴Ψ4, and Ψ4 after
+    the one about l by a is Ψ4 + 4āΨ3 + 6ā²Ψ2 + 4ā³Ψ1 + ā⁴Ψ0 (the Newman–Penrose
+    transformation laws; tests/test_principal_frame.py compares them with the contraction).
+    The frame reached is checked from fresh contractions all the same (``pattern_holds``)."""
+    names = NAMES if about_n else NAMES[::-1]
+    return [f.scale(psi[name], c) for name, c in zip(names, (1, 4, 6, 4, 1), strict=True)]
+
+
+def scalars_rotated_about_n(f: RationalField, psi: dict[str, Frac], b: Frac
+                            ) -> dict[str, Frac]:
+    """The Weyl scalars after ``Frame.rotate_about_n`` by b, from those before: Ψk' =
+    Σ_{j ≥ k} C(4 − k, j − k) b^(j−k) Ψj (Ψ4 unchanged, Ψ3' = Ψ3 + bΨ4, …)."""
+    values = [psi[name] for name in NAMES]
+    out = {}
+    for k, name in enumerate(NAMES):
+        total, power = f.zero(), f.one()
+        for j in range(k, 5):
+            total = f.add(total, f.scale(f.mul(power, values[j]), math.comb(4 - k, j - k)))
+            power = f.mul(power, b)
+        out[name] = total
+    return out
+
+
 def _rotated(frame: Frame, spacetime: Spacetime, kind: str, l: Vector, n: Vector, m: Vector,
              how: str, psi: dict[str, Frac]) -> tuple[Frame, Vector, Vector, Vector, str]:
     if kind == "I" and psi["Psi1"].is_zero() and psi["Psi3"].is_zero():
@@ -724,15 +750,16 @@ def _rotated(frame: Frame, spacetime: Spacetime, kind: str, l: Vector, n: Vector
         l, n, m = frame.rotate_about_l(l, n, m, parameter)
         steps.append("a null rotation about l to move n off the principal directions")
         psi = frame.scalars(l, n, m)
-    quartic = frame.quartic(l, n, m, about_n=True)
+    quartic = quartic_of(f, psi, about_n=True)
     factor = _repeated_root(f, quartic, kind)
     if kind == "D":
         p, q = factor[1], factor[0]
         discriminant = f.sub(f.mul(p, p), f.scale(q, 4))
         frame, root, kept = _complex_root(frame, spacetime, points, discriminant,
-                                          [*l, *n, *m, p])
+                                          [*l, *n, *m, p, *(psi[name] for name in NAMES)])
         f = frame.f
         l, n, m = kept[0:4], kept[4:8], kept[8:12]
+        psi = dict(zip(NAMES, kept[13:18], strict=True))
         b = f.scale(f.sub(root, kept[12]), sympy.Rational(1, 2))
     else:
         b = f.neg(factor[0])
@@ -740,7 +767,7 @@ def _rotated(frame: Frame, spacetime: Spacetime, kind: str, l: Vector, n: Vector
     steps.append("a null rotation about n putting l on the "
                  + ("double" if kind in ("D", "II") else "repeated") + " principal direction")
     if kind == "D":
-        d = frame.quartic(l, n, m, about_n=False)
+        d = quartic_of(f, scalars_rotated_about_n(f, psi, b), about_n=False)
         if not (d[4].is_zero() and d[3].is_zero()) or d[2].is_zero():
             raise NotFound("after the first rotation l is not a double principal direction")
         alpha = f.neg(f.div(d[1], f.scale(d[2], 2)))
