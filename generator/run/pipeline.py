@@ -371,10 +371,10 @@ def _forks_for(pending: list[int], options: RunOptions) -> bool:
     """Whether the few entries a warm run computes (an edited one and those linked to it) go
     to forked copies of this process: a fresh interpreter spends a second and a half on its
     imports, longer than a small check, while a copy starts with everything imported. The
-    copies are made before this process reads the cached reports (which it then does in
-    its own thread while they work), so no thread of this process is running when it forks:
-    a copy never inherits a lock held by another thread. A long run keeps fresh
-    interpreters (see ``_spawn``)."""
+    copies are made before this process reads the cached reports (it reads them on its main
+    thread while they work, no helper thread), and only while no other thread runs: a copy
+    never inherits a lock held by another thread. A long run keeps fresh interpreters (see
+    ``_spawn``)."""
     return (0 < len(pending) < FEW_TO_COMPUTE and options.scheduler is None
             and not runs_in_this_process(options)
             and "fork" in multiprocessing.get_all_start_methods()
