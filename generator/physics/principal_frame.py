@@ -715,14 +715,12 @@ def scalars_rotated_about_n(f: RationalField, psi: dict[str, Frac], b: Frac
     """The Weyl scalars after ``Frame.rotate_about_n`` by b, from those before: Ψk' =
     Σ_{j ≥ k} C(4 − k, j − k) b^(j−k) Ψj (Ψ4 unchanged, Ψ3' = Ψ3 + bΨ4, …)."""
     values = [psi[name] for name in NAMES]
-    out = {}
-    for k, name in enumerate(NAMES):
-        total, power = f.zero(), f.one()
-        for j in range(k, 5):
-            total = f.add(total, f.scale(f.mul(power, values[j]), math.comb(4 - k, j - k)))
-            power = f.mul(power, b)
-        out[name] = total
-    return out
+    powers = [f.one(), b]
+    for _ in range(3):  # up to b⁴
+        powers.append(f.mul(powers[-1], b))
+    return {name: f.sum_of_products([(f.const(math.comb(4 - k, j - k)), powers[j - k],
+                                      values[j]) for j in range(k, 5)])
+            for k, name in enumerate(NAMES)}
 
 
 def _rotated(frame: Frame, spacetime: Spacetime, kind: str, l: Vector, n: Vector, m: Vector,
