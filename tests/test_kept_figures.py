@@ -109,7 +109,8 @@ def test_the_figures_key_leaves_out_the_title_line_only(tmp_path) -> None:
     def key_of(text: str) -> str:
         path = tmp_path / "entry.yaml"
         path.write_text(text)
-        return figures_key(SimpleNamespace(file=path, display="entry.yaml", seconds=60.0))
+        return figures_key(SimpleNamespace(file=path, display="entry.yaml", seconds=60.0,
+                                           related_files=()))
 
     base = key_of(source)
     lines = source.splitlines(keepends=True)

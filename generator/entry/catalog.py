@@ -316,15 +316,11 @@ def peek_outline(path: Path, display: str) -> Outline | None:
             if named is None or "entry" not in named or not _is_plain_text_event(
                     events[named["entry"]]):
                 return None
-            links.append((events[named["entry"]].value,
-                          SourcePos(display, events[item].start_mark.line + 1,
-                                    events[item].start_mark.column + 1)))
+            links.append((events[named["entry"]].value, node_position(display, events[item])))
             kind = events[named["kind"]] if "kind" in named else None
             if kind is not None and _is_plain_text_event(kind) and kind.value == "limit":
                 limits.add(events[named["entry"]].value)
-    mark = events[identity].start_mark
-    return Outline(display, events[identity].value, SourcePos(display, mark.line + 1,
-                                                               mark.column + 1),
+    return Outline(display, events[identity].value, node_position(display, events[identity]),
                    tuple(links), frozenset(limits))
 
 

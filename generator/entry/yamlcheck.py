@@ -39,8 +39,8 @@ class Validated:
     diagnostics: list[Diagnostic] = field(default_factory=list)
 
 
-def node_position(file: str, node: yaml.Node) -> SourcePos:
-    """Where a node starts, 1-based (YAML marks count from 0)."""
+def node_position(file: str, node: yaml.Node | yaml.Event) -> SourcePos:
+    """Where a node (or the event that starts it) begins, 1-based (YAML marks count from 0)."""
     return SourcePos(file, node.start_mark.line + 1, node.start_mark.column + 1)
 
 

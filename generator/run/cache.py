@@ -39,31 +39,36 @@ SECRET_ENV = "ALMANAC_CACHE_SECRET"
 
 def cache_key(task: Any) -> str:
     """Hash of a pipeline task's inputs (entry bytes, related entries, budget, versions)."""
-    digest = hashlib.sha256()
-    digest.update(f"{generator_fingerprint()}|{library_versions()}|{task.seconds}|"
-                  f"{task.display}".encode())
-    for path in (task.file, *task.related_files):
-        digest.update(b"\0" + str(Path(path).name).encode() + b"\0")
-        # Capped and never through a link: a link to /dev/zero must not be read forever.
-        content = read_capped_bytes(Path(path), MAX_FILE_BYTES)
-        digest.update(b"<unreadable>" if content is None else content)
-    return digest.hexdigest()
+    return task_keys(task)[0]
 
 
 def figures_key(task: Any) -> str:
-    """Hash of what an entry's figures are drawn from: as ``cache_key``, but of the entry's
-    own file only, with its top-level ``title:`` line left out. The figures read the report's
-    metric, parameters, invariants, horizons and ergosurface, all computed from the entry's
-    own file (a linked entry changes only the link's verdict), and name the title only in
-    their alt text, which the site writes in afresh. A title spread over several lines keeps
-    its other lines in the hash: a retitling then redraws, which is only slower."""
-    digest = hashlib.sha256()
-    digest.update(f"figures|{generator_fingerprint()}|{library_versions()}|{task.seconds}|"
-                  f"{task.display}".encode())
-    content = read_capped_bytes(Path(task.file), MAX_FILE_BYTES)
-    digest.update(b"<unreadable>" if content is None else
-                  re.sub(rb"^title:[^\n]*\n", b"", content, count=1, flags=re.MULTILINE))
-    return digest.hexdigest()
+    """Hash of what an entry's figures are drawn from (see ``task_keys``)."""
+    return task_keys(task)[1]
+
+
+def task_keys(task: Any) -> tuple[str, str]:
+    """The report's key (``cache_key``) and the figures' key, from one reading of each file.
+
+    The figures' key is that of the entry's own file only, with its top-level ``title:``
+    line left out. The figures read the report's metric, parameters, invariants, horizons
+    and ergosurface, all computed from the entry's own file (a linked entry changes only the
+    link's verdict), and name the title only in their alt text, which the site writes in
+    afresh. A title spread over several lines keeps its other lines in the hash: a retitling
+    then redraws, which is only slower."""
+    versions = (f"{generator_fingerprint()}|{library_versions()}|{task.seconds}|"
+                f"{task.display}").encode()
+    report, figures = hashlib.sha256(versions), hashlib.sha256(b"figures|" + versions)
+    for path in (task.file, *task.related_files):
+        report.update(b"\0" + str(Path(path).name).encode() + b"\0")
+        # Capped and never through a link: a link to /dev/zero must not be read forever.
+        content = read_capped_bytes(Path(path), MAX_FILE_BYTES)
+        report.update(b"<unreadable>" if content is None else content)
+        if path == task.file:
+            figures.update(b"<unreadable>" if content is None else
+                           re.sub(rb"^title:[^\n]*\n", b"", content, count=1,
+                                  flags=re.MULTILINE))
+    return report.hexdigest(), figures.hexdigest()
 
 
 MIN_SECRET_CHARS = 32  # a secret shorter than this (an empty one above all) is refused

@@ -31,7 +31,7 @@ from generator.entry.catalog import (
 from generator.errors import BudgetExceeded, Diagnostic
 from generator.model import EntryReport
 from generator.physics.twins import TwinCard, twin_card, worth_comparing
-from generator.run.cache import ResultCache, cache_key, figures_key
+from generator.run.cache import ResultCache, cache_key, task_keys
 from generator.run.limits import (
     DEFAULT_STAGE,
     budget_failure_report,
@@ -312,8 +312,8 @@ class Progress:
 def _run(tasks: list[Task], options: RunOptions, progress: Progress) -> list[EntryReport]:
     cache = ResultCache(options.cache_dir) if options.cache_dir else None
     cards = card_shelf(options.cache_dir) if options.cache_dir else None
-    keys = [cache_key(task) for task in tasks]
-    drawn = [figures_key(task) for task in tasks]
+    both = [task_keys(task) for task in tasks]  # each file read once for both keys
+    keys, drawn = [key for key, _ in both], [key for _, key in both]
     results: dict[int, EntryReport] = {}
     if cache is not None and _overlaps_reading(options):
         # Entries with no cache file start computing in the workers while this process reads
@@ -430,9 +430,6 @@ def runs_in_this_process(options: RunOptions) -> bool:
 
 def _compute(tasks: list[Task], pending: list[int], options: RunOptions, progress: Progress,
              meanwhile: Callable[[], None] | None = None):
-    forked = meanwhile is not None and _forks_for(pending, options)
-    if meanwhile is not None and not forked:
-        meanwhile()  # (only the forked pool below calls it, while its copies work)
     if options.scheduler:
         from generator.run.distributed import run_on_scheduler
 
@@ -451,7 +448,7 @@ def _compute(tasks: list[Task], pending: list[int], options: RunOptions, progres
     with tempfile.TemporaryDirectory(prefix="almanac-backstop-") as folder:
         recorded = [replace(task, backstop_file=Path(folder) / f"{i}.stack")
                     for i, task in enumerate(tasks)]
-        if forked:
+        if meanwhile is not None:  # only ``_run``'s forked path passes it (``_forks_for``)
             yield from _compute_in_processes(recorded, pending, jobs, progress,
                                              context=multiprocessing.get_context("fork"),
                                              meanwhile=meanwhile)
