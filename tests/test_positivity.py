@@ -15,7 +15,7 @@ import pytest
 import sympy as sp
 from _known_metrics import spacetime
 
-from generator.physics.positivity import proves_sign
+from generator.physics.positivity import proved_sign, proves_sign
 
 t, r, theta, phi, x = sp.symbols("t r theta phi x", real=True)
 M, R, g = sp.symbols("M R g", positive=True)
@@ -149,3 +149,32 @@ def test_only_lower_bounds_of_a_positive_square_are_used() -> None:
     # an upper bound on Rt² must not be read as a lower one: Rt² < A² does not make Rt > A
     assert not proves_sign(Rt - A_, tolman_iv(sp.Lt(Rt**2, A_**2)))
     assert proves_sign(Rt - A_, tolman_iv(sp.Lt(A_**2, Rt**2)), strict=True)
+
+
+def _both_ways(expr: sp.Expr, st, strict: bool) -> int | None:
+    """What ``proved_sign`` must return: the two separate proofs, asked in turn."""
+    if proves_sign(expr, st, strict=strict):
+        return 1
+    if proves_sign(-expr, st, strict=strict):
+        return -1
+    return None
+
+
+@pytest.mark.parametrize("strict", [True, False])
+@pytest.mark.parametrize("name", ["rho", "-rho", "rho - p", "p - rho", "p", "-p", "zero",
+                                  "mixed", "bardeen", "-bardeen"])
+def test_one_proof_of_either_sign_is_the_two_proofs(name: str, strict: bool) -> None:
+    """``proved_sign`` decides ``expr`` ≥ 0 and ``−expr`` ≥ 0 from one substitution; it must
+    say what ``proves_sign`` says for each (the interior fluid and Bardeen's density above;
+    r − 1 changes sign in the star; zero is ≥ 0 but not > 0)."""
+    rho, p = interior_fluid()
+    bardeen = 3 * M * g**2 / (4 * sp.pi * (r**2 + g**2) ** sp.Rational(5, 2))
+    expr = {"rho": rho, "-rho": -rho, "rho - p": rho - p, "p - rho": p - rho, "p": p,
+            "-p": -p, "zero": sp.Integer(0), "mixed": r - 1, "bardeen": bardeen,
+            "-bardeen": -bardeen}[name]
+    st = star()
+    assert proved_sign(expr, st, strict=strict) == _both_ways(expr, st, strict)
+    if name in ("rho", "bardeen"):
+        assert proved_sign(expr, st, strict=True) == 1  # mutation guard: a sign is found
+    if name == "mixed":
+        assert proved_sign(expr, st, strict=strict) is None

@@ -430,3 +430,27 @@ def test_quartic_and_rotated_scalars_read_off_the_scalars(builder) -> None:
         predicted = pf.scalars_rotated_about_n(f, psi, b)
         assert all(f.equal(after[k], predicted[k]) for k in NAMES)
         assert any(not after[k].is_zero() for k in ("Psi0", "Psi1")), "a non-trivial rotation"
+
+
+@pytest.mark.parametrize("builder", [kerr_newman, kerr])
+def test_a_type_d_quartic_is_the_square_of_its_repeated_factor(builder) -> None:
+    """For type D the principal-direction quartic is q₄·S² with S the monic quadratic of the
+    two double roots (two double principal null directions; Chandrasekhar 1983, ch. 1, from
+    memory). The square read off the coefficients must be the Euclidean gcd(q, q′), exactly;
+    a quartic that is not such a square, and a fourfold root (type N, not D), are refused."""
+    st = builder()
+    operator = compute_geometry_and_weyl(st, None)[1]
+    frame, k, n, m, _, _ = pf.build_tetrad(operator, st)
+    f = frame.f
+    quartic = pf._trim(f, pf.quartic_of(f, frame.scalars(k, n, m), about_n=True))
+    assert len(quartic) == 5  # the tool's first tetrad has n off the principal directions
+    square = pf._square_root_of_quartic(f, quartic)
+    gcd = pf._gcd(f, quartic, pf._derivative(f, quartic))
+    assert square is not None and len(gcd) == 3
+    assert all(f.equal(x, y) for x, y in zip(square, gcd, strict=True))
+    # mutation: a changed constant term is no longer a square
+    bent = [f.add(quartic[0], f.one()), *quartic[1:]]
+    assert pf._square_root_of_quartic(f, bent) is None
+    # (b + 1)⁴ = b⁴ + 4b³ + 6b² + 4b + 1: a square, but of a double root — refused
+    fourfold = [f.const(c) for c in (1, 4, 6, 4, 1)]
+    assert pf._square_root_of_quartic(f, fourfold) is None

@@ -402,20 +402,30 @@ def plain_events(source: str) -> list[yaml.Event] | None:
     depth = documents = 0
     try:
         for event in yaml.parse(source, Loader=fast):
-            if _refuse_event(event):
-                return None
-            if isinstance(event, yaml.CollectionStartEvent):
-                depth += 1
-                if depth > MAX_NESTING:
-                    return None
-            elif isinstance(event, yaml.CollectionEndEvent):
+            kind = type(event)  # libyaml makes exactly these classes; scalars first (most)
+            if kind is yaml.ScalarEvent or kind in _STARTS:
+                if event.anchor or (event.tag and event.tag not in _ALLOWED_TAGS):
+                    return None  # what ``_refuse_event`` refuses, checked inline
+                if kind is not yaml.ScalarEvent:
+                    depth += 1
+                    if depth > MAX_NESTING:
+                        return None
+            elif kind in _ENDS:
                 depth -= 1
-            elif isinstance(event, yaml.DocumentStartEvent):
+            elif kind is yaml.DocumentStartEvent:
                 documents += 1
+            elif kind is yaml.AliasEvent or kind not in _OTHERS:
+                return None
             events.append(event)
     except yaml.YAMLError:
         return None
     return events if documents == 1 else None
+
+
+_STARTS = frozenset({yaml.MappingStartEvent, yaml.SequenceStartEvent})
+_ENDS = frozenset({yaml.MappingEndEvent, yaml.SequenceEndEvent})
+_OTHERS = frozenset({yaml.StreamStartEvent, yaml.StreamEndEvent, yaml.DocumentEndEvent})
+_ALLOWED_TAGS = STANDARD_TAGS | {"!"}
 
 
 _RESOLVER = yaml.resolver.Resolver()

@@ -118,6 +118,13 @@ class RationalField:
         return Frac(self._unit, self._unit)
 
     @functools.cached_property
+    def converted(self) -> dict[sympy.Basic, Frac]:
+        """SymPy subexpressions already converted into this field (a metric repeats Σ,
+        Δ and their powers in many components; converting is deterministic for a field,
+        and Fracs are immutable). Unknown generators raise before anything is stored."""
+        return {}
+
+    @functools.cached_property
     def gens(self) -> tuple[flint.fmpq_mpoly, ...]:
         """The generators as polynomials (flint builds a fresh tuple on every ctx.gens())."""
         return tuple(self.ctx.gens())
@@ -361,12 +368,19 @@ class RationalField:
         (cos - 1)(cos + 1) pairs written back as -sin**2 (and cosh likewise)."""
         if x.is_zero():
             return sympy.Integer(0)
+        scale, factors = self.display_factors(x)
+        return sympy.Mul(scale, *(base**exponent for base, exponent in factors))
+
+    def display_factors(self, x: Frac) -> tuple[sympy.Rational, list[tuple[sympy.Expr, int]]]:
+        """``display``'s pieces: a rational scale and (base, exponent) pairs, negative
+        exponents for the denominator's factors — a factor list of a non-zero ``x`` over Q
+        (in its generators) that callers can use without SymPy factoring the display again."""
         num_scale, num_factors = self._display_parts(x.num)
         den_scale, den_factors = self._display_parts(x.den)
-        factors = num_factors + [f**-1 for f in den_factors]
-        return sympy.Mul(num_scale / den_scale, *factors)
+        return num_scale / den_scale, num_factors + [(f, -e) for f, e in den_factors]
 
-    def _display_parts(self, p: flint.fmpq_mpoly) -> tuple[sympy.Rational, list[sympy.Expr]]:
+    def _display_parts(self, p: flint.fmpq_mpoly
+                       ) -> tuple[sympy.Rational, list[tuple[sympy.Expr, int]]]:
         if p.is_constant():
             c = p.leading_coefficient()
             return sympy.Rational(int(c.p), int(c.q)), []
@@ -375,7 +389,7 @@ class RationalField:
         content, found = p.factor()
         scale = sympy.Rational(int(content.p), int(content.q))
         factors = [[f, e] for f, e in found]
-        out: list[sympy.Expr] = []
+        out: list[tuple[sympy.Expr, int]] = []
         degrees = p.degrees()
         for spec_i in self._cosine_like:
             spec = self.specs[spec_i]
@@ -392,7 +406,7 @@ class RationalField:
             partner = self.specs[self.index[spec.partner]].meaning
             if spec.kind == "trig":
                 scale *= (-1) ** k
-            out.append(partner ** (2 * k))
+            out.append((partner, 2 * k))
         primitive = []
         for f, e in factors:
             if e:
@@ -401,14 +415,15 @@ class RationalField:
                 primitive.append((g, e))
         if len(primitive) > 1:  # flint's factor order is deterministic; sort for readability
             primitive.sort(key=lambda item: str(item[0]))
-        out += [self.poly_to_sympy(f) ** e for f, e in primitive]
+        out += [(self.poly_to_sympy(f), int(e)) for f, e in primitive]
         return scale, out
 
-    def _monomial_parts(self, p: flint.fmpq_mpoly) -> tuple[sympy.Rational, list[sympy.Expr]]:
+    def _monomial_parts(self, p: flint.fmpq_mpoly
+                        ) -> tuple[sympy.Rational, list[tuple[sympy.Expr, int]]]:
         """A single term needs no factorisation (most components of simple metrics)."""
         ((monom, coeff),) = p.terms()
         meanings = [s.meaning for s in self.specs]
-        powers = [meanings[k] ** int(e) for k, e in enumerate(monom) if e]
+        powers = [(meanings[k], int(e)) for k, e in enumerate(monom) if e]
         return sympy.Rational(int(coeff.p), int(coeff.q)), powers
 
     def _primitive(self, f: flint.fmpq_mpoly) -> tuple[sympy.Rational, flint.fmpq_mpoly]:
@@ -598,16 +613,22 @@ def _convert(field: RationalField, e: sympy.Basic, heads: dict) -> Frac:
     k = field.index.get(e)
     if k is not None:
         return field.var(k)
+    memo = field.converted
+    found = memo.get(e)
+    if found is not None:
+        return found
     if e.is_Add:
-        return field.sum([_convert(field, a, heads) for a in e.args])
-    if e.is_Mul:
-        result = field.one()
+        value = field.sum([_convert(field, a, heads) for a in e.args])
+    elif e.is_Mul:
+        value = field.one()
         for a in e.args:
-            result = field.mul(result, _convert(field, a, heads))
-        return result
-    if e.is_Pow:
-        return _convert_pow(field, e, heads)
-    return _convert_atom(field, e, heads)
+            value = field.mul(value, _convert(field, a, heads))
+    elif e.is_Pow:
+        value = _convert_pow(field, e, heads)
+    else:
+        value = _convert_atom(field, e, heads)
+    memo[e] = value
+    return value
 
 
 def _need(*specs: GeneratorSpec) -> None:

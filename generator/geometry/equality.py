@@ -134,6 +134,22 @@ def canonical_all(exprs: list[sympy.Expr], spacetime: Spacetime) -> list[sympy.E
     return [field.display(v) for v in values]
 
 
+Factored = tuple[sympy.Expr, list[tuple[sympy.Expr, int]]]  # scale, (base, exponent) pairs
+
+
+def canonical_factored(expr: sympy.Expr, spacetime: Spacetime
+                       ) -> tuple[sympy.Expr, Factored | None]:
+    """``canonical`` of ``expr`` with the factor list it is the product of (the field's
+    ``display_factors``), so that a caller who needs the factors does not ask SymPy to
+    factor the display again; None for the factors outside the field."""
+    aligned = _aligned(sympy.sympify(expr), spacetime)
+    try:
+        field, (value,) = _field_of((aligned,), spacetime)
+    except (NotInField, ZeroDivisionError):
+        return sympy.factor(sympy.cancel(aligned)), None
+    return field.display(value), field.display_factors(value)
+
+
 def exact_square_root(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr | None:
     """±y with y**2 == ``expr`` exactly, when ``expr`` is a perfect square in the field
     (``RationalField.square_root``); None otherwise. Used where either sign will do, such as the

@@ -20,6 +20,7 @@ from collections.abc import Callable
 
 import sympy
 
+from generator.geometry.polycancel import cancelled_fraction
 from generator.geometry.sampling import linear_bound
 from generator.model import Spacetime
 
@@ -282,19 +283,51 @@ def _product_sign(expr: sympy.Expr, roots: Roots, depth: int) -> Sign | None:
 def _sign_ok(expr: sympy.Expr, strict: bool, roots: Roots, depth: int) -> bool:
     """``expr`` ≥ 0 (> 0) over the substituted domain: a quotient of products of factors of
     proved sign, with a nonzero denominator and an even number of negative factors."""
+    found = _quotient_sign(expr, roots, depth)
+    return found is not None and found[0] > 0 and (found[1] or not strict)
+
+
+def _quotient_sign(expr: sympy.Expr, roots: Roots, depth: int) -> Sign | None:
+    """The proved sign of a quotient of products of factors of proved sign, with a
+    denominator proved nonzero; (1, False) for a numerator that cancels to zero (≥ 0 and
+    ≤ 0 both hold)."""
     if sympy.count_ops(expr) > 2 * SIZE_LIMIT:
-        return False
+        return None
     together = sympy.together(expr)
     if sympy.count_ops(together) <= CANCEL_LIMIT:
-        together = sympy.cancel(together)
-    numerator, denominator = sympy.fraction(together)
+        numerator, denominator = cancelled_fraction(together)
+    else:
+        numerator, denominator = sympy.fraction(together)
     if numerator == 0:
-        return not strict
+        return 1, False
     top = _product_sign(numerator, roots, depth)
-    if top is None or (strict and not top[1]):
-        return False
+    if top is None:
+        return None
     bottom = _product_sign(denominator, roots, depth)
-    return bottom is not None and bottom[1] and top[0] * bottom[0] > 0
+    if bottom is None or not bottom[1]:
+        return None
+    return top[0] * bottom[0], top[1]
+
+
+def proved_sign(expr: sympy.Expr, spacetime: Spacetime, strict: bool = False) -> int | None:
+    """+1 when ``proves_sign(expr)`` holds, −1 when ``proves_sign(−expr)`` does, else None,
+    from one substitution and one factoring: every step of the prover treats −expr as expr
+    with the opposite sign (the factors are the same up to the unit −1), so asking for both
+    signs need not do the work twice. (Where an expression sits exactly at a size limit,
+    −expr counts one operation more; either answer is a proof.)"""
+    expr = sympy.sympify(expr)
+    if expr == 0:
+        return None if strict else 1
+    if sympy.count_ops(expr) > SIZE_LIMIT:
+        return None
+    try:
+        substituted, roots = substitute_domain(expr, spacetime)
+        found = _quotient_sign(substituted, roots, 0)
+    except (sympy.PolynomialError, TypeError, ValueError, NotImplementedError):
+        return None
+    if found is None or (strict and not found[1]):
+        return None
+    return found[0]
 
 
 def proves_sign(expr: sympy.Expr, spacetime: Spacetime, strict: bool = False) -> bool:

@@ -33,7 +33,12 @@ from generator.geometry.algebra import (
     build_field,
 )
 from generator.geometry.curvature import Budget, FieldArithmetic, Limits, inverse_matrix
-from generator.geometry.equality import canonical, exact_square_root
+from generator.geometry.equality import (
+    Factored,
+    canonical,
+    canonical_factored,
+    exact_square_root,
+)
 from generator.geometry.sampling import Point, angle_coordinates, entry_points, numeric_value
 from generator.model import Geometry, Horizon, Spacetime
 from generator.physics.cross_section import AxisRange, RangeRoot, axis_range, per_unit_words
@@ -960,17 +965,19 @@ def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Exp
     in_h = data.rf.field.display(data.area_density)
     if any(in_h.has(y) for y in section.per_unit):
         return ExactArea(None, "the area density depends on a direction with no range")
-    root = density_root(in_h, spacetime, angles)
+    root = density_root(in_h, spacetime, angles,
+                        factored=data.rf.field.display_factors(data.area_density))
     if root is not None:
         root = in_location(root, location)
     elif location is not None:
-        density = canonical(in_h.xreplace({H: location}), spacetime)
-        root = density_root(density, spacetime, angles)
+        density, factored = canonical_factored(in_h.xreplace({H: location}), spacetime)
+        root = density_root(density, spacetime, angles, factored=factored)
     else:
         reduced = data.rf.reduce(data.area_density)
         if reduced is not None:
             root = density_root(data.rf.field.display(reduced), spacetime, angles,
-                                radical_in_root=True)
+                                radical_in_root=True,
+                                factored=data.rf.field.display_factors(reduced))
     if root is None:
         return ExactArea(None, "the area density has no exact square root in the field")
     root = positive_cosines(root, ranges)
@@ -1107,18 +1114,19 @@ def quadrature(density: sympy.Expr, memo: dict, ranges: Sequence[tuple[sympy.Sym
 
 
 def density_root(density: sympy.Expr, spacetime: Spacetime,
-                 angles: list[sympy.Symbol], radical_in_root: bool = False
-                 ) -> sympy.Expr | None:
+                 angles: list[sympy.Symbol], radical_in_root: bool = False,
+                 factored: Factored | None = None) -> sympy.Expr | None:
     """sqrt(density) for a product of angle factors (even powers, taken positive on the
     ranges: sin of a polar angle is positive on (0, π)) and a constant part (exact square
     root, denested, or left as sqrt). A constant part in h_root is kept under sqrt only
-    when ``radical_in_root`` (the caller then checks it is real and positive at the root)."""
-    top, bottom = sympy.fraction(sympy.together(density))
-    coefficient, factors = sympy.factor_list(top)
-    bottom_coefficient, bottom_factors = sympy.factor_list(bottom)
-    constant = sympy.Integer(coefficient) / bottom_coefficient
+    when ``radical_in_root`` (the caller then checks it is real and positive at the root).
+    ``factored``: the density's factor list when the caller has it (the exact field's
+    display factors), so that SymPy need not factor the density again."""
+    if factored is None:
+        factored = factor_pairs(density)
+    constant, factors = factored
     angular = sympy.Integer(1)
-    for base, power in factors + [(b, -p) for b, p in bottom_factors]:
+    for base, power in factors:
         if base.free_symbols & set(angles):
             if power % 2:
                 return None
@@ -1143,6 +1151,16 @@ def density_root(density: sympy.Expr, spacetime: Spacetime,
             1, 2) else None
     root = exact_square_root(constant, spacetime) or denested_root(constant, spacetime)
     return angular * (root if root is not None else sympy.sqrt(constant))
+
+
+def factor_pairs(expr: sympy.Expr) -> Factored:
+    """A rational scale and (factor, exponent) pairs of ``expr``, negative exponents for the
+    denominator's factors (SymPy's factor lists of numerator and denominator)."""
+    top, bottom = sympy.fraction(sympy.together(expr))
+    coefficient, factors = sympy.factor_list(top)
+    bottom_coefficient, bottom_factors = sympy.factor_list(bottom)
+    return (sympy.sympify(coefficient) / bottom_coefficient,
+            factors + [(b, -p) for b, p in bottom_factors])
 
 
 def sign_fixed(value: sympy.Expr, spacetime: Spacetime, points: Sequence[Point]) -> sympy.Expr:

@@ -49,13 +49,13 @@ def limit_values(entry: Entry, spacetime: Spacetime, link: RelatedChart
 def metric_in_limit(metric: sympy.Matrix, values: Mapping[sympy.Symbol, sympy.Expr]
                     ) -> sympy.Matrix:
     def component(expr: sympy.Expr) -> sympy.Expr:
-        # Substituted before cancelling: a smaller expression to cancel (Kerr–Newman at Q = 0).
-        # Where the uncancelled form is singular at the limit (0/0), the cancelled one is
+        # Substituted as written (Kerr–Newman at Q = 0): the comparison that follows decides
+        # equality in the exact field, which normalises anyway, so nothing is cancelled here.
+        # Where the written form is singular at the limit (0/0), the cancelled one is
         # substituted instead, and a limit taken where that is singular too.
         direct = expr
         for symbol, target in values.items():  # in turn, as below
             direct = direct.xreplace({symbol: target})
-        direct = sympy.cancel(direct)
         if not direct.has(sympy.zoo, sympy.nan, sympy.oo, -sympy.oo):
             return direct
         value = sympy.cancel(expr)

@@ -18,7 +18,7 @@ from generator.entry.mathparse import parse_math
 from generator.errors import Diagnostic, MathSyntaxError
 from generator.geometry.equality import canonical_all, decide_equal
 from generator.geometry.exactvalues import coordinate_names, index_label, vanish_each, vanishes
-from generator.model import Entry, Geometry, MathText, Spacetime
+from generator.model import Decision, Entry, Geometry, MathText, Spacetime
 from generator.physics.exact_sources import exact_electrovacuum
 
 SOURCE_KINDS = ("electrovacuum", "perfect-fluid", "null-dust", "anisotropic-fluid",
@@ -78,11 +78,17 @@ def pairs(n: int) -> list[tuple[int, int]]:
 def failing_components(matrix: sympy.Matrix, spacetime: Spacetime, name: str,
                        symmetric: bool = True) -> tuple[list[str], list[str]]:
     """Labels of the components that are not zero, and of those that could not be decided."""
-    names = coordinate_names(spacetime)
     n = spacetime.dimension
     indices = pairs(n) if symmetric else [(a, b) for a in range(n) for b in range(n)]
-    failing, undecided = [], []
     decisions = vanish_each([matrix[a, b] for a, b in indices], spacetime)
+    return labelled(indices, decisions, spacetime, name)
+
+
+def labelled(indices: list[tuple[int, int]], decisions: list[Decision], spacetime: Spacetime,
+             name: str) -> tuple[list[str], list[str]]:
+    """``failing_components``' labels for decisions already made."""
+    names = coordinate_names(spacetime)
+    failing, undecided = [], []
     for (a, b), decision in zip(indices, decisions, strict=True):
         label = name.format(index_label(names, (a,)), index_label(names, (b,)),
                             index_label(names, (a, b)))
@@ -96,14 +102,20 @@ def failing_components(matrix: sympy.Matrix, spacetime: Spacetime, name: str,
 def geometric_kind(geometry: Geometry, spacetime: Spacetime) -> Geometric:
     """Vacuum, Λ-vacuum (with Λ = (n-2)R/(2n)) or neither, from the Ricci tensor alone."""
     n = geometry.dimension
-    failing, undecided = failing_components(geometry.ricci, spacetime, "R_{2}")
+    indices = pairs(n)
+    decisions = vanish_each([geometry.ricci[a, b] for a, b in indices], spacetime)
+    failing, undecided = labelled(indices, decisions, spacetime, "R_{2}")
     if not failing and not undecided:
         return Geometric("vacuum", None)
     if n < 3:
         return Geometric("non-vacuum", None, tuple(failing), tuple(undecided))
     scalar = geometry.ricci_scalar
-    traceless = geometry.ricci - scalar / n * geometry.metric
-    off, unsure = failing_components(traceless, spacetime, "R_{2} - (R/n) g_{2}")
+    traceless_name = "R_{2} - (R/n) g_{2}"
+    if scalar == 0:  # traceless already (Maxwell fields): the components decided above
+        off, unsure = labelled(indices, decisions, spacetime, traceless_name)
+    else:
+        traceless = geometry.ricci - scalar / n * geometry.metric
+        off, unsure = failing_components(traceless, spacetime, traceless_name)
     constant = all(vanishes(sympy.diff(scalar, x), spacetime).equal is True
                    for x in spacetime.coordinates)
     if not off and not unsure and constant:

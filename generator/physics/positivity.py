@@ -5,6 +5,7 @@ from __future__ import annotations
 
 from generator.geometry.positivity import (  # noqa: F401
     domain_substitution,
+    proved_sign,
     proves_sign,
     square_lower_bound,
     substitute_domain,

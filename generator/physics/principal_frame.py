@@ -593,6 +593,10 @@ def _repeated_root(f: RationalField, quartic: list[Frac], kind: str) -> list[Fra
     q = _trim(f, quartic)
     if len(q) < 5:
         raise NotFound("internal: the quartic lost its leading coefficient")
+    if kind == "D":
+        square = _square_root_of_quartic(f, q)
+        if square is not None:
+            return square
     repeated = _gcd(f, q, _derivative(f, q))
     if kind == "D":
         if len(repeated) != 3:
@@ -604,6 +608,25 @@ def _repeated_root(f: RationalField, quartic: list[Frac], kind: str) -> list[Fra
     if len(repeated) != 2:
         raise NotFound("no repeated principal null direction was found exactly")
     return repeated
+
+
+def _square_root_of_quartic(f: RationalField, q: list[Frac]) -> list[Frac] | None:
+    """S = b² + p b + s with q = q₄ S² and p² ≠ 4s, when the quartic is visibly that
+    square; else None. For type D this S is gcd(q, q′) (made monic), which the Euclidean
+    algorithm reaches through growing remainders: with q/q₄ = b⁴ + a₃b³ + a₂b² + a₁b + a₀,
+    p = a₃/2 and s = (a₂ − p²)/2 are forced, and a₁ = 2ps, a₀ = s² are checked exactly.
+    S has two distinct roots (p² ≠ 4s), so gcd(S², 2SS′) = S·gcd(S, 2S′) = S."""
+    if len(q) != 5:
+        return None
+    a0, a1, a2, a3 = (f.div(c, q[4]) for c in q[:4])
+    p = f.scale(a3, sympy.Rational(1, 2))
+    s = f.scale(f.sub(a2, f.mul(p, p)), sympy.Rational(1, 2))
+    if not f.equal(a1, f.scale(f.mul(p, s), 2)) or not f.equal(a0, f.mul(s, s)):
+        return None
+    if f.sub(f.mul(p, p), f.scale(s, 4)).is_zero():
+        return None  # a fourfold root: not type D, and the general path says so
+    FrameWork.count(p, s)
+    return [s, p, f.one()]
 
 
 def _complex_root(frame: Frame, spacetime: Spacetime, points: Sequence[dict], x: Frac,

@@ -239,8 +239,40 @@ def gaussian_factored(expr: sympy.Expr) -> sympy.Expr:
                 break
             rest, taken = quotient, taken + 1
         exponents[factor] = taken - power
-    unit_n, above = sympy.factor_list(rest.as_expr(), domain=domain)
+    unit_n, above = factor_list_over(rest.as_expr(), domain)
     for factor, power in above:
         exponents[factor] = exponents.get(factor, 0) + power
     product = sympy.Mul(*(f**e for f, e in exponents.items() if e))
     return sympy.Mul(unit_n / unit_d, product)
+
+
+def factor_list_over(expr: sympy.Expr, domain: sympy.polys.domains.Domain
+                     ) -> tuple[sympy.Expr, list[tuple[sympy.Expr, int]]]:
+    """``sympy.factor_list(expr, domain=domain)`` for a polynomial over a field, without the
+    factoring when ``expr`` is visibly irreducible: of degree one in some variable x, as
+    A·x + B with gcd(A, B) = 1 (a primitive polynomial of degree one over the ring of the
+    other variables, irreducible by Gauss's lemma). SymPy's answer for an irreducible
+    polynomial over a field is (leading coefficient, [(monic polynomial, 1)]); that is
+    returned. Kerr–Newman's Ψ2 leaves such a quotient: 40 ms of factoring over Q(i), 2 ms
+    of gcd."""
+    if expr.is_number:
+        return sympy.factor_list(expr, domain=domain)
+    poly = sympy.Poly(expr, domain=domain)
+    if poly.is_ground or not visibly_irreducible(poly):
+        return sympy.factor_list(expr, domain=domain)
+    return poly.LC(), [(poly.monic().as_expr(), 1)]
+
+
+def visibly_irreducible(poly: sympy.Poly) -> bool:
+    for k in range(len(poly.gens)):
+        if poly.degree(poly.gens[k]) != 1:
+            continue
+        slope = {(*m[:k], 0, *m[k + 1:]): c for m, c in poly.terms() if m[k] == 1}
+        offset = {m: c for m, c in poly.terms() if m[k] == 0}
+        if not offset:
+            return not any(any(m) for m in slope)  # c·x alone
+        a = sympy.Poly.from_dict(slope, *poly.gens, domain=poly.domain)
+        b = sympy.Poly.from_dict(offset, *poly.gens, domain=poly.domain)
+        if a.gcd(b).is_ground:
+            return True
+    return False
