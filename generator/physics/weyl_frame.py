@@ -264,6 +264,9 @@ def factor_list_over(expr: sympy.Expr, domain: sympy.polys.domains.Domain
 
 
 def visibly_irreducible(poly: sympy.Poly) -> bool:
+    """True when some variable x occurs to degree one only and poly = A·x + B with
+    gcd(A, B) = 1 (or poly = c·x): then poly is irreducible. False means only "not seen to
+    be irreducible" — the caller factors it."""
     for k in range(len(poly.gens)):
         if poly.degree(poly.gens[k]) != 1:
             continue
