@@ -390,3 +390,17 @@ def test_the_literal_key_made_in_the_worker_is_the_one_compared(tmp_path) -> Non
     marked = replace(other, literal_key=made.literal_key)
     assert literal_twins([made], [made, marked]) == {
         made.entry.id: [("schwarzschild", LITERAL_REASON)]}
+
+
+@pytest.mark.slow
+def test_a_newton_run_stops_at_its_evaluation_budget(schwarzschild_charts, monkeypatch) -> None:
+    """A run from a start with no root nearby once halved its damped steps for 2,774
+    evaluations (69 s); MAX_EVALUATIONS ends such a run as "no root here". Mutation guard:
+    with a budget too small to converge, the charts found above are no longer found, so the
+    budget is really applied (the default one leaves them found: the test above)."""
+    from generator.physics import twins
+
+    monkeypatch.setattr(twins, "MAX_EVALUATIONS", 2)
+    new = schwarzschild_charts["isotropic"]
+    found = dict(find_twins(new, list(schwarzschild_charts.values())))
+    assert "schwarzschild" not in found and "schwarzschild-ef" not in found
