@@ -22,9 +22,10 @@ import pytest
 import sympy as sp
 from _known_metrics import kerr_newman
 
-from generator.geometry.algebra import FieldRequest, build_field
+from generator.geometry.algebra import FieldRequest, build_field, factored_product
+from generator.geometry.equality import factor_pairs
 from generator.geometry.polycancel import cancelled_fraction
-from generator.physics.horizons import density_root, factor_pairs
+from generator.physics.horizons import density_root
 from generator.physics.weyl_frame import factor_list_over
 
 x, y, z = sp.symbols("x y z")
@@ -107,6 +108,7 @@ def test_display_factors_are_the_displayed_product_of_irreducibles() -> None:
                                         - g[0, 3] ** 2])
     for value in values:
         scale, pairs = field.display_factors(value)
+        assert factored_product((scale, pairs)) == field.display(value)
         assert sp.Mul(scale, *(b**e for b, e in pairs)) == field.display(value)
         for base, _ in pairs:
             _, found = sp.factor_list(base)
@@ -123,8 +125,8 @@ def test_density_root_from_the_fields_factors_is_the_sympy_one() -> None:
     density = sp.sin(polar) ** 2 * (plus**2 + spin**2) ** 2
     field, (value,) = _kerr_newman_field([density])
     shown = field.display(value)
-    ours = density_root(shown, st, [polar], factored=field.display_factors(value))
-    theirs = density_root(shown, st, [polar], factored=factor_pairs(shown))
+    ours = density_root(field.display_factors(value), st, [polar])
+    theirs = density_root(factor_pairs(shown), st, [polar])
     assert ours is not None and theirs is not None
     assert sp.simplify(ours - theirs) == 0
     area = sp.integrate(ours, (polar, 0, sp.pi)) * 2 * sp.pi  # the root's sign is open

@@ -34,6 +34,15 @@ HYPERBOLIC_PAIRS = {sympy.sinh: "sinh", sympy.cosh: "cosh"}
 MAX_GENERATORS = 80
 
 
+Factored = tuple[sympy.Rational, list[tuple[sympy.Expr, int]]]  # scale, (base, exponent)
+
+
+def factored_product(factored: Factored) -> sympy.Expr:
+    """The expression a factor list stands for (``RationalField.display`` of its value)."""
+    scale, factors = factored
+    return sympy.Mul(scale, *(base**exponent for base, exponent in factors))
+
+
 class NotInField(Exception):
     """An expression does not fit the generator scheme (the caller falls back to SymPy)."""
 
@@ -368,10 +377,9 @@ class RationalField:
         (cos - 1)(cos + 1) pairs written back as -sin**2 (and cosh likewise)."""
         if x.is_zero():
             return sympy.Integer(0)
-        scale, factors = self.display_factors(x)
-        return sympy.Mul(scale, *(base**exponent for base, exponent in factors))
+        return factored_product(self.display_factors(x))
 
-    def display_factors(self, x: Frac) -> tuple[sympy.Rational, list[tuple[sympy.Expr, int]]]:
+    def display_factors(self, x: Frac) -> Factored:
         """``display``'s pieces: a rational scale and (base, exponent) pairs, negative
         exponents for the denominator's factors — a factor list of a non-zero ``x`` over Q
         (in its generators) that callers can use without SymPy factoring the display again."""

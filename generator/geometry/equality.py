@@ -35,6 +35,7 @@ from sympy.core.function import AppliedUndef
 
 from generator.geometry import decisions
 from generator.geometry.algebra import (
+    Factored,
     FieldRequest,
     Frac,
     NotInField,
@@ -134,20 +135,26 @@ def canonical_all(exprs: list[sympy.Expr], spacetime: Spacetime) -> list[sympy.E
     return [field.display(v) for v in values]
 
 
-Factored = tuple[sympy.Expr, list[tuple[sympy.Expr, int]]]  # scale, (base, exponent) pairs
-
-
-def canonical_factored(expr: sympy.Expr, spacetime: Spacetime
-                       ) -> tuple[sympy.Expr, Factored | None]:
-    """``canonical`` of ``expr`` with the factor list it is the product of (the field's
-    ``display_factors``), so that a caller who needs the factors does not ask SymPy to
-    factor the display again; None for the factors outside the field."""
+def canonical_factored(expr: sympy.Expr, spacetime: Spacetime) -> Factored:
+    """The factor list ``canonical`` of ``expr`` is the product of (``factored_product``
+    gives that expression back): the exact field's display factors, factored once; outside
+    the field, SymPy's factor lists of ``factor(cancel(expr))``."""
     aligned = _aligned(sympy.sympify(expr), spacetime)
     try:
         field, (value,) = _field_of((aligned,), spacetime)
     except (NotInField, ZeroDivisionError):
-        return sympy.factor(sympy.cancel(aligned)), None
-    return field.display(value), field.display_factors(value)
+        return factor_pairs(sympy.factor(sympy.cancel(aligned)))
+    return field.display_factors(value)
+
+
+def factor_pairs(expr: sympy.Expr) -> Factored:
+    """A rational scale and (factor, exponent) pairs of ``expr``, negative exponents for the
+    denominator's factors (SymPy's factor lists of numerator and denominator)."""
+    top, bottom = sympy.fraction(sympy.together(expr))
+    coefficient, factors = sympy.factor_list(top)
+    bottom_coefficient, bottom_factors = sympy.factor_list(bottom)
+    return (sympy.sympify(coefficient) / bottom_coefficient,
+            factors + [(b, -p) for b, p in bottom_factors])
 
 
 def exact_square_root(expr: sympy.Expr, spacetime: Spacetime) -> sympy.Expr | None:

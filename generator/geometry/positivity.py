@@ -310,8 +310,9 @@ def _quotient_sign(expr: sympy.Expr, roots: Roots, depth: int) -> Sign | None:
 
 
 def proved_sign(expr: sympy.Expr, spacetime: Spacetime, strict: bool = False) -> int | None:
-    """+1 when ``proves_sign(expr)`` holds, −1 when ``proves_sign(−expr)`` does, else None,
-    from one substitution and one factoring: every step of the prover treats −expr as expr
+    """+1 when ``expr`` ≥ 0 (> 0 when ``strict``) is proved on the whole domain, −1 when
+    ``−expr`` ≥ 0 (> 0) is, else None — from one substitution and one factoring (``proves_sign``
+    asks for the +1 alone): every step of the prover treats −expr as expr
     with the opposite sign (the factors are the same up to the unit −1), so asking for both
     signs need not do the work twice. (Where an expression sits exactly at a size limit,
     −expr counts one operation more; either answer is a proof.)"""
@@ -332,13 +333,4 @@ def proved_sign(expr: sympy.Expr, spacetime: Spacetime, strict: bool = False) ->
 
 def proves_sign(expr: sympy.Expr, spacetime: Spacetime, strict: bool = False) -> bool:
     """True only if ``expr`` ≥ 0 (> 0 when ``strict``) is proved on the whole domain."""
-    expr = sympy.sympify(expr)
-    if expr == 0:
-        return not strict
-    if sympy.count_ops(expr) > SIZE_LIMIT:
-        return False
-    try:
-        substituted, roots = substitute_domain(expr, spacetime)
-        return _sign_ok(substituted, strict, roots, 0)
-    except (sympy.PolynomialError, TypeError, ValueError, NotImplementedError):
-        return False
+    return proved_sign(expr, spacetime, strict) == 1

@@ -27,14 +27,15 @@ import mpmath
 import sympy
 
 from generator.geometry.algebra import (
+    Factored,
     FieldRequest,
     Frac,
     NotInField,
     build_field,
+    factored_product,
 )
 from generator.geometry.curvature import Budget, FieldArithmetic, Limits, inverse_matrix
 from generator.geometry.equality import (
-    Factored,
     canonical,
     canonical_factored,
     exact_square_root,
@@ -962,22 +963,20 @@ def horizon_area(spacetime: Spacetime, data: HorizonAlgebra, location: sympy.Exp
     ranges = section.ranges
     angles = [y for y, _, _ in ranges]
     free = {r.symbol for r in section.roots}
-    in_h = data.rf.field.display(data.area_density)
-    if any(in_h.has(y) for y in section.per_unit):
+    in_h = data.rf.field.display_factors(data.area_density)
+    if any(base.has(y) for base, _ in in_h[1] for y in section.per_unit):
         return ExactArea(None, "the area density depends on a direction with no range")
-    root = density_root(in_h, spacetime, angles,
-                        factored=data.rf.field.display_factors(data.area_density))
+    root = density_root(in_h, spacetime, angles)
     if root is not None:
         root = in_location(root, location)
     elif location is not None:
-        density, factored = canonical_factored(in_h.xreplace({H: location}), spacetime)
-        root = density_root(density, spacetime, angles, factored=factored)
+        at_location = factored_product(in_h).xreplace({H: location})
+        root = density_root(canonical_factored(at_location, spacetime), spacetime, angles)
     else:
         reduced = data.rf.reduce(data.area_density)
         if reduced is not None:
-            root = density_root(data.rf.field.display(reduced), spacetime, angles,
-                                radical_in_root=True,
-                                factored=data.rf.field.display_factors(reduced))
+            root = density_root(data.rf.field.display_factors(reduced), spacetime, angles,
+                                radical_in_root=True)
     if root is None:
         return ExactArea(None, "the area density has no exact square root in the field")
     root = positive_cosines(root, ranges)
@@ -1113,17 +1112,14 @@ def quadrature(density: sympy.Expr, memo: dict, ranges: Sequence[tuple[sympy.Sym
     return (None if bad else mpmath.mpf(value)), mpmath.mpf(error)
 
 
-def density_root(density: sympy.Expr, spacetime: Spacetime,
-                 angles: list[sympy.Symbol], radical_in_root: bool = False,
-                 factored: Factored | None = None) -> sympy.Expr | None:
+def density_root(factored: Factored, spacetime: Spacetime, angles: list[sympy.Symbol],
+                 radical_in_root: bool = False) -> sympy.Expr | None:
     """sqrt(density) for a product of angle factors (even powers, taken positive on the
     ranges: sin of a polar angle is positive on (0, π)) and a constant part (exact square
     root, denested, or left as sqrt). A constant part in h_root is kept under sqrt only
     when ``radical_in_root`` (the caller then checks it is real and positive at the root).
-    ``factored``: the density's factor list when the caller has it (the exact field's
-    display factors), so that SymPy need not factor the density again."""
-    if factored is None:
-        factored = factor_pairs(density)
+    The density comes as its factor list (``display_factors`` of the exact field, or
+    ``equality.factor_pairs``), so that it is never factored twice."""
     constant, factors = factored
     angular = sympy.Integer(1)
     for base, power in factors:
@@ -1151,16 +1147,6 @@ def density_root(density: sympy.Expr, spacetime: Spacetime,
             1, 2) else None
     root = exact_square_root(constant, spacetime) or denested_root(constant, spacetime)
     return angular * (root if root is not None else sympy.sqrt(constant))
-
-
-def factor_pairs(expr: sympy.Expr) -> Factored:
-    """A rational scale and (factor, exponent) pairs of ``expr``, negative exponents for the
-    denominator's factors (SymPy's factor lists of numerator and denominator)."""
-    top, bottom = sympy.fraction(sympy.together(expr))
-    coefficient, factors = sympy.factor_list(top)
-    bottom_coefficient, bottom_factors = sympy.factor_list(bottom)
-    return (sympy.sympify(coefficient) / bottom_coefficient,
-            factors + [(b, -p) for b, p in bottom_factors])
 
 
 def sign_fixed(value: sympy.Expr, spacetime: Spacetime, points: Sequence[Point]) -> sympy.Expr:

@@ -173,8 +173,7 @@ def charge(field: RationalField, g: list[list[Frac]], ginv: list[list[Frac]], mi
     if total < 0:
         return sympy.Integer(0), ""
     angles = [y for y, _, _ in ranges]
-    root = density_root(field.display(d_lead), spacetime, angles,
-                        factored=field.display_factors(d_lead))
+    root = density_root(field.display_factors(d_lead), spacetime, angles)
     if root is None:
         return None, "√(−g) has no exact leading term"
     value = positive_cosines(root, ranges) * field.display(e_lead)
