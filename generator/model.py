@@ -65,7 +65,7 @@ class Claim:
 
     name: str  # e.g. "kretschmann"
     value: MathText
-    source: str | None  # a reference role, or "computed-here"
+    source: str | None  # a reference's key or unshared role, or "computed-here"
     locator: str | None
     pos: SourcePos
 
@@ -145,6 +145,7 @@ class Reference:
     unconfirmed: tuple[str, ...]  # names of fields recalled but not confirmed
     pos: SourcePos
     confirmed: str | None = None  # where the fields were confirmed (a record's address)
+    key: str | None = None  # the entry's own short name for this work, for claim sources
 
 
 @dataclass(frozen=True)
@@ -192,16 +193,28 @@ class Entry:
     source_text: str = field(default="", compare=False, hash=False, repr=False)
 
     def published_source(self, subject: str) -> str | None:
-        """The reference role that prints the value claimed under ``subject`` (a verdict
+        """The source (key or role) that prints the value claimed under ``subject`` (a verdict
         subject such as ``claims.kretschmann``), or None when the entry names no publication
         for it: ``computed-here``, the short form without a source, and structural facts."""
         name = subject.removeprefix("claims.")
         sources = {c.name: c.source for c in self.claims.scalars}
         sources.update({label: source for label, source, _ in self.claims.label_sources})
         sources.update({c.name: c.source for c in self.claims.physical})
-        role = sources.get(name) if subject.startswith("claims.") else None
-        roles = {r.role for r in self.references}
-        return role if role in roles else None
+        source = sources.get(name) if subject.startswith("claims.") else None
+        return source if self.cited_reference(source) is not None else None
+
+    def cited_reference(self, source: str | None) -> Reference | None:
+        """The one reference a claim's ``source`` names: the reference with that key, else
+        the only reference with that role. None for ``computed-here``, an unknown name, or a
+        role that several references share (the loader refuses those), so that a value is
+        never attributed to a work the entry did not single out."""
+        if source is None:
+            return None
+        keyed = [r for r in self.references if r.key == source]
+        if keyed:
+            return keyed[0]
+        by_role = [r for r in self.references if r.role == source]
+        return by_role[0] if len(by_role) == 1 else None
 
     def pos(self, key: str) -> SourcePos:
         """Position of a dotted key path (e.g. ``claims.kretschmann``), else of the file start."""

@@ -313,6 +313,7 @@ def _build_reference(data: dict[str, Any], pos: SourcePos) -> Reference:
         unconfirmed=tuple(data.get("unconfirmed", ())),
         pos=pos,
         confirmed=data.get("confirmed"),
+        key=data.get("key"),
     )
 
 
@@ -410,16 +411,55 @@ def _check_references(entry: Entry, path: Path, vocabulary: Vocabulary) -> Itera
 
 def _check_claim_sources(entry: Entry, path: Path, vocabulary: Vocabulary
                          ) -> Iterable[Diagnostic]:
-    roles = {r.role for r in entry.references} | {schema.COMPUTED_HERE}
+    yield from _check_reference_keys(entry)
     # At the `source:` line itself (entry.pos falls back to the claim for the short form).
     sources = [(c.source, entry.pos(f"claims.{c.name}.source"))
                for c in (*entry.claims.scalars, *entry.claims.physical)]
     sources += [(s, entry.pos(f"claims.{n}.source")) for n, s, _ in entry.claims.label_sources]
     for source, pos in sources:
-        if source is not None and source not in roles:
-            yield _error(pos, f"claim source '{source}' is not the role of any reference",
-                         "entry.claim-source",
-                         f"use one of: {', '.join(sorted(roles))}")
+        if source is None or source == schema.COMPUTED_HERE:
+            continue
+        if entry.cited_reference(source) is not None:
+            continue
+        sharing = [r for r in entry.references if r.role == source]
+        if sharing:
+            works = "; ".join(f"{', '.join(r.authors)} {r.year}" for r in sharing)
+            yield _error(pos, f"claim source '{source}' names {len(sharing)} references "
+                         f"({works})", "entry.claim-source",
+                         "give the reference that prints this value a `key:` and name that "
+                         "key here, so the value is credited to that work alone")
+        else:
+            yield _error(pos, f"claim source '{source}' is not the key or role of any "
+                         "reference", "entry.claim-source",
+                         f"use one of: {', '.join(_nameable_sources(entry))}")
+
+
+def _nameable_sources(entry: Entry) -> list[str]:
+    """What a claim's ``source`` may say in this entry: keys, roles no two references share,
+    and computed-here."""
+    roles = [r.role for r in entry.references]
+    names = {r.key for r in entry.references if r.key}
+    names |= {role for role in roles if roles.count(role) == 1}
+    return sorted(names | {schema.COMPUTED_HERE})
+
+
+def _check_reference_keys(entry: Entry) -> Iterable[Diagnostic]:
+    """A key names one work: it may not repeat, nor read as a role or computed-here, which
+    would make a claim's source mean two things."""
+    seen: set[str] = set()
+    reserved = {*schema.REFERENCE_ROLES, schema.COMPUTED_HERE}
+    for i, ref in enumerate(entry.references):
+        if ref.key is None:
+            continue
+        pos = entry.pos(f"references.{i}.key")
+        if ref.key in reserved:
+            yield _error(pos, f"reference key '{ref.key}' is also a role name",
+                         "entry.reference", "choose a key such as the first author and year, "
+                         "e.g. kerr-1963")
+        elif ref.key in seen:
+            yield _error(pos, f"reference key '{ref.key}' is given to two references",
+                         "entry.reference", "give each reference its own key")
+        seen.add(ref.key)
 
 
 def _check_vocabulary(entry: Entry, path: Path, vocabulary: Vocabulary) -> Iterable[Diagnostic]:

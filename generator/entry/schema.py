@@ -134,7 +134,8 @@ def _claim_record(value: Field) -> tuple[Field, ...]:
         value,
         Field(
             "source",
-            "Role of the reference this value was taken from, or computed-here.",
+            "The reference this value was taken from: its key, or its role when no other "
+            "reference has that role; or computed-here.",
             "line",
         ),
         Field("locator", "Where in that reference (equation, page).", "line"),
@@ -320,6 +321,9 @@ REFERENCE = Field(
     fields=(
         Field("role", "Why it is cited (independent: the same solution found independently).",
               "choice", required=True, choices=REFERENCE_ROLES),
+        Field("key", "A short name, unique in the entry, by which a claim's source names "
+              "exactly this work (needed when another reference has the same role).", "line",
+              pattern=ID_PATTERN),
         Field(
             "authors",
             "Authors as printed.",

@@ -80,7 +80,7 @@ def reference_json(r: Reference) -> dict[str, Any]:
     return {
         "role": r.role, "authors": list(r.authors), "title": r.title, "venue": r.venue,
         "year": r.year, "doi": r.doi, "arxiv": r.arxiv, "isbn": r.isbn, "locator": r.locator,
-        "unconfirmed": list(r.unconfirmed),
+        "unconfirmed": list(r.unconfirmed), "key": r.key,
     }
 
 

@@ -377,15 +377,14 @@ def invariant_rows(report: EntryReport, verdicts: Mapping[str, Verdict],
 COMPUTED_ONLY_WORDS = "computed by this tool; no published value to compare"
 
 
-def claim_source(claim_source_role: str | None, entry: Entry) -> dict[str, Any]:
-    """Who the claimed value comes from. Only a reference the claim names counts: a value
-    without one (``computed-here``, or the short form) is shown as the tool's own result,
-    never attributed to a paper by default."""
-    refs = [r for r in entry.references if r.role == claim_source_role]
-    if claim_source_role == "computed-here" or not refs:
+def claim_source(source: str | None, entry: Entry) -> dict[str, Any]:
+    """Who the claimed value comes from. Only the one reference the claim names counts: a
+    value without one (``computed-here``, or the short form) is shown as the tool's own
+    result, never attributed to a paper by default, and never to two papers at once."""
+    ref = entry.cited_reference(source)
+    if source == "computed-here" or ref is None:
         return {"computed_here": True, "label": COMPUTED_ONLY_WORDS}
-    label = "; ".join(f"{short_authors(r.authors)} {r.year}" for r in refs)
-    return {"computed_here": False, "label": label}
+    return {"computed_here": False, "label": f"{short_authors(ref.authors)} {ref.year}"}
 
 
 def claim_data(claim: Claim, entry: Entry, st: Spacetime | None) -> dict[str, Any]:
