@@ -339,6 +339,21 @@ def test_original_text() -> None:
     )
 
 
+def test_every_original_publication_is_cited_in_the_entry_order() -> None:
+    """A metric found in two papers is cited with both (here Schwarzschild 1916 and Kerr 1963
+    stand in for any two originals): one BibTeX record, CSL item and text line each, never
+    the first paper alone."""
+    entry = schwarzschild(references=(SCHWARZSCHILD_ORIGINAL, KERR))
+    records = parse_bibtex(cite_original(entry, "bibtex")).entries
+    assert [r.key for r in records] == ["schwarzschild-1916-uber", "kerr-1963-gravitational"]
+    items = json.loads(cite_original(entry, "csl-json"))
+    jsonschema.validate(items, CSL_SCHEMA)
+    assert [item["issued"] for item in items] == [{"date-parts": [[1916]]},
+                                                  {"date-parts": [[1963]]}]
+    lines = cite_original(entry, "text").splitlines()
+    assert [line.split(" (")[0] for line in lines] == ["K. Schwarzschild", "R. P. Kerr"]
+
+
 def test_entry_without_original_reference_is_refused() -> None:
     review = replace(SCHWARZSCHILD_ORIGINAL, role="review")
     with pytest.raises(ValueError, match="no reference with role 'original'"):

@@ -402,3 +402,24 @@ def test_search_can_filter_by_isometry_dimension(site: Path) -> None:
     assert '"isometry":"4"' in index and '"isometry":""' in index
     finder = next(site.rglob("finder.js")).read_text(encoding="utf-8")
     assert "chosen.isometry" in finder
+
+
+def test_an_entry_with_two_original_papers_cites_and_qualifies_both(tmp_path: Path) -> None:
+    """Both original publications get a BibTeX record and their own confirmation line; the
+    demo's second original (an invented harbour-club note) has nothing confirmed."""
+    from dataclasses import replace
+
+    report = demo.lantern_report()
+    assert report.entry is not None
+    first = report.entry.references[0]
+    second = replace(first, authors=("C. Lamplighter",), title="A second lantern note",
+                     year=2025, doi=None, arxiv=None, unconfirmed=("title", "venue", "year"))
+    entry = replace(report.entry, references=(first, second))
+    site = demo.build_demo_site(tmp_path / "out", [replace(report, entry=entry)])
+    parsed = page(site, "entries/demo-harbour-lantern/index.html")
+    text = " ".join(parsed.text.split())
+    assert "The original publications (BibTeX, one record each)" in text
+    assert "Original publication (Keeper & Tide 2026)" in text
+    assert "Original publication (Lamplighter 2025) details not confirmed" in text
+    bibtex = (site / "entries/demo-harbour-lantern/index.html").read_text(encoding="utf-8")
+    assert bibtex.count("@article{keeper") == 1 and bibtex.count("@article{lamplighter") == 1

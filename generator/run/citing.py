@@ -74,7 +74,8 @@ def _parser() -> argparse.ArgumentParser:
     parser.add_argument("id", nargs="?", help="entry id, e.g. kerr-boyer-lindquist")
     parser.add_argument("--format", choices=FORMATS, default="bibtex")
     parser.add_argument(
-        "--original", action="store_true", help="cite the publication the metric comes from"
+        "--original", action="store_true",
+        help="cite the publications the metric comes from (every reference with role original)"
     )
     parser.add_argument("--hash", metavar="H", help="find the entry and commit of a content hash")
     parser.add_argument("--catalog", default="catalog", help="catalog folder (default: catalog)")

@@ -208,17 +208,34 @@ def _dispatch(fmt: str, *writers: Callable[[_T], str]) -> Callable[[_T], str]:
 # ---------------------------------------------------------------------------- the original source
 
 
-def original_reference(entry: Entry) -> Reference:
-    for reference in entry.references:
-        if reference.role == "original":
-            return reference
-    raise ValueError(f"{entry.file}: entry {entry.id} has no reference with role 'original'")
+def original_references(entry: Entry) -> tuple[Reference, ...]:
+    """Every publication the entry's metric comes from (role ``original``), in the entry's
+    order: a solution found in two papers (Taub 1951 and Newman–Tamburino–Unti 1963) is
+    cited with both, never with the first alone."""
+    originals = tuple(r for r in entry.references if r.role == "original")
+    if not originals:
+        raise ValueError(
+            f"{entry.file}: entry {entry.id} has no reference with role 'original'")
+    return originals
 
 
 def cite_original(entry: Entry, fmt: str) -> str:
-    """Citation of the publication the entry's metric comes from (role ``original``)."""
-    reference = original_reference(entry)
-    return _dispatch(fmt, _reference_bibtex, _reference_csl, _reference_text)(reference)
+    """Citation of the publications the entry's metric comes from (role ``original``): one
+    record (BibTeX), item (CSL-JSON) or line (text) for each."""
+    write = _dispatch(fmt, _bibtex_records, _csl_records, _text_records)
+    return write(original_references(entry))
+
+
+def _bibtex_records(references: Sequence[Reference]) -> str:
+    return "\n".join(_reference_bibtex(r) for r in references)
+
+
+def _csl_records(references: Sequence[Reference]) -> str:
+    return _json([_reference_csl_item(r) for r in references])
+
+
+def _text_records(references: Sequence[Reference]) -> str:
+    return "".join(_reference_text(r) for r in references)
 
 
 _VENUE_PATTERN = re.compile(
@@ -305,7 +322,7 @@ def _reference_bibtex(r: Reference) -> str:
     return _bibtex_record("book" if book else "article", reference_key(r), fields)
 
 
-def _reference_csl(r: Reference) -> str:
+def _reference_csl_item(r: Reference) -> dict[str, object]:
     venue = split_venue(r.venue, r.year)
     book = _is_book(r)
     item: dict[str, object] = {
@@ -327,7 +344,7 @@ def _reference_csl(r: Reference) -> str:
         "URL": _arxiv_url(r.arxiv),
     }
     item.update({k: v for k, v in optional.items() if v})
-    return _json([item])
+    return item
 
 
 def _csl_name(author: str) -> dict[str, str]:

@@ -610,7 +610,9 @@ def citations(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
     entry = report.entry
     assert entry is not None
     latest = meta.revisions.get(entry.id, ())[-1:]
-    original = next((r for r in entry.references if r.role == "original"), None)
+    originals = [{"label": f"{short_authors(r.authors)} {r.year}", "confirmed": r.confirmed or "",
+                  "unconfirmed": list(r.unconfirmed)}
+                 for r in entry.references if r.role == "original"]
     return {
         "entry_bibtex": cite_or_reason(lambda: cite.cite_entry(report, meta, "bibtex")),
         "entry_text": cite_or_reason(lambda: cite.cite_entry(report, meta, "text")),
@@ -620,8 +622,8 @@ def citations(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
         "content_hash": report.content_hash,
         "short_hash": short_hash(report.content_hash) if report.content_hash else "",
         "revision": {"date": latest[0].date, "commit": latest[0].commit[:12]} if latest else None,
-        "original_confirmed": original.confirmed or "" if original else "",
-        "original_unconfirmed": list(original.unconfirmed) if original else [],
+        "originals": originals,
+        "several_originals": len(originals) > 1,
     }
 
 
