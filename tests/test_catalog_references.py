@@ -95,3 +95,51 @@ def test_a_reference_that_overstates_is_reported(reference: dict, expected: str)
 ])
 def test_an_honest_reference_passes(reference: dict) -> None:
     assert reference_problems(reference) == []
+
+
+# ---------------------------------------------------------------------------- one work, one record
+
+# What describes the publication itself; `locator` (where in it) and `key`, `role`,
+# `confirmed` belong to the citing entry.
+DESCRIBING = ("authors", "title", "venue", "year", "doi", "arxiv", "isbn")
+
+
+def identifiers(reference: dict) -> list[tuple[str, str]]:
+    return [(name, str(reference[name]).lower()) for name in ("doi", "arxiv", "isbn")
+            if reference.get(name)]
+
+
+def record_of(reference: dict) -> tuple:
+    """The publication as a reference describes it, and which of those details it marks
+    unconfirmed (a detail one entry confirms and another doubts is one of the two wrong)."""
+    unconfirmed = sorted(f for f in reference.get("unconfirmed") or () if f in DESCRIBING)
+    return tuple(str(reference.get(name)) for name in DESCRIBING) + (tuple(unconfirmed),)
+
+
+def disagreeing_records(references: list[tuple[str, int, dict]]) -> list[str]:
+    """Publications (same DOI, arXiv id or ISBN) that two entries describe differently."""
+    by_identifier: dict[tuple[str, str], dict[tuple, str]] = {}
+    for where, _, reference in references:
+        for identifier in identifiers(reference):
+            by_identifier.setdefault(identifier, {}).setdefault(record_of(reference), where)
+    return [f"{name} {value}: {', '.join(sorted(records.values()))}"
+            for (name, value), records in sorted(by_identifier.items()) if len(records) > 1]
+
+
+def test_a_publication_cited_by_several_entries_is_described_alike() -> None:
+    """A reader who meets the same paper on two pages sees the same authors, title, venue and
+    year, and the same confirmation state, so a misprint fixed in one place is fixed
+    everywhere (a rule of this catalog)."""
+    assert disagreeing_records(shipped_references()) == []
+
+
+def test_two_descriptions_of_one_publication_are_caught() -> None:
+    paper = {"role": "original", "authors": ["A. Keeper"], "title": "Lantern light",
+             "venue": "Harbour Club Notes 1, 1", "year": 2026, "doi": "10.9999/demo.1"}
+    other_page = dict(paper, venue="Harbour Club Notes 1, 1–9")
+    doubted = dict(paper, unconfirmed=["venue"])
+    located = dict(paper, locator="eq. (2)", role="claims", key="keeper-2026")
+    assert disagreeing_records([("a.yaml", 0, paper), ("b.yaml", 0, other_page)]) == [
+        "doi 10.9999/demo.1: a.yaml, b.yaml"]
+    assert disagreeing_records([("a.yaml", 0, paper), ("c.yaml", 0, doubted)]) != []
+    assert disagreeing_records([("a.yaml", 0, paper), ("d.yaml", 0, located)]) == []
