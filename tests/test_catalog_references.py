@@ -113,7 +113,7 @@ def record_of(reference: dict) -> tuple:
     """The publication as a reference describes it, and which of those details it marks
     unconfirmed (a detail one entry confirms and another doubts is one of the two wrong)."""
     unconfirmed = sorted(f for f in reference.get("unconfirmed") or () if f in DESCRIBING)
-    return tuple(str(reference.get(name)) for name in DESCRIBING) + (tuple(unconfirmed),)
+    return (*(str(reference.get(name)) for name in DESCRIBING), tuple(unconfirmed))
 
 
 def disagreeing_records(references: list[tuple[str, int, dict]]) -> list[str]:
