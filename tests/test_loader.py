@@ -193,6 +193,24 @@ def test_wrong_types_and_choices(catalog: Path) -> None:
     assert any(code == "entry.type" and "year" in message for _, _, code, message in found)
 
 
+@pytest.mark.parametrize(("line", "reads_as"), [
+    ("    isbn: 978-0-306-40615-7\n  - role: textbook\n    arxiv: 0706.4324", "a number"),
+    ("    isbn: 978-0-306-40615-7\n  - role: textbook\n    locator: 12", "a number"),
+    ("    isbn: 978-0-306-40615-7\n  - role: textbook\n    locator: yes", "true/false"),
+])
+def test_a_plain_value_other_yaml_tools_read_as_another_type_is_refused(
+        catalog: Path, line: str, reads_as: str) -> None:
+    """`arxiv: 0706.4324` is the float 706.4324 to every standard YAML reader (and to the
+    JSON Schema an editor checks), so the file must quote it; quoted, it is accepted."""
+    path = write_variant(catalog, {"    isbn: 978-0-306-40615-7\n  - role: textbook": line})
+    found = [m for _, _, code, m in errors(load(path)) if code == "entry.type"]
+    assert len(found) == 1 and f"reads as {reads_as} in standard YAML tools" in found[0]
+    key, _, value = line.rpartition("\n")[2].strip().partition(": ")
+    quoted = write_variant(catalog, {"    isbn: 978-0-306-40615-7\n  - role: textbook":
+                                     line.replace(f"{key}: {value}", f"{key}: '{value}'")})
+    assert errors(load(quoted)) == []
+
+
 def test_unknown_tag_and_family(catalog: Path) -> None:
     path = write_variant(catalog, {"tags: [riemannian, test-case]": "tags: [riemannian, "
                                    "sparkly]"})

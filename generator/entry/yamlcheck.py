@@ -26,6 +26,16 @@ STANDARD_TAGS = frozenset(
     for name in ("str", "int", "float", "bool", "null", "map", "seq", "timestamp")
 )
 
+# A plain (unquoted) scalar that standard YAML resolves to another type: `arxiv: 0706.4324`
+# is the float 706.4324 to every other YAML reader (and to editors checking the JSON Schema).
+READ_AS_OTHER = {
+    "tag:yaml.org,2002:int": "a number",
+    "tag:yaml.org,2002:float": "a number",
+    "tag:yaml.org,2002:bool": "true/false",
+    "tag:yaml.org,2002:null": "an empty value",
+    "tag:yaml.org,2002:timestamp": "a date",
+}
+
 
 @dataclass
 class Validated:
@@ -84,6 +94,11 @@ class _Checker:
             return None
         if not value.strip():
             self.error(node, f"'{path}' is empty", "entry.empty", spec.doc)
+            return None
+        if not node.style and node.tag in READ_AS_OTHER:
+            self.error(node, f"'{path}' reads as {READ_AS_OTHER[node.tag]} in standard YAML "
+                       f"tools, not as the text {value!r}", "entry.type",
+                       f"quote it: {path.rpartition('.')[2]}: '{value}'")
             return None
         if spec.pattern and not re.match(spec.pattern, value):
             self.error(node, f"'{path}' has an invalid value {value!r}", "entry.format",
