@@ -58,7 +58,7 @@ references:
     title: The dome of Harbour Point
     venue: Harbour Point Society Notes 1, 1
     year: 2026
-    arxiv: 2612.00001
+    arxiv: '2612.00001'
 curation:
   added: "2026-12-02"
   by: Demo Curator
@@ -162,7 +162,7 @@ def fill_in(text: str, claims: str) -> str:
         "    title:": "    title: The dome of Harbour Point",
         "    venue:": "    venue: Harbour Point Society Notes 1, 1",
         "    year:": "    year: 2026",
-        "    # TODO: doi": "    arxiv: 2612.00001",
+        "    # TODO: doi": "    arxiv: '2612.00001'",
     }
     out = []
     for line in lines:
@@ -281,7 +281,7 @@ references:
     title: The lamp room
     venue: Harbour Point Society Notes 1, 2
     year: 2026
-    arxiv: 2612.00002
+    arxiv: '2612.00002'
 curation:
   added: "2026-12-02"
   by: Demo Curator

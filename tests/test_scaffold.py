@@ -134,7 +134,7 @@ def fill_in(text: str) -> str:
         '    title: "TODO: title of the publication with this metric"': "    title: A lantern",
         '    venue: "TODO: journal volume, first page (or publisher)"': "    venue: Harbour 1, 1",
         "   # TODO: year of publication": "",
-        "    # TODO: doi, arxiv or isbn of the publication": "    arxiv: 2612.00001",
+        "    # TODO: doi, arxiv or isbn of the publication": "    arxiv: '2612.00001'",
     }
     lines = []
     note = text.splitlines()[1:5]  # the scaffold's note to its author, deleted when done
