@@ -293,7 +293,7 @@ SCHWARZSCHILD_MUTANTS = [
 def test_mutated_claims_are_rejected(name: str, wrong: str) -> None:
     """Each new claim kind: the computed value is accepted (also shown by the shipped claims)
     and a corrupted one is an error at the claim."""
-    result = with_claims("schwarzschild", f"  {name}: {{value: {wrong}, source: claims}}\n")
+    result = with_claims("schwarzschild", f"  {name}: {{value: {wrong}, source: computed-here}}\n")
     verdicts, problems = check_physical_claims(result.entry, result.spacetime,
                                                data_of("schwarzschild"))
     mine = [v for v in verdicts if v.subject == f"claims.{name}"]
