@@ -381,10 +381,15 @@ def claim_source(source: str | None, entry: Entry) -> dict[str, Any]:
     """Who the claimed value comes from. Only the one reference the claim names counts: a
     value without one (``computed-here``, or the short form) is shown as the tool's own
     result, never attributed to a paper by default, and never to two papers at once."""
-    ref = entry.cited_reference(source)
-    if source == "computed-here" or ref is None:
+    ref = entry.cited_reference(source)  # None for computed-here: no reference bears it
+    if ref is None:
         return {"computed_here": True, "label": COMPUTED_ONLY_WORDS}
-    return {"computed_here": False, "label": f"{short_authors(ref.authors)} {ref.year}"}
+    return {"computed_here": False, "label": work_label(ref)}
+
+
+def work_label(reference: Reference) -> str:
+    """A work as a reader names it in passing: surnames and year (Kerr 1963)."""
+    return f"{short_authors(reference.authors)} {reference.year}"
 
 
 def claim_data(claim: Claim, entry: Entry, st: Spacetime | None) -> dict[str, Any]:
@@ -610,7 +615,7 @@ def citations(report: EntryReport, meta: CatalogMeta) -> dict[str, Any]:
     entry = report.entry
     assert entry is not None
     latest = meta.revisions.get(entry.id, ())[-1:]
-    originals = [{"label": f"{short_authors(r.authors)} {r.year}", "confirmed": r.confirmed or "",
+    originals = [{"label": work_label(r), "confirmed": r.confirmed or "",
                   "unconfirmed": list(r.unconfirmed)}
                  for r in entry.references if r.role == "original"]
     return {
