@@ -548,7 +548,8 @@ class EntryReport:
 
     @property
     def agreements(self) -> int:
-        """How many checked values agree with a value printed in a cited publication."""
+        """How many checked values agree with a cited publication: the value itself, or a stated
+        property that fixes it (vacuum: R_ab = 0; conformally flat: Weyl tensor zero)."""
         return sum(v.status == "agrees" for v in self.verdicts)
 
 

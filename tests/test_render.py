@@ -372,7 +372,7 @@ def test_catalog_pages_count_agreement_with_the_literature_apart(site: Path) -> 
     scalar only); an entry with none is labelled "computed only" on its card and page and can
     be chosen with the search's filter."""
     home = page(site, "index.html").text
-    assert "1 checked values agree with a value printed in a cited publication" in \
+    assert "1 checked values agree with a cited publication — the value itself, or a property" in \
         " ".join(home.replace("\n", " ").split())
     browse = (site / "browse.html").read_text(encoding="utf-8")
     assert 'id="f-evidence"' in browse and 'value="computed-only"' in browse
